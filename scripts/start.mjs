@@ -1,0 +1,95 @@
+// `npm start`: installs what is missing, starts PostgreSQL on loopback, migrates, loads
+// the demo data once, builds, and serves Crossgrain with its fake mail server and job
+// worker beside it. Ctrl-C stops everything, the database included.
+// `npm run dev` does the same with Astro's hot-reloading development server.
+import { existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { ensureNodeModules, run, startChild, step } from './lib/system.mjs';
+
+const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
+const dev = process.argv.includes('--dev');
+const host = process.env.HOST ?? '127.0.0.1';
+const port = Number(process.env.PORT ?? 4321);
+const runDir = path.join(root, '.data', 'run');
+const env = { ...process.env, ASTRO_TELEMETRY_DISABLED: '1', HOST: host, PORT: String(port) };
+
+/** Ends processes a previous start left behind (after a SIGKILL, say), by their pid files. */
+function endLeftovers() {
+  if (!existsSync(runDir)) return;
+  for (const name of ['app', 'mail', 'worker']) {
+    const file = path.join(runDir, `${name}.pid`);
+    if (!existsSync(file)) continue;
+    const pid = Number(readFileSync(file, 'utf8'));
+    try {
+      process.kill(pid, 0);
+      step(`Ending the ${name} process (${pid}) that a previous start left running`);
+      process.kill(pid, 'SIGTERM');
+    } catch {
+      // Already gone.
+    }
+    rmSync(file, { force: true });
+  }
+}
+
+ensureNodeModules(root);
+const { startCluster, stopCluster } = await import('../db/scripts/postgres.mjs');
+mkdirSync(runDir, { recursive: true });
+endLeftovers();
+startCluster();
+step('Migrating the database');
+run('npx', ['tsx', 'db/migrate.ts', 'up'], { cwd: root, env });
+step('Loading the demo data (once)');
+run('npx', ['tsx', 'db/seed.ts'], { cwd: root, env });
+if (!dev) {
+  step('Building the app');
+  run('npx', ['astro', 'build', '--silent'], { cwd: root, env });
+}
+
+const children = [];
+function launch(name, command, args) {
+  const child = startChild(name, command, args, { cwd: root, env });
+  writeFileSync(path.join(runDir, `${name}.pid`), String(child.pid));
+  child.on('exit', (code, signal) => {
+    rmSync(path.join(runDir, `${name}.pid`), { force: true });
+    if (!stopping) {
+      step(`The ${name} process ended (${signal ?? code}); stopping everything`);
+      shutdown(1);
+    }
+  });
+  children.push(child);
+  return child;
+}
+
+let stopping = false;
+/** Stops the children (TERM, then KILL after a grace period), then the database. */
+async function shutdown(code = 0) {
+  if (stopping) return;
+  stopping = true;
+  step('Stopping');
+  const exited = children.map((child) =>
+    child.exitCode !== null || child.signalCode !== null ? Promise.resolve() : new Promise((resolve) => child.once('exit', resolve)),
+  );
+  for (const child of children) child.kill('SIGTERM');
+  const grace = setTimeout(() => {
+    for (const child of children) if (child.exitCode === null) child.kill('SIGKILL');
+  }, 3000);
+  await Promise.all(exited);
+  clearTimeout(grace);
+  stopCluster();
+  process.exit(code);
+}
+process.on('SIGINT', () => shutdown(0));
+process.on('SIGTERM', () => shutdown(0));
+
+for (const [name, script] of [['mail', 'src/lib/server/mailServer.ts'], ['worker', 'src/lib/server/worker.ts']]) {
+  if (existsSync(path.join(root, script))) launch(name, 'npx', ['tsx', script]);
+}
+if (dev) launch('app', 'npx', ['astro', 'dev', '--host', host, '--port', String(port)]);
+else launch('app', process.execPath, [path.join(root, 'dist/server/entry.mjs')]);
+
+const demo = JSON.parse(readFileSync(path.join(root, 'db/seeds/demo.json'), 'utf8'));
+step(`Crossgrain is running at http://${host}:${port}  (Ctrl-C stops it)`);
+console.log(`\n  Demo accounts (synthetic data; password for all: ${demo.password})`);
+for (const user of demo.users) console.log(`    ${`${user.local}@${demo.domain}`.padEnd(32)} ${user.summary}`);
+console.log('');

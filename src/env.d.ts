@@ -1,0 +1,16 @@
+/// <reference types="astro/client" />
+
+declare namespace App {
+  interface Locals {
+    /** A random id for this request, echoed in logs and error bodies. */
+    requestId: string;
+    /** The nonce that this response's Content-Security-Policy allows inline scripts by. */
+    cspNonce: string;
+    /** The signed-in user, or null. */
+    user: import('./lib/server/session').SessionUser | null;
+    /** The current session, or null. */
+    session: import('./lib/server/session').SessionInfo | null;
+    /** Runs work in this request's transaction, as this request's user (row-level security). */
+    db: import('./lib/server/db').Scoped;
+  }
+}

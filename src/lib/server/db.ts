@@ -1,0 +1,45 @@
+import { QueryTypes, type Transaction } from 'sequelize';
+import { createSequelize } from '../../../db/connection';
+import { initModels } from '../../../db/models';
+
+/** The application's only connection pool: the `app` role, which row-level security binds. */
+export const sequelize = createSequelize('app');
+export const models = initModels(sequelize);
+
+/** A function that runs work inside the caller's request transaction. */
+export type Scoped = <T>(work: (transaction: Transaction) => Promise<T>) => Promise<T>;
+
+/**
+ * Opens one transaction for a request, tells PostgreSQL who is asking, and runs `work`
+ * in it. The identity is transaction-local (`set_config(..., true)`), so it cannot leak to
+ * the next request that borrows the same pooled connection. `null` means anonymous:
+ * every row-level security policy then matches nothing.
+ */
+export async function withIdentity<T>(
+  userId: string | null,
+  work: (transaction: Transaction) => Promise<T>,
+): Promise<T> {
+  return sequelize.transaction(async (transaction) => {
+    await sequelize.query("SELECT set_config('app.user_id', :userId, true)", {
+      replacements: { userId: userId ?? '' },
+      transaction,
+      type: QueryTypes.SELECT,
+    });
+    return work(transaction);
+  });
+}
+
+/** Binds `withIdentity` to one user, for `locals.db` in the middleware. */
+export function scopedTo(userId: string | null): Scoped {
+  return (work) => withIdentity(userId, work);
+}
+
+/** True when the database answers a trivial query within the pool's acquire timeout. */
+export async function databaseAnswers(): Promise<boolean> {
+  try {
+    await sequelize.query('SELECT 1', { type: QueryTypes.SELECT });
+    return true;
+  } catch {
+    return false;
+  }
+}

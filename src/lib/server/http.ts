@@ -1,0 +1,75 @@
+import type { APIContext, APIRoute } from 'astro';
+import { z, type ZodType } from 'zod';
+import { AppError, validationFailed, type ErrorBody } from './errors';
+import { logger } from './logger';
+
+/** A JSON response with the given status. */
+export function json(body: unknown, status = 200, headers: Record<string, string> = {}): Response {
+  return new Response(JSON.stringify(body), {
+    status,
+    headers: { 'Content-Type': 'application/json; charset=utf-8', 'Cache-Control': 'no-store', ...headers },
+  });
+}
+
+/** Turns any thrown value into the error vocabulary's response; unknown errors are logged. */
+export function errorResponse(error: unknown, requestId?: string): Response {
+  if (error instanceof z.ZodError) error = validationFailed(flattenIssues(error));
+  if (error instanceof AppError) {
+    const body: ErrorBody = { error: { code: error.code, message: error.message, requestId } };
+    if (error.details !== undefined) body.error.details = error.details;
+    return json(body, error.status, error.headers);
+  }
+  logger.error({ err: error, requestId }, 'unhandled error');
+  return json(
+    { error: { code: 'internal-error', message: 'Something went wrong on our side. The error has been logged.', requestId } },
+    500,
+  );
+}
+
+/**
+ * Wraps an endpoint once: known errors become their status and code, anything else a
+ * logged 500 without a stack trace in the body.
+ */
+export function endpoint(handler: (context: APIContext) => Promise<Response> | Response): APIRoute {
+  return async (context) => {
+    try {
+      return await handler(context);
+    } catch (error) {
+      return errorResponse(error, context.locals.requestId);
+    }
+  };
+}
+
+/** Field-level messages: `[{ path: "spec.outcome.column", message }]`. */
+export function flattenIssues(error: z.ZodError): { path: string; message: string }[] {
+  return error.issues.map((issue) => ({ path: issue.path.join('.'), message: issue.message }));
+}
+
+/** Parses a JSON request body with a zod schema; 400 with field messages when it fails. */
+export async function parseBody<S extends ZodType>(request: Request, schema: S): Promise<z.infer<S>> {
+  let raw: unknown;
+  try {
+    raw = await request.json();
+  } catch {
+    throw new AppError(400, 'invalid-json', 'The request body must be JSON.');
+  }
+  const parsed = schema.safeParse(raw);
+  if (!parsed.success) throw validationFailed(flattenIssues(parsed.error));
+  return parsed.data;
+}
+
+/** Parses a URL's query string with a zod schema (values arrive as strings). */
+export function parseQuery<S extends ZodType>(url: URL, schema: S): z.infer<S> {
+  const parsed = schema.safeParse(Object.fromEntries(url.searchParams));
+  if (!parsed.success) throw validationFailed(flattenIssues(parsed.error));
+  return parsed.data;
+}
+
+/** The client's address as the adapter saw it. Behind a proxy, configure the proxy to set it. */
+export function clientAddress(context: APIContext | { clientAddress: string }): string {
+  try {
+    return context.clientAddress;
+  } catch {
+    return 'unknown';
+  }
+}

@@ -1,0 +1,19 @@
+import pino from 'pino';
+import { env, isProduction } from './env';
+
+/**
+ * The one logger. JSON lines on stdout; pretty-printed in development when pino-pretty is
+ * installed. Log identifiers and counts, never secrets or cohort values: the redact list
+ * is a safety net, not permission.
+ */
+export const logger = pino({
+  level: env.CROSSGRAIN_ENV === 'test' ? 'silent' : env.LOG_LEVEL,
+  base: { app: 'crossgrain' },
+  redact: {
+    paths: ['password', '*.password', 'token', '*.token', 'cookie', '*.cookie', 'req.headers.cookie', 'req.headers.authorization'],
+    censor: '[redacted]',
+  },
+  ...(isProduction || process.env.CROSSGRAIN_LOG_FORMAT === 'json'
+    ? {}
+    : { transport: { target: 'pino-pretty', options: { colorize: true, singleLine: true } } }),
+});

@@ -1,0 +1,201 @@
+/**
+ * Sessions. The only module that knows the session library (lucia v3), so it can be
+ * replaced without touching pages or endpoints.
+ *
+ * - The cookie carries a 160-bit random token; the database keeps only its SHA-256, which
+ *   is the session id. A stolen copy of the sessions table cannot be replayed.
+ * - A new session (new token) on every sign-in.
+ * - Idle timeout and absolute lifetime are enforced here from `last_seen_at` and
+ *   `created_at`; the library's own expiry is set to the absolute lifetime.
+ * - Scripts may authenticate with a personal API token instead (`Authorization: Bearer`).
+ */
+import { createHash, randomBytes } from 'node:crypto';
+import type { AstroCookies } from 'astro';
+import { Lucia, TimeSpan } from 'lucia';
+import { NodePostgresAdapter } from '@lucia-auth/adapter-postgresql';
+import pg from 'pg';
+import { QueryTypes } from 'sequelize';
+import type { Role } from '../../../db/models';
+import { env, isProduction } from './env';
+import { sequelize, withIdentity } from './db';
+
+export interface MembershipInfo {
+  initiativeId: string;
+  initiativeName: string;
+  initiativeSlug: string;
+  role: Role;
+}
+
+export interface SessionUser {
+  id: string;
+  email: string;
+  displayName: string;
+  isAdmin: boolean;
+  memberships: MembershipInfo[];
+}
+
+export interface SessionInfo {
+  id: string;
+  createdAt: Date;
+  lastSeenAt: Date;
+  /** How the request authenticated. */
+  via: 'cookie' | 'api-token';
+  /** The API token's id when `via` is `api-token`. */
+  apiTokenId?: string;
+}
+
+/** The session cookie's name: `__Host-` in production pins it to this origin over HTTPS. */
+export const SESSION_COOKIE = isProduction ? '__Host-crossgrain_session' : 'crossgrain_session';
+
+const idleMs = () => env.CROSSGRAIN_SESSION_IDLE_MINUTES * 60_000;
+const absoluteMs = () => env.CROSSGRAIN_SESSION_ABSOLUTE_HOURS * 3_600_000;
+/** Writing last_seen_at on every request would cost a write per page; once a minute is enough. */
+const LAST_SEEN_WRITE_INTERVAL_MS = 60_000;
+
+const pool = new pg.Pool({
+  host: env.CROSSGRAIN_DB_HOST,
+  port: env.CROSSGRAIN_DB_PORT,
+  database: env.CROSSGRAIN_DB_NAME,
+  user: env.CROSSGRAIN_DB_APP_USER,
+  password: env.CROSSGRAIN_DB_APP_PASSWORD,
+  max: 5,
+});
+
+interface SessionRowAttributes {
+  created_at: Date;
+  last_seen_at: Date;
+  client_address: string | null;
+  user_agent: string | null;
+}
+
+interface UserRowAttributes {
+  email: string;
+  display_name: string;
+  is_admin: boolean;
+  status: string;
+}
+
+const lucia = new Lucia(new NodePostgresAdapter(pool, { user: 'users', session: 'sessions' }), {
+  sessionExpiresIn: new TimeSpan(env.CROSSGRAIN_SESSION_ABSOLUTE_HOURS * 60, 'm'),
+  sessionCookie: {
+    name: SESSION_COOKIE,
+    expires: false,
+    attributes: { secure: isProduction, sameSite: 'lax', path: '/' },
+  },
+  getSessionAttributes: (attributes) => ({
+    createdAt: new Date(attributes.created_at),
+    lastSeenAt: new Date(attributes.last_seen_at),
+  }),
+  getUserAttributes: (attributes) => ({
+    email: attributes.email,
+    displayName: attributes.display_name,
+    isAdmin: attributes.is_admin,
+    status: attributes.status,
+  }),
+});
+
+declare module 'lucia' {
+  interface Register {
+    Lucia: typeof lucia;
+    DatabaseSessionAttributes: SessionRowAttributes;
+    DatabaseUserAttributes: UserRowAttributes;
+  }
+}
+
+/** SHA-256 of a secret token, hex. Tokens are only ever stored this way. */
+export function hashToken(token: string): string {
+  return createHash('sha256').update(token).digest('hex');
+}
+
+/** A new random secret: 20 bytes (160 bits), base64url. */
+export function newToken(bytes = 20): string {
+  return randomBytes(bytes).toString('base64url');
+}
+
+/** The memberships (with initiative names) of one user, read under their own identity. */
+export async function loadMemberships(userId: string): Promise<MembershipInfo[]> {
+  return withIdentity(userId, (transaction) =>
+    sequelize.query<MembershipInfo>(
+      `SELECT m.initiative_id AS "initiativeId", i.name AS "initiativeName", i.slug AS "initiativeSlug", m.role
+         FROM memberships m JOIN initiatives i ON i.id = m.initiative_id
+        WHERE m.user_id = :userId AND i.archived_at IS NULL
+        ORDER BY i.name`,
+      { replacements: { userId }, type: QueryTypes.SELECT, transaction },
+    ),
+  );
+}
+
+/**
+ * Starts a new session for a user and sets its cookie. Called after a successful
+ * sign-in or invitation acceptance; any session token the browser held is replaced.
+ */
+export async function startSession(
+  cookies: AstroCookies,
+  userId: string,
+  client: { address: string; userAgent: string | null },
+): Promise<{ sessionId: string }> {
+  const token = newToken();
+  const sessionId = hashToken(token);
+  const now = new Date();
+  await lucia.createSession(
+    userId,
+    { created_at: now, last_seen_at: now, client_address: client.address, user_agent: client.userAgent?.slice(0, 300) ?? null },
+    { sessionId },
+  );
+  const cookie = lucia.createSessionCookie(token);
+  cookies.set(cookie.name, cookie.value, cookie.attributes);
+  return { sessionId };
+}
+
+/** Ends one session and clears the cookie. */
+export async function endSession(cookies: AstroCookies, sessionId: string | undefined): Promise<void> {
+  if (sessionId) await lucia.invalidateSession(sessionId);
+  const blank = lucia.createBlankSessionCookie();
+  cookies.set(blank.name, blank.value, blank.attributes);
+}
+
+/** Ends every session of a user (deactivation, password reset). */
+export async function endAllSessions(userId: string): Promise<void> {
+  await lucia.invalidateUserSessions(userId);
+}
+
+interface ResolveContext {
+  cookies: AstroCookies;
+  request: Request;
+}
+
+/**
+ * Works out who is asking: a session cookie, or a personal API token in the
+ * Authorization header. Expired, idle or deactivated sessions are ended and give null.
+ */
+export async function resolveSession(context: ResolveContext): Promise<{ user: SessionUser | null; session: SessionInfo | null }> {
+  const anonymous = { user: null, session: null };
+  const token = context.cookies.get(SESSION_COOKIE)?.value;
+  if (!token) return anonymous;
+  const sessionId = hashToken(token);
+  const { session, user } = await lucia.validateSession(sessionId);
+  if (!session || !user) {
+    await endSession(context.cookies, undefined);
+    return anonymous;
+  }
+  const now = Date.now();
+  const idle = now - session.lastSeenAt.getTime() > idleMs();
+  const tooOld = now - session.createdAt.getTime() > absoluteMs();
+  if (idle || tooOld || user.status !== 'active') {
+    await endSession(context.cookies, session.id);
+    return anonymous;
+  }
+  if (now - session.lastSeenAt.getTime() > LAST_SEEN_WRITE_INTERVAL_MS) {
+    await pool.query('UPDATE sessions SET last_seen_at = now() WHERE id = $1', [session.id]);
+  }
+  return {
+    user: {
+      id: user.id,
+      email: user.email,
+      displayName: user.displayName,
+      isAdmin: user.isAdmin,
+      memberships: await loadMemberships(user.id),
+    },
+    session: { id: session.id, createdAt: session.createdAt, lastSeenAt: session.lastSeenAt, via: 'cookie' },
+  };
+}

@@ -1,0 +1,58 @@
+import { randomBytes, randomUUID } from 'node:crypto';
+import { defineMiddleware, sequence } from 'astro:middleware';
+import { scopedTo } from './lib/server/db';
+import { logger } from './lib/server/logger';
+import { addNonceToScripts, securityHeaders } from './lib/server/securityHeaders';
+import { resolveSession } from './lib/server/session';
+
+/** Gives each request an id and a CSP nonce, and logs its outcome (no bodies, no cookies). */
+const requestContext = defineMiddleware(async (context, next) => {
+  context.locals.requestId = randomUUID();
+  context.locals.cspNonce = randomBytes(16).toString('base64');
+  const started = performance.now();
+  const response = await next();
+  logger.info(
+    {
+      requestId: context.locals.requestId,
+      method: context.request.method,
+      path: context.url.pathname,
+      status: response.status,
+      ms: Math.round(performance.now() - started),
+    },
+    'request',
+  );
+  return response;
+});
+
+/** Always sets locals.user, locals.session (null when signed out) and locals.db. */
+const session = defineMiddleware(async (context, next) => {
+  const resolved = await resolveSession(context);
+  context.locals.user = resolved.user;
+  context.locals.session = resolved.session;
+  context.locals.db = scopedTo(resolved.user?.id ?? null);
+  return next();
+});
+
+/** Security headers on every response; the nonce is stamped onto HTML script tags. */
+const headers = defineMiddleware(async (context, next) => {
+  const response = await next();
+  const nonce = context.locals.cspNonce;
+  const extra = securityHeaders(nonce);
+  const type = response.headers.get('content-type') ?? '';
+  if (type.includes('text/html')) {
+    const html = addNonceToScripts(await response.text(), nonce);
+    const rewritten = new Response(html, { status: response.status, statusText: response.statusText, headers: response.headers });
+    for (const [name, value] of Object.entries(extra)) rewritten.headers.set(name, value);
+    return rewritten;
+  }
+  for (const [name, value] of Object.entries(extra)) {
+    try {
+      response.headers.set(name, value);
+    } catch {
+      // Some responses (redirects made by Response.redirect) have immutable headers.
+    }
+  }
+  return response;
+});
+
+export const onRequest = sequence(requestContext, headers, session);

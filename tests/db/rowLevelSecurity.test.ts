@@ -1,0 +1,114 @@
+/**
+ * Row-level security through the application's real connection pool (the `app` role),
+ * against the throwaway cluster. Standard: PostgreSQL documentation, "Row Security
+ * Policies"; our rules in shared design standards (RLS section).
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { QueryTypes } from 'sequelize';
+import { sequelize, withIdentity } from '../../src/lib/server/db';
+import { env } from '../../src/lib/server/env';
+import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
+
+/** Tables with no initiative data, read before an identity exists (documented in SECURITY.md). */
+const TABLES_WITHOUT_INITIATIVE_DATA = new Set(['users', 'sessions', 'schema_migrations']);
+
+afterAll(async () => {
+  await closeOwnerDb();
+});
+
+describe('the application role', () => {
+  it('is not a superuser, cannot bypass row-level security and owns nothing', async () => {
+    const [role] = await ownerDb().query<{ rolsuper: boolean; rolbypassrls: boolean; owned: string }>(
+      `SELECT r.rolsuper, r.rolbypassrls,
+              (SELECT count(*) FROM pg_class c WHERE c.relowner = r.oid) +
+              (SELECT count(*) FROM pg_proc p WHERE p.proowner = r.oid) +
+              (SELECT count(*) FROM pg_namespace n WHERE n.nspowner = r.oid) AS owned
+         FROM pg_roles r WHERE r.rolname = :name`,
+      { replacements: { name: env.CROSSGRAIN_DB_APP_USER }, type: QueryTypes.SELECT },
+    );
+    expect(role).toBeDefined();
+    expect(role.rolsuper).toBe(false);
+    expect(role.rolbypassrls).toBe(false);
+    expect(Number(role.owned)).toBe(0);
+  });
+
+  it('is the role the application pool connects as', async () => {
+    const [row] = await sequelize.query<{ who: string }>('SELECT current_user AS who', { type: QueryTypes.SELECT });
+    expect(row.who).toBe(env.CROSSGRAIN_DB_APP_USER);
+  });
+});
+
+describe('every table that holds initiative data', () => {
+  it('has row-level security enabled and forced, with at least one policy', async () => {
+    const tables = await ownerDb().query<{ name: string; rls: boolean; forced: boolean; policies: string; hasInitiative: boolean }>(
+      `SELECT c.relname AS name, c.relrowsecurity AS rls, c.relforcerowsecurity AS forced,
+              (SELECT count(*) FROM pg_policy p WHERE p.polrelid = c.oid) AS policies,
+              EXISTS (SELECT 1 FROM pg_attribute a WHERE a.attrelid = c.oid AND a.attname = 'initiative_id' AND NOT a.attisdropped) AS "hasInitiative"
+         FROM pg_class c JOIN pg_namespace n ON n.oid = c.relnamespace
+        WHERE n.nspname = 'public' AND c.relkind IN ('r', 'p')`,
+      { type: QueryTypes.SELECT },
+    );
+    expect(tables.length).toBeGreaterThan(0);
+    const unprotected = tables
+      .filter((t) => !TABLES_WITHOUT_INITIATIVE_DATA.has(t.name))
+      .filter((t) => !t.rls || !t.forced || Number(t.policies) === 0)
+      .map((t) => t.name);
+    expect(unprotected).toEqual([]);
+    // A table that carries initiative_id can never be on the exemption list.
+    const exemptWithInitiative = tables.filter((t) => t.hasInitiative && TABLES_WITHOUT_INITIATIVE_DATA.has(t.name));
+    expect(exemptWithInitiative).toEqual([]);
+  });
+});
+
+describe('initiatives under row-level security', () => {
+  let alice: { id: string };
+  let bob: { id: string };
+  let northId: string;
+  let southId: string;
+
+  beforeAll(async () => {
+    alice = await makeUser();
+    bob = await makeUser();
+    northId = (await makeInitiative('North ward pilot')).id;
+    southId = (await makeInitiative('South ward pilot')).id;
+    await addMember(northId, alice.id, 'analyst');
+    await addMember(southId, bob.id, 'clinician');
+  });
+
+  const visibleIds = (userId: string | null) =>
+    withIdentity(userId, async (transaction) => {
+      const rows = await sequelize.query<{ id: string }>('SELECT id FROM initiatives', { type: QueryTypes.SELECT, transaction });
+      return rows.map((r) => r.id);
+    });
+
+  it('shows nothing without an identity', async () => {
+    expect(await visibleIds(null)).toEqual([]);
+  });
+
+  it('shows a member only the initiatives they belong to', async () => {
+    expect(await visibleIds(alice.id)).toEqual([northId]);
+    expect(await visibleIds(bob.id)).toEqual([southId]);
+  });
+
+  it('does not leak an identity to the next use of a pooled connection', async () => {
+    await visibleIds(alice.id);
+    // Outside any request transaction the setting reads back as '' and matches nobody.
+    const rows = await sequelize.query<{ id: string }>('SELECT id FROM initiatives', { type: QueryTypes.SELECT });
+    expect(rows).toEqual([]);
+  });
+
+  it('refuses a write that a policy does not allow (SQLSTATE 42501)', async () => {
+    const attempt = withIdentity(alice.id, (transaction) =>
+      sequelize.query("INSERT INTO initiatives (name, slug, organisation) VALUES ('x', 'rls-refused', 'y')", { transaction }),
+    );
+    await expect(attempt).rejects.toMatchObject({ original: { code: '42501' } });
+  });
+
+  it('hides a deactivated member even though the membership row remains', async () => {
+    const carol = await makeUser();
+    await addMember(northId, carol.id, 'auditor');
+    expect(await visibleIds(carol.id)).toEqual([northId]);
+    await ownerDb().query("UPDATE users SET status = 'deactivated' WHERE id = :id", { replacements: { id: carol.id } });
+    expect(await visibleIds(carol.id)).toEqual([]);
+  });
+});
