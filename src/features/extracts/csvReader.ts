@@ -265,8 +265,14 @@ export class CsvChunkReader {
       if (isBlank(body)) {
         throw new ExtractRefusalError('empty-file', 'The file is empty: it has no header row and no data.');
       }
-      this.delimiter = detectDelimiter(body);
-      this.parse(body);
+      const header = findHeaderLine(body, 0, body.length);
+      const from = header === null ? skipBlankLines(body) : header.lineStart;
+      const skipped = countLineBreaks(body, from);
+      this.line += skipped;
+      this.recordLine = this.line;
+      this.blankLines += skipped;
+      this.delimiter = detectDelimiter(body.subarray(from));
+      this.parse(body.subarray(from));
     }
     this.flushEnd();
     if (this.columnCount < 0) {
@@ -366,8 +372,8 @@ export class CsvChunkReader {
     buffer.set(chunk, this.headLength);
     this.headLength = needed;
     const start = this.headLength >= 3 && buffer[0] === 0xef && buffer[1] === 0xbb && buffer[2] === 0xbf ? 3 : 0;
-    const lineEnd = findHeaderEnd(buffer, start, this.headLength);
-    if (lineEnd < 0) {
+    const header = findHeaderLine(buffer, start, this.headLength);
+    if (header === null) {
       if (this.headLength - start > this.maxHeaderBytes) {
         throw new ExtractRefusalError(
           'header-too-long',
@@ -379,10 +385,14 @@ export class CsvChunkReader {
     }
     const all = buffer.subarray(0, this.headLength);
     this.headBuffer = null;
-    const body = this.stripBom(all);
-    this.delimiter = detectDelimiter(body.subarray(0, lineEnd - start));
+    this.stripBom(all);
+    // Blank (or spaces-only) lines above the header are skipped but still counted.
+    this.line += header.skippedLines;
+    this.recordLine = this.line;
+    this.blankLines += header.skippedLines;
+    this.delimiter = detectDelimiter(buffer.subarray(header.lineStart, header.lineEnd));
     // The head buffer is private, so parsing it in place is safe.
-    this.parse(body);
+    this.parse(all.subarray(header.lineStart));
   }
 
   // ---- the parser ---------------------------------------------------------------------
@@ -683,22 +693,33 @@ export class CsvChunkReader {
   }
 }
 
-/** Index just past the header's first line break outside quotes, or -1 if not yet seen. */
-function findHeaderEnd(bytes: Uint8Array, start: number, end: number): number {
+/**
+ * Locates the header: the first line that is not blank (spaces and tabs count as blank).
+ * Returns null until its line break (outside quotes) has arrived.
+ */
+function findHeaderLine(
+  bytes: Uint8Array,
+  start: number,
+  end: number,
+): { lineStart: number; lineEnd: number; skippedLines: number } | null {
+  let lineStart = start;
+  let skippedLines = 0;
   let quoted = false;
+  let blank = true;
   for (let i = start; i < end; i++) {
     const b = bytes[i];
-    if (b === QUOTE) quoted = !quoted;
-    else if (!quoted && (b === LF || b === CR)) {
-      // Skip header lines that are blank: the header is the first non-empty line.
-      if (i === start) {
-        start = i + 1;
-        continue;
-      }
-      return i;
-    }
+    if (b === QUOTE) {
+      quoted = !quoted;
+      blank = false;
+    } else if (!quoted && (b === LF || b === CR)) {
+      if (!blank) return { lineStart, lineEnd: i, skippedLines };
+      if (b === CR && i + 1 < end && bytes[i + 1] === LF) i++;
+      else if (b === CR && i + 1 === end) return null;
+      skippedLines++;
+      lineStart = i + 1;
+    } else if (b !== 32 && b !== TAB) blank = false;
   }
-  return -1;
+  return null;
 }
 
 /** Comma, semicolon or tab: whichever occurs most often outside quotes in the header line. */
@@ -720,6 +741,17 @@ function detectDelimiter(head: Uint8Array): number {
   if (semicolons > commas && semicolons >= tabs) return SEMICOLON;
   if (tabs > commas && tabs > semicolons) return TAB;
   return COMMA;
+}
+
+/** Offset of the first line that is not blank. */
+function skipBlankLines(bytes: Uint8Array): number {
+  let lineStart = 0;
+  for (let i = 0; i < bytes.length; i++) {
+    const b = bytes[i];
+    if (b === LF || b === CR) lineStart = i + 1;
+    else if (b !== 32 && b !== TAB) return lineStart;
+  }
+  return bytes.length;
 }
 
 function isBlank(bytes: Uint8Array): boolean {
