@@ -1,0 +1,199 @@
+/**
+ * The local mail store: the folder where the fake mail server (`mailServer.ts`) keeps
+ * every message it receives, and the reader behind the local-only outbox pages.
+ *
+ * Each message is two files named by a server-chosen id:
+ * - `<id>.eml`  the raw message as it arrived over SMTP;
+ * - `<id>.json` a small summary (id, receivedAt, from, to, subject, size).
+ * The server writes the .eml first and the .json last, each under a temporary name that
+ * is then renamed, so a summary only ever points at a complete message.
+ *
+ * Ids start with the UTC arrival time, so sorting names sorts messages by arrival. They
+ * are the only part of a path that comes from a request, so they are checked against a
+ * strict pattern before any file is touched.
+ */
+import { randomBytes } from 'node:crypto';
+import { readdir, readFile } from 'node:fs/promises';
+import path from 'node:path';
+import { simpleParser, type AddressObject } from 'mailparser';
+import { z } from 'zod';
+import { env } from './env';
+import { badRequest, notFound } from './errors';
+import { logger } from './logger';
+
+/** `20260305T101112345Z-0f3a9c2b71de`: arrival time to the millisecond, then 48 random bits. */
+const MESSAGE_ID = /^\d{8}T\d{9}Z-[0-9a-f]{12}$/;
+const SUMMARY_FILE = /^(\d{8}T\d{9}Z-[0-9a-f]{12})\.json$/;
+
+/** The folder the fake mail server stores messages in: `${CROSSGRAIN_DATA_DIR}/mail`. */
+export function mailStoreDir(): string {
+  return path.resolve(env.CROSSGRAIN_DATA_DIR, 'mail');
+}
+
+/** True when `value` has the exact shape of an id the mail server hands out. */
+export function isMessageId(value: unknown): value is string {
+  return typeof value === 'string' && MESSAGE_ID.test(value);
+}
+
+/** A new message id for a message arriving at `now`. */
+export function newMessageId(now: Date = new Date()): string {
+  const stamp = now.toISOString().replace(/[-:.]/g, '');
+  return `${stamp}-${randomBytes(6).toString('hex')}`;
+}
+
+/** What the store keeps beside each raw message. */
+export const MessageSummary = z.object({
+  id: z.string().regex(MESSAGE_ID),
+  receivedAt: z.iso.datetime(),
+  from: z.string(),
+  to: z.array(z.string()),
+  subject: z.string(),
+  size: z.number().int().nonnegative(),
+});
+export type MessageSummary = z.infer<typeof MessageSummary>;
+
+/** One message as the recipient would see it. */
+export interface OutboxMessage {
+  id: string;
+  receivedAt: string;
+  from: string;
+  to: string;
+  subject: string;
+  /** The message's own Date header, ISO 8601, or null when it has none. */
+  date: string | null;
+  text: string;
+  /** The HTML body, or null for a plain-text message. */
+  html: string | null;
+  /** The http(s) links the message carries, in order of first appearance, without repeats. */
+  links: string[];
+}
+
+export interface OutboxListing {
+  messages: MessageSummary[];
+  total: number;
+  page: number;
+  pageSize: number;
+  pageCount: number;
+}
+
+export const OUTBOX_PAGE_SIZE = 25;
+export const OUTBOX_MAX_PAGE_SIZE = 100;
+
+interface StoreOptions {
+  /** The store folder; defaults to `mailStoreDir()`. */
+  dir?: string;
+}
+
+/** The paths of one message's files, after checking the id (400 when it is malformed). */
+export function messagePaths(id: string, dir: string = mailStoreDir()): { eml: string; summary: string } {
+  if (!isMessageId(id)) throw badRequest('That is not a valid message id.');
+  const root = path.resolve(dir);
+  const eml = path.resolve(root, `${id}.eml`);
+  const summary = path.resolve(root, `${id}.json`);
+  // The pattern already rules out separators and dots; this keeps it true if the pattern changes.
+  if (path.dirname(eml) !== root || path.dirname(summary) !== root) throw badRequest('That is not a valid message id.');
+  return { eml, summary };
+}
+
+async function storedIds(dir: string): Promise<string[]> {
+  let names: string[];
+  try {
+    names = await readdir(dir);
+  } catch (error) {
+    if ((error as NodeJS.ErrnoException).code === 'ENOENT') return [];
+    throw error;
+  }
+  const ids: string[] = [];
+  for (const name of names) {
+    const match = SUMMARY_FILE.exec(name);
+    if (match) ids.push(match[1]);
+  }
+  return ids.sort().reverse();
+}
+
+async function readSummary(id: string, dir: string): Promise<MessageSummary | null> {
+  const { summary } = messagePaths(id, dir);
+  try {
+    const parsed = MessageSummary.safeParse(JSON.parse(await readFile(summary, 'utf8')));
+    if (parsed.success && parsed.data.id === id) return parsed.data;
+  } catch (error) {
+    if ((error as NodeJS.ErrnoException).code === 'ENOENT') return null;
+  }
+  logger.warn({ messageId: id }, 'outbox: unreadable message summary skipped');
+  return null;
+}
+
+/**
+ * The stored messages, newest first, one page at a time. A missing store folder is an
+ * empty outbox. `page` counts from 1; a page past the end is empty.
+ */
+export async function listMessages(
+  options: StoreOptions & { page?: number; pageSize?: number } = {},
+): Promise<OutboxListing> {
+  const dir = options.dir ?? mailStoreDir();
+  const page = options.page ?? 1;
+  const pageSize = options.pageSize ?? OUTBOX_PAGE_SIZE;
+  if (!Number.isInteger(page) || page < 1) throw badRequest('The page must be a whole number from 1.');
+  if (!Number.isInteger(pageSize) || pageSize < 1 || pageSize > OUTBOX_MAX_PAGE_SIZE) {
+    throw badRequest(`The page size must be a whole number from 1 to ${OUTBOX_MAX_PAGE_SIZE}.`);
+  }
+  const ids = await storedIds(dir);
+  const slice = ids.slice((page - 1) * pageSize, page * pageSize);
+  const summaries = await Promise.all(slice.map((id) => readSummary(id, dir)));
+  return {
+    messages: summaries.filter((s): s is MessageSummary => s !== null),
+    total: ids.length,
+    page,
+    pageSize,
+    pageCount: Math.max(1, Math.ceil(ids.length / pageSize)),
+  };
+}
+
+function addressText(value: AddressObject | AddressObject[] | undefined): string {
+  if (!value) return '';
+  return (Array.isArray(value) ? value : [value]).map((a) => a.text).join(', ');
+}
+
+/** Every http(s) link in the message, HTML hrefs first, then bare URLs in the text. */
+export function linksIn(html: string | null, text: string): string[] {
+  const found: string[] = [];
+  const add = (candidate: string) => {
+    const decoded = candidate.replace(/&amp;/g, '&');
+    if (/^https?:\/\//i.test(decoded) && !found.includes(decoded)) found.push(decoded);
+  };
+  if (html) for (const match of html.matchAll(/\bhref\s*=\s*["']([^"']+)["']/gi)) add(match[1].trim());
+  for (const match of text.matchAll(/\bhttps?:\/\/[^\s<>"')\]]+/gi)) add(match[0]);
+  return found;
+}
+
+/**
+ * One stored message, parsed. 400 when the id is malformed, 404 when no such message
+ * is stored.
+ */
+export async function readMessage(id: string, options: StoreOptions = {}): Promise<OutboxMessage> {
+  const dir = options.dir ?? mailStoreDir();
+  const { eml } = messagePaths(id, dir);
+  const summary = await readSummary(id, dir);
+  if (!summary) throw notFound('That message');
+  let raw: Buffer;
+  try {
+    raw = await readFile(eml);
+  } catch (error) {
+    if ((error as NodeJS.ErrnoException).code === 'ENOENT') throw notFound('That message');
+    throw error;
+  }
+  const parsed = await simpleParser(raw, { skipImageLinks: true, skipTextToHtml: true });
+  const html = typeof parsed.html === 'string' ? parsed.html : null;
+  const text = parsed.text ?? '';
+  return {
+    id,
+    receivedAt: summary.receivedAt,
+    from: addressText(parsed.from) || summary.from,
+    to: addressText(parsed.to) || summary.to.join(', '),
+    subject: parsed.subject ?? summary.subject,
+    date: parsed.date ? parsed.date.toISOString() : null,
+    text,
+    html,
+    links: linksIn(html, text),
+  };
+}
