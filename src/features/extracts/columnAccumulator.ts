@@ -17,6 +17,7 @@
  * at the end; its numeric values then become levels in JavaScript's shortest round-trip
  * form (`007` -> `7`), while the raw digits were already screened as they passed.
  */
+import { ExtractRefusalError } from './extractRefusal';
 import { addPatternMask, classifyTextValue, emptyPatternCounts, isCompactDate, type PatternCounts } from './identifierScreen';
 
 /** Options of {@link ColumnSet}. */
@@ -144,21 +145,21 @@ function decode(bytes: Uint8Array, start: number, end: number): string {
   return textDecoder.decode(bytes.subarray(start, end));
 }
 
-function growFloat64(old: Float64Array, capacity: number): Float64Array {
+function growFloat64(old: Float64Array, capacity: number): Float64Array<ArrayBuffer> {
   const grown = new Float64Array(capacity);
   grown.set(old);
   grown.fill(NaN, old.length);
   return grown;
 }
 
-function growInt32(old: Int32Array, capacity: number, fill: number): Int32Array {
+function growInt32(old: Int32Array, capacity: number, fill: number): Int32Array<ArrayBuffer> {
   const grown = new Int32Array(capacity);
   grown.set(old);
   grown.fill(fill, old.length);
   return grown;
 }
 
-function growBytes(old: Uint8Array, capacity: number): Uint8Array {
+function growBytes(old: Uint8Array, capacity: number): Uint8Array<ArrayBuffer> {
   const grown = new Uint8Array(capacity);
   grown.set(old);
   return grown;
@@ -467,8 +468,6 @@ export class ColumnSet {
   private readonly drop: Set<string>;
   /** Names of the columns dropped while reading, in file order. */
   readonly droppedColumns: string[] = [];
-  /** Drop-list names that the header did not contain. */
-  unmatchedDropColumns: string[] = [];
 
   /**
    * @param options see {@link ColumnSetOptions}
@@ -478,7 +477,7 @@ export class ColumnSet {
     this.drop = new Set((options.dropColumns ?? []).map((name) => name.trim().toLowerCase()));
   }
 
-  /** Creates one builder per kept column. */
+  /** Creates one builder per kept column; refuses a drop list naming a column the header lacks. */
   header(names: readonly string[]): void {
     const decimalByte = (this.options.decimalSeparator ?? '.') === ',' ? 44 : 46;
     const missingTokens = (this.options.missingTokens ?? ['NA', 'N/A', 'NULL']).map((t) => Buffer.from(t.trim()));
@@ -494,7 +493,11 @@ export class ColumnSet {
       }
       return new ColumnBuilder(name, index, capacity, { decimalByte, missingTokens, maxLevels });
     });
-    this.unmatchedDropColumns = [...this.drop].filter((key) => !matched.has(key));
+    const unmatched = (this.options.dropColumns ?? []).filter((name) => !matched.has(name.trim().toLowerCase()));
+    if (unmatched.length > 0) {
+      const list = unmatched.map((name) => `"${name}"`).join(', ');
+      throw new ExtractRefusalError('unknown-drop-column', `Line 1: the header has no column named ${list} to drop.`, 1);
+    }
   }
 
   /** One field; dropped columns ignore it. */

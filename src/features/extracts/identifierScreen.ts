@@ -274,6 +274,8 @@ const THING_QUALIFIERS = new Set([
   'trust', 'country', 'state', 'arm', 'intervention', 'outcome', 'study', 'trial', 'protocol',
 ]);
 
+// Order matters where words overlap: "ip address" and "email address" are not street addresses,
+// "licence plate" is a vehicle and "licence number" a licence.
 const NAME_RULES: readonly NameRule[] = [
   {
     category: 'names',
@@ -282,6 +284,16 @@ const NAME_RULES: readonly NameRule[] = [
     phrases: [['first', 'name'], ['last', 'name'], ['given', 'name'], ['family', 'name'], ['middle', 'name'], ['full', 'name'], ['maiden', 'name']],
     whole: ['name', 'first', 'last', 'names', 'patient', 'patientname'],
   },
+  { category: 'email', label: 'e-mail addresses', words: ['email', 'emails', 'emailaddress'], phrases: [['e', 'mail']] },
+  // A bare "ip" often means inpatient in hospital data, so only the whole name or "ip address".
+  { category: 'ip-address', label: 'IP addresses', words: ['ipv4', 'ipv6', 'ipaddress'], whole: ['ip'], phrases: [['ip', 'address'], ['ip', 'addr']] },
+  {
+    category: 'device-identifier',
+    label: 'device identifiers or serial numbers',
+    words: ['serial', 'imei', 'udi', 'deviceid'],
+    phrases: [['device', 'id'], ['device', 'identifier'], ['device', 'number'], ['device', 'serial'], ['mac', 'address']],
+  },
+  { category: 'url', label: 'web addresses (URLs)', words: ['url', 'urls', 'uri', 'website', 'webpage', 'homepage', 'link'], phrases: [['web', 'address']] },
   {
     category: 'geography',
     label: 'geographic units smaller than a state (addresses, ZIP or postal codes)',
@@ -296,7 +308,6 @@ const NAME_RULES: readonly NameRule[] = [
   },
   { category: 'phone', label: 'telephone numbers', words: ['phone', 'telephone', 'tel', 'mobile', 'cellphone', 'phonenumber'] },
   { category: 'fax', label: 'fax numbers', words: ['fax', 'facsimile'] },
-  { category: 'email', label: 'e-mail addresses', words: ['email', 'emails', 'emailaddress'], phrases: [['e', 'mail']] },
   {
     category: 'ssn',
     label: 'social security or national insurance numbers',
@@ -317,26 +328,17 @@ const NAME_RULES: readonly NameRule[] = [
   },
   { category: 'account-number', label: 'account numbers', words: ['account', 'accounts', 'acct', 'iban'], phrases: [['billing', 'number'], ['invoice', 'number']] },
   {
-    category: 'certificate-or-licence-number',
-    label: 'certificate or licence numbers',
-    words: ['licence', 'license', 'certificate', 'passport', 'npi', 'dea'],
-    phrases: [['driver', 'licence'], ['drivers', 'license']],
-  },
-  {
     category: 'vehicle-identifier',
     label: 'vehicle identifiers (licence plates, VINs)',
     words: ['vin', 'plate', 'numberplate'],
     phrases: [['licence', 'plate'], ['license', 'plate'], ['vehicle', 'id'], ['vehicle', 'identifier'], ['vehicle', 'number'], ['vehicle', 'registration']],
   },
   {
-    category: 'device-identifier',
-    label: 'device identifiers or serial numbers',
-    words: ['serial', 'imei', 'udi', 'deviceid'],
-    phrases: [['device', 'id'], ['device', 'identifier'], ['device', 'number'], ['device', 'serial'], ['mac', 'address']],
+    category: 'certificate-or-licence-number',
+    label: 'certificate or licence numbers',
+    words: ['licence', 'license', 'certificate', 'passport', 'npi', 'dea'],
+    phrases: [['driver', 'licence'], ['drivers', 'license']],
   },
-  { category: 'url', label: 'web addresses (URLs)', words: ['url', 'urls', 'uri', 'website', 'webpage', 'homepage', 'link'] },
-  // A bare "ip" often means inpatient in hospital data, so only the whole name or "ip address".
-  { category: 'ip-address', label: 'IP addresses', words: ['ipv4', 'ipv6', 'ipaddress'], whole: ['ip'], phrases: [['ip', 'address'], ['ip', 'addr']] },
   { category: 'biometric', label: 'biometric identifiers', words: ['fingerprint', 'fingerprints', 'biometric', 'biometrics', 'retina', 'iris', 'voiceprint'] },
   { category: 'face-image', label: 'photographs or face images', words: ['photo', 'photograph', 'photos', 'image', 'images', 'picture', 'portrait', 'selfie'], phrases: [['face', 'image']] },
   { category: 'unique-code', label: 'unique identifying codes', words: ['uuid', 'guid'] },

@@ -1,0 +1,143 @@
+/**
+ * zod schemas (and their inferred types) for what the API says about an extract version:
+ * the refusal reasons, the identifier-screen findings, the column profile and the data
+ * dictionary, plus the body of the confirm request.
+ */
+import { z } from 'zod';
+import { EXTRACT_REFUSAL_CODES } from './extractRefusal';
+
+/** Column types: the four an analysis can use, and the two that refuse the column. */
+export const ColumnType = z.enum(['binary', 'categorical', 'continuous', 'count', 'date-like', 'identifier-like']);
+export type ColumnType = z.infer<typeof ColumnType>;
+
+/** The types an analyst may confirm or correct a column to. */
+export const AnalysableColumnType = z.enum(['binary', 'categorical', 'continuous', 'count']);
+export type AnalysableColumnType = z.infer<typeof AnalysableColumnType>;
+
+/** Why the reader refused a file (shape, encoding, size). */
+export const RefusalReason = z.object({
+  code: z.enum(EXTRACT_REFUSAL_CODES),
+  message: z.string(),
+  line: z.number().int().positive().nullable(),
+});
+export type RefusalReason = z.infer<typeof RefusalReason>;
+
+export const SafeHarborCategory = z.enum([
+  'names',
+  'geography',
+  'dates',
+  'phone',
+  'fax',
+  'email',
+  'ssn',
+  'medical-record-number',
+  'health-plan-number',
+  'account-number',
+  'certificate-or-licence-number',
+  'vehicle-identifier',
+  'device-identifier',
+  'url',
+  'ip-address',
+  'biometric',
+  'face-image',
+  'unique-code',
+  'age-over-89',
+]);
+
+export const FindingRule = z.enum([
+  'column-name',
+  'ssn-pattern',
+  'phone-pattern',
+  'email-pattern',
+  'ip-address-pattern',
+  'url-pattern',
+  'date-pattern',
+  'postal-code-pattern',
+  'age-over-89',
+  'near-unique',
+  'too-many-levels',
+]);
+
+/** One identifier-screen finding: column, rule and counts, never a value. */
+export const Finding = z.object({
+  column: z.string(),
+  columnIndex: z.number().int().nonnegative(),
+  rule: FindingRule,
+  category: SafeHarborCategory,
+  matchedCount: z.number().int().nonnegative().nullable(),
+  examinedCount: z.number().int().nonnegative().nullable(),
+  message: z.string(),
+});
+export type FindingJson = z.infer<typeof Finding>;
+
+/** A level of a categorical or binary column with its row count. */
+export const LevelCount = z.object({ value: z.string(), count: z.number().int().nonnegative() });
+export type LevelCount = z.infer<typeof LevelCount>;
+
+/** Summary statistics of a numeric column. Quartiles follow R's default, quantile(type = 7). */
+export const NumericSummary = z.object({
+  min: z.number(),
+  max: z.number(),
+  mean: z.number(),
+  /** Sample standard deviation (n - 1 denominator); null with fewer than two values. */
+  sd: z.number().nullable(),
+  q1: z.number(),
+  median: z.number(),
+  q3: z.number(),
+  quantileDefinition: z.literal('hyndman-fan-7'),
+  integerValued: z.boolean(),
+});
+export type NumericSummary = z.infer<typeof NumericSummary>;
+
+/** The profile of one column as the upload review page shows it. */
+export const ColumnProfile = z.object({
+  name: z.string(),
+  index: z.number().int().nonnegative(),
+  inferredType: ColumnType,
+  /** How the values are stored: numbers, or text levels. */
+  storage: z.enum(['numeric', 'text']),
+  rowCount: z.number().int().nonnegative(),
+  missingCount: z.number().int().nonnegative(),
+  distinctCount: z.number().int().nonnegative(),
+  /** True when the column had more distinct values than the level cap: distinctCount is then a lower bound. */
+  distinctIsLowerBound: z.boolean(),
+  /** Levels with counts for text columns and for numeric columns with few distinct values; null otherwise. */
+  levels: z.array(LevelCount).nullable(),
+  /** True when `levels` lists only the most frequent levels. */
+  levelsTruncated: z.boolean(),
+  numeric: NumericSummary.nullable(),
+  /** Non-missing values that were numbers and text, for mixed columns. */
+  numericValueCount: z.number().int().nonnegative(),
+  textValueCount: z.number().int().nonnegative(),
+  notes: z.array(z.string()),
+});
+export type ColumnProfile = z.infer<typeof ColumnProfile>;
+
+/** One entry of a version's data dictionary, as confirmed by the analyst. */
+export const DictionaryEntry = z.object({
+  name: z.string().min(1),
+  type: AnalysableColumnType,
+  description: z.string().max(2000).default(''),
+});
+export type DictionaryEntry = z.infer<typeof DictionaryEntry>;
+
+/** Body of POST /api/extracts/{extractId}/versions/{versionId}/confirm. */
+export const ConfirmVersionBody = z.object({
+  attestation: z.object({ signedName: z.string().trim().min(1).max(200) }),
+  /** Omitted: the inferred types are accepted. */
+  columns: z.array(DictionaryEntry).optional(),
+});
+export type ConfirmVersionBody = z.infer<typeof ConfirmVersionBody>;
+
+/** Processing stages the server reports while a version is being read. */
+export const ProcessingStage = z.enum(['receiving', 'reading', 'screening', 'profiling', 'storing']);
+export type ProcessingStage = z.infer<typeof ProcessingStage>;
+
+/** Status of one version, as GET /api/extracts/{extractId} returns it. */
+export const VersionStatus = z.discriminatedUnion('status', [
+  z.object({ status: z.literal('processing'), stage: ProcessingStage, percent: z.number().min(0).max(100) }),
+  z.object({ status: z.literal('needs-review'), findings: z.array(Finding), profile: z.array(ColumnProfile) }),
+  z.object({ status: z.literal('ready'), profile: z.array(ColumnProfile), dictionary: z.array(DictionaryEntry) }),
+  z.object({ status: z.literal('refused'), reasons: z.array(RefusalReason), findings: z.array(Finding) }),
+]);
+export type VersionStatus = z.infer<typeof VersionStatus>;

@@ -1,0 +1,222 @@
+import { describe, expect, it } from 'vitest';
+import { ExtractRefusalError, ingestExtract } from './extracts';
+import { chunked } from './testSupport';
+
+const ingest = (csv: string, options = {}) => ingestExtract(chunked(csv, 4096), options);
+
+function csvOf(columns: Record<string, (i: number) => string | number>, rows: number): string {
+  const names = Object.keys(columns);
+  const lines = [names.join(',')];
+  for (let i = 0; i < rows; i++) lines.push(names.map((n) => String(columns[n](i))).join(','));
+  return `${lines.join('\n')}\n`;
+}
+
+describe('identifier screen on uploads', () => {
+  it('refuses a column of full dates as date-like, with the count of dates', async () => {
+    const days = ['2024-01-05', '2024-02-11', '2024-03-17', '2024-04-23'];
+    const result = await ingest(csvOf({ outcome: (i) => i % 2, seen: (i) => days[i % 4] }, 40));
+    expect(result.refused).toBe(true);
+    expect(result.findings).toHaveLength(1);
+    // All 40 values are ISO dates.
+    expect(result.findings[0]).toMatchObject({ column: 'seen', rule: 'date-pattern', category: 'dates', matchedCount: 40, examinedCount: 40 });
+    expect(result.profile[1].inferredType).toBe('date-like');
+    expect(result.encoded).toEqual([]);
+  });
+
+  it('refuses a column of 5-digit ZIP codes, leading zeros included', async () => {
+    const zips = ['02139', '10001', '60614', '94110', '00501'];
+    const result = await ingest(csvOf({ outcome: (i) => i % 2, region: (i) => zips[i % 5] }, 30));
+    expect(result.findings.map((f) => [f.column, f.rule, f.matchedCount])).toEqual([['region', 'postal-code-pattern', 30]]);
+    expect(result.profile[1].inferredType).toBe('identifier-like');
+  });
+
+  it('refuses a column of e-mail addresses', async () => {
+    const result = await ingest(csvOf({ contact: (i) => `clinician${i % 7}@example.org`, outcome: (i) => i % 2 }, 21));
+    expect(result.findings.map((f) => [f.column, f.rule, f.matchedCount, f.examinedCount])).toEqual([['contact', 'email-pattern', 21, 21]]);
+    expect(result.findings[0].message).not.toMatch(/clinician/);
+  });
+
+  it('refuses ages of 95 and counts them', async () => {
+    // Ages 60, 70, 80, 95 repeating over 20 rows: 5 of them are 95.
+    const ages = [60, 70, 80, 95];
+    const result = await ingest(csvOf({ age: (i) => ages[i % 4], outcome: (i) => i % 2 }, 20));
+    expect(result.findings).toHaveLength(1);
+    expect(result.findings[0]).toMatchObject({ column: 'age', rule: 'age-over-89', matchedCount: 5, examinedCount: 20 });
+  });
+
+  it('refuses a fixture with one column per detectable category, one message per column, and stores nothing', async () => {
+    const rows = 60;
+    const hex = (i: number): string => i.toString(16);
+    // Name-detected columns hold harmless values; value-detected columns have neutral names
+    // and repeat 10 values, so that only the intended rule applies.
+    const columns: Record<string, (i: number) => string | number> = {
+      outcome: (i) => i % 2,
+      site: (i) => ['North', 'South', 'East'][i % 3],
+      patient_name: (i) => i % 3,
+      home_address: (i) => i % 3,
+      zip_code: (i) => i % 3,
+      date_of_birth: (i) => i % 3,
+      phone_number: (i) => i % 3,
+      fax: (i) => i % 3,
+      email: (i) => i % 3,
+      ssn: (i) => i % 3,
+      mrn: (i) => i % 3,
+      member_id: (i) => i % 3,
+      account_number: (i) => i % 3,
+      licence_number: (i) => i % 3,
+      licence_plate: (i) => i % 3,
+      device_serial: (i) => i % 3,
+      website: (i) => i % 3,
+      ip_address: (i) => i % 3,
+      fingerprint: (i) => i % 3,
+      photo: (i) => i % 3,
+      uuid: (i) => i % 3,
+      contact: (i) => `person${i % 10}@example.org`,
+      reference: (i) => `900-12-${3450 + (i % 10)}`,
+      callback_line: (i) => `212-555-01${10 + (i % 10)}`,
+      host: (i) => `192.0.2.${i % 10}`,
+      host6: (i) => `2001:db8::${hex(i % 10)}`,
+      page: (i) => `https://example.org/p/${i % 10}`,
+      seen: (i) => `2024-03-${10 + (i % 10)}`,
+      compact_seen: (i) => 20240310 + (i % 10),
+      region: (i) => `0${2130 + (i % 10)}`,
+      uk_region: (i) => `SW1A ${i % 10}AA`,
+      age: (i) => 85 + (i % 10),
+      record_code: (i) => `K${1000 + i}`,
+    };
+    const expected: Record<string, string> = {
+      patient_name: 'names', home_address: 'geography', zip_code: 'geography', date_of_birth: 'dates',
+      phone_number: 'phone', fax: 'fax', email: 'email', ssn: 'ssn', mrn: 'medical-record-number',
+      member_id: 'health-plan-number', account_number: 'account-number', licence_number: 'certificate-or-licence-number',
+      licence_plate: 'vehicle-identifier', device_serial: 'device-identifier', website: 'url', ip_address: 'ip-address',
+      fingerprint: 'biometric', photo: 'face-image', uuid: 'unique-code', contact: 'email', reference: 'ssn',
+      callback_line: 'phone', host: 'ip-address', host6: 'ip-address', page: 'url', seen: 'dates', compact_seen: 'dates',
+      region: 'geography', uk_region: 'geography', age: 'age-over-89', record_code: 'unique-code',
+    };
+    const result = await ingest(csvOf(columns, rows));
+    expect(result.refused).toBe(true);
+    expect(result.encoded).toEqual([]);
+    const refusals = result.refusals;
+    expect(refusals.map((r) => r.column)).toEqual(Object.keys(expected));
+    for (const refusal of refusals) {
+      expect(refusal.categories).toEqual([expected[refusal.column]]);
+      expect(refusal.message.startsWith(`Column "${refusal.column}" may identify people: `)).toBe(true);
+    }
+    // The two analysis columns pass.
+    expect(result.profile[0].inferredType).toBe('binary');
+    expect(result.profile[1].inferredType).toBe('categorical');
+  });
+
+  it('drops flagged columns while reading: they are not kept, and the rest is accepted', async () => {
+    const csv = csvOf({ email: (i) => `person${i % 5}@example.org`, outcome: (i) => i % 2, arm: (i) => (i % 3 === 0 ? 'call' : 'usual') }, 12);
+    const result = await ingest(csv, { dropColumns: ['EMAIL'] });
+    expect(result.refused).toBe(false);
+    expect(result.droppedColumns).toEqual(['email']);
+    expect(result.columns.map((c) => c.name)).toEqual(['outcome', 'arm']);
+    expect(result.columns.map((c) => c.index)).toEqual([1, 2]);
+    expect(result.encoded.map((c) => c.name)).toEqual(['outcome', 'arm']);
+    const text = result.encoded[1];
+    expect(text.levels).toEqual(['call', 'usual']);
+  });
+
+  it('refuses a drop list naming a column the file does not have, before reading the rows', async () => {
+    const error = await ingest('a,b\n1,2\n', { dropColumns: ['c'] }).catch((e: unknown) => e);
+    expect(error).toBeInstanceOf(ExtractRefusalError);
+    expect((error as ExtractRefusalError).code).toBe('unknown-drop-column');
+  });
+});
+
+describe('columns', () => {
+  it('infers binary, categorical, continuous and count columns', async () => {
+    const csv = 'readmitted,sex,band,los,prior,delta\n1,F,18-44,3.5,0,-1\n0,M,45-64,2.25,2,0\n0,F,80+,10,1,2\n1,M,18-44,1,4,3\n';
+    const result = await ingest(csv);
+    expect(result.refused).toBe(false);
+    expect(result.profile.map((p) => [p.name, p.inferredType, p.storage])).toEqual([
+      ['readmitted', 'binary', 'numeric'],
+      ['sex', 'binary', 'text'],
+      ['band', 'categorical', 'text'],
+      ['los', 'continuous', 'numeric'],
+      ['prior', 'count', 'numeric'],
+      ['delta', 'continuous', 'numeric'],
+    ]);
+    // Levels in code-unit order with counts (18-44 twice, 45-64 once, 80+ once).
+    expect(result.profile[2].levels).toEqual([
+      { value: '18-44', count: 2 },
+      { value: '45-64', count: 1 },
+      { value: '80+', count: 1 },
+    ]);
+  });
+
+  it('treats empty fields and NA, N/A, NULL as missing; trims spaces', async () => {
+    const result = await ingest('x,y\n1, a \n,NA\nNULL,a\n N/A ,\n4,b\n');
+    const [x, y] = result.profile;
+    // x: 1, empty, NULL, " N/A ", 4 -> three missing, values {1, 4}, mean 2.5.
+    expect([x.missingCount, x.distinctCount, x.numeric?.mean]).toEqual([3, 2, 2.5]);
+    // y: " a ", NA, a, empty, b -> two missing, a twice, b once.
+    expect([y.missingCount, y.levels]).toEqual([2, [{ value: 'a', count: 2 }, { value: 'b', count: 1 }]]);
+  });
+
+  it('keeps a column with any text as text, and says how many values were numbers', async () => {
+    const result = await ingest('score\n1\n2\nunknown\n2\n');
+    const [score] = result.profile;
+    expect(score.storage).toBe('text');
+    expect(score.levels).toEqual([
+      { value: '1', count: 1 },
+      { value: '2', count: 2 },
+      { value: 'unknown', count: 1 },
+    ]);
+    expect([score.numericValueCount, score.textValueCount]).toEqual([3, 1]);
+    expect(score.notes[0]).toMatch(/^3 values are numbers and 1 are text/);
+  });
+
+  it('stops learning levels at the cap and refuses the column', async () => {
+    const csv = csvOf({ note: (i) => `free text ${i}`, outcome: (i) => i % 2 }, 30);
+    const result = await ingest(csv, { maxLevels: 10 });
+    const note = result.columns[0];
+    expect(note.kind === 'text' && note.levelsOverflowed).toBe(true);
+    expect(note.kind === 'text' && note.levels.length).toBe(10);
+    expect(result.findings.map((f) => f.rule)).toEqual(['too-many-levels']);
+    expect(result.profile[0]).toMatchObject({ inferredType: 'identifier-like', distinctCount: 10, distinctIsLowerBound: true });
+  });
+
+  it('reads decimal commas when asked to (semicolon files)', async () => {
+    const result = await ingest('los;band\n3,5;a\n1,25;b\n', { decimalSeparator: ',' });
+    expect(result.profile[0].numeric?.mean).toBe(2.375);
+  });
+
+  it('reports progress by stage', async () => {
+    const stages: string[] = [];
+    const csv = csvOf({ x: (i) => i % 5, y: (i) => i % 2 }, 5000);
+    await ingestExtract(chunked(csv, 1000), { expectedBytes: csv.length, onProgress: (p) => stages.push(p.stage) });
+    expect(stages[0]).toBe('reading');
+    expect(stages.slice(-3)).toEqual(['screening', 'profiling', 'storing']);
+  });
+});
+
+describe('a million-row file whose last line is broken', () => {
+  async function* millionRows(lastLine: string): AsyncGenerator<Uint8Array> {
+    yield Buffer.from('outcome,arm,score\n');
+    const block: string[] = [];
+    for (let i = 0; i < 999_999; i++) {
+      block.push(`${i & 1},${i % 3},${i % 10}`);
+      if (block.length === 20_000) {
+        yield Buffer.from(`${block.join('\n')}\n`);
+        block.length = 0;
+      }
+    }
+    yield Buffer.from(`${block.join('\n')}\n${lastLine}`);
+  }
+
+  it('refuses a short last row at line 1,000,001 (header on line 1, the millionth row after it)', async () => {
+    const error = await ingestExtract(millionRows('1,2\n')).catch((e: unknown) => e);
+    expect(error).toBeInstanceOf(ExtractRefusalError);
+    expect((error as ExtractRefusalError).code).toBe('ragged-row');
+    expect((error as ExtractRefusalError).line).toBe(1_000_001);
+  });
+
+  it('refuses an unterminated quote on the last line', async () => {
+    const error = await ingestExtract(millionRows('1,2,"3\n')).catch((e: unknown) => e);
+    expect((error as ExtractRefusalError).code).toBe('unterminated-quote');
+    expect((error as ExtractRefusalError).line).toBe(1_000_001);
+  });
+});
