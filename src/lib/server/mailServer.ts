@@ -20,7 +20,7 @@ import { simpleParser } from 'mailparser';
 import { SMTPServer, type SMTPServerDataStream, type SMTPServerError, type SMTPServerSession } from 'smtp-server';
 import { env } from './env';
 import { logger } from './logger';
-import { mailStoreDir, messagePaths, newMessageId, type MessageSummary } from './outbox';
+import { addressText, mailStoreDir, messagePaths, newMessageId, type MessageSummary } from './outbox';
 
 /** The largest message the server accepts: invitations and resets are a few kilobytes. */
 export const MAIL_SIZE_LIMIT_BYTES = 10 * 1024 * 1024;
@@ -93,7 +93,7 @@ async function store(dir: string, raw: Buffer, session: SMTPServerSession): Prom
   const summary: MessageSummary = {
     id,
     receivedAt: receivedAt.toISOString(),
-    from: headers.from?.text || envelopeFrom,
+    from: addressText(headers.from) || envelopeFrom,
     // The envelope is who the message was actually delivered to (Bcc included).
     to: session.envelope.rcptTo.map((r) => r.address),
     subject: headers.subject ?? '',

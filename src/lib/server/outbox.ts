@@ -15,7 +15,7 @@
 import { randomBytes } from 'node:crypto';
 import { readdir, readFile } from 'node:fs/promises';
 import path from 'node:path';
-import { simpleParser, type AddressObject } from 'mailparser';
+import { simpleParser, type AddressObject, type EmailAddress } from 'mailparser';
 import { z } from 'zod';
 import { env } from './env';
 import { badRequest, notFound } from './errors';
@@ -78,6 +78,32 @@ export interface OutboxListing {
 
 export const OUTBOX_PAGE_SIZE = 25;
 export const OUTBOX_MAX_PAGE_SIZE = 100;
+
+/** The query string of the outbox list (page and endpoint). */
+export const OutboxQuery = z.object({
+  page: z.coerce.number().int().min(1, 'The page must be 1 or more.').default(1),
+  pageSize: z.coerce
+    .number()
+    .int()
+    .min(1, 'The page size must be 1 or more.')
+    .max(OUTBOX_MAX_PAGE_SIZE, `The page size must be at most ${OUTBOX_MAX_PAGE_SIZE}.`)
+    .default(OUTBOX_PAGE_SIZE),
+});
+export type OutboxQuery = z.infer<typeof OutboxQuery>;
+
+/**
+ * Who may see the outbox: administrators, and only while mail goes to the local fake
+ * server. In `smtp` mode the outbox does not exist (404), since real mail is not kept.
+ * `signed-out` means: send them to sign in (pages) or answer 401 (endpoints).
+ */
+export function outboxAccess(
+  user: { isAdmin: boolean } | null,
+  mode: 'local' | 'smtp' = env.CROSSGRAIN_MAIL_MODE,
+): 'allowed' | 'signed-out' | 'hidden' {
+  if (!user) return 'signed-out';
+  if (mode !== 'local' || !user.isAdmin) return 'hidden';
+  return 'allowed';
+}
 
 interface StoreOptions {
   /** The store folder; defaults to `mailStoreDir()`. */
@@ -149,9 +175,16 @@ export async function listMessages(
   };
 }
 
-function addressText(value: AddressObject | AddressObject[] | undefined): string {
+function addressEntry(entry: EmailAddress): string {
+  if (entry.group) return `${entry.name}: ${entry.group.map(addressEntry).join(', ')};`;
+  if (!entry.address) return entry.name;
+  return entry.name ? `${entry.name} <${entry.address}>` : entry.address;
+}
+
+/** A parsed address header as people write it: `Name <address>, other@address`. */
+export function addressText(value: AddressObject | AddressObject[] | undefined): string {
   if (!value) return '';
-  return (Array.isArray(value) ? value : [value]).map((a) => a.text).join(', ');
+  return (Array.isArray(value) ? value : [value]).flatMap((header) => header.value.map(addressEntry)).join(', ');
 }
 
 /** Every http(s) link in the message, HTML hrefs first, then bare URLs in the text. */
