@@ -1,6 +1,8 @@
 import { randomBytes, randomUUID } from 'node:crypto';
 import { defineMiddleware, sequence } from 'astro:middleware';
 import { scopedTo } from './lib/server/db';
+import { clientAddress, errorResponse } from './lib/server/http';
+import { AppError } from './lib/server/errors';
 import { logger } from './lib/server/logger';
 import { addNonceToScripts, securityHeaders } from './lib/server/securityHeaders';
 import { resolveSession } from './lib/server/session';
@@ -26,7 +28,12 @@ const requestContext = defineMiddleware(async (context, next) => {
 
 /** Always sets locals.user, locals.session (null when signed out) and locals.db. */
 const session = defineMiddleware(async (context, next) => {
-  const resolved = await resolveSession(context);
+  const resolved = await resolveSession({
+    cookies: context.cookies,
+    request: context.request,
+    url: context.url,
+    clientAddress: clientAddress(context),
+  });
   context.locals.user = resolved.user;
   context.locals.session = resolved.session;
   context.locals.db = scopedTo(resolved.user?.id ?? null);
@@ -55,4 +62,24 @@ const headers = defineMiddleware(async (context, next) => {
   return response;
 });
 
-export const onRequest = sequence(requestContext, headers, session);
+const SAFE_METHODS = new Set(['GET', 'HEAD', 'OPTIONS']);
+
+/**
+ * Cross-site request forgery guard for every state-changing request that relies on the
+ * session cookie, whatever its content type (Astro's own origin check covers form posts;
+ * this also covers JSON and raw uploads). Bearer-token requests carry no ambient
+ * credentials and are exempt.
+ */
+const sameOrigin = defineMiddleware(async (context, next) => {
+  const { request, url } = context;
+  if (SAFE_METHODS.has(request.method) || request.headers.get('authorization')?.startsWith('Bearer ')) return next();
+  const origin = request.headers.get('origin');
+  const fetchSite = request.headers.get('sec-fetch-site');
+  const allowed = origin ? origin === url.origin : fetchSite === null || fetchSite === 'same-origin' || fetchSite === 'none';
+  if (!allowed) {
+    return errorResponse(new AppError(403, 'cross-site-request', 'Cross-site requests are refused.'), context.locals.requestId);
+  }
+  return next();
+});
+
+export const onRequest = sequence(requestContext, headers, sameOrigin, session);

@@ -4,9 +4,7 @@
  * migrates the cluster itself and removes it afterwards.
  */
 import { spawnSync } from 'node:child_process';
-// @ts-expect-error plain JavaScript helpers shared with the start and test commands
 import { startCluster, destroyCluster } from '../../db/scripts/postgres.mjs';
-// @ts-expect-error plain JavaScript helpers shared with the start and test commands
 import { testEnvironment, testSettings } from '../../scripts/lib/testEnv.mjs';
 
 export default function setup(): () => void {

@@ -43,3 +43,16 @@ export async function databaseAnswers(): Promise<boolean> {
     return false;
   }
 }
+
+/**
+ * Switches the identity inside an open transaction, for flows that learn who the user is
+ * part-way (accepting an invitation, resetting a password), so their audit events name
+ * the user as the actor.
+ */
+export async function actAs(transaction: Transaction, userId: string): Promise<void> {
+  await sequelize.query("SELECT set_config('app.user_id', :userId, true)", {
+    replacements: { userId },
+    transaction,
+    type: QueryTypes.SELECT,
+  });
+}

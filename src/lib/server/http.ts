@@ -73,3 +73,21 @@ export function clientAddress(context: APIContext | { clientAddress: string }): 
     return 'unknown';
   }
 }
+
+/** The signed-in user, or a 401. */
+export function requireUser<U>(locals: { user: U | null }): U {
+  if (!locals.user) throw new AppError(401, 'unauthenticated', 'Sign in to continue.');
+  return locals.user;
+}
+
+/** An empty success response. */
+export function noContent(headers: Record<string, string> = {}): Response {
+  return new Response(null, { status: 204, headers: { 'Cache-Control': 'no-store', ...headers } });
+}
+
+/** Parses a path parameter that must be a uuid; anything else is a 404 (ids are opaque). */
+export function uuidParam(value: string | undefined, what = 'That record'): string {
+  const parsed = z.uuid().safeParse(value);
+  if (!parsed.success) throw new AppError(404, 'not-found', `${what} was not found.`);
+  return parsed.data;
+}

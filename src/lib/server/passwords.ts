@@ -1,4 +1,7 @@
-import { hash, verify, Algorithm } from '@node-rs/argon2';
+import { hash, verify } from '@node-rs/argon2';
+
+/** @node-rs/argon2's Algorithm.Argon2id (a const enum, which isolated modules cannot read). */
+const ARGON2ID = 2;
 
 /**
  * argon2id parameters: at least OWASP's password storage cheat sheet minimum
@@ -6,7 +9,7 @@ import { hash, verify, Algorithm } from '@node-rs/argon2';
  * so raising these later still verifies old hashes.
  */
 export const ARGON2_PARAMETERS = {
-  algorithm: Algorithm.Argon2id,
+  algorithm: ARGON2ID,
   memoryCost: 19_456,
   timeCost: 2,
   parallelism: 1,

@@ -162,6 +162,8 @@ export async function endAllSessions(userId: string): Promise<void> {
 interface ResolveContext {
   cookies: AstroCookies;
   request: Request;
+  url: URL;
+  clientAddress: string;
 }
 
 /**
@@ -170,6 +172,16 @@ interface ResolveContext {
  */
 export async function resolveSession(context: ResolveContext): Promise<{ user: SessionUser | null; session: SessionInfo | null }> {
   const anonymous = { user: null, session: null };
+  const authorization = context.request.headers.get('authorization');
+  if (authorization?.startsWith('Bearer ')) {
+    const { resolveApiToken } = await import('./apiTokens');
+    const resolved = await resolveApiToken(authorization.slice('Bearer '.length).trim(), {
+      method: context.request.method,
+      path: context.url.pathname,
+      clientAddress: context.clientAddress,
+    });
+    return resolved ?? anonymous;
+  }
   const token = context.cookies.get(SESSION_COOKIE)?.value;
   if (!token) return anonymous;
   const sessionId = hashToken(token);

@@ -1,0 +1,67 @@
+import { z } from 'zod';
+
+export const RoleName = z.enum(['analyst', 'clinician', 'auditor']);
+
+export const InviteUserBody = z
+  .object({
+    email: z.string().trim().toLowerCase().pipe(z.email({ message: 'Enter an e-mail address.' })),
+    displayName: z.string().trim().min(2, 'Enter the person\'s name.').max(120),
+    isAdmin: z.boolean().default(false),
+    /** Optionally add the person to an initiative with a role straight away. */
+    membership: z.object({ initiativeId: z.uuid(), role: RoleName }).optional(),
+  })
+  .meta({ id: 'InviteUserBody' });
+export type InviteUserBody = z.infer<typeof InviteUserBody>;
+
+export const UpdateUserBody = z
+  .object({ status: z.enum(['active', 'deactivated']) })
+  .meta({ id: 'UpdateUserBody' });
+export type UpdateUserBody = z.infer<typeof UpdateUserBody>;
+
+export const UserListItem = z
+  .object({
+    id: z.uuid(),
+    email: z.string(),
+    displayName: z.string(),
+    status: z.enum(['invited', 'active', 'deactivated']),
+    isAdmin: z.boolean(),
+    lastSignInAt: z.string().nullable(),
+    createdAt: z.string(),
+    memberships: z.array(z.object({ initiativeId: z.uuid(), initiativeName: z.string(), role: RoleName, membershipId: z.uuid() })),
+  })
+  .meta({ id: 'UserListItem' });
+export type UserListItem = z.infer<typeof UserListItem>;
+
+export const CreateInitiativeBody = z
+  .object({
+    name: z.string().trim().min(3, 'Give the initiative a name of at least 3 characters.').max(120),
+    organisation: z.string().trim().min(2).max(120),
+    description: z.string().trim().max(2000).default(''),
+    readersSeeRows: z.boolean().default(false),
+  })
+  .meta({ id: 'CreateInitiativeBody' });
+export type CreateInitiativeBody = z.infer<typeof CreateInitiativeBody>;
+
+export const InitiativeItem = z
+  .object({
+    id: z.uuid(),
+    name: z.string(),
+    slug: z.string(),
+    organisation: z.string(),
+    description: z.string(),
+    readersSeeRows: z.boolean(),
+    memberCount: z.number().int(),
+    createdAt: z.string(),
+  })
+  .meta({ id: 'Initiative' });
+export type InitiativeItem = z.infer<typeof InitiativeItem>;
+
+export const SetMembershipBody = z
+  .object({ userId: z.uuid(), role: RoleName })
+  .meta({ id: 'SetMembershipBody' });
+export type SetMembershipBody = z.infer<typeof SetMembershipBody>;
+
+export const UpdateInitiativeBody = z
+  .object({ readersSeeRows: z.boolean().optional(), description: z.string().trim().max(2000).optional() })
+  .meta({ id: 'UpdateInitiativeBody' });
+export type UpdateInitiativeBody = z.infer<typeof UpdateInitiativeBody>;
