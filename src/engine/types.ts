@@ -198,7 +198,7 @@ export interface AdditiveEntry {
 }
 
 export interface OmnibusTest {
-  test: 'likelihood-ratio' | 'F' | 'wald-robust';
+  test: 'likelihood-ratio' | 'F' | 'wald' | 'wald-robust';
   statistic: number | null;
   df: number;
   df2: number | null;

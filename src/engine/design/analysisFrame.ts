@@ -67,21 +67,9 @@ function getColumn(data: EngineData, name: string): EngineColumn {
   return column;
 }
 
-function isMissing(column: EngineColumn, row: number): boolean {
-  if (column.missing !== undefined && column.missing[row] === 1) return true;
-  if (column.kind === 'numeric') return Number.isNaN(column.values[row]);
-  const code = column.codes[row];
-  return code < 0 || code >= column.levels.length;
-}
-
 /** Shortest round-trip text of a number, used as a level name for numeric columns. */
 export function numberLevel(value: number): string {
   return Object.is(value, -0) ? '0' : String(value);
-}
-
-/** Level text of a row of a column used as categorical. */
-function levelText(column: EngineColumn, row: number): string {
-  return column.kind === 'numeric' ? numberLevel(column.values[row]) : column.levels[column.codes[row]];
 }
 
 /** Distinct levels present in the kept rows, in the column's order (numbers sorted). */
@@ -147,8 +135,11 @@ function codeFactor(
       counts[code]++;
     }
   } else {
+    const numericLookup = new Map<number, number>();
+    for (const [level, code] of lookup) numericLookup.set(Number(level), code);
     for (let i = 0; i < rows.length; i++) {
-      const code = lookup.get(numberLevel(column.values[rows[i]])) as number;
+      const value = column.values[rows[i]];
+      const code = numericLookup.get(value === 0 ? 0 : value) as number;
       codes[i] = code;
       counts[code]++;
     }
@@ -192,18 +183,28 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
   }
   const columns = used.map((name) => getColumn(data, name));
 
-  let kept = 0;
-  const keep = new Int32Array(data.rowCount);
-  for (let row = 0; row < data.rowCount; row++) {
-    let complete = true;
-    for (const column of columns) {
-      if (isMissing(column, row)) {
-        complete = false;
-        break;
+  // Mark missing rows column by column (one tight loop per column), then keep the rest.
+  const missingRow = new Uint8Array(data.rowCount);
+  for (const column of columns) {
+    if (column.missing !== undefined) {
+      const mask = column.missing;
+      for (let row = 0; row < data.rowCount; row++) missingRow[row] |= mask[row] === 1 ? 1 : 0;
+    }
+    if (column.kind === 'numeric') {
+      const values = column.values;
+      for (let row = 0; row < data.rowCount; row++) if (values[row] !== values[row]) missingRow[row] = 1;
+    } else {
+      const codes = column.codes;
+      const levelCount = column.levels.length;
+      for (let row = 0; row < data.rowCount; row++) {
+        const code = codes[row];
+        if (code < 0 || code >= levelCount) missingRow[row] = 1;
       }
     }
-    if (complete) keep[kept++] = row;
   }
+  let kept = 0;
+  const keep = new Int32Array(data.rowCount);
+  for (let row = 0; row < data.rowCount; row++) if (missingRow[row] === 0) keep[kept++] = row;
   if (kept === 0) throw new NoCompleteRowsError();
   const rowIndex = keep.slice(0, kept);
 
@@ -273,7 +274,15 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
   if (!exposurePresent.includes(spec.exposure.reference)) throw new EmptyStratumError(exposureName, spec.exposure.reference);
   const exposureOther = exposurePresent.find((level) => level !== spec.exposure.reference) as string;
   const exposure = new Uint8Array(kept);
-  for (let i = 0; i < kept; i++) exposure[i] = levelText(exposureColumn, rowIndex[i]) === spec.exposure.reference ? 0 : 1;
+  if (exposureColumn.kind === 'numeric') {
+    const referenceValue = Number(spec.exposure.reference);
+    const values = exposureColumn.values;
+    for (let i = 0; i < kept; i++) exposure[i] = values[rowIndex[i]] === referenceValue ? 0 : 1;
+  } else {
+    const referenceCode = exposureColumn.levels.indexOf(spec.exposure.reference);
+    const codes = exposureColumn.codes;
+    for (let i = 0; i < kept; i++) exposure[i] = codes[rowIndex[i]] === referenceCode ? 0 : 1;
+  }
 
   // Modifier.
   const modifierColumn = columns[2];

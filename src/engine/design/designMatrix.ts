@@ -1,4 +1,4 @@
-import type { AnalysisFrame, FrameVariable } from './analysisFrame.js';
+import type { AnalysisFrame, CodedFactor, FrameVariable } from './analysisFrame.js';
 
 /** Role of a model term, used to find b1, b2, b3 and to name terms in messages. */
 export type TermRole = 'intercept' | 'exposure' | 'modifier' | 'product' | 'covariate';
@@ -12,14 +12,32 @@ export interface DesignTerm {
 }
 
 /**
- * A design matrix in row-major order: row i occupies x[i·p .. i·p + p − 1]. Row-major
- * keeps one row's terms together, so a fit touches each row once per pass.
+ * A model matrix X (n × p) stored in two parts, which together give every row exactly:
+ *
+ * - cell terms: the intercept and the indicators of categorical variables (the exposure, a
+ *   categorical modifier, the products of the two, and as many categorical covariates as
+ *   keep the number of cells small). Their values depend only on the row's cell, the
+ *   combination of those variables' levels: `cellValues[cell · q + t]` is the value of term
+ *   `cellTerms[t]` in that cell, and `cellOfRow[i]` is row i's cell.
+ * - free terms: everything else (continuous variables, products with a continuous
+ *   modifier, indicators of further categorical covariates), row-major:
+ *   `free[i · r + k]` is the value of term `freeTerms[k]` in row i.
+ *
+ * A fit then accumulates XᵀWX per cell for the cell block and per row only for the free
+ * block, which is a fraction of the arithmetic of a dense pass (and of its memory) for
+ * the designs of effect-modification analyses, which are mostly indicators.
  */
 export interface DesignMatrix {
   readonly rows: number;
+  /** p, the number of terms. */
   readonly columns: number;
-  readonly x: Float64Array;
   readonly terms: readonly DesignTerm[];
+  readonly cellCount: number;
+  readonly cellOfRow: Int32Array;
+  readonly cellTerms: Int32Array;
+  readonly cellValues: Float64Array;
+  readonly freeTerms: Int32Array;
+  readonly free: Float64Array;
   readonly exposureIndex: number;
   /** Modifier main-effect terms: one per non-reference level, or one for a continuous modifier. */
   readonly modifierIndices: readonly number[];
@@ -35,8 +53,19 @@ export interface DesignOptions {
   readonly includeProducts: boolean;
   /** Subtracted from a continuous modifier before it enters the model. */
   readonly centre: number;
-  /** Allocate the matrix on a SharedArrayBuffer so worker threads can read it. */
+  /** Allocate the row arrays on SharedArrayBuffers so worker threads can read them. */
   readonly shared?: boolean;
+}
+
+/** Cells are capped so that the per-cell accumulators stay small and dense. */
+const MAX_CELLS = 4096;
+
+function allocateFloat(length: number, shared: boolean): Float64Array {
+  return shared ? new Float64Array(new SharedArrayBuffer(length * 8)) : new Float64Array(length);
+}
+
+function allocateInt(length: number, shared: boolean): Int32Array {
+  return shared ? new Int32Array(new SharedArrayBuffer(length * 4)) : new Int32Array(length);
 }
 
 function variableTerms(variable: FrameVariable, role: TermRole): DesignTerm[] {
@@ -56,6 +85,7 @@ function variableTerms(variable: FrameVariable, role: TermRole): DesignTerm[] {
  *   call=1 × age=65+.
  */
 export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions): DesignMatrix {
+  const shared = options.shared ?? false;
   const exposureName = `${frame.exposureColumn}=${frame.exposureLevels[1]}`;
   const terms: DesignTerm[] = [
     { name: '(Intercept)', role: 'intercept', column: null, level: null },
@@ -80,51 +110,145 @@ export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions):
       terms.push(term);
     }
   }
-
-  const rows = frame.n;
   const p = terms.length;
-  const bytes = rows * p * Float64Array.BYTES_PER_ELEMENT;
-  const x = options.shared ? new Float64Array(new SharedArrayBuffer(bytes)) : new Float64Array(rows * p);
-  const { exposure, modifier } = frame;
+  const rows = frame.n;
+  const { modifier } = frame;
   const centre = modifier.kind === 'continuous' ? options.centre : 0;
-  const modifierStart = 2;
-  const productStart = options.includeProducts ? 2 + modifierTerms.length : -1;
 
-  for (let i = 0; i < rows; i++) {
-    const offset = i * p;
-    const a = exposure[i];
-    x[offset] = 1;
-    x[offset + 1] = a;
-    if (modifier.kind === 'continuous') {
-      const value = modifier.values[i] - centre;
-      x[offset + modifierStart] = value;
-      if (productStart >= 0) x[offset + productStart] = a * value;
-    } else {
-      const code = modifier.codes[i];
-      if (code > 0) {
-        x[offset + modifierStart + code - 1] = 1;
-        if (productStart >= 0 && a === 1) x[offset + productStart + code - 1] = 1;
+  // Which categorical variables define the cells: the exposure, a categorical modifier,
+  // then categorical covariates while the cell count stays small.
+  const cellFactors: { factor: CodedFactor | null; levels: number; covariate: number }[] = [];
+  let cellCount = 2;
+  if (modifier.kind === 'categorical') {
+    cellFactors.push({ factor: modifier, levels: modifier.levels.length, covariate: -1 });
+    cellCount *= modifier.levels.length;
+  }
+  const covariateInCell = frame.covariates.map(() => false);
+  frame.covariates.forEach((covariate, index) => {
+    if (covariate.kind === 'categorical' && cellCount * covariate.levels.length <= MAX_CELLS) {
+      cellFactors.push({ factor: covariate, levels: covariate.levels.length, covariate: index });
+      cellCount *= covariate.levels.length;
+      covariateInCell[index] = true;
+    }
+  });
+
+  const isCellTerm = new Uint8Array(p);
+  isCellTerm[0] = 1;
+  isCellTerm[1] = 1;
+  if (modifier.kind === 'categorical') {
+    for (const index of modifierIndices) isCellTerm[index] = 1;
+    for (const index of productIndices) isCellTerm[index] = 1;
+  }
+  frame.covariates.forEach((covariate, index) => {
+    if (!covariateInCell[index]) return;
+    const count = covariate.kind === 'categorical' ? covariate.levels.length - 1 : 1;
+    for (let k = 0; k < count; k++) isCellTerm[covariateStarts[index] + k] = 1;
+  });
+  const cellTermList: number[] = [];
+  const freeTermList: number[] = [];
+  for (let j = 0; j < p; j++) (isCellTerm[j] ? cellTermList : freeTermList).push(j);
+  const cellTerms = Int32Array.from(cellTermList);
+  const freeTerms = Int32Array.from(freeTermList);
+  const q = cellTerms.length;
+  const r = freeTerms.length;
+  const cellPosition = new Int32Array(p).fill(-1);
+  cellTerms.forEach((term, t) => (cellPosition[term] = t));
+  const freePosition = new Int32Array(p).fill(-1);
+  freeTerms.forEach((term, k) => (freePosition[term] = k));
+
+  // Cell index: mixed radix over (exposure, cell factors...), exposure fastest.
+  const cellOfRow = allocateInt(rows, shared);
+  for (let i = 0; i < rows; i++) cellOfRow[i] = frame.exposure[i];
+  let radix = 2;
+  for (const { factor, levels } of cellFactors) {
+    const codes = (factor as CodedFactor).codes;
+    for (let i = 0; i < rows; i++) cellOfRow[i] += radix * codes[i];
+    radix *= levels;
+  }
+
+  // Values of the cell terms in every cell.
+  const cellValues = new Float64Array(cellCount * q);
+  for (let cell = 0; cell < cellCount; cell++) {
+    const base = cell * q;
+    const exposure = cell % 2;
+    let rest = Math.floor(cell / 2);
+    cellValues[base + cellPosition[0]] = 1;
+    cellValues[base + cellPosition[1]] = exposure;
+    for (const { levels, covariate } of cellFactors) {
+      const code = rest % levels;
+      rest = Math.floor(rest / levels);
+      if (code === 0) continue;
+      if (covariate < 0) {
+        cellValues[base + cellPosition[modifierIndices[code - 1]]] = 1;
+        if (productIndices.length > 0 && exposure === 1) cellValues[base + cellPosition[productIndices[code - 1]]] = 1;
+      } else {
+        cellValues[base + cellPosition[covariateStarts[covariate] + code - 1]] = 1;
       }
     }
-    frame.covariates.forEach((covariate, index) => {
-      const start = covariateStarts[index];
-      if (covariate.kind === 'continuous') x[offset + start] = covariate.values[i];
-      else {
-        const code = covariate.codes[i];
-        if (code > 0) x[offset + start + code - 1] = 1;
-      }
-    });
   }
+
+  // Free terms, row-major, written column by column.
+  const free = allocateFloat(rows * r, shared);
+  if (modifier.kind === 'continuous') {
+    const mainPosition = freePosition[modifierIndices[0]];
+    const productPosition = productIndices.length > 0 ? freePosition[productIndices[0]] : -1;
+    const values = modifier.values;
+    for (let i = 0; i < rows; i++) {
+      const value = values[i] - centre;
+      free[i * r + mainPosition] = value;
+      if (productPosition >= 0) free[i * r + productPosition] = frame.exposure[i] * value;
+    }
+  }
+  frame.covariates.forEach((covariate, index) => {
+    if (covariateInCell[index]) return;
+    const start = covariateStarts[index];
+    if (covariate.kind === 'continuous') {
+      const position = freePosition[start];
+      const values = covariate.values;
+      for (let i = 0; i < rows; i++) free[i * r + position] = values[i];
+    } else {
+      const codes = covariate.codes;
+      for (let i = 0; i < rows; i++) {
+        const code = codes[i];
+        if (code > 0) free[i * r + freePosition[start + code - 1]] = 1;
+      }
+    }
+  });
 
   return {
     rows,
     columns: p,
-    x,
     terms,
+    cellCount,
+    cellOfRow,
+    cellTerms,
+    cellValues,
+    freeTerms,
+    free,
     exposureIndex: 1,
     modifierIndices,
     productIndices,
     covariateIndices,
     centre,
   };
+}
+
+/** Writes row i of X (all p terms, in term order) into `out`. For the slower passes. */
+export function designRow(design: DesignMatrix, row: number, out: Float64Array): Float64Array {
+  const q = design.cellTerms.length;
+  const r = design.freeTerms.length;
+  const cellBase = design.cellOfRow[row] * q;
+  for (let t = 0; t < q; t++) out[design.cellTerms[t]] = design.cellValues[cellBase + t];
+  const freeBase = row * r;
+  for (let k = 0; k < r; k++) out[design.freeTerms[k]] = design.free[freeBase + k];
+  return out;
+}
+
+/** Dense row-major copy of X (n × p); for tests and small data only. */
+export function denseDesign(design: DesignMatrix): Float64Array {
+  const p = design.columns;
+  const dense = new Float64Array(design.rows * p);
+  const row = new Float64Array(p);
+  for (let i = 0; i < design.rows; i++) dense.set(designRow(design, i, row), i * p);
+  return dense;
 }

@@ -1,13 +1,19 @@
-import { choleskyFactor, choleskyInverse, choleskySolve, mirrorUpperTriangle, type CholeskyFactor } from '../core/symmetricPositiveDefinite.js';
+import { choleskyFactor, choleskyInverse, choleskySolve, type CholeskyFactor } from '../core/symmetricPositiveDefinite.js';
+import type { DesignMatrix } from '../design/designMatrix.js';
+import {
+  assembleCrossProducts,
+  cellLinearPredictor,
+  createAccumulator,
+  freeCoefficients,
+  resetAccumulator,
+  type CrossProductAccumulator,
+} from './crossProductAccumulator.js';
 
 /** The generalized linear models the engine fits by IRLS. */
 export type GlmFamily = 'binomial-logit' | 'poisson-log' | 'binomial-log';
 
 export interface GlmInput {
-  /** Row-major design, `rows × columns`. */
-  readonly x: Float64Array;
-  readonly rows: number;
-  readonly columns: number;
+  readonly design: DesignMatrix;
   /** Outcome: 0/1 for the binomial families, counts (here 0/1) for Poisson. */
   readonly y: Float64Array;
   /** Prior (frequency) weights; null means 1 for every row. Rows of weight 0 are skipped. */
@@ -39,7 +45,7 @@ export interface GlmFit {
   /** Smallest Cholesky pivot ratio of the final XᵀWX (near 0 = nearly collinear). */
   readonly smallestPivotRatio: number;
   readonly smallestPivotIndex: number;
-  /** Sum of prior weights over rows used. */
+  /** Sum of prior weights over the rows used. */
   readonly weightSum: number;
 }
 
@@ -53,7 +59,7 @@ export class InvalidStepError extends Error {
 
 const BOUNDARY_EPSILON = 10 * Number.EPSILON;
 
-interface PassTotals {
+export interface PassTotals {
   deviance: number;
   logLikelihood: number;
   invalid: boolean;
@@ -62,50 +68,50 @@ interface PassTotals {
   weightSum: number;
 }
 
-/**
- * One pass over the rows: at the linear predictor Xβ (or, when `fromStart`, at R's
- * starting means), accumulate the upper triangle of XᵀWX and XᵀWz for the next step, the
- * deviance and the log-likelihood. Working weights and responses are those of McCullagh
- * and Nelder (1989, §2.5): w = (dμ/dη)²/V(μ), z = η + (y − μ)/(dμ/dη); w·z is formed as
- * w·η + r with r = (y − μ)(dμ/dη)/V(μ) to avoid dividing by small derivatives.
- *
- * There is one copy of the loop per family so that each stays monomorphic and branch-free
- * in the JIT (a shared loop with a family switch ran about twice as slowly). The cross
- * products run over the row's non-zero terms only: designs are mostly 0/1 indicators.
- */
-type PassFunction = (
-  x: Float64Array, rows: number, p: number, y: Float64Array, priorWeights: Float64Array | null,
-  beta: Float64Array, fromStart: boolean, crossProduct: Float64Array, crossResponse: Float64Array, totals: PassTotals,
-) => void;
-
-function newTotals(): PassTotals {
+export function newTotals(): PassTotals {
   return { deviance: 0, logLikelihood: 0, invalid: false, boundaryCount: 0, maxMean: 0, weightSum: 0 };
 }
 
-const logisticPass: PassFunction = (x, rows, p, y, priorWeights, beta, fromStart, crossProduct, crossResponse, totals) => {
-  const nonZeroIndex = new Int32Array(p);
-  const nonZeroValue = new Float64Array(p);
+/**
+ * One pass over rows [from, to): at the linear predictor (cell part + free part), or at
+ * R's starting means when `fromStart`, accumulate the sums behind XᵀWX and XᵀWz for the
+ * next step, with the deviance and log-likelihood at the current coefficients. Working
+ * weights and responses are those of McCullagh and Nelder (1989, §2.5):
+ * w = (dμ/dη)²/V(μ), z = η + (y − μ)/(dμ/dη); w·z is formed as w·η + r with
+ * r = (y − μ)(dμ/dη)/V(μ) to avoid dividing by small derivatives.
+ *
+ * There is one copy of the loop per family so that each stays monomorphic in the JIT.
+ */
+export type PassFunction = (
+  design: DesignMatrix,
+  y: Float64Array,
+  priorWeights: Float64Array | null,
+  cellEta: Float64Array,
+  freeBeta: Float64Array,
+  fromStart: boolean,
+  accumulator: CrossProductAccumulator,
+  totals: PassTotals,
+  from: number,
+  to: number,
+) => void;
+
+const logisticPass: PassFunction = (design, y, priorWeights, cellEta, freeBeta, fromStart, accumulator, totals, from, to) => {
+  const r = design.freeTerms.length;
+  const { free, cellOfRow } = design;
+  const { cellWeight, cellResponse, cellFree, freeFree, freeResponse } = accumulator;
   let deviance = 0;
   let boundaryCount = 0;
   let maxMean = 0;
   let weightSum = 0;
-  for (let i = 0; i < rows; i++) {
+  for (let i = from; i < to; i++) {
     const prior = priorWeights === null ? 1 : priorWeights[i];
     if (prior === 0) continue;
     weightSum += prior;
-    const offset = i * p;
+    const cell = cellOfRow[i];
+    const base = i * r;
     const response = y[i];
-    let eta = 0;
-    let count = 0;
-    for (let j = 0; j < p; j++) {
-      const value = x[offset + j];
-      if (value !== 0) {
-        nonZeroIndex[count] = j;
-        nonZeroValue[count] = value;
-        count++;
-        eta += value * beta[j];
-      }
-    }
+    let eta = cellEta[cell];
+    for (let k = 0; k < r; k++) eta += free[base + k] * freeBeta[k];
     if (fromStart) {
       const start = (prior * response + 0.5) / (prior + 1); // R binomial(): mustart
       eta = Math.log(start / (1 - start));
@@ -118,17 +124,19 @@ const logisticPass: PassFunction = (x, rows, p, y, priorWeights, beta, fromStart
     // −log μ = log(1 + e^(−η)) and −log(1 − μ) = log(1 + e^η), without overflow.
     const logOnePlus = Math.log(onePlus);
     const minusLogMean = eta >= 0 ? logOnePlus : logOnePlus - eta;
-    const minusLogComplement = eta >= 0 ? logOnePlus + eta : logOnePlus;
-    deviance += 2 * prior * (response * minusLogMean + (1 - response) * minusLogComplement);
+    deviance += 2 * prior * (minusLogMean + (1 - response) * eta);
     if (mean < BOUNDARY_EPSILON || mean > 1 - BOUNDARY_EPSILON) boundaryCount++;
     if (mean > maxMean) maxMean = mean;
-    for (let a = 0; a < count; a++) {
-      const j = nonZeroIndex[a];
-      const xj = nonZeroValue[a];
-      crossResponse[j] += xj * weightedResponse;
-      const weighted = weight * xj;
-      const rowStart = j * p;
-      for (let b = a; b < count; b++) crossProduct[rowStart + nonZeroIndex[b]] += weighted * nonZeroValue[b];
+    cellWeight[cell] += weight;
+    cellResponse[cell] += weightedResponse;
+    const cellBase = cell * r;
+    for (let k = 0; k < r; k++) {
+      const value = free[base + k];
+      const weighted = weight * value;
+      cellFree[cellBase + k] += weighted;
+      freeResponse[k] += value * weightedResponse;
+      const rowStart = k * r;
+      for (let l = k; l < r; l++) freeFree[rowStart + l] += weighted * free[base + l];
     }
   }
   totals.deviance += deviance;
@@ -138,30 +146,30 @@ const logisticPass: PassFunction = (x, rows, p, y, priorWeights, beta, fromStart
   totals.weightSum += weightSum;
 };
 
-const poissonPass: PassFunction = (x, rows, p, y, priorWeights, beta, fromStart, crossProduct, crossResponse, totals) => {
-  const nonZeroIndex = new Int32Array(p);
-  const nonZeroValue = new Float64Array(p);
+/** ln(y!) for a non-negative integer count (0 for y ≤ 1). */
+function logFactorial(value: number): number {
+  let total = 0;
+  for (let k = 2; k <= value; k++) total += Math.log(k);
+  return total;
+}
+
+const poissonPass: PassFunction = (design, y, priorWeights, cellEta, freeBeta, fromStart, accumulator, totals, from, to) => {
+  const r = design.freeTerms.length;
+  const { free, cellOfRow } = design;
+  const { cellWeight, cellResponse, cellFree, freeFree, freeResponse } = accumulator;
   let deviance = 0;
   let logLikelihood = 0;
   let maxMean = 0;
   let weightSum = 0;
-  for (let i = 0; i < rows; i++) {
+  for (let i = from; i < to; i++) {
     const prior = priorWeights === null ? 1 : priorWeights[i];
     if (prior === 0) continue;
     weightSum += prior;
-    const offset = i * p;
+    const cell = cellOfRow[i];
+    const base = i * r;
     const response = y[i];
-    let eta = 0;
-    let count = 0;
-    for (let j = 0; j < p; j++) {
-      const value = x[offset + j];
-      if (value !== 0) {
-        nonZeroIndex[count] = j;
-        nonZeroValue[count] = value;
-        count++;
-        eta += value * beta[j];
-      }
-    }
+    let eta = cellEta[cell];
+    for (let k = 0; k < r; k++) eta += free[base + k] * freeBeta[k];
     if (fromStart) eta = Math.log(response + 0.1); // R poisson(): mustart = y + 0.1
     const mean = Math.exp(eta);
     const weight = prior * mean;
@@ -174,13 +182,16 @@ const poissonPass: PassFunction = (x, rows, p, y, priorWeights, beta, fromStart,
       logLikelihood -= prior * mean;
     }
     if (mean > maxMean) maxMean = mean;
-    for (let a = 0; a < count; a++) {
-      const j = nonZeroIndex[a];
-      const xj = nonZeroValue[a];
-      crossResponse[j] += xj * weightedResponse;
-      const weighted = weight * xj;
-      const rowStart = j * p;
-      for (let b = a; b < count; b++) crossProduct[rowStart + nonZeroIndex[b]] += weighted * nonZeroValue[b];
+    cellWeight[cell] += weight;
+    cellResponse[cell] += weightedResponse;
+    const cellBase = cell * r;
+    for (let k = 0; k < r; k++) {
+      const value = free[base + k];
+      const weighted = weight * value;
+      cellFree[cellBase + k] += weighted;
+      freeResponse[k] += value * weightedResponse;
+      const rowStart = k * r;
+      for (let l = k; l < r; l++) freeFree[rowStart + l] += weighted * free[base + l];
     }
   }
   totals.deviance += deviance;
@@ -189,36 +200,29 @@ const poissonPass: PassFunction = (x, rows, p, y, priorWeights, beta, fromStart,
   totals.weightSum += weightSum;
 };
 
-const logBinomialPass: PassFunction = (x, rows, p, y, priorWeights, beta, fromStart, crossProduct, crossResponse, totals) => {
-  const nonZeroIndex = new Int32Array(p);
-  const nonZeroValue = new Float64Array(p);
+const logBinomialPass: PassFunction = (design, y, priorWeights, cellEta, freeBeta, fromStart, accumulator, totals, from, to) => {
+  const r = design.freeTerms.length;
+  const { free, cellOfRow } = design;
+  const { cellWeight, cellResponse, cellFree, freeFree, freeResponse } = accumulator;
   let deviance = 0;
   let boundaryCount = 0;
   let maxMean = 0;
   let weightSum = 0;
   let invalid = false;
-  for (let i = 0; i < rows; i++) {
+  for (let i = from; i < to; i++) {
     const prior = priorWeights === null ? 1 : priorWeights[i];
     if (prior === 0) continue;
     weightSum += prior;
-    const offset = i * p;
+    const cell = cellOfRow[i];
+    const base = i * r;
     const response = y[i];
-    let eta = 0;
-    let count = 0;
-    for (let j = 0; j < p; j++) {
-      const value = x[offset + j];
-      if (value !== 0) {
-        nonZeroIndex[count] = j;
-        nonZeroValue[count] = value;
-        count++;
-        eta += value * beta[j];
-      }
-    }
+    let eta = cellEta[cell];
+    for (let k = 0; k < r; k++) eta += free[base + k] * freeBeta[k];
     if (fromStart) eta = Math.log((prior * response + 0.5) / (prior + 1));
     const mean = Math.exp(eta);
     if (mean > maxMean) maxMean = mean;
     if (!(mean < 1)) {
-      invalid = true; // R's validmu: 0 < μ < 1
+      invalid = true; // R's binomial validmu: 0 < μ < 1
       continue;
     }
     const complement = 1 - mean;
@@ -226,13 +230,16 @@ const logBinomialPass: PassFunction = (x, rows, p, y, priorWeights, beta, fromSt
     const weightedResponse = weight * eta + (prior * (response - mean)) / complement;
     deviance += 2 * prior * (-response * eta - (1 - response) * Math.log(complement));
     if (mean < BOUNDARY_EPSILON || mean > 1 - BOUNDARY_EPSILON) boundaryCount++;
-    for (let a = 0; a < count; a++) {
-      const j = nonZeroIndex[a];
-      const xj = nonZeroValue[a];
-      crossResponse[j] += xj * weightedResponse;
-      const weighted = weight * xj;
-      const rowStart = j * p;
-      for (let b = a; b < count; b++) crossProduct[rowStart + nonZeroIndex[b]] += weighted * nonZeroValue[b];
+    cellWeight[cell] += weight;
+    cellResponse[cell] += weightedResponse;
+    const cellBase = cell * r;
+    for (let k = 0; k < r; k++) {
+      const value = free[base + k];
+      const weighted = weight * value;
+      cellFree[cellBase + k] += weighted;
+      freeResponse[k] += value * weightedResponse;
+      const rowStart = k * r;
+      for (let l = k; l < r; l++) freeFree[rowStart + l] += weighted * free[base + l];
     }
   }
   totals.deviance += deviance;
@@ -243,34 +250,49 @@ const logBinomialPass: PassFunction = (x, rows, p, y, priorWeights, beta, fromSt
   totals.invalid = totals.invalid || invalid;
 };
 
-const PASSES: Record<GlmFamily, PassFunction> = {
+export const PASS_FUNCTIONS: Readonly<Record<GlmFamily, PassFunction>> = {
   'binomial-logit': logisticPass,
   'poisson-log': poissonPass,
   'binomial-log': logBinomialPass,
 };
 
-function accumulatePass(
-  input: GlmInput,
-  beta: Float64Array | null,
-  crossProduct: Float64Array,
-  crossResponse: Float64Array,
-): PassTotals {
-  crossProduct.fill(0);
-  crossResponse.fill(0);
-  const totals = newTotals();
-  const fromStart = beta === null;
-  PASSES[input.family](
-    input.x, input.rows, input.columns, input.y, input.priorWeights ?? null,
-    beta ?? new Float64Array(input.columns), fromStart, crossProduct, crossResponse, totals,
-  );
-  return totals;
+/** Workspace of one fit, reused across its iterations. */
+interface Workspace {
+  accumulator: CrossProductAccumulator;
+  crossProduct: Float64Array;
+  crossResponse: Float64Array;
+  cellEta: Float64Array;
+  freeBeta: Float64Array;
 }
 
-/** ln(y!) for a non-negative integer count (0 for y ≤ 1). */
-function logFactorial(value: number): number {
-  let total = 0;
-  for (let k = 2; k <= value; k++) total += Math.log(k);
-  return total;
+function createWorkspace(design: DesignMatrix): Workspace {
+  const p = design.columns;
+  return {
+    accumulator: createAccumulator(design),
+    crossProduct: new Float64Array(p * p),
+    crossResponse: new Float64Array(p),
+    cellEta: new Float64Array(design.cellCount),
+    freeBeta: new Float64Array(design.freeTerms.length),
+  };
+}
+
+function runPass(input: GlmInput, coefficients: Float64Array | null, workspace: Workspace): PassTotals {
+  const { design } = input;
+  resetAccumulator(workspace.accumulator);
+  if (coefficients !== null) {
+    cellLinearPredictor(design, coefficients, workspace.cellEta);
+    freeCoefficients(design, coefficients, workspace.freeBeta);
+  } else {
+    workspace.cellEta.fill(0);
+    workspace.freeBeta.fill(0);
+  }
+  const totals = newTotals();
+  PASS_FUNCTIONS[input.family](
+    design, input.y, input.priorWeights ?? null, workspace.cellEta, workspace.freeBeta,
+    coefficients === null, workspace.accumulator, totals, 0, design.rows,
+  );
+  assembleCrossProducts(design, workspace.accumulator, workspace.crossProduct, workspace.crossResponse);
+  return totals;
 }
 
 /**
@@ -278,9 +300,9 @@ function logFactorial(value: number): number {
  * squares (McCullagh and Nelder, Generalized Linear Models, 2nd ed., 1989, §2.5).
  *
  * Variant: follows R's glm.fit (R 4.2) step for step so that iterations, coefficients and
- * standard errors agree with it: the start is R's mustart (binomial (y + ½)/2, Poisson
- * y + 0.1) unless `start` is given; each iteration solves XᵀWX β = XᵀWz (Cholesky of the
- * Jacobi-scaled normal equations rather than R's QR); convergence when
+ * standard errors agree with it: the start is R's mustart (binomial (w·y + ½)/(w + 1),
+ * Poisson y + 0.1) unless `start` is given; each iteration solves XᵀWX β = XᵀWz (Cholesky
+ * of the Jacobi-scaled normal equations rather than R's QR); convergence when
  * |dev − dev_old|/(|dev| + 0.1) < ε (ε = 1e-8, at most 25 iterations); a step giving a
  * non-finite deviance or an invalid mean (μ ≥ 1 under the log-binomial) is halved towards
  * the previous coefficients; the returned (XᵀWX)⁻¹ uses the weights of the last step, as
@@ -288,21 +310,19 @@ function logFactorial(value: number): number {
  *
  * @throws NotPositiveDefiniteError (from the Cholesky factor) when the design is singular;
  *   InvalidStepError when step-halving cannot find valid means.
- * @example fitGeneralizedLinearModel({ x, rows, columns, y, family: 'binomial-logit' })
+ * @example fitGeneralizedLinearModel({ design, y, family: 'binomial-logit' })
  *   // → { coefficients, covarianceUnscaled, iterations: 4, converged: true, ... }
  */
 export function fitGeneralizedLinearModel(input: GlmInput): GlmFit {
-  const p = input.columns;
+  const p = input.design.columns;
   const maxIterations = input.maxIterations ?? 25;
   const epsilon = input.epsilon ?? 1e-8;
   const computeCovariance = input.computeCovariance ?? true;
-  let crossProduct = new Float64Array(p * p);
-  let crossResponse = new Float64Array(p);
-  let nextCrossProduct = new Float64Array(p * p);
-  let nextCrossResponse = new Float64Array(p);
+  let current = createWorkspace(input.design);
+  let next = createWorkspace(input.design);
 
   let previousCoefficients: Float64Array | null = input.start ? Float64Array.from(input.start) : null;
-  let totals = accumulatePass(input, previousCoefficients, crossProduct, crossResponse);
+  let totals = runPass(input, previousCoefficients, current);
   if (totals.invalid || !Number.isFinite(totals.deviance)) {
     throw new InvalidStepError('the starting values give invalid fitted means');
   }
@@ -315,10 +335,9 @@ export function fitGeneralizedLinearModel(input: GlmInput): GlmFit {
 
   for (let iteration = 1; iteration <= maxIterations; iteration++) {
     iterations = iteration;
-    mirrorUpperTriangle(crossProduct, p);
-    factor = choleskyFactor(crossProduct, p);
-    let candidate = choleskySolve(factor, crossResponse);
-    let candidateTotals = accumulatePass(input, candidate, nextCrossProduct, nextCrossResponse);
+    factor = choleskyFactor(current.crossProduct, p);
+    let candidate = choleskySolve(factor, current.crossResponse);
+    let candidateTotals = runPass(input, candidate, next);
     let halvings = 0;
     while (candidateTotals.invalid || !Number.isFinite(candidateTotals.deviance)) {
       if (previousCoefficients === null) throw new InvalidStepError('no valid set of coefficients was found; supply starting values');
@@ -327,19 +346,17 @@ export function fitGeneralizedLinearModel(input: GlmInput): GlmFit {
       const halved = new Float64Array(p);
       for (let j = 0; j < p; j++) halved[j] = 0.5 * (candidate[j] + previousCoefficients[j]);
       candidate = halved;
-      candidateTotals = accumulatePass(input, candidate, nextCrossProduct, nextCrossResponse);
+      candidateTotals = runPass(input, candidate, next);
     }
     coefficients = candidate;
-    const deviance = candidateTotals.deviance;
     totals = candidateTotals;
-    if (Math.abs(deviance - previousDeviance) / (Math.abs(deviance) + 0.1) < epsilon) {
+    if (Math.abs(totals.deviance - previousDeviance) / (Math.abs(totals.deviance) + 0.1) < epsilon) {
       converged = true;
       break;
     }
-    previousDeviance = deviance;
+    previousDeviance = totals.deviance;
     previousCoefficients = candidate;
-    [crossProduct, nextCrossProduct] = [nextCrossProduct, crossProduct];
-    [crossResponse, nextCrossResponse] = [nextCrossResponse, crossResponse];
+    [current, next] = [next, current];
   }
   if (factor === null) throw new InvalidStepError('no iteration was run');
   return {
@@ -357,18 +374,4 @@ export function fitGeneralizedLinearModel(input: GlmInput): GlmFit {
     smallestPivotIndex: factor.smallestPivotIndex,
     weightSum: totals.weightSum,
   };
-}
-
-/**
- * Fitted means μ̂ = g⁻¹(Xβ) for every row (for residuals and the sandwich variance).
- */
-export function fittedMeans(x: Float64Array, rows: number, columns: number, coefficients: ArrayLike<number>, family: GlmFamily): Float64Array {
-  const means = new Float64Array(rows);
-  for (let i = 0; i < rows; i++) {
-    const offset = i * columns;
-    let eta = 0;
-    for (let j = 0; j < columns; j++) eta += x[offset + j] * coefficients[j];
-    means[i] = family === 'binomial-logit' ? 1 / (1 + Math.exp(-eta)) : Math.exp(eta);
-  }
-  return means;
 }

@@ -1,0 +1,80 @@
+import { InvalidSpecError } from '../errors.js';
+import type { AnalysisSpec, CiMethod, EffectMeasure, MultiplicityCorrection } from '../types.js';
+
+export interface CheckedSpec {
+  readonly level: number;
+  readonly alpha: number;
+  readonly method: CiMethod;
+  readonly replicates: number;
+  readonly seed: number;
+  readonly multiplicity: MultiplicityCorrection;
+  readonly preventive: boolean;
+  readonly standardErrors: 'model' | 'hc3';
+  readonly effectMeasure: EffectMeasure;
+  readonly targetPower: number;
+}
+
+const MODELS = ['logistic', 'modified-poisson', 'log-binomial', 'linear'];
+
+/**
+ * Checks the parts of a specification that the engine relies on (the zod schema at the
+ * boundary checks the shape) and fills in the defaults of the optional extras.
+ *
+ * @throws InvalidSpecError naming the offending field.
+ */
+export function validateSpec(spec: AnalysisSpec): CheckedSpec {
+  if (spec === null || typeof spec !== 'object') throw new InvalidSpecError('The specification must be an object.');
+  for (const field of ['outcome', 'exposure', 'modifier', 'ci'] as const) {
+    if (spec[field] === null || typeof spec[field] !== 'object') throw new InvalidSpecError(`The specification needs "${field}".`);
+  }
+  if (!Array.isArray(spec.covariates)) throw new InvalidSpecError('The specification needs "covariates" (an array, possibly empty).');
+  if (!MODELS.includes(spec.model)) throw new InvalidSpecError(`Unknown model "${String(spec.model)}"; use one of ${MODELS.join(', ')}.`);
+  if (spec.outcome.type !== 'binary' && spec.outcome.type !== 'continuous') throw new InvalidSpecError('outcome.type must be "binary" or "continuous".');
+  if (spec.model !== 'linear' && spec.outcome.type !== 'binary') {
+    throw new InvalidSpecError(`The ${spec.model} model needs a binary outcome.`, { column: spec.outcome.column });
+  }
+  if (typeof spec.exposure.reference !== 'string') throw new InvalidSpecError('exposure.reference must be a level name (a string such as "0").', { column: spec.exposure.column });
+  if (spec.modifier.type === 'categorical' && spec.modifier.reference !== undefined && typeof spec.modifier.reference !== 'string') {
+    throw new InvalidSpecError('modifier.reference must be a level name.', { column: spec.modifier.column });
+  }
+  if (spec.modifier.type !== 'categorical' && spec.modifier.type !== 'continuous') throw new InvalidSpecError('modifier.type must be "categorical" or "continuous".');
+  const level = spec.ci.level;
+  if (!(typeof level === 'number' && level > 0.5 && level < 1)) throw new InvalidSpecError('ci.level must be a number between 0.5 and 1, e.g. 0.95.');
+  const method = spec.ci.method;
+  if (method !== 'delta' && method !== 'mover' && method !== 'bootstrap') throw new InvalidSpecError('ci.method must be "delta", "mover" or "bootstrap".');
+  const replicates = spec.ci.replicates ?? 2000;
+  if (!Number.isInteger(replicates) || replicates < 100 || replicates > 100_000) {
+    throw new InvalidSpecError('ci.replicates must be an integer between 100 and 100,000.');
+  }
+  const seed = spec.ci.seed ?? 1;
+  if (!Number.isInteger(seed) || seed < 0 || seed > 0xffffffff) throw new InvalidSpecError('ci.seed must be an integer between 0 and 4294967295.');
+  const alpha = spec.alpha ?? 1 - level;
+  if (!(alpha > 0 && alpha < 0.5)) throw new InvalidSpecError('alpha must be between 0 and 0.5.');
+  const multiplicity = spec.multiplicity ?? 'holm';
+  if (!['none', 'holm', 'bh'].includes(multiplicity)) throw new InvalidSpecError('multiplicity must be "none", "holm" or "bh".');
+  const standardErrors = spec.standardErrors ?? 'model';
+  if (standardErrors !== 'model' && standardErrors !== 'hc3') throw new InvalidSpecError('standardErrors must be "model" or "hc3".');
+  if (standardErrors === 'hc3' && spec.model !== 'linear') throw new InvalidSpecError('standardErrors "hc3" applies to linear models only.');
+  const implied: EffectMeasure =
+    spec.model === 'logistic' ? 'OR' : spec.model === 'linear' ? (spec.outcome.type === 'binary' ? 'RD' : 'MD') : 'RR';
+  if (spec.effectMeasure !== undefined && spec.effectMeasure !== implied) {
+    throw new InvalidSpecError(`The effect measure ${spec.effectMeasure} does not match the ${spec.model} model with a ${spec.outcome.type} outcome, which gives ${implied}.`);
+  }
+  const targetPower = spec.planning?.power ?? 0.8;
+  if (!(targetPower > 0.05 && targetPower < 1)) throw new InvalidSpecError('planning.power must be between 0.05 and 1.');
+  const interaction = spec.planning?.interaction;
+  if (interaction !== undefined) {
+    if (!Number.isFinite(interaction)) throw new InvalidSpecError('planning.interaction must be a number.');
+    if (spec.model !== 'linear' && !(interaction > 0 && interaction !== 1)) {
+      throw new InvalidSpecError('planning.interaction is a ratio of ratios for this model: a positive number other than 1.');
+    }
+    if (spec.model === 'linear' && interaction === 0) throw new InvalidSpecError('planning.interaction must not be 0.');
+  }
+  if (spec.modifier.type === 'continuous') {
+    const centre = spec.modifier.centre;
+    if (centre !== undefined && !['none', 'mean', 'median'].includes(String(centre)) && !Number.isFinite(centre)) {
+      throw new InvalidSpecError('modifier.centre must be "none", "mean", "median" or a number.');
+    }
+  }
+  return { level, alpha, method, replicates, seed, multiplicity, preventive: spec.preventive ?? false, standardErrors, effectMeasure: implied, targetPower };
+}

@@ -1,0 +1,188 @@
+import { NotPositiveDefiniteError } from '../core/symmetricPositiveDefinite.js';
+import type { DesignMatrix } from '../design/designMatrix.js';
+import { FitFailedError, SingularDesignError } from '../errors.js';
+import type { EngineWarning, ModelFamily } from '../types.js';
+import { fitGeneralizedLinearModel, InvalidStepError, type GlmFamily, type GlmFit } from './iterativelyReweightedLeastSquares.js';
+import { fitOrdinaryLeastSquares } from './ordinaryLeastSquares.js';
+import { poissonSandwichVariance } from './poissonSandwichVariance.js';
+
+/** A fitted model as the measures need it. */
+export interface ModelFit {
+  readonly family: ModelFamily;
+  readonly requestedFamily: ModelFamily;
+  readonly link: 'logit' | 'log' | 'identity';
+  readonly coefficients: Float64Array;
+  /** Covariance used for every measure (model-based, HC0 sandwich, or HC3). */
+  readonly covariance: Float64Array;
+  readonly standardErrors: 'model' | 'HC0' | 'HC3';
+  /** Linear models: the HC3 covariance beside the classical one. */
+  readonly covarianceRobust: Float64Array | null;
+  readonly iterations: number;
+  readonly converged: boolean;
+  readonly logLik: number;
+  readonly deviance: number;
+  readonly residualDf: number;
+  readonly dispersion: number;
+  /** Linear models: the residual sum of squares (for F tests). */
+  readonly residualSumOfSquares: number | null;
+  readonly boundaryFittedCount: number;
+  readonly maxFittedMean: number;
+  readonly smallestPivotRatio: number;
+  readonly smallestPivotIndex: number;
+  /** Normal (GLM) or t (linear) reference distribution for Wald intervals. */
+  readonly waldDf: number;
+  readonly warnings: EngineWarning[];
+}
+
+export interface FitOptions {
+  readonly standardErrors?: 'model' | 'hc3';
+}
+
+/** Pivot ratios below this (VIF above 1e8) earn a near-collinearity warning. */
+const NEAR_SINGULAR_RATIO = 1e-8;
+
+function singular(design: DesignMatrix, error: NotPositiveDefiniteError): SingularDesignError {
+  const term = design.terms[error.index];
+  return new SingularDesignError(term?.name ?? `term ${error.index + 1}`, term?.column ?? undefined);
+}
+
+function glmFamilyOf(model: ModelFamily): GlmFamily {
+  if (model === 'logistic') return 'binomial-logit';
+  if (model === 'log-binomial') return 'binomial-log';
+  return 'poisson-log';
+}
+
+function fromGlm(model: ModelFamily, requested: ModelFamily, design: DesignMatrix, y: Float64Array, fit: GlmFit, warnings: EngineWarning[]): ModelFit {
+  const bread = fit.covarianceUnscaled as Float64Array;
+  const robust = model === 'modified-poisson';
+  const covariance = robust ? poissonSandwichVariance(design, y, fit.coefficients, bread) : bread;
+  const p = design.columns;
+  return {
+    family: model,
+    requestedFamily: requested,
+    link: model === 'logistic' ? 'logit' : 'log',
+    coefficients: fit.coefficients,
+    covariance,
+    standardErrors: robust ? 'HC0' : 'model',
+    covarianceRobust: null,
+    iterations: fit.iterations,
+    converged: fit.converged,
+    logLik: fit.logLik,
+    deviance: fit.deviance,
+    residualDf: fit.weightSum - p,
+    dispersion: 1,
+    residualSumOfSquares: null,
+    boundaryFittedCount: fit.boundaryFittedCount,
+    maxFittedMean: fit.maxFittedMean,
+    smallestPivotRatio: fit.smallestPivotRatio,
+    smallestPivotIndex: fit.smallestPivotIndex,
+    waldDf: Infinity,
+    warnings,
+  };
+}
+
+function meanOf(values: Float64Array): number {
+  let sum = 0;
+  for (let i = 0; i < values.length; i++) sum += values[i];
+  return sum / values.length;
+}
+
+/**
+ * Fits the specification's model to a design: linear (OLS with classical or HC3 errors),
+ * logistic (IRLS), modified Poisson (IRLS with the HC0 sandwich), or log-binomial (IRLS
+ * from the start b0 = log ȳ, other coefficients 0) with the documented fallback: when the
+ * log-binomial fit cannot find valid fitted risks, does not converge in 25 iterations, or
+ * ends on the boundary (a fitted risk above 1 − 1e-6), the model is refitted as modified
+ * Poisson and a LOG_BINOMIAL_FALLBACK warning says so.
+ *
+ * @throws SingularDesignError naming the aliased term; FitFailedError when no fit is possible.
+ */
+export function fitModel(design: DesignMatrix, y: Float64Array, model: ModelFamily, options: FitOptions = {}): ModelFit {
+  const warnings: EngineWarning[] = [];
+  try {
+    if (model === 'linear') {
+      const useHC3 = options.standardErrors === 'hc3';
+      const fit = fitOrdinaryLeastSquares({ design, y, computeHC3: true });
+      return {
+        family: 'linear',
+        requestedFamily: 'linear',
+        link: 'identity',
+        coefficients: fit.coefficients,
+        covariance: useHC3 ? (fit.covarianceHC3 as Float64Array) : fit.covarianceClassical,
+        standardErrors: useHC3 ? 'HC3' : 'model',
+        covarianceRobust: fit.covarianceHC3,
+        iterations: 0,
+        converged: true,
+        logLik: fit.logLik,
+        deviance: fit.residualSumOfSquares,
+        residualDf: fit.residualDf,
+        dispersion: fit.sigmaSquared,
+        residualSumOfSquares: fit.residualSumOfSquares,
+        boundaryFittedCount: 0,
+        maxFittedMean: Number.NaN,
+        smallestPivotRatio: fit.smallestPivotRatio,
+        smallestPivotIndex: fit.smallestPivotIndex,
+        waldDf: fit.residualDf,
+        warnings,
+      };
+    }
+    if (model === 'log-binomial') {
+      const start = new Float64Array(design.columns);
+      start[0] = Math.log(meanOf(y));
+      let reason: string | null = null;
+      try {
+        const fit = fitGeneralizedLinearModel({ design, y, family: 'binomial-log', start });
+        if (!fit.converged) reason = 'it did not converge in 25 iterations';
+        else if (fit.maxFittedMean > 1 - 1e-6) reason = 'its estimate lies on the boundary (a fitted risk of 1)';
+        else return fromGlm('log-binomial', 'log-binomial', design, y, fit, warnings);
+      } catch (error) {
+        if (!(error instanceof InvalidStepError)) throw error;
+        reason = 'no valid fitted risks could be found';
+      }
+      warnings.push({
+        code: 'LOG_BINOMIAL_FALLBACK',
+        message: `The log-binomial model failed (${reason}), so risk ratios come from a modified Poisson model (Poisson regression with robust standard errors) instead.`,
+      });
+      const fallback = fitGeneralizedLinearModel({ design, y, family: 'poisson-log' });
+      return fromGlm('modified-poisson', 'log-binomial', design, y, fallback, warnings);
+    }
+    const fit = fitGeneralizedLinearModel({ design, y, family: glmFamilyOf(model) });
+    return fromGlm(model, model, design, y, fit, warnings);
+  } catch (error) {
+    if (error instanceof NotPositiveDefiniteError) throw singular(design, error);
+    if (error instanceof InvalidStepError) throw new FitFailedError(`The ${model} model could not be fitted: ${error.message}.`);
+    throw error;
+  }
+}
+
+/** Warnings about the quality of a fit: non-convergence, separation, near-collinearity, risks above 1. */
+export function fitDiagnostics(design: DesignMatrix, fit: ModelFit): EngineWarning[] {
+  const warnings: EngineWarning[] = [];
+  if (!fit.converged) {
+    warnings.push({
+      code: 'NOT_CONVERGED',
+      message: `The ${fit.family} model did not converge within 25 iterations; its estimates may be unreliable.`,
+    });
+  }
+  if ((fit.family === 'logistic' || fit.family === 'log-binomial') && fit.boundaryFittedCount > 0) {
+    warnings.push({
+      code: 'SEPARATION',
+      message: `Fitted probabilities of 0 or 1 occurred in ${fit.boundaryFittedCount} row(s): the outcome is (quasi-)completely separated by some terms, so their estimates and intervals are not reliable.`,
+    });
+  }
+  if (fit.smallestPivotRatio < NEAR_SINGULAR_RATIO) {
+    const term = design.terms[fit.smallestPivotIndex];
+    warnings.push({
+      code: 'NEAR_SINGULAR_DESIGN',
+      message: `The term "${term?.name}" is almost a linear combination of the other terms (near rank deficiency); its estimate is unstable.`,
+      ...(term?.name ? { term: term.name } : {}),
+    });
+  }
+  if (fit.family === 'modified-poisson' && fit.maxFittedMean > 1) {
+    warnings.push({
+      code: 'FITTED_RISK_ABOVE_ONE',
+      message: `The Poisson model predicts a risk above 1 for some rows (largest ${fit.maxFittedMean.toFixed(3)}); risk ratios remain usable but predicted risks are not.`,
+    });
+  }
+  return warnings;
+}
