@@ -105,6 +105,34 @@ describe('message ids', () => {
   });
 });
 
+describe('the HTML preview', () => {
+  const hostile =
+    '<h1>Static</h1><script>top.location="https://elsewhere.example"</script></iframe>' +
+    '<script>document.title="taken"</script><a href="https://x.example/?q=<script>">x</a>';
+
+  it('keeps the whole body inside a sandboxed srcdoc, even after the nonce middleware', async () => {
+    const { addNonceToScripts } = await import('./securityHeaders');
+    const frame = outbox.previewFrame(hostile, { title: 'Preview "x" <b>', className: 'w-full', testId: 'message-html' });
+    // The middleware stamps a nonce onto every <script it finds in a page; none may be found here.
+    expect(addNonceToScripts(frame, 'abc')).toBe(frame);
+    expect(frame.match(/</g)).toHaveLength(2);
+    expect(frame.startsWith('<iframe sandbox="" ')).toBe(true);
+    expect(frame.endsWith('></iframe>')).toBe(true);
+    const srcdoc = /srcdoc="([^"]*)"/.exec(frame)?.[1] ?? '';
+    const decoded = srcdoc.replace(/&lt;/g, '<').replace(/&gt;/g, '>').replace(/&quot;/g, '"').replace(/&amp;/g, '&');
+    expect(decoded).toBe(hostile);
+  });
+
+  it('lists links percent-encoded, so they are safe in an attribute', () => {
+    expect(outbox.linksIn(hostile, 'See https://tern-valley.example/a?b=1&c=2 and http://x.example/"q"')).toEqual([
+      'https://x.example/?q=%3Cscript%3E',
+      'https://tern-valley.example/a?b=1&c=2',
+      'http://x.example/',
+    ]);
+    expect(outbox.linksIn('<a href="javascript:alert(1)">x</a><a href="mailto:a@b.example">m</a>', '')).toEqual([]);
+  });
+});
+
 describe('who may see the outbox', () => {
   it.each([
     [null, 'local', 'signed-out'],

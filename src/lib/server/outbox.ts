@@ -192,7 +192,16 @@ export function linksIn(html: string | null, text: string): string[] {
   const found: string[] = [];
   const add = (candidate: string) => {
     const decoded = candidate.replace(/&amp;/g, '&');
-    if (/^https?:\/\//i.test(decoded) && !found.includes(decoded)) found.push(decoded);
+    if (!/^https?:\/\//i.test(decoded)) return;
+    // Serialising through URL percent-encodes quotes and angle brackets, so a link is
+    // safe in an attribute.
+    let href: string;
+    try {
+      href = new URL(decoded).href;
+    } catch {
+      return;
+    }
+    if (!found.includes(href)) found.push(href);
   };
   if (html) for (const match of html.matchAll(/\bhref\s*=\s*["']([^"']+)["']/gi)) add(match[1].trim());
   for (const match of text.matchAll(/\bhttps?:\/\/[^\s<>"')\]]+/gi)) add(match[0]);
@@ -229,4 +238,27 @@ export async function readMessage(id: string, options: StoreOptions = {}): Promi
     html,
     links: linksIn(html, text),
   };
+}
+
+/** Escapes a value for a double-quoted HTML attribute, angle brackets included. */
+function escapeAttribute(value: string): string {
+  return value.replace(/&/g, '&amp;').replace(/"/g, '&quot;').replace(/</g, '&lt;').replace(/>/g, '&gt;');
+}
+
+/**
+ * The iframe that previews a message's HTML body: `sandbox=""` (no scripts, no forms,
+ * no same-origin access) and the body in `srcdoc`, where the embedding page's
+ * Content-Security-Policy also applies (no remote images, no scripts).
+ *
+ * Built here rather than with an Astro attribute because Astro leaves `<` unescaped in
+ * attribute values, and the response middleware adds a nonce to every `<script` it finds
+ * in the page's HTML: a `<script` inside srcdoc would gain quotes that end the attribute.
+ * Escaping every angle bracket keeps the srcdoc text free of tags on the wire.
+ */
+export function previewFrame(html: string, attributes: { title: string; className: string; testId: string }): string {
+  return (
+    `<iframe sandbox="" referrerpolicy="no-referrer" srcdoc="${escapeAttribute(html)}"` +
+    ` title="${escapeAttribute(attributes.title)}" class="${escapeAttribute(attributes.className)}"` +
+    ` data-testid="${escapeAttribute(attributes.testId)}"></iframe>`
+  );
 }
