@@ -55,6 +55,9 @@ let outbox: OutboxModule;
 let mailServer: ServerModule;
 let handle: Awaited<ReturnType<ServerModule['startMailServer']>>;
 
+/** The settings this file changes, put back afterwards for the files that run next. */
+const savedEnv = Object.fromEntries(['CROSSGRAIN_MAIL_MODE', 'CROSSGRAIN_SMTP_PORT', 'CROSSGRAIN_DATA_DIR'].map((key) => [key, process.env[key]]));
+
 beforeAll(async () => {
   dataDir = await mkdtemp(path.join(tmpdir(), 'crossgrain-mail-'));
   const port = await freePort();
@@ -69,6 +72,10 @@ beforeAll(async () => {
 });
 
 afterAll(async () => {
+  for (const [key, value] of Object.entries(savedEnv)) {
+    if (value === undefined) delete process.env[key];
+    else process.env[key] = value;
+  }
   await handle?.close();
   if (dataDir) await rm(dataDir, { recursive: true, force: true });
 });

@@ -37,6 +37,9 @@ async function call(route: ListEndpoint['GET'], ctx: APIContext): Promise<{ stat
   return { status: response.status, body: await response.json() };
 }
 
+/** The settings this file changes, put back afterwards for the files that run next. */
+const savedEnv = Object.fromEntries(['CROSSGRAIN_MAIL_MODE', 'CROSSGRAIN_DATA_DIR'].map((key) => [key, process.env[key]]));
+
 beforeAll(async () => {
   dataDir = await mkdtemp(path.join(tmpdir(), 'crossgrain-outbox-'));
   process.env.CROSSGRAIN_MAIL_MODE = 'local';
@@ -60,6 +63,10 @@ beforeAll(async () => {
 });
 
 afterAll(async () => {
+  for (const [key, value] of Object.entries(savedEnv)) {
+    if (value === undefined) delete process.env[key];
+    else process.env[key] = value;
+  }
   await close?.();
   if (dataDir) await rm(dataDir, { recursive: true, force: true });
 });
