@@ -30,8 +30,38 @@ export interface ColumnSetOptions {
   missingTokens?: readonly string[];
   /** Decimal separator of numbers. Default ".". A comma is only possible with a non-comma delimiter. */
   decimalSeparator?: '.' | ',';
-  /** Rows to reserve room for at the start (a hint, e.g. from the upload's size). */
-  expectedRows?: number;
+  /**
+   * Size of the whole upload in bytes when known (Content-Length). Columns then reserve
+   * room for the rows the file will probably hold, and re-estimate from the bytes per row
+   * seen so far when they must grow, instead of doubling.
+   */
+  expectedBytes?: number;
+}
+
+/**
+ * Shared by a file's columns: how much room to reserve. Without a size hint columns start
+ * at 1,024 rows and double; with one they start at bytes / (2 bytes x columns), the most
+ * rows the file can hold, and if that still proves short (the hint was wrong) grow to the
+ * row count that the bytes read so far project for the whole file, plus 5%.
+ */
+class CapacityPlan {
+  bytesRead = 0;
+  constructor(readonly expectedBytes: number | undefined) {}
+
+  initial(columnCount: number): number {
+    if (this.expectedBytes === undefined) return 1024;
+    // Every field takes at least 2 bytes (a character and a delimiter or line break), so
+    // this is an upper bound for the file's rows; untouched room is never resident.
+    return Math.max(1024, Math.min(Math.ceil(this.expectedBytes / (2 * Math.max(1, columnCount))), 50_000_000));
+  }
+
+  next(current: number, rows: number): number {
+    const doubled = current * 2;
+    if (this.expectedBytes === undefined || this.bytesRead <= 0) return doubled;
+    const projected = Math.ceil(((rows * this.expectedBytes) / this.bytesRead) * 1.05);
+    // At least 25% more each time, so that a poor estimate cannot cause many regrowths.
+    return Math.max(Math.ceil(current * 1.25), Math.min(projected, doubled));
+  }
 }
 
 /** A finished column of numbers. */
@@ -145,10 +175,17 @@ function decode(bytes: Uint8Array, start: number, end: number): string {
   return textDecoder.decode(bytes.subarray(start, end));
 }
 
-function growFloat64(old: Float64Array, capacity: number): Float64Array<ArrayBuffer> {
+// Column arrays are allocated zeroed and written row by row, so that the room reserved
+// beyond the rows actually read is never touched and costs address space, not memory.
+function growFloat64(old: Float64Array, used: number, capacity: number): Float64Array<ArrayBuffer> {
   const grown = new Float64Array(capacity);
-  grown.set(old);
-  grown.fill(NaN, old.length);
+  grown.set(old.subarray(0, used));
+  return grown;
+}
+
+function growCodes(old: Int32Array, used: number, capacity: number): Int32Array<ArrayBuffer> {
+  const grown = new Int32Array(capacity);
+  grown.set(old.subarray(0, used));
   return grown;
 }
 
@@ -261,6 +298,7 @@ class ColumnBuilder {
   private readonly maxLevels: number;
   private readonly missingTokens: readonly Uint8Array[];
   private capacity: number;
+  private readonly plan: CapacityPlan;
   rowCount = 0;
   missingCount = 0;
   private missing: Uint8Array;
@@ -276,9 +314,16 @@ class ColumnBuilder {
   private readonly overflowPatterns = emptyPatternCounts();
   private readonly patterns = emptyPatternCounts();
 
-  constructor(name: string, index: number, capacity: number, options: Required<Pick<ColumnSetOptions, 'maxLevels'>> & { decimalByte: number; missingTokens: readonly Uint8Array[] }) {
+  constructor(
+    name: string,
+    index: number,
+    plan: CapacityPlan,
+    capacity: number,
+    options: Required<Pick<ColumnSetOptions, 'maxLevels'>> & { decimalByte: number; missingTokens: readonly Uint8Array[] },
+  ) {
     this.name = name;
     this.index = index;
+    this.plan = plan;
     this.capacity = capacity;
     this.decimalByte = options.decimalByte;
     this.maxLevels = options.maxLevels;
@@ -287,11 +332,12 @@ class ColumnBuilder {
   }
 
   private grow(): void {
-    const capacity = this.capacity * 2;
+    const capacity = this.plan.next(this.capacity, this.rowCount);
     this.capacity = capacity;
     this.missing = growBytes(this.missing, (capacity + 7) >> 3);
-    if (this.values !== null) this.values = growFloat64(this.values, capacity);
-    if (this.codes !== null) this.codes = growInt32(this.codes, capacity, -1);
+    const used = this.rowCount - 1;
+    if (this.values !== null) this.values = growFloat64(this.values, used, capacity);
+    if (this.codes !== null) this.codes = growCodes(this.codes, used, capacity);
   }
 
   private isMissingToken(bytes: Uint8Array, start: number, end: number): boolean {
@@ -318,12 +364,18 @@ class ColumnBuilder {
     if (start === end || (end - start <= 4 && this.isMissingToken(bytes, start, end))) {
       this.missing[row >> 3] |= 1 << (row & 7);
       this.missingCount++;
+      if (this.values !== null) this.values[row] = NaN;
+      if (this.codes !== null) this.codes[row] = -1;
       return;
     }
     const value = parseNumber(bytes, start, end, this.decimalByte);
     if (value === value) {
-      if (this.values === null) this.values = new Float64Array(this.capacity).fill(NaN);
+      if (this.values === null) {
+        this.values = new Float64Array(this.capacity);
+        this.values.fill(NaN, 0, row);
+      }
       this.values[row] = value;
+      if (this.codes !== null) this.codes[row] = -1;
       this.numericCount++;
       if (parsedDecimals > this.maxDecimals || parsedDecimals < 0) {
         if (this.maxDecimals >= 0) this.maxDecimals = parsedDecimals;
@@ -339,7 +391,11 @@ class ColumnBuilder {
   }
 
   private acceptText(bytes: Uint8Array, start: number, end: number, row: number): void {
-    if (this.codes === null) this.codes = new Int32Array(this.capacity).fill(-1);
+    if (this.codes === null) {
+      this.codes = new Int32Array(this.capacity);
+      this.codes.fill(-1, 0, row);
+    }
+    if (this.values !== null) this.values[row] = NaN;
     const hash = hashBytes(bytes, start, end);
     let code = this.dictionary.find(bytes, start, end, hash);
     if (code < 0) {
@@ -466,6 +522,7 @@ export class ColumnSet {
   private builders: (ColumnBuilder | null)[] = [];
   private readonly options: ColumnSetOptions;
   private readonly drop: Set<string>;
+  private readonly plan: CapacityPlan;
   /** Names of the columns dropped while reading, in file order. */
   readonly droppedColumns: string[] = [];
 
@@ -475,13 +532,19 @@ export class ColumnSet {
   constructor(options: ColumnSetOptions = {}) {
     this.options = options;
     this.drop = new Set((options.dropColumns ?? []).map((name) => name.trim().toLowerCase()));
+    this.plan = new CapacityPlan(options.expectedBytes);
+  }
+
+  /** Tells the columns how far into the upload the reader is (for sizing their arrays). */
+  noteBytesRead(bytesRead: number): void {
+    this.plan.bytesRead = bytesRead;
   }
 
   /** Creates one builder per kept column; refuses a drop list naming a column the header lacks. */
   header(names: readonly string[]): void {
     const decimalByte = (this.options.decimalSeparator ?? '.') === ',' ? 44 : 46;
     const missingTokens = (this.options.missingTokens ?? ['NA', 'N/A', 'NULL']).map((t) => Buffer.from(t.trim()));
-    const capacity = Math.max(1024, Math.min(this.options.expectedRows ?? 0, 50_000_000));
+    const capacity = this.plan.initial(names.length);
     const maxLevels = this.options.maxLevels ?? DEFAULT_MAX_LEVELS;
     const matched = new Set<string>();
     this.builders = names.map((name, index) => {
@@ -491,7 +554,7 @@ export class ColumnSet {
         this.droppedColumns.push(name);
         return null;
       }
-      return new ColumnBuilder(name, index, capacity, { decimalByte, missingTokens, maxLevels });
+      return new ColumnBuilder(name, index, this.plan, capacity, { decimalByte, missingTokens, maxLevels });
     });
     const unmatched = (this.options.dropColumns ?? []).filter((name) => !matched.has(name.trim().toLowerCase()));
     if (unmatched.length > 0) {

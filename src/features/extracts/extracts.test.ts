@@ -184,6 +184,20 @@ describe('columns', () => {
     expect(result.profile[0].numeric?.mean).toBe(2.375);
   });
 
+  it('reads every row whatever the size hint says (growing columns keep earlier rows)', async () => {
+    // Rows i = 0..4999: x = i % 5 (mean 2), y text where i % 7 === 0 else a number, z missing every third row.
+    const csv = csvOf({ x: (i) => i % 5, y: (i) => (i % 7 === 0 ? 'none' : i % 3), z: (i) => (i % 3 === 0 ? '' : 1) }, 5000);
+    for (const expectedBytes of [undefined, 10, csv.length, 100 * csv.length]) {
+      const result = await ingestExtract(chunked(csv, 997), { expectedBytes });
+      const [x, y, z] = result.columns;
+      expect(x.kind === 'numeric' && [...x.values].every((v, i) => v === i % 5)).toBe(true);
+      expect(y.kind === 'text' && [...y.codes].every((code, i) => y.levels[code] === (i % 7 === 0 ? 'none' : String(i % 3)))).toBe(true);
+      // 0, 3, ..., 4998: 1,667 missing rows.
+      expect(z.missingCount).toBe(1667);
+      expect(z.kind === 'numeric' && [...z.values].every((v, i) => (i % 3 === 0 ? Number.isNaN(v) : v === 1))).toBe(true);
+    }
+  });
+
   it('reports progress by stage', async () => {
     const stages: string[] = [];
     const csv = csvOf({ x: (i) => i % 5, y: (i) => i % 2 }, 5000);

@@ -14,7 +14,7 @@ import type { ColumnProfile, ProcessingStage } from './extracts.schema';
 export { ExtractRefusalError } from './extractRefusal';
 
 /** Options of {@link ingestExtract}. */
-export interface IngestOptions extends Omit<ReadCsvOptions, 'onProgress'>, Omit<ColumnSetOptions, 'expectedRows'> {
+export interface IngestOptions extends Omit<ReadCsvOptions, 'onProgress'>, ColumnSetOptions {
   /** Size of the upload when known (Content-Length), for progress and to size the columns. */
   expectedBytes?: number;
   /** Screen thresholds; defaults in identifierScreen.ts. */
@@ -55,20 +55,18 @@ export async function ingestExtract(
   options: IngestOptions = {},
 ): Promise<IngestedExtract> {
   const { onProgress, expectedBytes } = options;
-  // About 40 bytes per row of a 12-column numeric extract; over-reserving is cheaper than regrowing.
-  const expectedRows = expectedBytes !== undefined ? Math.ceil(expectedBytes / 40) : undefined;
-  const sink = new ColumnSet({ ...options, expectedRows });
+  const sink = new ColumnSet(options);
   let lastPercent = -1;
   const read = await readCsv(source, sink, {
     ...options,
-    onProgress: onProgress
-      ? ({ bytesRead, recordsRead }) => {
-          const percent = expectedBytes ? Math.min(90, Math.floor((bytesRead / expectedBytes) * 90)) : 0;
-          if (percent === lastPercent) return;
-          lastPercent = percent;
-          onProgress({ stage: 'reading', percent, bytesRead, rows: recordsRead });
-        }
-      : undefined,
+    onProgress: ({ bytesRead, recordsRead }) => {
+      sink.noteBytesRead(bytesRead);
+      if (!onProgress) return;
+      const percent = expectedBytes ? Math.min(90, Math.floor((bytesRead / expectedBytes) * 90)) : 0;
+      if (percent === lastPercent) return;
+      lastPercent = percent;
+      onProgress({ stage: 'reading', percent, bytesRead, rows: recordsRead });
+    },
   });
   const progress = (stage: ProcessingStage, percent: number): void =>
     onProgress?.({ stage, percent, bytesRead: read.byteCount, rows: read.recordCount });
