@@ -26,12 +26,14 @@ describe('identifier screen on uploads', () => {
   it('refuses a column of 5-digit ZIP codes, leading zeros included', async () => {
     const zips = ['02139', '10001', '60614', '94110', '00501'];
     const result = await ingest(csvOf({ outcome: (i) => i % 2, region: (i) => zips[i % 5] }, 30));
+    // Every one of the 30 values is five digits (two of the five codes start with 0).
     expect(result.findings.map((f) => [f.column, f.rule, f.matchedCount])).toEqual([['region', 'postal-code-pattern', 30]]);
     expect(result.profile[1].inferredType).toBe('identifier-like');
   });
 
   it('refuses a column of e-mail addresses', async () => {
     const result = await ingest(csvOf({ contact: (i) => `clinician${i % 7}@example.org`, outcome: (i) => i % 2 }, 21));
+    // All 21 rows hold an address (7 distinct, so the near-unique rule stays quiet).
     expect(result.findings.map((f) => [f.column, f.rule, f.matchedCount, f.examinedCount])).toEqual([['contact', 'email-pattern', 21, 21]]);
     expect(result.findings[0].message).not.toMatch(/clinician/);
   });
@@ -171,6 +173,7 @@ describe('columns', () => {
 
   it('stops learning levels at the cap and refuses the column', async () => {
     const csv = csvOf({ note: (i) => `free text ${i}`, outcome: (i) => i % 2 }, 30);
+    // 30 distinct values against a cap of 10: the first 10 are kept, the rest are not.
     const result = await ingest(csv, { maxLevels: 10 });
     const note = result.columns[0];
     expect(note.kind === 'text' && note.levelsOverflowed).toBe(true);
@@ -180,6 +183,7 @@ describe('columns', () => {
   });
 
   it('reads decimal commas when asked to (semicolon files)', async () => {
+    // (3.5 + 1.25) / 2 = 2.375.
     const result = await ingest('los;band\n3,5;a\n1,25;b\n', { decimalSeparator: ',' });
     expect(result.profile[0].numeric?.mean).toBe(2.375);
   });

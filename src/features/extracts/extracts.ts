@@ -41,19 +41,28 @@ export interface IngestedExtract {
   encoded: EncodedColumn[];
 }
 
+/** The columns of an upload that has been read to the end. */
+export interface ReadExtract {
+  read: CsvReadSummary;
+  columns: ColumnData[];
+  droppedColumns: string[];
+}
+
+/** What the screen and the profile say about the columns. */
+export interface ReviewedExtract {
+  profile: ColumnProfile[];
+  findings: Finding[];
+  refusals: ColumnRefusal[];
+  refused: boolean;
+}
+
+type ChunkSource = AsyncIterable<Uint8Array | string> | Iterable<Uint8Array | string>;
+
 /**
- * Reads a CSV upload from `source` (a Node Readable, a web ReadableStream or any async
- * iterable of byte chunks), screens and profiles every column and encodes the columns.
- *
- * Throws {@link ExtractRefusalError} when the file itself is unacceptable (size, encoding,
- * shape); returns with `refused: true` and the findings when the identifier screen flags
- * columns. Memory: the columns (8 bytes per numeric value, 4 per text value, 1 bit per
- * missing flag) plus one chunk; the file is never held.
+ * Stage 1: streams the upload through the reader into columns (0-90% of the progress).
+ * Throws {@link ExtractRefusalError} when the file itself is unacceptable.
  */
-export async function ingestExtract(
-  source: AsyncIterable<Uint8Array | string> | Iterable<Uint8Array | string>,
-  options: IngestOptions = {},
-): Promise<IngestedExtract> {
+export async function readExtractColumns(source: ChunkSource, options: IngestOptions = {}): Promise<ReadExtract> {
   const { onProgress, expectedBytes } = options;
   const sink = new ColumnSet(options);
   let lastPercent = -1;
@@ -68,12 +77,12 @@ export async function ingestExtract(
       onProgress({ stage: 'reading', percent, bytesRead, rows: recordsRead });
     },
   });
-  const progress = (stage: ProcessingStage, percent: number): void =>
-    onProgress?.({ stage, percent, bytesRead: read.byteCount, rows: read.recordCount });
+  return { read, columns: sink.finish(), droppedColumns: sink.droppedColumns.slice() };
+}
 
-  progress('screening', 90);
-  const columns = sink.finish();
-  const screenOptions = { ...DEFAULT_SCREEN_OPTIONS, ...options.screen };
+/** Stage 2: the identifier screen and the profile of every column (synchronous, no I/O). */
+export function reviewExtractColumns(columns: readonly ColumnData[], screen: Partial<ScreenOptions> = {}): ReviewedExtract {
+  const screenOptions = { ...DEFAULT_SCREEN_OPTIONS, ...screen };
   const findings: Finding[] = [];
   const profile: ColumnProfile[] = [];
   for (const column of columns) {
@@ -96,18 +105,30 @@ export async function ingestExtract(
     findings.push(...columnFindings);
     profile.push(buildColumnProfile(column, summary, columnFindings));
   }
+  return { profile, findings, refusals: refusalsByColumn(findings), refused: findings.length > 0 };
+}
+
+/**
+ * Reads a CSV upload from `source` (a Node Readable, a web ReadableStream or any async
+ * iterable of byte chunks), screens and profiles every column and encodes the columns:
+ * {@link readExtractColumns}, {@link reviewExtractColumns} and {@link encodeColumn} in turn.
+ *
+ * Throws {@link ExtractRefusalError} when the file itself is unacceptable (size, encoding,
+ * shape); returns with `refused: true` and the findings when the identifier screen flags
+ * columns. Memory: the columns (8 bytes per numeric value, 4 per text value, 1 bit per
+ * missing flag) plus one chunk; the file is never held.
+ */
+export async function ingestExtract(source: ChunkSource, options: IngestOptions = {}): Promise<IngestedExtract> {
+  const { read, columns, droppedColumns } = await readExtractColumns(source, options);
+  const progress = (stage: ProcessingStage, percent: number): void =>
+    options.onProgress?.({ stage, percent, bytesRead: read.byteCount, rows: read.recordCount });
+  progress('screening', 90);
+  const review = reviewExtractColumns(columns, options.screen);
   progress('profiling', 95);
-  const refused = findings.length > 0;
-  const encoded = !refused || options.encodeWhenRefused ? columns.filter((c) => c.kind === 'numeric' || !c.levelsOverflowed).map(encodeColumn) : [];
+  const encoded =
+    !review.refused || options.encodeWhenRefused
+      ? columns.filter((c) => c.kind === 'numeric' || !c.levelsOverflowed).map(encodeColumn)
+      : [];
   progress('storing', 96);
-  return {
-    read,
-    columns,
-    droppedColumns: sink.droppedColumns.slice(),
-    profile,
-    findings,
-    refusals: refusalsByColumn(findings),
-    refused,
-    encoded,
-  };
+  return { read, columns, droppedColumns, ...review, encoded };
 }
