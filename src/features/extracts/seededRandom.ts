@@ -1,74 +1,39 @@
 /**
  * Seeded pseudo-random numbers for generated demo and benchmark extracts.
  *
- * Generator: xoshiro128** 1.1 (D. Blackman and S. Vigna, "Scrambled linear pseudorandom
- * number generators", ACM Transactions on Mathematical Software 2021;47(4):36; reference C
- * code https://prng.di.unimi.it/xoshiro128starstar.c, public domain). Its four 32-bit
- * state words are filled from the seed with the 32-bit finaliser of MurmurHash3
- * (A. Appleby, public domain) applied to a Weyl sequence, so that nearby seeds give
- * unrelated streams and the state is never all zero.
+ * The words come from the engine's generator, xoshiro128** 1.1 (Blackman and Vigna,
+ * "Scrambled linear pseudorandom number generators", ACM Transactions on Mathematical
+ * Software 2021;47(4):36) seeded through SplitMix64 (src/engine/random/xoshiro128StarStar.ts),
+ * so demo data and engine runs share one published, reproducible source. This module adds
+ * the sampling methods the generators need.
  *
- * Same seed, same numbers, on every platform (only 32-bit integer arithmetic and exact
- * conversions to doubles are involved, apart from the normal deviates' Math.log/sqrt/cos).
+ * Same seed, same numbers, on every platform (integer arithmetic and exact conversions to
+ * doubles, apart from the normal and Poisson deviates' Math.log/sqrt/cos/exp).
  */
-
-function rotl(x: number, k: number): number {
-  return (x << k) | (x >>> (32 - k));
-}
-
-function fmix32(h: number): number {
-  h ^= h >>> 16;
-  h = Math.imul(h, 0x85ebca6b);
-  h ^= h >>> 13;
-  h = Math.imul(h, 0xc2b2ae35);
-  h ^= h >>> 16;
-  return h >>> 0;
-}
+import { Xoshiro128StarStar } from '../../engine/random/xoshiro128StarStar';
 
 /** A seeded stream of pseudo-random numbers. */
 export class SeededRandom {
-  private s0: number;
-  private s1: number;
-  private s2: number;
-  private s3: number;
+  private readonly generator: Xoshiro128StarStar;
   private spareNormal: number | null = null;
 
   /**
-   * @param seed any integer (taken modulo 2^32)
-   * @param state optional exact initial state (four 32-bit words), for reproducing
-   *   published reference outputs; not all zero
+   * @param seed integer in [0, 2^32)
+   * @param stream independent stream of the same seed, integer in [0, 2^32); default 0
+   * @throws RangeError when either is out of range
    */
-  constructor(seed: number, state?: readonly [number, number, number, number]) {
-    if (state) {
-      [this.s0, this.s1, this.s2, this.s3] = state.map((w) => w >>> 0) as [number, number, number, number];
-    } else {
-      const base = seed >>> 0;
-      this.s0 = fmix32((base + 0x9e3779b9) >>> 0);
-      this.s1 = fmix32((base + 2 * 0x9e3779b9) >>> 0);
-      this.s2 = fmix32((base + 3 * 0x9e3779b9) >>> 0);
-      this.s3 = fmix32((base + 4 * 0x9e3779b9) >>> 0);
-    }
-    if ((this.s0 | this.s1 | this.s2 | this.s3) === 0) this.s0 = 1;
+  constructor(seed: number, stream = 0) {
+    this.generator = Xoshiro128StarStar.forStream(seed, stream);
   }
 
   /** Next unsigned 32-bit integer (the generator's raw output). */
   nextUint32(): number {
-    const result = Math.imul(rotl(Math.imul(this.s1, 5), 7), 9) >>> 0;
-    const t = this.s1 << 9;
-    this.s2 ^= this.s0;
-    this.s3 ^= this.s1;
-    this.s1 ^= this.s2;
-    this.s0 ^= this.s3;
-    this.s2 ^= t;
-    this.s3 = rotl(this.s3, 11);
-    return result;
+    return this.generator.nextUint32();
   }
 
   /** Uniform double in [0, 1) with 53 random bits. */
   uniform(): number {
-    const high = this.nextUint32() >>> 5; // 27 bits
-    const low = this.nextUint32() >>> 6; // 26 bits
-    return (high * 67108864 + low) / 9007199254740992;
+    return this.generator.nextDouble();
   }
 
   /** Uniform integer in [0, n). Rejection sampling, so every value is equally likely. */
