@@ -93,7 +93,8 @@ function meanOf(values: Float64Array): number {
  * from the start b0 = log ȳ, other coefficients 0) with the documented fallback: when the
  * log-binomial fit cannot find valid fitted risks, does not converge in 25 iterations, or
  * ends on the boundary (a fitted risk above 1 − 1e-6), the model is refitted as modified
- * Poisson and a LOG_BINOMIAL_FALLBACK warning says so.
+ * Poisson and a LOG_BINOMIAL_FALLBACK warning says so (also when its working weights become
+ * numerically singular part-way, as risks approach 1).
  *
  * @throws SingularDesignError naming the aliased term; FitFailedError when no fit is possible.
  */
@@ -136,8 +137,11 @@ export function fitModel(design: DesignMatrix, y: Float64Array, model: ModelFami
         else if (fit.maxFittedMean > 1 - 1e-6) reason = 'its estimate lies on the boundary (a fitted risk of 1)';
         else return fromGlm('log-binomial', 'log-binomial', design, y, fit, warnings);
       } catch (error) {
-        if (!(error instanceof InvalidStepError)) throw error;
-        reason = 'no valid fitted risks could be found';
+        if (error instanceof InvalidStepError) reason = 'no valid fitted risks could be found';
+        // Singular weights part-way (risks running to 1) are a failure of the fit, not of the
+        // design: a truly singular design fails again, and is reported, in the fallback fit.
+        else if (error instanceof NotPositiveDefiniteError) reason = 'its iterations became numerically singular';
+        else throw error;
       }
       warnings.push({
         code: 'LOG_BINOMIAL_FALLBACK',

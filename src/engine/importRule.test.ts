@@ -1,0 +1,53 @@
+import { readdirSync, readFileSync, statSync } from 'node:fs';
+import { join, relative } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { describe, expect, it } from 'vitest';
+
+/**
+ * The engine core imports no framework: outside boundary/ only relative modules,
+ * ml-matrix, jstat and (for the bootstrap's worker threads, in bootstrap/ only) Node's
+ * worker_threads, os, module, path and url. Test files may use vitest and node: modules.
+ */
+const root = fileURLToPath(new URL('.', import.meta.url));
+const ALLOWED_PACKAGES = new Set(['ml-matrix', 'jstat']);
+const THREAD_BUILTINS = new Set(['node:worker_threads', 'node:os', 'node:module', 'node:path', 'node:url']);
+
+function sourceFiles(folder: string): string[] {
+  return readdirSync(folder).flatMap((name) => {
+    const path = join(folder, name);
+    if (statSync(path).isDirectory()) return name === 'boundary' ? [] : sourceFiles(path);
+    return /\.(ts|mts|mjs|js)$/.test(name) && !name.endsWith('.d.ts') ? [path] : [];
+  });
+}
+
+function importsOf(text: string): string[] {
+  const found: string[] = [];
+  const pattern = /(?:^|\s)(?:import|export)\s[^'"]*?from\s+['"]([^'"]+)['"]|import\s*\(\s*['"]([^'"]+)['"]\s*\)|^\s*import\s+['"]([^'"]+)['"]|require\(\s*['"]([^'"]+)['"]\s*\)/gm;
+  for (const match of text.matchAll(pattern)) found.push(match[1] ?? match[2] ?? match[3] ?? match[4]);
+  return found;
+}
+
+describe('engine import rule', () => {
+  const files = sourceFiles(root);
+  it('finds the engine sources', () => {
+    expect(files.length).toBeGreaterThan(30);
+  });
+  it('imports nothing outside its allowance', () => {
+    const offences: string[] = [];
+    for (const file of files) {
+      const name = relative(root, file);
+      const test = name.endsWith('.test.ts');
+      for (const specifier of importsOf(readFileSync(file, 'utf8'))) {
+        if (specifier.startsWith('.')) continue;
+        if (ALLOWED_PACKAGES.has(specifier)) continue;
+        if (name.startsWith('bootstrap/') && THREAD_BUILTINS.has(specifier)) continue;
+        if (test && (specifier === 'vitest' || specifier.startsWith('node:'))) continue;
+        offences.push(`${name} imports ${specifier}`);
+      }
+    }
+    expect(offences).toEqual([]);
+  });
+  it('detects a forbidden import (the scanner itself works)', () => {
+    expect(importsOf("import { z } from 'zod';\nimport x from \"astro:content\";")).toEqual(['zod', 'astro:content']);
+  });
+});
