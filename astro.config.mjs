@@ -4,12 +4,21 @@ import node from '@astrojs/node';
 import react from '@astrojs/react';
 import tailwindcss from '@tailwindcss/vite';
 
+// Host names the server believes in its Host header (and so in url.origin, which the
+// origin checks compare against). Loopback always; the public host when configured at
+// build time through CROSSGRAIN_PUBLIC_URL.
+const allowedDomains = [{ hostname: '127.0.0.1' }, { hostname: 'localhost' }];
+if (process.env.CROSSGRAIN_PUBLIC_URL) {
+  const publicUrl = new URL(process.env.CROSSGRAIN_PUBLIC_URL);
+  allowedDomains.push({ hostname: publicUrl.hostname, protocol: publicUrl.protocol.replace(':', '') });
+}
+
 export default defineConfig({
   output: 'server',
   adapter: node({ mode: 'standalone' }),
   integrations: [react()],
   // Astro refuses cross-site form posts and state-changing requests whose Origin differs.
-  security: { checkOrigin: true },
+  security: { checkOrigin: true, allowedDomains },
   server: { host: '127.0.0.1', port: 4321 },
   // Stylesheets are served as files so the Content-Security-Policy needs no inline styles
   // for our own CSS.

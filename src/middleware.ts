@@ -10,7 +10,7 @@ import { resolveSession } from './lib/server/session';
 /** Gives each request an id and a CSP nonce, and logs its outcome (no bodies, no cookies). */
 const requestContext = defineMiddleware(async (context, next) => {
   context.locals.requestId = randomUUID();
-  context.locals.cspNonce = randomBytes(16).toString('base64');
+  context.locals.cspNonce = randomBytes(16).toString('hex');
   const started = performance.now();
   const response = await next();
   logger.info(

@@ -133,7 +133,11 @@ function ensureRolesAndDatabase(bin, settings) {
     GRANT USAGE ON SCHEMA public TO ${appUser};`, database);
 }
 
-/** Creates the cluster if needed and starts it; a second call while it runs is a no-op. */
+/**
+ * Creates the cluster if needed and starts it; a second call while it runs is a no-op.
+ * Returns the settings and whether this call started the server (callers that clean up
+ * must only stop what they started).
+ */
 export function startCluster(overrides = {}) {
   const settings = clusterSettings(overrides);
   const bin = postgresBinaries();
@@ -148,7 +152,8 @@ export function startCluster(overrides = {}) {
     ]);
     if (init.status !== 0) throw new Error(`initdb failed: ${init.stderr}`);
   }
-  if (isRunning(bin, settings)) {
+  const alreadyRunning = isRunning(bin, settings);
+  if (alreadyRunning) {
     step(`PostgreSQL already running on 127.0.0.1:${settings.port}`);
   } else {
     clearStalePid(settings);
@@ -164,7 +169,7 @@ export function startCluster(overrides = {}) {
     }
   }
   ensureRolesAndDatabase(bin, settings);
-  return settings;
+  return { ...settings, startedHere: !alreadyRunning };
 }
 
 /** Stops the cluster if it runs; a no-op otherwise. */

@@ -1,16 +1,19 @@
 /**
- * The browser-test harness: the built server (dist/) on the test port against the
- * throwaway cluster, and Debian's Chromium driven by playwright-core. Each test file
- * starts one server and one browser and closes both when it ends.
+ * The test harness for HTTP and browser tests: the built server (dist/) on the test port
+ * against the throwaway cluster, the local mail server on the test SMTP port, and Debian's
+ * Chromium driven by playwright-core. Each test file starts what it needs and closes it.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import { mkdirSync } from 'node:fs';
 import path from 'node:path';
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
+import { startMailServer, type MailServerHandle } from '../../src/lib/server/mailServer';
 
 const root = path.resolve(import.meta.dirname, '../..');
 export const appUrl = process.env.CROSSGRAIN_TEST_APP_URL ?? 'http://127.0.0.1:4329';
-const screenshotDir = path.join(process.env.CROSSGRAIN_ARTIFACTS_DIR ?? path.join(root, '.test-artifacts'), 'screenshots');
+const artifacts = process.env.CROSSGRAIN_ARTIFACTS_DIR ?? path.join(root, '.test-artifacts');
+const screenshotDir = path.join(artifacts, 'screenshots');
+export const mailDir = path.join(process.env.CROSSGRAIN_DATA_DIR ?? path.join(root, '.data', 'test'), 'mail');
 
 /** Flags for a root, offline, headless Chromium (see the machine notes in stack.md). */
 const CHROMIUM_FLAGS = [
@@ -18,14 +21,6 @@ const CHROMIUM_FLAGS = [
   '--disable-background-networking', '--disable-component-update', '--disable-sync',
   '--disable-dev-shm-usage',
 ];
-
-export interface Harness {
-  browser: Browser;
-  server: ChildProcess;
-  /** A fresh browser context (its own cookies) with console errors collected. */
-  newPage: () => Promise<{ page: Page; context: BrowserContext; consoleErrors: string[] }>;
-  close: () => Promise<void>;
-}
 
 async function waitForHealth(deadlineMs: number): Promise<void> {
   const until = Date.now() + deadlineMs;
@@ -43,9 +38,16 @@ async function waitForHealth(deadlineMs: number): Promise<void> {
   throw new Error(`The test server did not become healthy: ${String(lastError)}`);
 }
 
-/** Starts the built server and a headless browser. */
-export async function startHarness(): Promise<Harness> {
+export interface ServerHandle {
+  server: ChildProcess;
+  mail: MailServerHandle;
+  close: () => Promise<void>;
+}
+
+/** Starts the built server and the local mail server. */
+export async function startServer(): Promise<ServerHandle> {
   const url = new URL(appUrl);
+  const mail = await startMailServer({ port: Number(process.env.CROSSGRAIN_SMTP_PORT ?? 2529), dir: mailDir });
   const server = spawn(process.execPath, [path.join(root, 'dist/server/entry.mjs')], {
     cwd: root,
     env: { ...process.env, HOST: url.hostname, PORT: url.port },
@@ -59,12 +61,34 @@ export async function startHarness(): Promise<Harness> {
     await waitForHealth(20_000);
   } catch (error) {
     server.kill('SIGKILL');
+    await mail.close();
     throw new Error(`${String(error)}\n${serverErrors}`);
   }
+  return {
+    server,
+    mail,
+    close: async () => {
+      const exited = new Promise((resolve) => server.once('exit', resolve));
+      server.kill('SIGTERM');
+      await exited;
+      await mail.close();
+    },
+  };
+}
+
+export interface Harness extends ServerHandle {
+  browser: Browser;
+  /** A fresh browser context (its own cookies) with console errors collected. */
+  newPage: () => Promise<{ page: Page; context: BrowserContext; consoleErrors: string[] }>;
+}
+
+/** Starts the servers and a headless browser. */
+export async function startHarness(): Promise<Harness> {
+  const servers = await startServer();
   const browser = await chromium.launch({ executablePath: '/usr/bin/chromium', args: CHROMIUM_FLAGS });
   return {
+    ...servers,
     browser,
-    server,
     newPage: async () => {
       const context = await browser.newContext({ baseURL: appUrl, viewport: { width: 1360, height: 900 } });
       const page = await context.newPage();
@@ -77,7 +101,7 @@ export async function startHarness(): Promise<Harness> {
     },
     close: async () => {
       await browser.close();
-      server.kill('SIGTERM');
+      await servers.close();
     },
   };
 }

@@ -10,7 +10,9 @@ import { env } from '../../src/lib/server/env';
 import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
 
 /** Tables with no initiative data, read before an identity exists (documented in SECURITY.md). */
-const TABLES_WITHOUT_INITIATIVE_DATA = new Set(['users', 'sessions', 'schema_migrations']);
+const TABLES_WITHOUT_INITIATIVE_DATA = new Set([
+  'users', 'sessions', 'schema_migrations', 'auth_tokens', 'signin_attempts', 'api_tokens',
+]);
 
 afterAll(async () => {
   await closeOwnerDb();

@@ -12,8 +12,11 @@ export default function setup(): () => void {
   Object.assign(process.env, testEnvironment());
   if (!ownedByUs) return () => {};
   const cluster = { port: testSettings.dbPort, dataRoot: testSettings.dataRoot };
-  startCluster(cluster);
+  const { startedHere } = startCluster(cluster);
   const migrate = spawnSync('npx', ['tsx', 'db/migrate.ts', 'up'], { cwd: testSettings.root, env: process.env, stdio: 'inherit' });
   if (migrate.status !== 0) throw new Error('Migrating the test database failed');
-  return () => destroyCluster(cluster);
+  // Only remove a cluster this run started: another run may be using one already there.
+  return () => {
+    if (startedHere) destroyCluster(cluster);
+  };
 }

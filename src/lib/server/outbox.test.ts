@@ -121,7 +121,7 @@ describe('the HTML preview', () => {
     const { addNonceToScripts } = await import('./securityHeaders');
     const frame = outbox.previewFrame(hostile, { title: 'Preview "x" <b>', className: 'w-full', testId: 'message-html' });
     // The middleware stamps a nonce onto every <script it finds in a page; none may be found here.
-    expect(addNonceToScripts(frame, 'abc')).toBe(frame);
+    expect(addNonceToScripts(frame, '0123456789abcdef0123456789abcdef')).toBe(frame);
     expect(frame.match(/</g)).toHaveLength(2);
     expect(frame.startsWith('<iframe sandbox="" ')).toBe(true);
     expect(frame.endsWith('></iframe>')).toBe(true);

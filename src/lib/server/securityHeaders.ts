@@ -34,7 +34,16 @@ export function securityHeaders(nonce: string): Record<string, string> {
   return headers;
 }
 
-/** Adds the nonce to every <script> tag of an HTML page that lacks one. */
+/**
+ * Adds the nonce to every <script> tag of a rendered page.
+ *
+ * The nonce is hexadecimal and inserted WITHOUT quotes. That matters: Astro escapes `<`
+ * in text but not inside attribute values, so user text in an attribute may contain
+ * `<script`. An unquoted hex run stamped into such a value stays inside the attribute,
+ * whereas a quoted one would close it early and let a later `<script>` in the same
+ * value run with a valid nonce.
+ */
 export function addNonceToScripts(html: string, nonce: string): string {
-  return html.replace(/<script(?![^>]*\snonce=)(?=[\s>])/g, `<script nonce="${nonce}"`);
+  if (!/^[0-9a-f]{32,}$/.test(nonce)) throw new Error('CSP nonces must be lowercase hexadecimal');
+  return html.replace(/<script(?=[\s>])/g, `<script nonce=${nonce}`);
 }

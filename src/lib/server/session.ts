@@ -143,7 +143,8 @@ export async function startSession(
     { sessionId },
   );
   const cookie = lucia.createSessionCookie(token);
-  cookies.set(cookie.name, cookie.value, cookie.attributes);
+  // The cookie lives no longer than the session's absolute lifetime.
+  cookies.set(cookie.name, cookie.value, { ...cookie.attributes, maxAge: Math.floor(absoluteMs() / 1000) });
   return { sessionId };
 }
 

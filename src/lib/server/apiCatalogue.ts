@@ -1,0 +1,85 @@
+/**
+ * The catalogue of every JSON endpoint, from which /api/openapi.json is generated. Each
+ * entry points at the same zod schemas that the endpoint validates with, so the document
+ * cannot describe a body the server would not accept. A test walks src/pages/api and
+ * fails when a route or method is missing here, or listed here but absent.
+ */
+import { z, type ZodType } from 'zod';
+import {
+  CreateInitiativeBody, InitiativeItem, InviteUserBody, SetMembershipBody, UpdateInitiativeBody, UpdateUserBody, UserListItem,
+} from '../../features/admin/admin.schema';
+import { ApiTokenView, CreateApiTokenBody, CreatedApiToken, ForgotPasswordBody, MeResponse, SetPasswordBody, SignInBody } from '../../features/auth/auth.schema';
+import { OutboxQuery } from './outbox';
+
+export type Auth = 'none' | 'session' | 'admin';
+
+export interface Operation {
+  method: 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
+  /** OpenAPI path with {params}. */
+  path: string;
+  tag: string;
+  summary: string;
+  description?: string;
+  auth: Auth;
+  query?: ZodType;
+  body?: ZodType;
+  /** The body content type when it is not JSON (uploads). */
+  bodyType?: string;
+  response?: ZodType;
+  status: number;
+}
+
+const HealthResponse = z
+  .object({ status: z.enum(['ok', 'degraded']), version: z.string(), database: z.enum(['up', 'down']) })
+  .meta({ id: 'Health' });
+
+const ChainReport = z
+  .object({
+    checked: z.number().int(),
+    intact: z.boolean(),
+    headPosition: z.number().int().nullable(),
+    headHash: z.string().nullable(),
+    broken: z.object({ position: z.number().int(), eventId: z.number().int(), reason: z.string() }).nullable(),
+  })
+  .meta({ id: 'AuditChainReport' });
+
+const InvitedResponse = z.object({ userId: z.uuid(), mailed: z.boolean() }).meta({ id: 'Invited' });
+const Member = z
+  .object({
+    membershipId: z.uuid(), userId: z.uuid(), email: z.string(), displayName: z.string(), status: z.string(),
+    role: z.enum(['analyst', 'clinician', 'auditor']),
+  })
+  .meta({ id: 'Member' });
+
+export const OPERATIONS: Operation[] = [
+  { method: 'GET', path: '/api/health', tag: 'Service', summary: 'Version and database state', auth: 'none', response: HealthResponse, status: 200 },
+
+  { method: 'POST', path: '/api/auth/sign-in', tag: 'Sessions', summary: 'Sign in and receive the session cookie', auth: 'none', body: SignInBody, status: 204,
+    description: 'Refusals answer 401 with code `sign-in-refused` whatever the reason; past the throttling limit, 429 with Retry-After.' },
+  { method: 'POST', path: '/api/auth/sign-out', tag: 'Sessions', summary: 'End the current session', auth: 'none', status: 204 },
+  { method: 'POST', path: '/api/auth/forgot-password', tag: 'Sessions', summary: 'E-mail a password-reset link (always 202)', auth: 'none', body: ForgotPasswordBody, status: 202 },
+  { method: 'POST', path: '/api/auth/reset-password', tag: 'Sessions', summary: 'Set a new password from a reset link', auth: 'none', body: SetPasswordBody, status: 204 },
+  { method: 'POST', path: '/api/auth/accept-invitation', tag: 'Sessions', summary: 'Set a password from an invitation and sign in', auth: 'none', body: SetPasswordBody, status: 204 },
+
+  { method: 'GET', path: '/api/me', tag: 'Me', summary: 'The signed-in user and their memberships', auth: 'session', response: MeResponse, status: 200 },
+  { method: 'GET', path: '/api/me/tokens', tag: 'Me', summary: 'Your personal API tokens (never their secrets)', auth: 'session', response: z.array(ApiTokenView), status: 200 },
+  { method: 'POST', path: '/api/me/tokens', tag: 'Me', summary: 'Create a personal API token; the secret is returned once', auth: 'session', body: CreateApiTokenBody, response: CreatedApiToken, status: 201,
+    description: 'Needs a signed-in session: a token cannot create further tokens.' },
+  { method: 'DELETE', path: '/api/me/tokens/{id}', tag: 'Me', summary: 'Revoke one of your tokens', auth: 'session', status: 204 },
+
+  { method: 'GET', path: '/api/admin/users', tag: 'Administration', summary: 'Every account with its memberships', auth: 'admin', response: z.array(UserListItem), status: 200 },
+  { method: 'POST', path: '/api/admin/users', tag: 'Administration', summary: 'Invite a person by e-mail', auth: 'admin', body: InviteUserBody, response: InvitedResponse, status: 201 },
+  { method: 'PATCH', path: '/api/admin/users/{id}', tag: 'Administration', summary: 'Deactivate or reactivate an account', auth: 'admin', body: UpdateUserBody, status: 204,
+    description: 'Deactivation ends every session of the account at once.' },
+  { method: 'GET', path: '/api/admin/initiatives', tag: 'Administration', summary: 'Every initiative', auth: 'admin', response: z.array(InitiativeItem), status: 200 },
+  { method: 'POST', path: '/api/admin/initiatives', tag: 'Administration', summary: 'Create an initiative', auth: 'admin', body: CreateInitiativeBody, response: InitiativeItem, status: 201 },
+  { method: 'PATCH', path: '/api/admin/initiatives/{id}', tag: 'Administration', summary: 'Change the description or the row-preview setting', auth: 'admin', body: UpdateInitiativeBody, status: 204 },
+  { method: 'GET', path: '/api/admin/initiatives/{id}/members', tag: 'Administration', summary: 'The members of an initiative', auth: 'admin', response: z.array(Member), status: 200 },
+  { method: 'PUT', path: '/api/admin/initiatives/{id}/members', tag: 'Administration', summary: 'Add a person with a role, or change their role', auth: 'admin', body: SetMembershipBody, status: 204 },
+  { method: 'DELETE', path: '/api/admin/initiatives/{id}/members/{userId}', tag: 'Administration', summary: 'Remove a person from an initiative', auth: 'admin', status: 204 },
+  { method: 'GET', path: '/api/admin/outbox', tag: 'Administration', summary: 'Messages kept by the local mail server (local mail mode only)', auth: 'admin', query: OutboxQuery, status: 200 },
+  { method: 'GET', path: '/api/admin/outbox/{id}', tag: 'Administration', summary: 'One message as the recipient sees it (local mail mode only)', auth: 'admin', status: 200 },
+
+  { method: 'POST', path: '/api/audit/verify', tag: 'Audit', summary: 'Recompute the hash chain and report the first broken link', auth: 'session', response: ChainReport, status: 200,
+    description: 'Auditors and administrators. The check itself is an audit event.' },
+];

@@ -1,0 +1,179 @@
+/**
+ * Sessions over HTTP against the built server: token rotation, idle and absolute expiry
+ * (401 on the API, a redirect on pages), sign-out, deactivation, personal API tokens and
+ * the cross-site request guard (OWASP ASVS 5.0 session management, shared design
+ * standards, application security).
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { QueryTypes } from 'sequelize';
+import { hashPassword } from '../../src/lib/server/passwords';
+import { hashToken, SESSION_COOKIE } from '../../src/lib/server/session';
+import { startServer, type ServerHandle } from '../browser/harness';
+import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
+import { ApiClient } from '../support/http';
+
+const password = 'lantern-estuary-heron';
+let server: ServerHandle;
+let passwordHash: string;
+
+beforeAll(async () => {
+  server = await startServer();
+  passwordHash = await hashPassword(password);
+});
+
+afterAll(async () => {
+  await server?.close();
+  await closeOwnerDb();
+});
+
+async function signedIn(options: { isAdmin?: boolean } = {}) {
+  const user = await makeUser({ passwordHash, isAdmin: options.isAdmin });
+  const client = new ApiClient();
+  const response = await client.signIn(user.email, password);
+  expect(response.status).toBe(204);
+  return { user, client };
+}
+
+/** Moves the session's clock back, as if time had passed. */
+async function ageSession(token: string, column: 'last_seen_at' | 'created_at', minutes: number) {
+  await ownerDb().query(`UPDATE sessions SET ${column} = now() - make_interval(mins => :minutes) WHERE id = :id`, {
+    replacements: { minutes, id: hashToken(token) },
+  });
+}
+
+describe('signing in over HTTP', () => {
+  it('sets an HttpOnly, SameSite=Lax cookie and answers /api/me with the memberships', async () => {
+    const user = await makeUser({ passwordHash });
+    const initiative = await makeInitiative('Bay ward');
+    await addMember(initiative.id, user.id, 'analyst');
+    const client = new ApiClient();
+    const response = await client.signIn(user.email, password);
+    expect(response.status).toBe(204);
+    const cookie = response.headers.getSetCookie().find((c) => c.startsWith(`${SESSION_COOKIE}=`)) ?? '';
+    expect(cookie).toMatch(/HttpOnly/i);
+    expect(cookie).toMatch(/SameSite=Lax/i);
+    const me = await client.request('GET', '/api/me');
+    expect(me.status).toBe(200);
+    expect(await me.json()).toMatchObject({
+      id: user.id,
+      memberships: [{ initiativeId: initiative.id, initiativeName: 'Bay ward', role: 'analyst' }],
+    });
+  });
+
+  it('replaces the session token at sign-in, whatever the browser held', async () => {
+    const { user, client } = await signedIn();
+    const before = client.cookie(SESSION_COOKIE);
+    expect(before).toBeTruthy();
+    await client.signIn(user.email, password);
+    const after = client.cookie(SESSION_COOKIE);
+    expect(after).toBeTruthy();
+    expect(after).not.toBe(before);
+  });
+
+  it('refuses a bad body with field messages', async () => {
+    const response = await new ApiClient().request('POST', '/api/auth/sign-in', { email: 'not-an-address' });
+    expect(response.status).toBe(400);
+    const body = await response.json();
+    expect(body.error.code).toBe('validation-failed');
+    expect(body.error.details.map((d: { path: string }) => d.path).sort()).toEqual(['email', 'password']);
+  });
+});
+
+describe('expiry', () => {
+  it('ends an idle session: 401 on the API and a redirect on pages', async () => {
+    const { client } = await signedIn();
+    await ageSession(client.cookie(SESSION_COOKIE)!, 'last_seen_at', 31);
+    const page = await client.request('GET', '/profile');
+    expect(page.status).toBe(302);
+    expect(page.headers.get('location')).toMatch(/^\/sign-in\?next=%2Fprofile/);
+    expect((await client.request('GET', '/api/me')).status).toBe(401);
+  });
+
+  it('ends a session past its absolute lifetime even while active', async () => {
+    const { client } = await signedIn();
+    const token = client.cookie(SESSION_COOKIE)!;
+    await ageSession(token, 'created_at', 12 * 60 + 1);
+    expect((await client.request('GET', '/api/me')).status).toBe(401);
+    // The session row is gone, not merely refused.
+    const rows = await ownerDb().query('SELECT 1 FROM sessions WHERE id = :id', { replacements: { id: hashToken(token) }, type: QueryTypes.SELECT });
+    expect(rows).toHaveLength(0);
+  });
+
+  it('keeps a session that is used within the idle timeout', async () => {
+    const { client } = await signedIn();
+    await ageSession(client.cookie(SESSION_COOKIE)!, 'last_seen_at', 29);
+    expect((await client.request('GET', '/api/me')).status).toBe(200);
+  });
+});
+
+describe('ending sessions', () => {
+  it('signs out: the old token no longer works', async () => {
+    const { client } = await signedIn();
+    const token = client.cookie(SESSION_COOKIE)!;
+    expect((await client.request('POST', '/api/auth/sign-out')).status).toBe(204);
+    const replay = new ApiClient();
+    replay.setCookie(SESSION_COOKIE, token);
+    expect((await replay.request('GET', '/api/me')).status).toBe(401);
+  });
+
+  it('ends every session of a deactivated user', async () => {
+    const admin = await signedIn({ isAdmin: true });
+    const target = await makeUser({ passwordHash });
+    const laptop = new ApiClient();
+    const phone = new ApiClient();
+    await laptop.signIn(target.email, password);
+    await phone.signIn(target.email, password);
+    const response = await admin.client.request('PATCH', `/api/admin/users/${target.id}`, { status: 'deactivated' });
+    expect(response.status).toBe(204);
+    expect((await laptop.request('GET', '/api/me')).status).toBe(401);
+    expect((await phone.request('GET', '/api/me')).status).toBe(401);
+    expect((await laptop.signIn(target.email, password)).status).toBe(401);
+  });
+});
+
+describe('personal API tokens', () => {
+  it('act as their owner, are audited on every use, and stop at revocation', async () => {
+    const { user, client } = await signedIn();
+    const created = await client.request('POST', '/api/me/tokens', { name: 'nightly export' });
+    expect(created.status).toBe(201);
+    const { token, item } = await created.json();
+    expect(token).toMatch(/^cgt_/);
+    const stored = await ownerDb().query<{ token_hash: string }>('SELECT token_hash FROM api_tokens WHERE id = :id', {
+      replacements: { id: item.id }, type: QueryTypes.SELECT,
+    });
+    expect(stored[0].token_hash).toBe(hashToken(token));
+    expect(stored[0].token_hash).not.toContain(token);
+
+    const script = new ApiClient(token);
+    const me = await script.request('GET', '/api/me');
+    expect(me.status).toBe(200);
+    expect((await me.json()).id).toBe(user.id);
+    const uses = await ownerDb().query<{ details: { path: string } }>(
+      "SELECT details FROM audit_events WHERE action = 'token.used' AND subject_id = :id",
+      { replacements: { id: item.id }, type: QueryTypes.SELECT },
+    );
+    expect(uses.map((u) => u.details.path)).toEqual(['/api/me']);
+    // A token cannot mint more tokens.
+    expect((await script.request('POST', '/api/me/tokens', { name: 'child' })).status).toBe(403);
+
+    expect((await client.request('DELETE', `/api/me/tokens/${item.id}`)).status).toBe(204);
+    expect((await script.request('GET', '/api/me')).status).toBe(401);
+  });
+});
+
+describe('cross-site requests', () => {
+  it('refuses a state-changing request from another origin, whatever its content type', async () => {
+    const { client } = await signedIn();
+    const response = await client.request('POST', '/api/me/tokens', { name: 'forged' }, { Origin: 'https://elsewhere.example' });
+    expect(response.status).toBe(403);
+    expect((await response.json()).error.code).toBe('cross-site-request');
+  });
+});
+
+describe('administration endpoints', () => {
+  it('refuse people who are not administrators', async () => {
+    const { client } = await signedIn();
+    expect((await client.request('GET', '/api/admin/users')).status).toBe(403);
+    expect((await new ApiClient().request('GET', '/api/admin/users')).status).toBe(401);
+  });
+});

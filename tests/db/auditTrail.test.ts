@@ -1,0 +1,132 @@
+/**
+ * The audit trail's core: append-only for the application role, hash-chained, serialised
+ * against concurrent writers, and verifiable. Standards: HIPAA Security Rule 45 CFR
+ * 164.312(b), 21 CFR 11.10(e), NIST SP 800-53 AU-9 (shared design standards, audit trail).
+ */
+import { afterAll, describe, expect, it } from 'vitest';
+import { QueryTypes } from 'sequelize';
+import { recordAudit, verifyAuditChain } from '../../src/features/audit/audit.server';
+import { sequelize, withIdentity } from '../../src/lib/server/db';
+import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
+
+afterAll(async () => {
+  await closeOwnerDb();
+});
+
+const verify = () => withIdentity(null, (t) => verifyAuditChain(t));
+
+describe('appending', () => {
+  it('links each event to the one before and keeps the chain intact', async () => {
+    const user = await makeUser();
+    const before = await verify();
+    await withIdentity(user.id, (t) => recordAudit(t, { action: 'auth.sign-in', actorId: user.id, clientAddress: '127.0.0.1' }));
+    await withIdentity(user.id, (t) => recordAudit(t, { action: 'auth.sign-out', actorId: user.id, details: { why: 'test' } }));
+    const after = await verify();
+    expect(after.intact).toBe(true);
+    expect(after.checked).toBe(before.checked + 2);
+    const [last, previous] = await ownerDb().query<{ prev_hash: string; hash: string; action: string }>(
+      'SELECT prev_hash, hash, action FROM audit_events ORDER BY chain_position DESC LIMIT 2',
+      { type: QueryTypes.SELECT },
+    );
+    expect(last.action).toBe('auth.sign-out');
+    expect(last.prev_hash).toBe(previous.hash);
+    expect(last.hash).toMatch(/^[0-9a-f]{64}$/);
+  });
+
+  it('records the actor’s role in the initiative', async () => {
+    const user = await makeUser();
+    const initiative = await makeInitiative();
+    await addMember(initiative.id, user.id, 'clinician');
+    await withIdentity(user.id, (t) => recordAudit(t, { action: 'run.viewed', actorId: user.id, initiativeId: initiative.id }));
+    const [row] = await ownerDb().query<{ actor_role: string }>(
+      'SELECT actor_role FROM audit_events WHERE actor_id = :id ORDER BY chain_position DESC LIMIT 1',
+      { replacements: { id: user.id }, type: QueryTypes.SELECT },
+    );
+    expect(row.actor_role).toBe('clinician');
+  });
+
+  it('commits or rolls back with the action it records', async () => {
+    const user = await makeUser();
+    const before = await verify();
+    await expect(
+      withIdentity(user.id, async (t) => {
+        await recordAudit(t, { action: 'auth.sign-in', actorId: user.id });
+        throw new Error('the action failed');
+      }),
+    ).rejects.toThrow('the action failed');
+    expect((await verify()).checked).toBe(before.checked);
+  });
+
+  it('refuses an event that names someone else as the actor', async () => {
+    const user = await makeUser();
+    const other = await makeUser();
+    await expect(withIdentity(user.id, (t) => recordAudit(t, { action: 'auth.sign-in', actorId: other.id }))).rejects.toMatchObject({
+      original: { code: '42501' },
+    });
+  });
+
+  it('never forks under concurrent writers', async () => {
+    const users = await Promise.all(Array.from({ length: 6 }, () => makeUser()));
+    const before = await verify();
+    await Promise.all(
+      Array.from({ length: 30 }, (_, i) => {
+        const user = users[i % users.length];
+        return withIdentity(user.id, (t) => recordAudit(t, { action: 'auth.sign-in', actorId: user.id, details: { i } }));
+      }),
+    );
+    const after = await verify();
+    expect(after.intact).toBe(true);
+    expect(after.checked).toBe(before.checked + 30);
+    const [{ distinct_prev, count }] = await ownerDb().query<{ distinct_prev: string; count: string }>(
+      'SELECT count(DISTINCT prev_hash) AS distinct_prev, count(*) AS count FROM audit_events',
+      { type: QueryTypes.SELECT },
+    );
+    expect(Number(distinct_prev)).toBe(Number(count));
+  });
+});
+
+describe('the application role', () => {
+  for (const statement of ['UPDATE audit_events SET action = action', 'DELETE FROM audit_events', 'TRUNCATE audit_events']) {
+    it(`may not run ${statement.split(' ')[0]}`, async () => {
+      const admin = await makeUser({ isAdmin: true });
+      await withIdentity(admin.id, (t) => recordAudit(t, { action: 'auth.sign-in', actorId: admin.id }));
+      await expect(withIdentity(admin.id, (t) => sequelize.query(statement, { transaction: t }))).rejects.toMatchObject({
+        original: { code: '42501' },
+      });
+    });
+  }
+});
+
+describe('tamper evidence', () => {
+  it('reports one flipped byte at the first broken link', async () => {
+    const user = await makeUser();
+    for (const n of [1, 2, 3]) {
+      await withIdentity(user.id, (t) => recordAudit(t, { action: 'auth.sign-in', actorId: user.id, details: { n } }));
+    }
+    const [target] = await ownerDb().query<{ id: string; chain_position: string; client_address: string | null; action: string }>(
+      `SELECT id, chain_position, action FROM audit_events WHERE actor_id = :id ORDER BY chain_position LIMIT 1 OFFSET 1`,
+      { replacements: { id: user.id }, type: QueryTypes.SELECT },
+    );
+    // Flip one byte of the stored action ("auth.sign-in" → "auth.sign-im") behind the
+    // application's back, as an attacker with owner access would, then put it back.
+    const tampered = `${target.action.slice(0, -1)}m`;
+    const rewrite = (action: string) =>
+      ownerDb().transaction(async (t) => {
+        await ownerDb().query('ALTER TABLE audit_events DISABLE TRIGGER audit_events_no_change', { transaction: t });
+        await ownerDb().query('UPDATE audit_events SET action = :action WHERE id = :id', { replacements: { action, id: target.id }, transaction: t });
+        await ownerDb().query('ALTER TABLE audit_events ENABLE TRIGGER audit_events_no_change', { transaction: t });
+      });
+    await rewrite(tampered);
+    try {
+      const report = await verify();
+      expect(report.intact).toBe(false);
+      expect(report.broken?.position).toBe(Number(target.chain_position));
+      expect(report.broken?.eventId).toBe(Number(target.id));
+      expect(report.broken?.reason).toMatch(/content/);
+      expect(report.checked).toBe(Number(target.chain_position) - 1);
+    } finally {
+      await rewrite(target.action);
+    }
+    expect((await verify()).intact).toBe(true);
+  });
+});
