@@ -79,12 +79,21 @@ function presentLevels(column: EngineColumn, rows: Int32Array): string[] {
     for (let i = 0; i < rows.length; i++) seen[column.codes[rows[i]]] = 1;
     return column.levels.filter((_, code) => seen[code] === 1);
   }
-  const values = new Set<number>();
+  // Columns used as categories have few distinct values: a short list with a
+  // last-match shortcut is much faster than a Set over millions of rows.
+  const distinct: number[] = [];
+  const values = column.values;
+  let last = Number.NaN;
   for (let i = 0; i < rows.length; i++) {
-    values.add(column.values[rows[i]]);
-    if (values.size > 10_000) break;
+    const value = values[rows[i]];
+    if (value === last) continue;
+    if (!distinct.includes(value)) {
+      distinct.push(value);
+      if (distinct.length > 1000) break;
+    }
+    last = value;
   }
-  return [...values].sort((a, b) => a - b).map(numberLevel);
+  return distinct.sort((a, b) => a - b).map(numberLevel);
 }
 
 function codeFactor(
@@ -147,19 +156,20 @@ function codeFactor(
   return { kind: 'categorical', column: name, levels, codes, counts };
 }
 
-function numericVariable(column: EngineColumn, name: string, rows: Int32Array): NumericVariable {
+function numericVariable(column: EngineColumn, name: string, rows: Int32Array, allRows: boolean): NumericVariable {
   if (column.kind !== 'numeric') throw new ColumnTypeMismatchError(name, 'numeric to be used as a continuous variable');
-  const values = new Float64Array(rows.length);
-  let first = Number.NaN;
+  // With no row dropped the column is used as is (read only), saving a copy per column.
+  const source = column.values;
+  const values = allRows ? source : new Float64Array(rows.length);
+  const first = source[rows[0]];
   let constant = true;
   for (let i = 0; i < rows.length; i++) {
-    const value = column.values[rows[i]];
-    if (!Number.isFinite(value)) {
+    const value = allRows ? source[i] : source[rows[i]];
+    if (value - value !== 0) {
       throw new InvalidDataError(`The column "${name}" holds a non-finite value in row ${rows[i] + 1}.`, { column: name });
     }
-    values[i] = value;
-    if (i === 0) first = value;
-    else if (value !== first) constant = false;
+    if (!allRows) values[i] = value;
+    if (constant && value !== first) constant = false;
   }
   if (constant) throw new ConstantColumnError(name);
   return { kind: 'continuous', column: name, values };
@@ -261,11 +271,11 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
   // Exposure: exactly two levels, the reference coded 0.
   const exposureColumn = columns[1];
   const exposureName = spec.exposure.column;
-  const exposureDeclared = exposureColumn.kind === 'categorical' ? [...exposureColumn.levels] : presentLevels(exposureColumn, rowIndex);
+  const exposurePresent = presentLevels(exposureColumn, rowIndex);
+  const exposureDeclared = exposureColumn.kind === 'categorical' ? [...exposureColumn.levels] : exposurePresent;
   if (!exposureDeclared.includes(spec.exposure.reference)) {
     throw new ReferenceLevelNotFoundError(exposureName, spec.exposure.reference, exposureDeclared);
   }
-  const exposurePresent = presentLevels(exposureColumn, rowIndex);
   if (exposurePresent.length === 1) {
     if (exposurePresent[0] === spec.exposure.reference) throw new ConstantColumnError(exposureName);
     throw new EmptyStratumError(exposureName, spec.exposure.reference);
@@ -289,13 +299,13 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
   const modifier: FrameVariable =
     spec.modifier.type === 'categorical'
       ? codeFactor(modifierColumn, spec.modifier.column, rowIndex, spec.modifier.reference, 'modifier', warnings)
-      : numericVariable(modifierColumn, spec.modifier.column, rowIndex);
+      : numericVariable(modifierColumn, spec.modifier.column, rowIndex, kept === data.rowCount);
 
   const covariates = spec.covariates.map((covariate, index) => {
     const column = columns[3 + index];
     return covariate.type === 'categorical'
       ? codeFactor(column, covariate.column, rowIndex, covariate.reference, 'covariate', warnings)
-      : numericVariable(column, covariate.column, rowIndex);
+      : numericVariable(column, covariate.column, rowIndex, kept === data.rowCount);
   });
 
   if (kept < data.rowCount) {

@@ -1,4 +1,4 @@
-import type { AnalysisFrame, CodedFactor, FrameVariable } from './analysisFrame.js';
+import type { AnalysisFrame, FrameVariable } from './analysisFrame.js';
 
 /** Role of a model term, used to find b1, b2, b3 and to name terms in messages. */
 export type TermRole = 'intercept' | 'exposure' | 'modifier' | 'product' | 'covariate';
@@ -15,8 +15,8 @@ export interface DesignTerm {
  * A model matrix X (n × p) stored in two parts, which together give every row exactly:
  *
  * - cell terms: the intercept and the indicators of categorical variables (the exposure, a
- *   categorical modifier, the products of the two, and as many categorical covariates as
- *   keep the number of cells small). Their values depend only on the row's cell, the
+ *   categorical modifier, the products of the two, and as many categorical covariates and
+ *   few-valued continuous covariates, such as 0/1 flags, as keep the number of cells small). Their values depend only on the row's cell, the
  *   combination of those variables' levels: `cellValues[cell · q + t]` is the value of term
  *   `cellTerms[t]` in that cell, and `cellOfRow[i]` is row i's cell.
  * - free terms: everything else (continuous variables, products with a continuous
@@ -59,6 +59,32 @@ export interface DesignOptions {
 
 /** Cells are capped so that the per-cell accumulators stay small and dense. */
 const MAX_CELLS = 4096;
+/** A continuous covariate with at most this many distinct values may join the cells. */
+const MAX_DISTINCT_IN_CELL = 16;
+
+/**
+ * Codes of a numeric column with at most `limit` distinct values (codes index the sorted
+ * values), or null when it has more. Stops scanning as soon as the limit is passed.
+ */
+function fewValueCodes(values: Float64Array, limit: number): { codes: Int32Array; values: Float64Array } | null {
+  if (limit < 2) return null;
+  const distinct: number[] = [];
+  for (let i = 0; i < values.length; i++) {
+    const value = values[i];
+    if (distinct.includes(value)) continue;
+    distinct.push(value);
+    if (distinct.length > limit) return null;
+  }
+  distinct.sort((a, b) => a - b);
+  const codes = new Int32Array(values.length);
+  if (distinct.length === 2) {
+    const high = distinct[1];
+    for (let i = 0; i < values.length; i++) codes[i] = values[i] === high ? 1 : 0;
+  } else {
+    for (let i = 0; i < values.length; i++) codes[i] = distinct.indexOf(values[i]);
+  }
+  return { codes, values: Float64Array.from(distinct) };
+}
 
 function allocateFloat(length: number, shared: boolean): Float64Array {
   return shared ? new Float64Array(new SharedArrayBuffer(length * 8)) : new Float64Array(length);
@@ -115,23 +141,39 @@ export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions):
   const { modifier } = frame;
   const centre = modifier.kind === 'continuous' ? options.centre : 0;
 
-  // Which categorical variables define the cells: the exposure, a categorical modifier,
-  // then categorical covariates while the cell count stays small.
-  const cellFactors: { factor: CodedFactor | null; levels: number; covariate: number }[] = [];
+  // Which variables define the cells: the exposure, a categorical modifier, then
+  // categorical covariates and continuous covariates with few distinct values (0/1 flags,
+  // small counts), while the cell count stays small. A continuous covariate in a cell
+  // keeps its exact value: its term's value in the cell is the covariate's value.
+  interface CellFactor {
+    readonly codes: Int32Array;
+    readonly levels: number;
+    readonly covariate: number;
+    /** For a continuous covariate: the value of each code. */
+    readonly values: Float64Array | null;
+  }
+  const cellFactors: CellFactor[] = [];
   let cellCount = 2;
   if (modifier.kind === 'categorical') {
-    cellFactors.push({ factor: modifier, levels: modifier.levels.length, covariate: -1 });
+    cellFactors.push({ codes: modifier.codes, levels: modifier.levels.length, covariate: -1, values: null });
     cellCount *= modifier.levels.length;
   }
   const covariateInCell = frame.covariates.map(() => false);
   frame.covariates.forEach((covariate, index) => {
     if (covariate.kind === 'categorical' && cellCount * covariate.levels.length <= MAX_CELLS) {
-      cellFactors.push({ factor: covariate, levels: covariate.levels.length, covariate: index });
+      cellFactors.push({ codes: covariate.codes, levels: covariate.levels.length, covariate: index, values: null });
       cellCount *= covariate.levels.length;
       covariateInCell[index] = true;
     }
   });
-
+  frame.covariates.forEach((covariate, index) => {
+    if (covariate.kind !== 'continuous') return;
+    const coded = fewValueCodes(covariate.values, Math.min(MAX_DISTINCT_IN_CELL, Math.floor(MAX_CELLS / cellCount)));
+    if (coded === null) return;
+    cellFactors.push({ codes: coded.codes, levels: coded.values.length, covariate: index, values: coded.values });
+    cellCount *= coded.values.length;
+    covariateInCell[index] = true;
+  });
   const isCellTerm = new Uint8Array(p);
   isCellTerm[0] = 1;
   isCellTerm[1] = 1;
@@ -160,8 +202,7 @@ export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions):
   const cellOfRow = allocateInt(rows, shared);
   for (let i = 0; i < rows; i++) cellOfRow[i] = frame.exposure[i];
   let radix = 2;
-  for (const { factor, levels } of cellFactors) {
-    const codes = (factor as CodedFactor).codes;
+  for (const { codes, levels } of cellFactors) {
     for (let i = 0; i < rows; i++) cellOfRow[i] += radix * codes[i];
     radix *= levels;
   }
@@ -174,9 +215,13 @@ export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions):
     let rest = Math.floor(cell / 2);
     cellValues[base + cellPosition[0]] = 1;
     cellValues[base + cellPosition[1]] = exposure;
-    for (const { levels, covariate } of cellFactors) {
+    for (const { levels, covariate, values } of cellFactors) {
       const code = rest % levels;
       rest = Math.floor(rest / levels);
+      if (values !== null) {
+        cellValues[base + cellPosition[covariateStarts[covariate]]] = values[code];
+        continue;
+      }
       if (code === 0) continue;
       if (covariate < 0) {
         cellValues[base + cellPosition[modifierIndices[code - 1]]] = 1;

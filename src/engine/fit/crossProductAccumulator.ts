@@ -161,3 +161,84 @@ export function accumulateWeighted(
     }
   }
 }
+
+/**
+ * One fused pass for least squares: residuals eᵢ = yᵢ − xᵢᵀβ (not stored), returning
+ * Xᵀ W e (length p, term order) and Σ wᵢeᵢ².
+ */
+export function residualCrossProduct(
+  design: DesignMatrix,
+  weights: Float64Array | null,
+  y: Float64Array,
+  coefficients: ArrayLike<number>,
+): { crossResidual: Float64Array; sumOfSquares: number } {
+  const r = design.freeTerms.length;
+  const q = design.cellTerms.length;
+  const { free, cellOfRow } = design;
+  const cellEta = cellLinearPredictor(design, coefficients, new Float64Array(design.cellCount));
+  const freeBeta = freeCoefficients(design, coefficients, new Float64Array(r));
+  const cellResidual = new Float64Array(design.cellCount);
+  const freeResidual = new Float64Array(r);
+  let sumOfSquares = 0;
+  for (let i = 0; i < design.rows; i++) {
+    const weight = weights === null ? 1 : weights[i];
+    if (weight === 0) continue;
+    const cell = cellOfRow[i];
+    const base = i * r;
+    let fitted = cellEta[cell];
+    for (let k = 0; k < r; k++) fitted += free[base + k] * freeBeta[k];
+    const residual = y[i] - fitted;
+    const weighted = weight * residual;
+    sumOfSquares += weighted * residual;
+    cellResidual[cell] += weighted;
+    for (let k = 0; k < r; k++) freeResidual[k] += free[base + k] * weighted;
+  }
+  const crossResidual = new Float64Array(design.columns);
+  for (let cell = 0; cell < design.cellCount; cell++) {
+    const value = cellResidual[cell];
+    if (value === 0) continue;
+    for (let t = 0; t < q; t++) crossResidual[design.cellTerms[t]] += design.cellValues[cell * q + t] * value;
+  }
+  for (let k = 0; k < r; k++) crossResidual[design.freeTerms[k]] += freeResidual[k];
+  return { crossResidual, sumOfSquares };
+}
+
+/**
+ * Leverages hᵢ = wᵢ·xᵢᵀ A⁻¹ xᵢ for a symmetric p × p A⁻¹ (row-major), using the split
+ * design: per cell the cell-block quadratic form and the cell × free coupling, per row
+ * only the free block.
+ */
+export function leverages(design: DesignMatrix, inverse: Float64Array, weights: Float64Array | null): Float64Array {
+  const p = design.columns;
+  const q = design.cellTerms.length;
+  const r = design.freeTerms.length;
+  const { cellTerms, freeTerms, cellValues, free, cellOfRow } = design;
+  const cellQuadratic = new Float64Array(design.cellCount);
+  const cellCoupling = new Float64Array(design.cellCount * r);
+  for (let cell = 0; cell < design.cellCount; cell++) {
+    let quadratic = 0;
+    for (let t = 0; t < q; t++) {
+      const value = cellValues[cell * q + t];
+      if (value === 0) continue;
+      for (let u = 0; u < q; u++) quadratic += value * cellValues[cell * q + u] * inverse[cellTerms[t] * p + cellTerms[u]];
+      for (let k = 0; k < r; k++) cellCoupling[cell * r + k] += 2 * value * inverse[cellTerms[t] * p + freeTerms[k]];
+    }
+    cellQuadratic[cell] = quadratic;
+  }
+  const freeBlock = new Float64Array(r * r);
+  for (let k = 0; k < r; k++) for (let l = 0; l < r; l++) freeBlock[k * r + l] = inverse[freeTerms[k] * p + freeTerms[l]];
+  const result = new Float64Array(design.rows);
+  for (let i = 0; i < design.rows; i++) {
+    const cell = cellOfRow[i];
+    const base = i * r;
+    let value = cellQuadratic[cell];
+    for (let k = 0; k < r; k++) {
+      const fk = free[base + k];
+      let inner = cellCoupling[cell * r + k];
+      for (let l = 0; l < r; l++) inner += freeBlock[k * r + l] * free[base + l];
+      value += fk * inner;
+    }
+    result[i] = (weights === null ? 1 : weights[i]) * value;
+  }
+  return result;
+}

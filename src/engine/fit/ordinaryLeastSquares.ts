@@ -1,10 +1,12 @@
 import { choleskyFactor, choleskyInverse, choleskySolve, multiply } from '../core/symmetricPositiveDefinite.js';
-import { designRow, type DesignMatrix } from '../design/designMatrix.js';
+import type { DesignMatrix } from '../design/designMatrix.js';
 import {
   accumulateWeighted,
   assembleCrossProducts,
   createAccumulator,
+  leverages,
   linearPredictor,
+  residualCrossProduct,
 } from './crossProductAccumulator.js';
 
 export interface LeastSquaresFit {
@@ -34,19 +36,14 @@ export interface LeastSquaresInput {
   readonly coefficientsOnly?: boolean;
 }
 
-function residuals(design: DesignMatrix, y: Float64Array, coefficients: Float64Array): Float64Array {
-  const eta = linearPredictor(design, coefficients);
-  for (let i = 0; i < eta.length; i++) eta[i] = y[i] - eta[i];
-  return eta;
-}
-
 /**
  * Ordinary (or frequency-weighted) least squares, β̂ = (XᵀWX)⁻¹XᵀWy, with classical and
  * HC3 standard errors.
  *
  * Variant: the normal equations are solved by a Jacobi-scaled Cholesky factor and then
  * one step of iterative refinement on the residuals (Björck, Numerical Methods for Least
- * Squares Problems, 1996, §2.9), which brings the coefficients to within rounding of R's
+ * Squares Problems, 1996, §2.9; the residual sum of squares after the step follows
+ * algebraically, without another pass), which brings the coefficients to within rounding of R's
  * QR-based lm(). σ̂² = Σwe²/(Σw − p); classical Var = σ̂²(XᵀWX)⁻¹. HC3 (MacKinnon and
  * White, J Econometrics 1985;29:305-325): (XᵀX)⁻¹ Xᵀ diag(eᵢ²/(1 − hᵢᵢ)²) X (XᵀX)⁻¹ with
  * hᵢᵢ = xᵢᵀ(XᵀX)⁻¹xᵢ. Log-likelihood as R's logLik.lm: −(N/2)(log 2π + 1 − log N + log RSS).
@@ -67,51 +64,39 @@ export function fitOrdinaryLeastSquares(input: LeastSquaresInput): LeastSquaresF
   const factor = choleskyFactor(crossProduct, p);
   const coefficients = choleskySolve(factor, crossResponse);
 
-  // One step of iterative refinement: solve for the correction from Xᵀ W (y − Xβ).
-  let residual = residuals(design, y, coefficients);
-  const correction = createAccumulator(design);
-  accumulateWeighted(design, weights, residual, correction);
-  const correctionResponse = new Float64Array(p);
-  assembleCrossProducts(design, correction, new Float64Array(p * p), correctionResponse);
-  const delta = choleskySolve(factor, correctionResponse);
+  // One step of iterative refinement: the correction δ solves XᵀWX δ = XᵀW(y − Xβ).
+  const first = residualCrossProduct(design, weights, y, coefficients);
+  const delta = choleskySolve(factor, first.crossResidual);
   for (let j = 0; j < p; j++) coefficients[j] += delta[j];
-
   const residualDf = weightSum - p;
   const crossProductInverse = choleskyInverse(factor);
+  const pivots = { smallestPivotRatio: factor.smallestPivotRatio, smallestPivotIndex: factor.smallestPivotIndex };
   if (input.coefficientsOnly) {
     return {
       coefficients, crossProductInverse, covarianceClassical: crossProductInverse, covarianceHC3: null,
-      residualSumOfSquares: Number.NaN, residualDf, sigmaSquared: Number.NaN, logLik: Number.NaN, weightSum,
-      smallestPivotRatio: factor.smallestPivotRatio, smallestPivotIndex: factor.smallestPivotIndex,
+      residualSumOfSquares: Number.NaN, residualDf, sigmaSquared: Number.NaN, logLik: Number.NaN, weightSum, ...pivots,
     };
   }
-  residual = residuals(design, y, coefficients);
-  let residualSumOfSquares = 0;
-  for (let i = 0; i < residual.length; i++) {
-    const weight = weights === null ? 1 : weights[i];
-    residualSumOfSquares += weight * residual[i] * residual[i];
+  // RSS at β + δ without another pass: ‖e − Xδ‖² = Σwe² − 2δᵀXᵀWe + δᵀXᵀWXδ.
+  let correctionTerm = 0;
+  for (let j = 0; j < p; j++) {
+    let inner = 0;
+    for (let k = 0; k < p; k++) inner += crossProduct[j * p + k] * delta[k];
+    correctionTerm += delta[j] * (inner - 2 * first.crossResidual[j]);
   }
+  const residualSumOfSquares = first.sumOfSquares + correctionTerm;
   const sigmaSquared = residualSumOfSquares / residualDf;
   const covarianceClassical = crossProductInverse.map((value) => value * sigmaSquared);
 
   let covarianceHC3: Float64Array | null = null;
   if (input.computeHC3 ?? true) {
+    const leverage = leverages(design, crossProductInverse, weights);
+    const eta = linearPredictor(design, coefficients);
     const meatWeights = new Float64Array(design.rows);
-    const row = new Float64Array(p);
-    const inverseRow = new Float64Array(p);
     for (let i = 0; i < design.rows; i++) {
       const weight = weights === null ? 1 : weights[i];
       if (weight === 0) continue;
-      designRow(design, i, row);
-      let leverage = 0;
-      for (let j = 0; j < p; j++) {
-        let inner = 0;
-        for (let k = 0; k < p; k++) inner += crossProductInverse[j * p + k] * row[k];
-        inverseRow[j] = inner;
-        leverage += row[j] * inner;
-      }
-      leverage *= weight;
-      const scaled = residual[i] / (1 - leverage);
+      const scaled = (y[i] - eta[i]) / (1 - leverage[i]);
       meatWeights[i] = weight * scaled * scaled;
     }
     const meatAccumulator = createAccumulator(design);
@@ -131,7 +116,6 @@ export function fitOrdinaryLeastSquares(input: LeastSquaresInput): LeastSquaresF
     sigmaSquared,
     logLik,
     weightSum,
-    smallestPivotRatio: factor.smallestPivotRatio,
-    smallestPivotIndex: factor.smallestPivotIndex,
+    ...pivots,
   };
 }
