@@ -5,7 +5,7 @@ import { describe, expect, it } from 'vitest';
 
 /**
  * The engine core imports no framework: outside boundary/ only relative modules,
- * ml-matrix, jstat and (for the bootstrap's worker threads, in bootstrap/ only) Node's
+ * ml-matrix, jstat and (for worker threads, in bootstrap/ and threads/ only) Node's
  * worker_threads, os, module, path and url. Test files may use vitest and node: modules.
  */
 const root = fileURLToPath(new URL('.', import.meta.url));
@@ -40,7 +40,7 @@ describe('engine import rule', () => {
       for (const specifier of importsOf(readFileSync(file, 'utf8'))) {
         if (specifier.startsWith('.')) continue;
         if (ALLOWED_PACKAGES.has(specifier)) continue;
-        if (name.startsWith('bootstrap/') && THREAD_BUILTINS.has(specifier)) continue;
+        if ((name.startsWith('bootstrap/') || name.startsWith('threads/')) && THREAD_BUILTINS.has(specifier)) continue;
         if (test && (specifier === 'vitest' || specifier.startsWith('node:'))) continue;
         offences.push(`${name} imports ${specifier}`);
       }

@@ -343,6 +343,8 @@ export interface ProgressEvent {
 export interface AnalysisOptions {
   readonly onProgress?: (event: ProgressEvent) => void;
   readonly signal?: AbortSignal;
-  /** Worker threads for the bootstrap: 0 or 1 runs in-process; default min(2, cores). */
+  /** Threads for the bootstrap and for large fits: 0 or 1 runs in-process; default min(2, cores). */
   readonly threads?: number;
+  /** Rows from which a fit splits its passes across threads; default 200,000. */
+  readonly parallelFitRows?: number;
 }

@@ -25,6 +25,7 @@ import { benjaminiHochbergAdjustment } from '../multiplicity/benjaminiHochbergAd
 import { holmAdjustment } from '../multiplicity/holmAdjustment.js';
 import { interactionPower, requiredSampleSize, smallestDetectableInteraction } from '../planning/interactionPower.js';
 import { stratifiedTables } from '../strata/stratifiedTables.js';
+import { passPool, type PassPool } from '../threads/passPool.js';
 import type {
   AdditiveEntry,
   AnalysisOptions,
@@ -45,6 +46,8 @@ import { ENGINE_VERSION } from '../version.js';
 import { sanitizeResult } from './sanitizeResult.js';
 import { validateSpec, type CheckedSpec } from './validateSpec.js';
 
+/** From this many rows the fits split their passes across threads (results are identical either way). */
+const PARALLEL_FIT_ROWS = 200_000;
 /** Fewer events or non-events than this in a cell earns a sparse-data warning (common practice). */
 const SPARSE_CELL_COUNT = 5;
 /** Above this outcome proportion an odds ratio no longer approximates a risk ratio (methods.md: "say over 10 %"). */
@@ -166,11 +169,12 @@ function omnibusTest(
   fit: ModelFit,
   centre: number,
   warnings: EngineWarning[],
+  pool: PassPool | null,
 ): OmnibusTest {
   const k = design.productIndices.length;
   if (fit.family === 'modified-poisson') return robustWaldTest(fit.coefficients, fit.covariance, design.productIndices);
   const reducedDesign = buildDesignMatrix(frame, { includeProducts: false, centre });
-  const reduced = fitModel(reducedDesign, frame.outcome, fit.family);
+  const reduced = fitModel(reducedDesign, frame.outcome, fit.family, { parallel: pool });
   if (fit.family === 'linear') {
     return nestedModelFTest(fit.residualSumOfSquares as number, reduced.residualSumOfSquares as number, k, fit.residualDf);
   }
@@ -205,12 +209,17 @@ export async function runAnalysis(data: EngineData, spec: AnalysisSpec, options:
   const warnings: EngineWarning[] = [...frame.warnings];
   const continuous = frame.modifier.kind === 'continuous';
   const summary = summariseModifier(frame, spec);
-  const useThreads = checked.method === 'bootstrap' ? (options.threads ?? defaultThreadCount()) : 0;
-  const design = buildDesignMatrix(frame, { includeProducts: true, centre: summary.centre, shared: useThreads > 1 });
+  const threads = options.threads ?? defaultThreadCount();
+  const useThreads = checked.method === 'bootstrap' ? threads : 0;
+  // Large fits split their passes across threads; the sums are blocked, so the numbers are
+  // the same with or without them.
+  const parallelFit = threads > 1 && frame.n >= (options.parallelFitRows ?? PARALLEL_FIT_ROWS);
+  const pool = parallelFit ? await passPool(threads - 1) : null;
+  const design = buildDesignMatrix(frame, { includeProducts: true, centre: summary.centre, shared: useThreads > 1 || parallelFit });
   checkCancelled(signal);
   progress('fit', 0);
 
-  const fit = fitModel(design, frame.outcome, spec.model, { standardErrors: checked.standardErrors });
+  const fit = fitModel(design, frame.outcome, spec.model, { standardErrors: checked.standardErrors, parallel: pool });
   warnings.push(...fit.warnings, ...fitDiagnostics(design, fit));
   const ratio = fit.family !== 'linear';
   const scale: EffectScale = ratio ? 'ratio' : 'difference';
@@ -221,7 +230,7 @@ export async function runAnalysis(data: EngineData, spec: AnalysisSpec, options:
   checkCancelled(signal);
   progress('measures', 0);
 
-  const omnibus = omnibusTest(frame, design, fit, summary.centre, warnings);
+  const omnibus = omnibusTest(frame, design, fit, summary.centre, warnings, pool);
   const { coefficients, covariance } = fit;
   const exposureLabel = frame.exposureLevels[1];
   const exposureReference = frame.exposureLevels[0];

@@ -1,8 +1,6 @@
-import { createRequire } from 'node:module';
 import { availableParallelism } from 'node:os';
-import { dirname, join } from 'node:path';
-import { pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
+import { launchFor, type WorkerLaunch } from '../threads/workerLaunch.js';
 import type { DesignMatrix } from '../design/designMatrix.js';
 import { AnalysisCancelledError } from '../errors.js';
 import { bootstrapReplicate, type BootstrapJob } from './bootstrapReplicate.js';
@@ -47,27 +45,11 @@ function shareDesign(design: DesignMatrix): BootstrapWorkerData['design'] {
   };
 }
 
-interface WorkerLaunch {
-  readonly url: URL;
-  readonly extraData: Record<string, string>;
-}
-
 /**
- * How to start a worker. From compiled JavaScript the worker entry is loaded directly.
- * From TypeScript sources (tsx, vitest) a small .mjs entry first registers tsx's module
- * hooks in the new thread (Node 20 does not pass the parent's hooks to workers) and then
- * imports the TypeScript entry.
+ * How to start a bootstrap worker (see threads/workerLaunch.ts).
  */
 function workerLaunch(): WorkerLaunch {
-  if (!import.meta.url.endsWith('.ts')) return { url: new URL('./bootstrapWorker.js', import.meta.url), extraData: {} };
-  const tsxRoot = dirname(createRequire(import.meta.url).resolve('tsx/package.json'));
-  return {
-    url: new URL('./threadEntry.mjs', import.meta.url),
-    extraData: {
-      tsxApi: pathToFileURL(join(tsxRoot, 'dist', 'esm', 'api', 'index.mjs')).href,
-      entry: new URL('./bootstrapWorker.ts', import.meta.url).href,
-    },
-  };
+  return launchFor(new URL('./bootstrapWorker.js', import.meta.url), import.meta.url);
 }
 
 /**

@@ -138,11 +138,13 @@ export function accumulateWeighted(
   weights: Float64Array | null,
   responses: Float64Array | null,
   accumulator: CrossProductAccumulator,
+  from = 0,
+  to = design.rows,
 ): void {
   const r = design.freeTerms.length;
   const { free, cellOfRow } = design;
   const { cellWeight, cellResponse, cellFree, freeFree, freeResponse } = accumulator;
-  for (let i = 0; i < design.rows; i++) {
+  for (let i = from; i < to; i++) {
     const weight = weights === null ? 1 : weights[i];
     if (weight === 0) continue;
     const weightedResponse = responses === null ? 0 : weight * responses[i];
@@ -163,24 +165,25 @@ export function accumulateWeighted(
 }
 
 /**
- * One fused pass for least squares: residuals eᵢ = yᵢ − xᵢᵀβ (not stored), returning
- * Xᵀ W e (length p, term order) and Σ wᵢeᵢ².
+ * One fused pass for least squares over rows [from, to): residuals eᵢ = yᵢ − xᵢᵀβ (not
+ * stored, β given as per-cell and free parts), accumulating Σ wᵢeᵢ per cell into
+ * `cellResponse`, Σ fᵢₖwᵢeᵢ into `freeResponse`; returns Σ wᵢeᵢ².
  */
-export function residualCrossProduct(
+export function accumulateResiduals(
   design: DesignMatrix,
   weights: Float64Array | null,
   y: Float64Array,
-  coefficients: ArrayLike<number>,
-): { crossResidual: Float64Array; sumOfSquares: number } {
+  cellEta: Float64Array,
+  freeBeta: Float64Array,
+  accumulator: CrossProductAccumulator,
+  from: number,
+  to: number,
+): number {
   const r = design.freeTerms.length;
-  const q = design.cellTerms.length;
   const { free, cellOfRow } = design;
-  const cellEta = cellLinearPredictor(design, coefficients, new Float64Array(design.cellCount));
-  const freeBeta = freeCoefficients(design, coefficients, new Float64Array(r));
-  const cellResidual = new Float64Array(design.cellCount);
-  const freeResidual = new Float64Array(r);
+  const { cellResponse, freeResponse } = accumulator;
   let sumOfSquares = 0;
-  for (let i = 0; i < design.rows; i++) {
+  for (let i = from; i < to; i++) {
     const weight = weights === null ? 1 : weights[i];
     if (weight === 0) continue;
     const cell = cellOfRow[i];
@@ -190,17 +193,24 @@ export function residualCrossProduct(
     const residual = y[i] - fitted;
     const weighted = weight * residual;
     sumOfSquares += weighted * residual;
-    cellResidual[cell] += weighted;
-    for (let k = 0; k < r; k++) freeResidual[k] += free[base + k] * weighted;
+    cellResponse[cell] += weighted;
+    for (let k = 0; k < r; k++) freeResponse[k] += free[base + k] * weighted;
   }
+  return sumOfSquares;
+}
+
+/** Xᵀ W e in term order from residual sums accumulated by {@link accumulateResiduals}. */
+export function assembleResidualCrossProduct(design: DesignMatrix, accumulator: CrossProductAccumulator): Float64Array {
+  const q = design.cellTerms.length;
+  const r = design.freeTerms.length;
   const crossResidual = new Float64Array(design.columns);
   for (let cell = 0; cell < design.cellCount; cell++) {
-    const value = cellResidual[cell];
+    const value = accumulator.cellResponse[cell];
     if (value === 0) continue;
     for (let t = 0; t < q; t++) crossResidual[design.cellTerms[t]] += design.cellValues[cell * q + t] * value;
   }
-  for (let k = 0; k < r; k++) crossResidual[design.freeTerms[k]] += freeResidual[k];
-  return { crossResidual, sumOfSquares };
+  for (let k = 0; k < r; k++) crossResidual[design.freeTerms[k]] += accumulator.freeResponse[k];
+  return crossResidual;
 }
 
 /**

@@ -5,6 +5,7 @@ import type { EngineWarning, ModelFamily } from '../types.js';
 import { fitGeneralizedLinearModel, InvalidStepError, type GlmFamily, type GlmFit } from './iterativelyReweightedLeastSquares.js';
 import { fitOrdinaryLeastSquares } from './ordinaryLeastSquares.js';
 import { poissonSandwichVariance } from './poissonSandwichVariance.js';
+import type { PassPool } from '../threads/passPool.js';
 
 /** A fitted model as the measures need it. */
 export interface ModelFit {
@@ -36,6 +37,8 @@ export interface ModelFit {
 
 export interface FitOptions {
   readonly standardErrors?: 'model' | 'hc3';
+  /** Helper threads for the passes over the rows (results are identical without them). */
+  readonly parallel?: PassPool | null;
 }
 
 /** Pivot ratios below this (VIF above 1e8) earn a near-collinearity warning. */
@@ -98,12 +101,16 @@ function meanOf(values: Float64Array): number {
  *
  * @throws SingularDesignError naming the aliased term; FitFailedError when no fit is possible.
  */
-export function fitModel(design: DesignMatrix, y: Float64Array, model: ModelFamily, options: FitOptions = {}): ModelFit {
+export function fitModel(inputDesign: DesignMatrix, inputY: Float64Array, model: ModelFamily, options: FitOptions = {}): ModelFit {
   const warnings: EngineWarning[] = [];
+  const attached = options.parallel ? options.parallel.attach(inputDesign, inputY) : null;
+  const design = attached?.design ?? inputDesign;
+  const y = attached?.y ?? inputY;
+  const parallel = attached === null ? null : { runner: attached.runner, buffers: attached.buffers };
   try {
     if (model === 'linear') {
       const useHC3 = options.standardErrors === 'hc3';
-      const fit = fitOrdinaryLeastSquares({ design, y, computeHC3: true });
+      const fit = fitOrdinaryLeastSquares({ design, y, computeHC3: true, parallel });
       return {
         family: 'linear',
         requestedFamily: 'linear',
@@ -132,7 +139,7 @@ export function fitModel(design: DesignMatrix, y: Float64Array, model: ModelFami
       start[0] = Math.log(meanOf(y));
       let reason: string | null = null;
       try {
-        const fit = fitGeneralizedLinearModel({ design, y, family: 'binomial-log', start });
+        const fit = fitGeneralizedLinearModel({ design, y, family: 'binomial-log', start, parallel });
         if (!fit.converged) reason = 'it did not converge in 25 iterations';
         else if (fit.maxFittedMean > 1 - 1e-6) reason = 'its estimate lies on the boundary (a fitted risk of 1)';
         else return fromGlm('log-binomial', 'log-binomial', design, y, fit, warnings);
@@ -147,10 +154,10 @@ export function fitModel(design: DesignMatrix, y: Float64Array, model: ModelFami
         code: 'LOG_BINOMIAL_FALLBACK',
         message: `The log-binomial model failed (${reason}), so risk ratios come from a modified Poisson model (Poisson regression with robust standard errors) instead.`,
       });
-      const fallback = fitGeneralizedLinearModel({ design, y, family: 'poisson-log' });
+      const fallback = fitGeneralizedLinearModel({ design, y, family: 'poisson-log', parallel });
       return fromGlm('modified-poisson', 'log-binomial', design, y, fallback, warnings);
     }
-    const fit = fitGeneralizedLinearModel({ design, y, family: glmFamilyOf(model) });
+    const fit = fitGeneralizedLinearModel({ design, y, family: glmFamilyOf(model), parallel });
     return fromGlm(model, model, design, y, fit, warnings);
   } catch (error) {
     if (error instanceof NotPositiveDefiniteError) throw singular(design, error);

@@ -1,16 +1,10 @@
 import { choleskyFactor, choleskyInverse, choleskySolve, type CholeskyFactor } from '../core/symmetricPositiveDefinite.js';
 import type { DesignMatrix } from '../design/designMatrix.js';
-import {
-  assembleCrossProducts,
-  cellLinearPredictor,
-  createAccumulator,
-  freeCoefficients,
-  resetAccumulator,
-  type CrossProductAccumulator,
-} from './crossProductAccumulator.js';
+import { createPassBuffers, executePass, setCoefficients, type ParallelPassRunner, type PassBuffers } from './blockedPasses.js';
+import { assembleCrossProducts } from './crossProductAccumulator.js';
+import type { GlmFamily, PassTotals } from './glmPasses.js';
 
-/** The generalized linear models the engine fits by IRLS. */
-export type GlmFamily = 'binomial-logit' | 'poisson-log' | 'binomial-log';
+export type { GlmFamily } from './glmPasses.js';
 
 export interface GlmInput {
   readonly design: DesignMatrix;
@@ -25,6 +19,14 @@ export interface GlmInput {
   readonly epsilon?: number;
   /** Skip the covariance (bootstrap replicates need only the coefficients). */
   readonly computeCovariance?: boolean;
+  /** Split each pass across threads (buffers attached to the runner's helpers). */
+  readonly parallel?: ParallelContext | null;
+}
+
+/** A thread runner with the shared buffers it was attached to for this design and outcome. */
+export interface ParallelContext {
+  readonly runner: ParallelPassRunner;
+  readonly buffers: PassBuffers;
 }
 
 export interface GlmFit {
@@ -57,241 +59,26 @@ export class InvalidStepError extends Error {
   }
 }
 
-const BOUNDARY_EPSILON = 10 * Number.EPSILON;
-
-export interface PassTotals {
-  deviance: number;
-  logLikelihood: number;
-  invalid: boolean;
-  boundaryCount: number;
-  maxMean: number;
-  weightSum: number;
-}
-
-export function newTotals(): PassTotals {
-  return { deviance: 0, logLikelihood: 0, invalid: false, boundaryCount: 0, maxMean: 0, weightSum: 0 };
-}
-
-/**
- * One pass over rows [from, to): at the linear predictor (cell part + free part), or at
- * R's starting means when `fromStart`, accumulate the sums behind XᵀWX and XᵀWz for the
- * next step, with the deviance and log-likelihood at the current coefficients. Working
- * weights and responses are those of McCullagh and Nelder (1989, §2.5):
- * w = (dμ/dη)²/V(μ), z = η + (y − μ)/(dμ/dη); w·z is formed as w·η + r with
- * r = (y − μ)(dμ/dη)/V(μ) to avoid dividing by small derivatives.
- *
- * There is one copy of the loop per family so that each stays monomorphic in the JIT.
- */
-export type PassFunction = (
-  design: DesignMatrix,
-  y: Float64Array,
-  priorWeights: Float64Array | null,
-  cellEta: Float64Array,
-  freeBeta: Float64Array,
-  fromStart: boolean,
-  accumulator: CrossProductAccumulator,
-  totals: PassTotals,
-  from: number,
-  to: number,
-) => void;
-
-const logisticPass: PassFunction = (design, y, priorWeights, cellEta, freeBeta, fromStart, accumulator, totals, from, to) => {
-  const r = design.freeTerms.length;
-  const { free, cellOfRow } = design;
-  const { cellWeight, cellResponse, cellFree, freeFree, freeResponse } = accumulator;
-  let deviance = 0;
-  let boundaryCount = 0;
-  let maxMean = 0;
-  let weightSum = 0;
-  for (let i = from; i < to; i++) {
-    const prior = priorWeights === null ? 1 : priorWeights[i];
-    if (prior === 0) continue;
-    weightSum += prior;
-    const cell = cellOfRow[i];
-    const base = i * r;
-    const response = y[i];
-    let eta = cellEta[cell];
-    for (let k = 0; k < r; k++) eta += free[base + k] * freeBeta[k];
-    if (fromStart) {
-      const start = (prior * response + 0.5) / (prior + 1); // R binomial(): mustart
-      eta = Math.log(start / (1 - start));
-    }
-    const e = Math.exp(-Math.abs(eta));
-    const onePlus = 1 + e;
-    const mean = eta >= 0 ? 1 / onePlus : e / onePlus;
-    const weight = (prior * e) / (onePlus * onePlus);
-    const weightedResponse = weight * eta + prior * (response - mean);
-    // −log μ = log(1 + e^(−η)) and −log(1 − μ) = log(1 + e^η), without overflow.
-    const logOnePlus = Math.log(onePlus);
-    const minusLogMean = eta >= 0 ? logOnePlus : logOnePlus - eta;
-    deviance += 2 * prior * (minusLogMean + (1 - response) * eta);
-    if (mean < BOUNDARY_EPSILON || mean > 1 - BOUNDARY_EPSILON) boundaryCount++;
-    if (mean > maxMean) maxMean = mean;
-    cellWeight[cell] += weight;
-    cellResponse[cell] += weightedResponse;
-    const cellBase = cell * r;
-    for (let k = 0; k < r; k++) {
-      const value = free[base + k];
-      const weighted = weight * value;
-      cellFree[cellBase + k] += weighted;
-      freeResponse[k] += value * weightedResponse;
-      const rowStart = k * r;
-      for (let l = k; l < r; l++) freeFree[rowStart + l] += weighted * free[base + l];
-    }
-  }
-  totals.deviance += deviance;
-  totals.logLikelihood += -0.5 * deviance; // 0/1 outcomes: the saturated log-likelihood is 0
-  totals.boundaryCount += boundaryCount;
-  totals.maxMean = Math.max(totals.maxMean, maxMean);
-  totals.weightSum += weightSum;
-};
-
-/** ln(y!) for a non-negative integer count (0 for y ≤ 1). */
-function logFactorial(value: number): number {
-  let total = 0;
-  for (let k = 2; k <= value; k++) total += Math.log(k);
-  return total;
-}
-
-const poissonPass: PassFunction = (design, y, priorWeights, cellEta, freeBeta, fromStart, accumulator, totals, from, to) => {
-  const r = design.freeTerms.length;
-  const { free, cellOfRow } = design;
-  const { cellWeight, cellResponse, cellFree, freeFree, freeResponse } = accumulator;
-  let deviance = 0;
-  let logLikelihood = 0;
-  let maxMean = 0;
-  let weightSum = 0;
-  for (let i = from; i < to; i++) {
-    const prior = priorWeights === null ? 1 : priorWeights[i];
-    if (prior === 0) continue;
-    weightSum += prior;
-    const cell = cellOfRow[i];
-    const base = i * r;
-    const response = y[i];
-    let eta = cellEta[cell];
-    for (let k = 0; k < r; k++) eta += free[base + k] * freeBeta[k];
-    if (fromStart) eta = Math.log(response + 0.1); // R poisson(): mustart = y + 0.1
-    const mean = Math.exp(eta);
-    const weight = prior * mean;
-    const weightedResponse = weight * eta + prior * (response - mean);
-    if (response > 0) {
-      deviance += 2 * prior * (response * (Math.log(response) - eta) - (response - mean));
-      logLikelihood += prior * (response * eta - mean - logFactorial(response));
-    } else {
-      deviance += 2 * prior * mean;
-      logLikelihood -= prior * mean;
-    }
-    if (mean > maxMean) maxMean = mean;
-    cellWeight[cell] += weight;
-    cellResponse[cell] += weightedResponse;
-    const cellBase = cell * r;
-    for (let k = 0; k < r; k++) {
-      const value = free[base + k];
-      const weighted = weight * value;
-      cellFree[cellBase + k] += weighted;
-      freeResponse[k] += value * weightedResponse;
-      const rowStart = k * r;
-      for (let l = k; l < r; l++) freeFree[rowStart + l] += weighted * free[base + l];
-    }
-  }
-  totals.deviance += deviance;
-  totals.logLikelihood += logLikelihood;
-  totals.maxMean = Math.max(totals.maxMean, maxMean);
-  totals.weightSum += weightSum;
-};
-
-const logBinomialPass: PassFunction = (design, y, priorWeights, cellEta, freeBeta, fromStart, accumulator, totals, from, to) => {
-  const r = design.freeTerms.length;
-  const { free, cellOfRow } = design;
-  const { cellWeight, cellResponse, cellFree, freeFree, freeResponse } = accumulator;
-  let deviance = 0;
-  let boundaryCount = 0;
-  let maxMean = 0;
-  let weightSum = 0;
-  let invalid = false;
-  for (let i = from; i < to; i++) {
-    const prior = priorWeights === null ? 1 : priorWeights[i];
-    if (prior === 0) continue;
-    weightSum += prior;
-    const cell = cellOfRow[i];
-    const base = i * r;
-    const response = y[i];
-    let eta = cellEta[cell];
-    for (let k = 0; k < r; k++) eta += free[base + k] * freeBeta[k];
-    if (fromStart) eta = Math.log((prior * response + 0.5) / (prior + 1));
-    const mean = Math.exp(eta);
-    if (mean > maxMean) maxMean = mean;
-    if (!(mean < 1)) {
-      invalid = true; // R's binomial validmu: 0 < μ < 1
-      continue;
-    }
-    const complement = 1 - mean;
-    const weight = (prior * mean) / complement;
-    const weightedResponse = weight * eta + (prior * (response - mean)) / complement;
-    deviance += 2 * prior * (-response * eta - (1 - response) * Math.log(complement));
-    if (mean < BOUNDARY_EPSILON || mean > 1 - BOUNDARY_EPSILON) boundaryCount++;
-    cellWeight[cell] += weight;
-    cellResponse[cell] += weightedResponse;
-    const cellBase = cell * r;
-    for (let k = 0; k < r; k++) {
-      const value = free[base + k];
-      const weighted = weight * value;
-      cellFree[cellBase + k] += weighted;
-      freeResponse[k] += value * weightedResponse;
-      const rowStart = k * r;
-      for (let l = k; l < r; l++) freeFree[rowStart + l] += weighted * free[base + l];
-    }
-  }
-  totals.deviance += deviance;
-  totals.logLikelihood += -0.5 * deviance;
-  totals.boundaryCount += boundaryCount;
-  totals.maxMean = Math.max(totals.maxMean, maxMean);
-  totals.weightSum += weightSum;
-  totals.invalid = totals.invalid || invalid;
-};
-
-export const PASS_FUNCTIONS: Readonly<Record<GlmFamily, PassFunction>> = {
-  'binomial-logit': logisticPass,
-  'poisson-log': poissonPass,
-  'binomial-log': logBinomialPass,
-};
-
 /** Workspace of one fit, reused across its iterations. */
 interface Workspace {
-  accumulator: CrossProductAccumulator;
   crossProduct: Float64Array;
   crossResponse: Float64Array;
-  cellEta: Float64Array;
-  freeBeta: Float64Array;
 }
 
 function createWorkspace(design: DesignMatrix): Workspace {
   const p = design.columns;
-  return {
-    accumulator: createAccumulator(design),
-    crossProduct: new Float64Array(p * p),
-    crossResponse: new Float64Array(p),
-    cellEta: new Float64Array(design.cellCount),
-    freeBeta: new Float64Array(design.freeTerms.length),
-  };
+  return { crossProduct: new Float64Array(p * p), crossResponse: new Float64Array(p) };
 }
 
-function runPass(input: GlmInput, coefficients: Float64Array | null, workspace: Workspace): PassTotals {
+function runPass(input: GlmInput, buffers: PassBuffers, coefficients: Float64Array | null, workspace: Workspace): PassTotals {
   const { design } = input;
-  resetAccumulator(workspace.accumulator);
-  if (coefficients !== null) {
-    cellLinearPredictor(design, coefficients, workspace.cellEta);
-    freeCoefficients(design, coefficients, workspace.freeBeta);
-  } else {
-    workspace.cellEta.fill(0);
-    workspace.freeBeta.fill(0);
-  }
-  const totals = newTotals();
-  PASS_FUNCTIONS[input.family](
-    design, input.y, input.priorWeights ?? null, workspace.cellEta, workspace.freeBeta,
-    coefficients === null, workspace.accumulator, totals, 0, design.rows,
+  setCoefficients(design, buffers, coefficients);
+  const { accumulator, totals } = executePass(
+    design, input.y, input.priorWeights ?? null, buffers,
+    { kind: 'glm', family: input.family, fromStart: coefficients === null },
+    input.parallel?.runner ?? null,
   );
-  assembleCrossProducts(design, workspace.accumulator, workspace.crossProduct, workspace.crossResponse);
+  assembleCrossProducts(design, accumulator, workspace.crossProduct, workspace.crossResponse);
   return totals;
 }
 
@@ -306,7 +93,8 @@ function runPass(input: GlmInput, coefficients: Float64Array | null, workspace: 
  * |dev − dev_old|/(|dev| + 0.1) < ε (ε = 1e-8, at most 25 iterations); a step giving a
  * non-finite deviance or an invalid mean (μ ≥ 1 under the log-binomial) is halved towards
  * the previous coefficients; the returned (XᵀWX)⁻¹ uses the weights of the last step, as
- * R's summary.glm does.
+ * R's summary.glm does. Passes are summed in fixed row blocks (blockedPasses.ts), so the
+ * result does not depend on the number of threads.
  *
  * @throws NotPositiveDefiniteError (from the Cholesky factor) when the design is singular;
  *   InvalidStepError when step-halving cannot find valid means.
@@ -320,9 +108,10 @@ export function fitGeneralizedLinearModel(input: GlmInput): GlmFit {
   const computeCovariance = input.computeCovariance ?? true;
   let current = createWorkspace(input.design);
   let next = createWorkspace(input.design);
+  const buffers = input.parallel?.buffers ?? createPassBuffers(input.design, false);
 
   let previousCoefficients: Float64Array | null = input.start ? Float64Array.from(input.start) : null;
-  let totals = runPass(input, previousCoefficients, current);
+  let totals = runPass(input, buffers, previousCoefficients, current);
   if (totals.invalid || !Number.isFinite(totals.deviance)) {
     throw new InvalidStepError('the starting values give invalid fitted means');
   }
@@ -337,7 +126,7 @@ export function fitGeneralizedLinearModel(input: GlmInput): GlmFit {
     iterations = iteration;
     factor = choleskyFactor(current.crossProduct, p);
     let candidate = choleskySolve(factor, current.crossResponse);
-    let candidateTotals = runPass(input, candidate, next);
+    let candidateTotals = runPass(input, buffers, candidate, next);
     let halvings = 0;
     while (candidateTotals.invalid || !Number.isFinite(candidateTotals.deviance)) {
       if (previousCoefficients === null) throw new InvalidStepError('no valid set of coefficients was found; supply starting values');
@@ -346,7 +135,7 @@ export function fitGeneralizedLinearModel(input: GlmInput): GlmFit {
       const halved = new Float64Array(p);
       for (let j = 0; j < p; j++) halved[j] = 0.5 * (candidate[j] + previousCoefficients[j]);
       candidate = halved;
-      candidateTotals = runPass(input, candidate, next);
+      candidateTotals = runPass(input, buffers, candidate, next);
     }
     coefficients = candidate;
     totals = candidateTotals;

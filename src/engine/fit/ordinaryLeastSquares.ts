@@ -1,13 +1,15 @@
 import { choleskyFactor, choleskyInverse, choleskySolve, multiply } from '../core/symmetricPositiveDefinite.js';
 import type { DesignMatrix } from '../design/designMatrix.js';
+import { createPassBuffers, executePass, setCoefficients } from './blockedPasses.js';
 import {
   accumulateWeighted,
   assembleCrossProducts,
+  assembleResidualCrossProduct,
   createAccumulator,
   leverages,
   linearPredictor,
-  residualCrossProduct,
 } from './crossProductAccumulator.js';
+import type { ParallelContext } from './iterativelyReweightedLeastSquares.js';
 
 export interface LeastSquaresFit {
   readonly coefficients: Float64Array;
@@ -34,6 +36,8 @@ export interface LeastSquaresInput {
   readonly computeHC3?: boolean;
   /** Coefficients only (bootstrap replicates). */
   readonly coefficientsOnly?: boolean;
+  /** Split the passes across threads. */
+  readonly parallel?: ParallelContext | null;
 }
 
 /**
@@ -55,8 +59,10 @@ export function fitOrdinaryLeastSquares(input: LeastSquaresInput): LeastSquaresF
   const { design, y } = input;
   const weights = input.priorWeights ?? null;
   const p = design.columns;
-  const accumulator = createAccumulator(design);
-  accumulateWeighted(design, weights, y, accumulator);
+  const buffers = input.parallel?.buffers ?? createPassBuffers(design, false);
+  const runner = input.parallel?.runner ?? null;
+  setCoefficients(design, buffers, null);
+  const { accumulator } = executePass(design, y, weights, buffers, { kind: 'weighted' }, runner);
   const crossProduct = new Float64Array(p * p);
   const crossResponse = new Float64Array(p);
   assembleCrossProducts(design, accumulator, crossProduct, crossResponse);
@@ -65,7 +71,9 @@ export function fitOrdinaryLeastSquares(input: LeastSquaresInput): LeastSquaresF
   const coefficients = choleskySolve(factor, crossResponse);
 
   // One step of iterative refinement: the correction δ solves XᵀWX δ = XᵀW(y − Xβ).
-  const first = residualCrossProduct(design, weights, y, coefficients);
+  setCoefficients(design, buffers, coefficients);
+  const residualPass = executePass(design, y, weights, buffers, { kind: 'residual' }, runner);
+  const first = { crossResidual: assembleResidualCrossProduct(design, residualPass.accumulator), sumOfSquares: residualPass.totals.deviance };
   const delta = choleskySolve(factor, first.crossResidual);
   for (let j = 0; j < p; j++) coefficients[j] += delta[j];
   const residualDf = weightSum - p;
