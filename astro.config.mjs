@@ -7,6 +7,7 @@ import tailwindcss from '@tailwindcss/vite';
 // Host names the server believes in its Host header (and so in url.origin, which the
 // origin checks compare against). Loopback always; the public host when configured at
 // build time through CROSSGRAIN_PUBLIC_URL.
+/** @type {{ hostname: string; protocol?: string }[]} */
 const allowedDomains = [{ hostname: '127.0.0.1' }, { hostname: 'localhost' }];
 if (process.env.CROSSGRAIN_PUBLIC_URL) {
   const publicUrl = new URL(process.env.CROSSGRAIN_PUBLIC_URL);

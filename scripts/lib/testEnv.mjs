@@ -27,5 +27,7 @@ export function testEnvironment() {
     CROSSGRAIN_TEST_APP_URL: `http://127.0.0.1:${testSettings.appPort}`,
     CROSSGRAIN_ARTIFACTS_DIR: testSettings.artifacts,
     CROSSGRAIN_LOG_FORMAT: 'json',
+    // Small enough that the size-limit test streams only a few megabytes.
+    CROSSGRAIN_UPLOAD_MAX_BYTES: String(8 * 1024 * 1024),
   };
 }

@@ -4,7 +4,7 @@
  * Chromium driven by playwright-core. Each test file starts what it needs and closes it.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
-import { mkdirSync } from 'node:fs';
+import { mkdirSync, openSync } from 'node:fs';
 import path from 'node:path';
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
 import { startMailServer, type MailServerHandle } from '../../src/lib/server/mailServer';
@@ -48,10 +48,12 @@ export interface ServerHandle {
 export async function startServer(): Promise<ServerHandle> {
   const url = new URL(appUrl);
   const mail = await startMailServer({ port: Number(process.env.CROSSGRAIN_SMTP_PORT ?? 2529), dir: mailDir });
+  mkdirSync(artifacts, { recursive: true });
+  const log = openSync(path.join(artifacts, 'test-server.log'), 'a');
   const server = spawn(process.execPath, [path.join(root, 'dist/server/entry.mjs')], {
     cwd: root,
-    env: { ...process.env, HOST: url.hostname, PORT: url.port },
-    stdio: ['ignore', 'ignore', 'pipe'],
+    env: { ...process.env, HOST: url.hostname, PORT: url.port, LOG_LEVEL: 'warn' },
+    stdio: ['ignore', log, 'pipe'],
   });
   let serverErrors = '';
   server.stderr?.on('data', (chunk: Buffer) => {

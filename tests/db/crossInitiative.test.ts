@@ -19,7 +19,7 @@ const teams: Team[] = [];
 beforeAll(async () => {
   for (const name of ['Harbour ward', 'Ridge ward']) {
     const initiative = await makeInitiative(name);
-    const users = [];
+    const users: { id: string }[] = [];
     for (const role of ['analyst', 'clinician', 'auditor'] as const) {
       const user = await makeUser();
       await addMember(initiative.id, user.id, role);

@@ -141,3 +141,23 @@ export const VersionStatus = z.discriminatedUnion('status', [
   z.object({ status: z.literal('refused'), reasons: z.array(RefusalReason), findings: z.array(Finding) }),
 ]);
 export type VersionStatus = z.infer<typeof VersionStatus>;
+
+/** Query of POST /api/initiatives/{initiativeId}/extracts. */
+export const NewExtractQuery = z.object({
+  name: z.string().trim().min(1, 'Give the extract a name (the query parameter "name").').max(120, 'Keep the name under 120 characters.'),
+});
+export type NewExtractQuery = z.infer<typeof NewExtractQuery>;
+
+/** Query of the row preview. */
+export const RowsQuery = z.object({
+  page: z.coerce.number().int().min(1).default(1),
+  pageSize: z.coerce.number().int().min(1).max(200).default(50),
+  sort: z.string().min(1).max(200).optional(),
+  direction: z.enum(['asc', 'desc']).default('asc'),
+});
+export type RowsQuery = z.infer<typeof RowsQuery>;
+
+export const ArchiveBody = z.object({ archived: z.boolean() }).meta({ id: 'ArchiveExtractBody' });
+export type ArchiveBody = z.infer<typeof ArchiveBody>;
+
+export const UploadAccepted = z.object({ extractId: z.uuid(), versionId: z.uuid() }).meta({ id: 'UploadAccepted' });

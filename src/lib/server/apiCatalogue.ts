@@ -9,6 +9,7 @@ import {
   CreateInitiativeBody, InitiativeItem, InviteUserBody, SetMembershipBody, UpdateInitiativeBody, UpdateUserBody, UserListItem,
 } from '../../features/admin/admin.schema';
 import { ApiTokenView, CreateApiTokenBody, CreatedApiToken, ForgotPasswordBody, MeResponse, SetPasswordBody, SignInBody } from '../../features/auth/auth.schema';
+import { ArchiveBody, ConfirmVersionBody, NewExtractQuery, RowsQuery, UploadAccepted } from '../../features/extracts/extracts.schema';
 import { OutboxQuery } from './outbox';
 
 export type Auth = 'none' | 'session' | 'admin';
@@ -79,6 +80,20 @@ export const OPERATIONS: Operation[] = [
   { method: 'DELETE', path: '/api/admin/initiatives/{id}/members/{userId}', tag: 'Administration', summary: 'Remove a person from an initiative', auth: 'admin', status: 204 },
   { method: 'GET', path: '/api/admin/outbox', tag: 'Administration', summary: 'Messages kept by the local mail server (local mail mode only)', auth: 'admin', query: OutboxQuery, status: 200 },
   { method: 'GET', path: '/api/admin/outbox/{id}', tag: 'Administration', summary: 'One message as the recipient sees it (local mail mode only)', auth: 'admin', status: 200 },
+
+  { method: 'GET', path: '/api/initiatives/{initiativeId}/extracts', tag: 'Extracts', summary: "The initiative's extracts", auth: 'session', status: 200 },
+  { method: 'POST', path: '/api/initiatives/{initiativeId}/extracts', tag: 'Extracts', summary: 'Upload a new extract (CSV as the raw body or a multipart file)', auth: 'session',
+    query: NewExtractQuery, body: z.string().describe('The CSV file: header row, comma, semicolon or tab delimited, UTF-8.'), bodyType: 'text/csv', response: UploadAccepted, status: 202,
+    description: 'Analysts. Refused at once (413, 415, 422 with the first bad line) when the file is not an acceptable CSV; the identifier screen, profile and storage run after the 202: poll GET /api/extracts/{extractId}.' },
+  { method: 'GET', path: '/api/extracts/{extractId}', tag: 'Extracts', summary: 'The extract and the status of each version (processing, needs-review, ready, refused, failed)', auth: 'session', status: 200 },
+  { method: 'POST', path: '/api/extracts/{extractId}/versions', tag: 'Extracts', summary: 'Upload version n+1 of an extract', auth: 'session',
+    body: z.string(), bodyType: 'text/csv', response: UploadAccepted, status: 202 },
+  { method: 'POST', path: '/api/extracts/{extractId}/versions/{versionId}/confirm', tag: 'Extracts', summary: 'Sign the attestation and confirm the data dictionary; the version becomes ready', auth: 'session',
+    body: ConfirmVersionBody, status: 204 },
+  { method: 'POST', path: '/api/extracts/{extractId}/versions/{versionId}/cancel', tag: 'Extracts', summary: 'Cancel an upload that is still being processed', auth: 'session', status: 200 },
+  { method: 'GET', path: '/api/extracts/{extractId}/versions/{versionId}/rows', tag: 'Extracts', summary: 'One page of rows, sorted on the server (audited)', auth: 'session', query: RowsQuery, status: 200,
+    description: 'Analysts; clinicians and auditors only where the initiative allows row previews.' },
+  { method: 'POST', path: '/api/extracts/{extractId}/archive', tag: 'Extracts', summary: 'Archive (hide from new analyses) or restore an extract', auth: 'session', body: ArchiveBody, status: 204 },
 
   { method: 'POST', path: '/api/audit/verify', tag: 'Audit', summary: 'Recompute the hash chain and report the first broken link', auth: 'session', response: ChainReport, status: 200,
     description: 'Auditors and administrators. The check itself is an audit event.' },

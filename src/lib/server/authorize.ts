@@ -32,3 +32,14 @@ export function can(user: SessionUser | null, action: Action, type: SubjectName,
   const ability = abilityOf(user);
   return Object.keys(fields).length === 0 ? ability.can(action, type) : ability.can(action, subject(type, fields));
 }
+
+/**
+ * The caller's membership of an initiative, or 404 when they have none (so outsiders do
+ * not learn that the initiative exists). Signed-out callers get 401.
+ */
+export function requireMember(user: SessionUser | null, initiativeId: string): SessionUser['memberships'][number] {
+  if (!user) throw unauthenticated();
+  const membership = user.memberships.find((m) => m.initiativeId === initiativeId);
+  if (!membership) throw notFound('That initiative');
+  return membership;
+}

@@ -7,7 +7,8 @@ import { env, isProduction } from './env';
  * is a safety net, not permission.
  */
 export const logger = pino({
-  level: env.CROSSGRAIN_ENV === 'test' ? 'silent' : env.LOG_LEVEL,
+  // Tests are quiet unless LOG_LEVEL asks otherwise (the test server logs errors to a file).
+  level: env.CROSSGRAIN_ENV === 'test' && !process.env.LOG_LEVEL ? 'silent' : env.LOG_LEVEL,
   base: { app: 'crossgrain' },
   redact: {
     paths: ['password', '*.password', 'token', '*.token', 'cookie', '*.cookie', 'req.headers.cookie', 'req.headers.authorization'],
