@@ -1,0 +1,334 @@
+import { parse } from 'csv-parse/sync';
+import { beforeAll, describe, expect, it } from 'vitest';
+import type { Result } from '../../engine/boundary/schemas';
+import { CAUTION_VERSION, RESULT_CAUTIONS } from '../../lib/cautions';
+import {
+  buildResultTables,
+  CSV_COLUMNS,
+  csvField,
+  csvRecord,
+  fixed,
+  formatInterval,
+  formatP,
+  formatRatio,
+  johnsonNeymanSentence,
+  MINUS,
+  multiplicityNote,
+  resultCsv,
+  type IntervalCell,
+} from './resultTables';
+import { CALL_BACK_SPEC, engineResult, UP_AND_ABOUT_SPEC } from './testSupport';
+
+/**
+ * Independent formatter for the checks below, written from the stated rules rather than
+ * imported: 2 decimals for ratios, "a (b to c)", U+2212 for the minus sign.
+ */
+function twoDecimals(value: number): string {
+  const text = value.toFixed(2);
+  return text === '-0.00' ? '0.00' : text.replace('-', '\u2212');
+}
+
+function expectInterval(cell: IntervalCell | null | undefined, source: { estimate: number | null; lower: number | null; upper: number | null } | null | undefined) {
+  expect(cell).toBeTruthy();
+  expect(source).toBeTruthy();
+  expect(cell!.estimate).toBe(source!.estimate);
+  expect(cell!.lower).toBe(source!.lower);
+  expect(cell!.upper).toBe(source!.upper);
+  expect(cell!.text).toBe(`${twoDecimals(source!.estimate!)} (${twoDecimals(source!.lower!)} to ${twoDecimals(source!.upper!)})`);
+}
+
+describe('number formats', () => {
+  it('follows the rules for ratios, p-values, minus signs and intervals', () => {
+    expect(formatRatio(1.2349)).toBe('1.23');
+    expect(formatRatio(0.0042)).toBe('0.0042');
+    expect(formatRatio(null)).toBe('—');
+    expect(formatP(0.0004)).toBe('<0.001');
+    expect(formatP(0.001)).toBe('0.001');
+    expect(formatP(0.04023)).toBe('0.040');
+    expect(formatP(1)).toBe('1.000');
+    expect(fixed(-0.004, 2)).toBe('0.00');
+    expect(fixed(-1.5, 2)).toBe(`${MINUS}1.50`);
+    expect(formatInterval(1.23, 0.98, 1.54, 'ratio')).toBe('1.23 (0.98 to 1.54)');
+    expect(formatInterval(-0.05, -0.12, 0.02, 'difference')).toBe(`${MINUS}0.05 (${MINUS}0.12 to 0.02)`);
+    expect(formatInterval(1.5, null, null, 'ratio')).toBe('1.50 (—)');
+  });
+});
+
+describe('tables of a categorical modifier (Call-back, logistic, real engine result)', () => {
+  let result: Result;
+  beforeAll(async () => {
+    result = await engineResult('call-back', CALL_BACK_SPEC);
+  });
+
+  it('lays out every intervention × modifier cell against one reference, with counts from the result', () => {
+    const tables = buildResultTables(result, CALL_BACK_SPEC);
+    expect(tables.joint).not.toBeNull();
+    const joint = tables.joint!;
+    expect(joint.rows.map((row) => row.level)).toEqual(['18-44', '45-64', '65-79', '80+']);
+    expect(joint.exposureLevels).toEqual(['0', '1']);
+    expect(joint.referenceLabel).toBe('call_back = 0, age_band = 18-44');
+    let cellsSeen = 0;
+    for (const row of joint.rows) {
+      for (const cell of row.cells) {
+        const source = result.joint!.cells.find((entry) => entry.modifier === row.level && entry.exposure === cell.exposure)!;
+        expect(cell.n.value).toBe(source.n);
+        expect(cell.n.text).toBe(source.n.toLocaleString('en-GB'));
+        expect(cell.events?.value).toBe(source.events);
+        expect(cell.outcome.value).toBe(source.risk);
+        expect(cell.outcome.text).toBe(`${(source.risk! * 100).toFixed(1)} %`);
+        if (source.effect === null) expect(cell.effect).toBeNull();
+        else expectInterval(cell.effect, source.effect);
+        cellsSeen++;
+      }
+    }
+    // 4 age bands × 2 arms.
+    expect(cellsSeen).toBe(8);
+    // The counts add up to the analysed rows.
+    expect(joint.rows.flatMap((row) => row.cells).reduce((sum, cell) => sum + (cell.n.value ?? 0), 0)).toBe(result.n);
+  });
+
+  it('shows the intervention effect within each level with raw and adjusted p-values', () => {
+    const tables = buildResultTables(result, CALL_BACK_SPEC);
+    for (const row of tables.joint!.rows) {
+      const stratum = result.strata.find((entry) => entry.level === row.level)!;
+      expectInterval(row.within.effect, stratum.effect);
+      expect(row.within.effect.testId).toBe(`stratum-effect-${row.level}`);
+      expect(row.within.p.value).toBe(stratum.effect.p);
+      expect(row.within.pHolm.value).toBe(stratum.pAdjusted.holm);
+      expect(row.within.p.text).toBe(stratum.effect.p! < 0.001 ? '<0.001' : stratum.effect.p!.toFixed(3));
+    }
+  });
+
+  it('gives RERI, AP, AP*, S and the ratio of odds ratios per non-reference level', () => {
+    const tables = buildResultTables(result, CALL_BACK_SPEC);
+    expect(tables.interaction.map((row) => row.level)).toEqual(['45-64', '65-79', '80+']);
+    for (const row of tables.interaction) {
+      const additive = result.interaction.additive.find((entry) => entry.level === row.level)!;
+      const multiplicative = result.interaction.multiplicative.find((entry) => entry.level === row.level)!;
+      expectInterval(row.reri, additive.reri);
+      expectInterval(row.ap, additive.ap);
+      expectInterval(row.apStar, additive.apStar);
+      if (additive.s) expectInterval(row.s, additive.s);
+      else expect(row.s).toBeNull();
+      expectInterval(row.multiplicative, multiplicative);
+      expect(row.multiplicative!.p.value).toBe(multiplicative.p);
+      expect(row.reri!.testId).toBe(`reri-${row.level}`);
+      expect(row.additiveMethod).toBe('delta method');
+    }
+  });
+
+  it('reports the omnibus test, the pooled estimate, the covariates and the model', () => {
+    const tables = buildResultTables(result, CALL_BACK_SPEC);
+    const omnibus = result.interaction.omnibus;
+    expect(tables.omnibus.label).toBe('Likelihood-ratio test of all product terms');
+    expect(tables.omnibus.p.value).toBe(omnibus.p);
+    expect(tables.omnibus.p.testId).toBe('omnibus-p');
+    expect(tables.omnibus.statistic.text).toBe(`χ² = ${twoDecimals(omnibus.statistic!)}`);
+    // Three product terms for four age bands.
+    expect(tables.omnibus.df).toBe('3 df');
+    expectInterval(tables.mantelHaenszel?.pooled, result.stratifiedTables!.mantelHaenszel.oddsRatio);
+    expect(tables.covariates.map((covariate) => covariate.text)).toEqual(['sex (reference F)', 'comorbidity_score', 'site (reference Tern Valley General)']);
+    expect(tables.modelLine).toContain(`${result.n.toLocaleString('en-GB')} rows analysed`);
+    expect(tables.modifierWithinArms.flatMap((row) => row.cells)).toHaveLength(result.modifierEffects.length);
+    for (const row of tables.modifierWithinArms) {
+      for (const cell of row.cells) {
+        expectInterval(cell.effect, result.modifierEffects.find((entry) => entry.level === row.level && entry.exposure === cell.exposure)!.effect);
+      }
+    }
+  });
+
+  it('says how many strata were examined and which adjustment is primary', () => {
+    expect(buildResultTables(result, CALL_BACK_SPEC).multiplicityNote).toBe(
+      "The intervention's effect was estimated in 4 strata of age_band, so 4 within-stratum tests were made. The primary p-values use the Holm adjustment across the 4 strata, " +
+        'which keeps the chance of any false alarm across them at or below 5 %. Judge effect modification by the interaction tests, not by which strata reach significance.',
+    );
+    // 1 − 0.95⁴ = 1 − 0.8145 = 0.1855 → 19 %.
+    expect(multiplicityNote({ ...result, multiplicity: 'none' })).toContain('can reach 19 %');
+  });
+
+  it('carries the engine warnings in words', () => {
+    const tables = buildResultTables(result, CALL_BACK_SPEC);
+    expect(tables.warnings.map((warning) => warning.message)).toEqual(result.warnings.map((warning) => warning.message));
+    // 1,709 events in 12,000 rows is 14 %, above the engine's 10 % threshold for a common outcome.
+    expect(tables.warnings.some((warning) => warning.code === 'COMMON_OUTCOME_OR_RERI')).toBe(true);
+  });
+
+  it('writes a CSV with the caution first, equal-width records and the unrounded numbers', () => {
+    const csv = resultCsv(result, CALL_BACK_SPEC);
+    const records = parse(csv, { relax_column_count: false }) as string[][];
+    expect(records.slice(0, RESULT_CAUTIONS.length).map((record) => [record[0], record[1]])).toEqual(RESULT_CAUTIONS.map((text) => ['Caution', text]));
+    expect(records[RESULT_CAUTIONS.length].slice(0, 2)).toEqual(['Caution version', CAUTION_VERSION]);
+    const headerIndex = records.findIndex((record) => record[0] === 'section');
+    expect(records[headerIndex]).toEqual([...CSV_COLUMNS]);
+    const rows = records.slice(headerIndex + 1).map((record) => Object.fromEntries(CSV_COLUMNS.map((name, i) => [name, record[i]])));
+    for (const stratum of result.strata) {
+      const row = rows.find((entry) => entry.section === 'within-stratum' && entry.level === stratum.level)!;
+      expect(Number(row.estimate)).toBe(stratum.effect.estimate);
+      expect(Number(row.lower)).toBe(stratum.effect.lower);
+      expect(Number(row.p_holm)).toBe(stratum.pAdjusted.holm);
+      expect(Number(row.n)).toBe(stratum.n);
+    }
+    const reri = rows.filter((entry) => entry.section === 'additive' && entry.measure === 'RERI');
+    expect(reri.map((entry) => Number(entry.estimate))).toEqual(
+      ['45-64', '65-79', '80+'].map((level) => result.interaction.additive.find((entry) => entry.level === level)!.reri!.estimate),
+    );
+    // A negative number we computed stays a plain number, not a neutralised text.
+    const negative = rows.find((entry) => entry.section === 'additive' && entry.estimate.startsWith('-'));
+    expect(negative).toBeDefined();
+    expect(Number.isFinite(Number(negative!.estimate))).toBe(true);
+    expect(rows.find((entry) => entry.section === 'omnibus')!.p).toBe(String(result.interaction.omnibus.p));
+    expect(csv.endsWith('\r\n')).toBe(true);
+  });
+});
+
+describe('preventive recoding', () => {
+  it('names the recoded reference cell that the engine used for the additive measures', async () => {
+    const spec = { ...CALL_BACK_SPEC, preventive: true };
+    const result = await engineResult('call-back', spec);
+    const tables = buildResultTables(result, spec);
+    const recoded = result.interaction.additive.filter((entry) => entry.reference.exposure !== '0' || entry.reference.modifier !== '18-44');
+    // The call lowers risk, so at least one level is recoded to a lower-risk reference.
+    expect(recoded.length).toBeGreaterThan(0);
+    for (const entry of recoded) {
+      const row = tables.interaction.find((view) => view.level === entry.level)!;
+      expect(row.recodedReference).toBe(`call_back = ${entry.reference.exposure}, age_band = ${entry.reference.modifier}`);
+    }
+  });
+});
+
+describe('tables of a continuous modifier (Up-and-about, linear, real engine result)', () => {
+  let result: Result;
+  beforeAll(async () => {
+    result = await engineResult('up-and-about', UP_AND_ABOUT_SPEC);
+  });
+
+  it('lists the simple slopes and the difference in differences from the result', () => {
+    const tables = buildResultTables(result, UP_AND_ABOUT_SPEC);
+    expect(tables.joint).toBeNull();
+    expect(tables.measure.code).toBe('MD');
+    const slopes = result.slopes!;
+    expect(tables.continuous!.slopes).toHaveLength(slopes.length);
+    tables.continuous!.slopes.forEach((row, index) => {
+      expectInterval(row.effect, slopes[index]);
+      expect(row.at.value).toBe(slopes[index].at);
+      expect(row.label).toBe(slopes[index].label);
+    });
+    const did = result.interaction.additive[0].differenceInDifferences!;
+    expectInterval(tables.interaction[0].differenceInDifferences, did);
+    expect(tables.interaction[0].reri).toBeNull();
+    expect(tables.omnibus.df).toBe(`1 and ${result.interaction.omnibus.df2!.toLocaleString('en-GB')} df`);
+  });
+
+  it('puts the Johnson-Neyman boundaries in words', () => {
+    const tables = buildResultTables(result, UP_AND_ABOUT_SPEC);
+    const jn = result.johnsonNeyman!;
+    expect(tables.continuous!.johnsonNeyman).toBe(johnsonNeymanSentence(jn, { modifier: 'frailty_score', alpha: result.alpha }));
+    // The synthetic truth is an effect of 0.15 − 0.35·frailty days, far from zero on all of 1 to 9,
+    // so the boundaries (if any) lie outside the observed range.
+    expect(tables.continuous!.johnsonNeyman).toMatch(/^The intervention's effect is significant at the 5 % level across the whole observed range of frailty_score \(1\.0 to 9\.0\)/);
+  });
+
+  it('gives a ratio model with a continuous modifier both a per-unit ratio and additive measures at +1 SD', async () => {
+    const spec = {
+      ...CALL_BACK_SPEC,
+      modifier: { column: 'comorbidity_score', type: 'continuous' as const },
+      covariates: CALL_BACK_SPEC.covariates.filter((covariate) => covariate.column !== 'comorbidity_score'),
+    };
+    const continuous = await engineResult('call-back', spec);
+    const tables = buildResultTables(continuous, spec);
+    const perUnit = tables.interaction.find((row) => row.level === 'per 1 unit of comorbidity_score')!;
+    expectInterval(perUnit.multiplicative, continuous.interaction.multiplicative[0]);
+    const plusSd = tables.interaction.find((row) => row.level === '+1 SD of comorbidity_score')!;
+    expectInterval(plusSd.reri, continuous.interaction.additive[0].reri);
+  });
+});
+
+describe('Johnson-Neyman sentences', () => {
+  const base = { observed: [1, 9] as [number, number], criticalValue: 1.96 };
+  const say = (jn: Omit<NonNullable<Result['johnsonNeyman']>, 'observed' | 'criticalValue'>) =>
+    johnsonNeymanSentence({ ...base, ...jn }, { modifier: 'frailty_score', alpha: 0.05 });
+
+  it('outside two boundaries within the range: below the first or above the second', () => {
+    expect(say({ bounds: [3.25, 6.5], significant: 'outside', boundsInRange: [true, true] })).toBe(
+      "The intervention's effect is significant at the 5 % level where frailty_score is below 3.3 or above 6.5 (observed range 1.0 to 9.0).",
+    );
+  });
+
+  it('outside, with only the lower boundary in range: below it', () => {
+    expect(say({ bounds: [4.2, 12], significant: 'outside', boundsInRange: [true, false] })).toBe(
+      "The intervention's effect is significant at the 5 % level where frailty_score is below 4.2 (observed range 1.0 to 9.0).",
+    );
+  });
+
+  it('outside, with both boundaries below the range: everywhere observed', () => {
+    expect(say({ bounds: [-0.41, 0.59], significant: 'outside', boundsInRange: [false, false] })).toBe(
+      "The intervention's effect is significant at the 5 % level across the whole observed range of frailty_score (1.0 to 9.0); the Johnson-Neyman boundaries (−0.4 and 0.6) lie outside the observed range.",
+    );
+  });
+
+  it('outside, with the range between the boundaries: nowhere observed', () => {
+    expect(say({ bounds: [0, 10], significant: 'outside', boundsInRange: [false, false] })).toBe(
+      "The intervention's effect is not significant at the 5 % level anywhere in the observed range of frailty_score (1.0 to 9.0); the Johnson-Neyman boundaries (0.0 and 10.0) lie outside the observed range.",
+    );
+  });
+
+  it('inside two boundaries: between them', () => {
+    expect(say({ bounds: [2, 5.5], significant: 'inside', boundsInRange: [true, true] })).toBe(
+      "The intervention's effect is significant at the 5 % level where frailty_score is between 2.0 and 5.5 (observed range 1.0 to 9.0).",
+    );
+  });
+
+  it('one boundary: above it for "outside", below it for "inside"', () => {
+    expect(say({ bounds: [4.2], significant: 'outside', boundsInRange: [true] })).toBe(
+      "The intervention's effect is significant at the 5 % level where frailty_score is above 4.2 (observed range 1.0 to 9.0).",
+    );
+    expect(say({ bounds: [4.2], significant: 'inside', boundsInRange: [true] })).toBe(
+      "The intervention's effect is significant at the 5 % level where frailty_score is below 4.2 (observed range 1.0 to 9.0).",
+    );
+  });
+
+  it('everywhere and nowhere', () => {
+    expect(say({ bounds: null, significant: 'everywhere', boundsInRange: [] })).toBe(
+      "The intervention's effect is significant at the 5 % level across the whole observed range of frailty_score (1.0 to 9.0).",
+    );
+    expect(say({ bounds: null, significant: 'nowhere', boundsInRange: [] })).toBe(
+      "The intervention's effect is not significant at the 5 % level anywhere in the observed range of frailty_score (1.0 to 9.0).",
+    );
+  });
+});
+
+describe('CSV fields (RFC 4180 and OWASP CSV Injection)', () => {
+  it('neutralises text that a spreadsheet would run as a formula', () => {
+    expect(csvField('=SUM(A1:A9)')).toBe("'=SUM(A1:A9)");
+    expect(csvField('+cmd')).toBe("'+cmd");
+    expect(csvField('-2+3')).toBe("'-2+3");
+    expect(csvField('@SUM(1)')).toBe("'@SUM(1)");
+    expect(csvField('\tcalc')).toBe("'\tcalc");
+    // CR and LF also force quoting.
+    expect(csvField('\rcalc')).toBe('"\'\rcalc"');
+    expect(csvField('\ncalc')).toBe('"\'\ncalc"');
+  });
+
+  it('quotes commas, quotes and line breaks', () => {
+    expect(csvField('Tern Valley, General')).toBe('"Tern Valley, General"');
+    expect(csvField('the "call"')).toBe('"the ""call"""');
+    expect(csvField('two\nlines')).toBe('"two\nlines"');
+    expect(csvField('=1,"2"')).toBe('"\'=1,""2"""');
+    expect(csvField('plain')).toBe('plain');
+  });
+
+  it('keeps computed numbers, negative ones included, as plain numbers and neutralises numeric-looking text', () => {
+    expect(csvField(-0.3118758157005014)).toBe('-0.3118758157005014');
+    expect(csvField(1e-7)).toBe('1e-7');
+    expect(csvField(Number.NaN)).toBe('');
+    expect(csvField(Number.POSITIVE_INFINITY)).toBe('');
+    expect(csvField(null)).toBe('');
+    expect(csvField('-1')).toBe("'-1");
+  });
+
+  it('round-trips through an RFC 4180 reader', () => {
+    const fields = ['=HYPERLINK("x")', 'a,b', 'line\r\nbreak', -2.5, null, '@x'];
+    const [record] = parse(csvRecord(fields)) as string[][];
+    expect(record).toEqual(["'=HYPERLINK(\"x\")", 'a,b', 'line\r\nbreak', '-2.5', '', "'@x"]);
+  });
+});
