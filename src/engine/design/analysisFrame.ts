@@ -260,8 +260,9 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
     }
   }
   let constantOutcome = true;
+  const firstOutcome = outcome[0];
   for (let i = 1; i < kept; i++) {
-    if (outcome[i] !== outcome[0]) {
+    if (outcome[i] !== firstOutcome) {
       constantOutcome = false;
       break;
     }

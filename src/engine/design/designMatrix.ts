@@ -69,9 +69,19 @@ const MAX_DISTINCT_IN_CELL = 16;
 function fewValueCodes(values: Float64Array, limit: number): { codes: Int32Array; values: Float64Array } | null {
   if (limit < 2) return null;
   const distinct: number[] = [];
+  let last = Number.NaN;
   for (let i = 0; i < values.length; i++) {
     const value = values[i];
-    if (distinct.includes(value)) continue;
+    if (value === last) continue; // runs and 0/1 flags mostly hit the last value seen
+    last = value;
+    let known = false;
+    for (let k = 0; k < distinct.length; k++) {
+      if (distinct[k] === value) {
+        known = true;
+        break;
+      }
+    }
+    if (known) continue;
     distinct.push(value);
     if (distinct.length > limit) return null;
   }
