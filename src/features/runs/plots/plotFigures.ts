@@ -1,0 +1,377 @@
+/**
+ * The data and layout of Crossgrain's three result plots, built from the engine's result
+ * alone (pure: no React, no plotly), plus the text alternative of each. Only scatter
+ * traces are used, which the plotly basic bundle includes: error_x for intervals,
+ * fill "tonexty" for bands, layout shapes for the null line, boundaries and ranges.
+ */
+import type { Result } from '../../../engine/boundary/schemas';
+import { percentText } from '../../analyses/specForm';
+import { displayLevels, fixed, formatInterval, formatNumber, johnsonNeymanSentence, measureInfo, modifierDecimals } from '../resultTables';
+
+/** Our palette (src/styles/global.css), as plotly needs literal colours. */
+export const PLOT_COLOURS = {
+  ink: '#18232b',
+  inkMuted: '#5d6b74',
+  rule: '#d6d0c1',
+  control: '#8f8877',
+  intervention: '#22536b',
+  pooled: '#7a520a',
+  band: 'rgba(63, 118, 144, 0.18)',
+  boundary: '#b4472f',
+  observed: '#f4f2ec',
+} as const;
+
+export type PlotTrace = Record<string, unknown>;
+export type PlotShape = Record<string, unknown>;
+
+export interface PlotFigure {
+  /** Short heading above the plot. */
+  title: string;
+  /** The text alternative: what the plot shows, with its numbers. */
+  caption: string;
+  data: PlotTrace[];
+  layout: Record<string, unknown>;
+}
+
+/** The config every plot uses. */
+export const PLOT_CONFIG = { displaylogo: false, responsive: true, modeBarButtonsToRemove: ['select2d', 'lasso2d'] } as const;
+
+function baseLayout(): Record<string, unknown> {
+  return {
+    font: { family: "'Noto Sans', ui-sans-serif, system-ui, sans-serif", size: 13, color: PLOT_COLOURS.ink },
+    paper_bgcolor: '#ffffff',
+    plot_bgcolor: '#ffffff',
+    margin: { l: 72, r: 24, t: 16, b: 64 },
+    hoverlabel: { font: { family: "'Noto Sans', sans-serif" } },
+    legend: { orientation: 'h', x: 0, y: 1.12, font: { size: 12 } },
+  };
+}
+
+function axis(title: string, extra: Record<string, unknown> = {}): Record<string, unknown> {
+  return {
+    title: { text: title, standoff: 8 },
+    showgrid: false,
+    zeroline: false,
+    showline: true,
+    linecolor: PLOT_COLOURS.rule,
+    ticks: 'outside',
+    tickcolor: PLOT_COLOURS.rule,
+    automargin: true,
+    ...extra,
+  };
+}
+
+function nullLine(orientation: 'vertical' | 'horizontal', value: number): PlotShape {
+  const line = { color: PLOT_COLOURS.inkMuted, width: 1, dash: 'dot' };
+  return orientation === 'vertical'
+    ? { type: 'line', xref: 'x', yref: 'paper', x0: value, x1: value, y0: 0, y1: 1, line, layer: 'below' }
+    : { type: 'line', xref: 'paper', yref: 'y', x0: 0, x1: 1, y0: value, y1: value, line, layer: 'below' };
+}
+
+/** "odds ratio of call_back = 1 against 0" */
+function effectName(result: Result): string {
+  return `${measureInfo(result).name} of ${result.exposure.column} = ${result.exposure.level} against ${result.exposure.reference}`;
+}
+
+function capitalise(text: string): string {
+  return text.charAt(0).toUpperCase() + text.slice(1);
+}
+
+interface ForestRow {
+  label: string;
+  estimate: number | null;
+  lower: number | null;
+  upper: number | null;
+}
+
+/**
+ * Stratum forest plot: the intervention's effect within each modifier level (or at each
+ * simple-slope value of a continuous modifier) with its interval, the Mantel-Haenszel
+ * pooled estimate where the result has one, and the null line (1 on a log axis for
+ * ratios, 0 for differences).
+ */
+export function stratumForestFigure(result: Result): PlotFigure {
+  const measure = measureInfo(result);
+  const ciText = `${percentText(result.ciLevel)} % CI`;
+  const decimals = modifierDecimals(result.modifier.observed);
+  const rows: ForestRow[] =
+    result.modifier.type === 'categorical'
+      ? displayLevels(result).map((level) => {
+          const stratum = result.strata.find((entry) => entry.level === level);
+          return { label: `${level}${level === result.modifier.reference ? ' (ref.)' : ''}`, estimate: stratum?.effect.estimate ?? null, lower: stratum?.effect.lower ?? null, upper: stratum?.effect.upper ?? null };
+        })
+      : (result.slopes ?? []).map((slope) => ({ label: `${slope.label} (${fixed(slope.at, decimals)})`, estimate: slope.estimate, lower: slope.lower, upper: slope.upper }));
+  const shown = rows.filter((row) => row.estimate !== null);
+  const data: PlotTrace[] = [
+    {
+      type: 'scatter',
+      mode: 'markers',
+      name: result.modifier.type === 'categorical' ? `Within each level of ${result.modifier.column}` : `At chosen values of ${result.modifier.column}`,
+      x: shown.map((row) => row.estimate),
+      y: shown.map((row) => row.label),
+      error_x: {
+        type: 'data',
+        symmetric: false,
+        array: shown.map((row) => (row.upper !== null && row.estimate !== null ? row.upper - row.estimate : 0)),
+        arrayminus: shown.map((row) => (row.lower !== null && row.estimate !== null ? row.estimate - row.lower : 0)),
+        color: PLOT_COLOURS.intervention,
+        thickness: 1.5,
+        width: 0,
+      },
+      marker: { symbol: 'square', size: 9, color: PLOT_COLOURS.intervention },
+      text: shown.map((row) => formatInterval(row.estimate, row.lower, row.upper, measure.kind)),
+      hovertemplate: '%{y}: %{text}<extra></extra>',
+    },
+  ];
+  const pooledLabel = 'Pooled (Mantel-Haenszel, crude)';
+  const mh = result.stratifiedTables?.mantelHaenszel;
+  const pooled = mh ? (measure.code === 'OR' ? mh.oddsRatio : measure.code === 'RR' ? mh.riskRatio : measure.code === 'RD' ? mh.riskDifference : null) : null;
+  if (pooled && pooled.estimate !== null) {
+    data.push({
+      type: 'scatter',
+      mode: 'markers',
+      name: 'Mantel-Haenszel pooled (not adjusted for covariates)',
+      x: [pooled.estimate],
+      y: [pooledLabel],
+      error_x: {
+        type: 'data',
+        symmetric: false,
+        array: [pooled.upper !== null ? pooled.upper - pooled.estimate : 0],
+        arrayminus: [pooled.lower !== null ? pooled.estimate - pooled.lower : 0],
+        color: PLOT_COLOURS.pooled,
+        thickness: 1.5,
+        width: 0,
+      },
+      marker: { symbol: 'diamond', size: 12, color: PLOT_COLOURS.pooled },
+      text: [formatInterval(pooled.estimate, pooled.lower, pooled.upper, measure.kind)],
+      hovertemplate: '%{y}: %{text}<extra></extra>',
+    });
+  }
+  const categories = [...shown.map((row) => row.label), ...(pooled && pooled.estimate !== null ? [pooledLabel] : [])];
+  const layout = {
+    ...baseLayout(),
+    height: 80 + 44 * Math.max(categories.length, 2),
+    showlegend: data.length > 1,
+    xaxis: axis(`${capitalise(measure.name)} (${ciText})${measure.ratio ? ', log scale' : ''}`, measure.ratio ? { type: 'log' } : {}),
+    yaxis: axis(result.modifier.type === 'categorical' ? result.modifier.column : `${result.modifier.column} (value)`, {
+      type: 'category',
+      categoryorder: 'array',
+      categoryarray: categories,
+      autorange: 'reversed',
+      showline: false,
+      ticks: '',
+    }),
+    shapes: [nullLine('vertical', measure.nullValue)],
+  };
+  const listed = rows.map((row) => `${row.label}: ${formatInterval(row.estimate, row.lower, row.upper, measure.kind)}`).join('; ');
+  const caption =
+    `Forest plot of the ${effectName(result)} ${result.modifier.type === 'categorical' ? `within each level of ${result.modifier.column}` : `at chosen values of ${result.modifier.column}`}, ` +
+    `with ${ciText}s${measure.ratio ? ' on a log scale' : ''}; the dotted line at ${measure.nullValue} marks no effect. ${listed}.` +
+    (pooled && pooled.estimate !== null ? ` Pooled Mantel-Haenszel estimate (crude): ${formatInterval(pooled.estimate, pooled.lower, pooled.upper, measure.kind)}.` : '');
+  return { title: `Effect of ${result.exposure.column} by ${result.modifier.column}`, caption, data, layout };
+}
+
+/** Inverse link: the linear predictor to the outcome scale. */
+function inverseLink(link: Result['model']['link'], eta: number): number {
+  if (link === 'logit') return 1 / (1 + Math.exp(-eta));
+  if (link === 'log') return Math.exp(eta);
+  return eta;
+}
+
+function coefficient(result: Result, term: string): number | null {
+  return result.model.coefficients.find((entry) => entry.term === term)?.estimate ?? null;
+}
+
+/**
+ * Profile plot: the outcome by modifier level, one line per arm. Categorical modifiers
+ * use the joint cells' observed proportions (or means); continuous modifiers draw the
+ * model's predicted outcome for each arm across the observed range, with the adjustment
+ * covariates at their reference levels (continuous covariates at 0), marking the chosen
+ * simple-slope values.
+ */
+export function profileFigure(result: Result): PlotFigure {
+  const binary = result.outcome.type === 'binary';
+  const outcomeColumn = result.outcome.column;
+  const arms = [result.exposure.reference, result.exposure.level];
+  const armName = (arm: string) => `${result.exposure.column} = ${arm}`;
+  const colours = [PLOT_COLOURS.control, PLOT_COLOURS.intervention];
+
+  if (result.modifier.type === 'categorical' && result.joint) {
+    const levels = displayLevels(result);
+    const data: PlotTrace[] = arms.map((arm, index) => {
+      const cells = levels.map((level) => result.joint?.cells.find((cell) => cell.modifier === level && cell.exposure === arm));
+      const values = cells.map((cell) => (cell ? (binary ? (cell.risk === null ? null : cell.risk * 100) : cell.mean) : null));
+      return {
+        type: 'scatter',
+        mode: 'lines+markers',
+        name: armName(arm),
+        x: levels,
+        y: values,
+        line: { color: colours[index], width: 2.5, dash: index === 0 ? 'dash' : 'solid' },
+        marker: { color: colours[index], size: 9, symbol: index === 0 ? 'circle-open' : 'circle' },
+        text: cells.map((cell) => (cell ? (binary ? `${cell.events} of ${cell.n}` : `n = ${cell.n}`) : '')),
+        hovertemplate: `${armName(arm)}, %{x}: %{y:.${binary ? 1 : 2}f}${binary ? ' %' : ''} (%{text})<extra></extra>`,
+      };
+    });
+    const yTitle = binary ? `Observed proportion with ${outcomeColumn} = ${result.outcome.event ?? '1'} (%)` : `Observed mean ${outcomeColumn}`;
+    const layout = {
+      ...baseLayout(),
+      height: 360,
+      xaxis: axis(result.modifier.column, { type: 'category', categoryorder: 'array', categoryarray: levels }),
+      yaxis: axis(yTitle, { rangemode: binary ? 'tozero' : 'normal' }),
+    };
+    const listed = arms
+      .map((arm, index) => {
+        const values = data[index].y as (number | null)[];
+        const shown = levels.map((level, k) => `${level} ${binary ? formatNumber(values[k] === null ? null : values[k] / 100, 'percent') : formatNumber(values[k], 'mean')}`);
+        return `${armName(arm)}: ${shown.join(', ')}`;
+      })
+      .join('; ');
+    const caption =
+      `Profile plot of the observed ${binary ? `proportion with ${outcomeColumn} = ${result.outcome.event ?? '1'}` : `mean ${outcomeColumn}`} in each level of ${result.modifier.column}, one line per arm (crude, not adjusted). ` +
+      `${listed}. Lines that are not parallel suggest that the intervention's effect differs between levels on the ${binary ? 'risk-difference' : 'mean-difference'} scale.`;
+    return { title: `${binary ? 'Observed risk' : 'Observed mean'} by ${result.modifier.column} and arm`, caption, data, layout };
+  }
+
+  // Continuous modifier: predictions from the fitted coefficients.
+  const exposureTerm = `${result.exposure.column}=${result.exposure.level}`;
+  const modifierTerm = result.modifier.column;
+  const intercept = coefficient(result, '(Intercept)') ?? 0;
+  const b1 = coefficient(result, exposureTerm) ?? 0;
+  const bm = coefficient(result, modifierTerm) ?? 0;
+  const b3 = coefficient(result, `${exposureTerm} × ${modifierTerm}`) ?? 0;
+  const centre = result.modifier.centre ?? 0;
+  const observed = result.modifier.observed ?? [0, 1];
+  const grid = Array.from({ length: 41 }, (_, k) => observed[0] + ((observed[1] - observed[0]) * k) / 40);
+  const predict = (x: number, arm: number) => inverseLink(result.model.link, intercept + bm * (x - centre) + arm * (b1 + b3 * (x - centre)));
+  const scale = binary ? 100 : 1;
+  const slopes = result.slopes ?? [];
+  const data: PlotTrace[] = [];
+  arms.forEach((arm, index) => {
+    data.push({
+      type: 'scatter',
+      mode: 'lines',
+      name: armName(arm),
+      x: grid,
+      y: grid.map((x) => predict(x, index) * scale),
+      line: { color: colours[index], width: 2.5, dash: index === 0 ? 'dash' : 'solid' },
+      hovertemplate: `${armName(arm)}, ${modifierTerm} %{x:.1f}: %{y:.2f}<extra></extra>`,
+    });
+  });
+  if (slopes.length > 0) {
+    arms.forEach((arm, index) => {
+      data.push({
+        type: 'scatter',
+        mode: 'markers',
+        name: `${armName(arm)} at the chosen values`,
+        showlegend: false,
+        x: slopes.map((slope) => slope.at),
+        y: slopes.map((slope) => predict(slope.at, index) * scale),
+        marker: { color: colours[index], size: 9, symbol: index === 0 ? 'circle-open' : 'circle' },
+        text: slopes.map((slope) => slope.label),
+        hovertemplate: `${armName(arm)}, %{text}: %{y:.2f}<extra></extra>`,
+      });
+    });
+  }
+  const yTitle = binary ? `Predicted proportion with ${outcomeColumn} = ${result.outcome.event ?? '1'} (%)` : `Predicted ${outcomeColumn}`;
+  const layout = {
+    ...baseLayout(),
+    height: 360,
+    xaxis: axis(result.modifier.column),
+    yaxis: axis(yTitle),
+  };
+  const decimals = modifierDecimals(observed);
+  const listed = slopes
+    .map((slope) => `${slope.label} (${fixed(slope.at, decimals)}): ${arms.map((arm, index) => `${armName(arm)} ${fixed(predict(slope.at, index) * scale, 2)}`).join(', ')}`)
+    .join('; ');
+  const caption =
+    `Profile plot of the model's predicted ${binary ? 'proportion with the outcome (%)' : outcomeColumn} across ${result.modifier.column} from ${fixed(observed[0], decimals)} to ${fixed(observed[1], decimals)}, one line per arm, ` +
+    `with the adjustment covariates at their reference levels (continuous covariates at 0). ${listed ? `${listed}. ` : ''}The gap between the lines is the intervention's effect; lines that are not parallel show that it changes with ${result.modifier.column}.`;
+  return { title: `Predicted ${outcomeColumn} across ${result.modifier.column}`, caption, data, layout };
+}
+
+/**
+ * Significance band plot (continuous modifiers): the conditional effect across the
+ * observed range with its pointwise band, the null line, the Johnson-Neyman boundaries
+ * that fall in view, and the observed range shaded. Null when the result has no band.
+ */
+export function significanceBandFigure(result: Result): PlotFigure | null {
+  const band = result.band;
+  const jn = result.johnsonNeyman;
+  if (!band || band.length === 0 || !jn) return null;
+  const measure = measureInfo(result);
+  const ciText = `${percentText(result.ciLevel)} %`;
+  const points = band.filter((point) => point.estimate !== null && point.lower !== null && point.upper !== null);
+  const [min, max] = jn.observed;
+  const pad = (max - min) * 0.06 || 0.5;
+  const view: [number, number] = [min - pad, max + pad];
+  const data: PlotTrace[] = [
+    {
+      type: 'scatter',
+      mode: 'lines',
+      name: `${ciText} band (lower)`,
+      x: points.map((point) => point.x),
+      y: points.map((point) => point.lower),
+      line: { width: 0, color: PLOT_COLOURS.intervention },
+      showlegend: false,
+      hoverinfo: 'skip',
+    },
+    {
+      type: 'scatter',
+      mode: 'lines',
+      name: `${ciText} pointwise band`,
+      x: points.map((point) => point.x),
+      y: points.map((point) => point.upper),
+      fill: 'tonexty',
+      fillcolor: PLOT_COLOURS.band,
+      line: { width: 0, color: PLOT_COLOURS.intervention },
+      hoverinfo: 'skip',
+    },
+    {
+      type: 'scatter',
+      mode: 'lines',
+      name: `Effect of ${result.exposure.column}`,
+      x: points.map((point) => point.x),
+      y: points.map((point) => point.estimate),
+      line: { color: PLOT_COLOURS.intervention, width: 2.5 },
+      text: points.map((point) => formatInterval(point.estimate, point.lower, point.upper, measure.kind)),
+      hovertemplate: `${result.modifier.column} %{x:.2f}: %{text}<extra></extra>`,
+    },
+  ];
+  const shapes: PlotShape[] = [
+    { type: 'rect', xref: 'x', yref: 'paper', x0: min, x1: max, y0: 0, y1: 1, fillcolor: PLOT_COLOURS.observed, line: { width: 0 }, layer: 'below' },
+    nullLine('horizontal', measure.nullValue),
+  ];
+  const annotations: Record<string, unknown>[] = [
+    { xref: 'x', yref: 'paper', x: (min + max) / 2, y: 1, yanchor: 'bottom', text: 'observed range', showarrow: false, font: { size: 11, color: PLOT_COLOURS.inkMuted } },
+  ];
+  const decimals = modifierDecimals(jn.observed);
+  const visible = (jn.bounds ?? []).filter((bound) => bound >= view[0] && bound <= view[1]);
+  for (const bound of visible) {
+    shapes.push({ type: 'line', xref: 'x', yref: 'paper', x0: bound, x1: bound, y0: 0, y1: 1, line: { color: PLOT_COLOURS.boundary, width: 1.5, dash: 'dash' } });
+    annotations.push({ xref: 'x', yref: 'paper', x: bound, y: 0.02, xanchor: 'left', yanchor: 'bottom', text: `Johnson-Neyman ${fixed(bound, decimals)}`, showarrow: false, font: { size: 11, color: PLOT_COLOURS.boundary } });
+  }
+  if (visible.length > 0) {
+    // A legend entry for the dashed boundary lines (shapes have none).
+    data.push({ type: 'scatter', mode: 'lines', name: 'Johnson-Neyman boundary', x: [null], y: [null], line: { color: PLOT_COLOURS.boundary, dash: 'dash', width: 1.5 }, hoverinfo: 'skip' });
+  }
+  const layout = {
+    ...baseLayout(),
+    height: 380,
+    xaxis: axis(result.modifier.column, { range: view }),
+    yaxis: axis(`${capitalise(measure.name)} of ${result.exposure.column} = ${result.exposure.level}${measure.ratio ? ', log scale' : ''}`, measure.ratio ? { type: 'log' } : {}),
+    shapes,
+    annotations,
+  };
+  const sentence = johnsonNeymanSentence(jn, { modifier: result.modifier.column, alpha: result.alpha });
+  const first = points[0];
+  const last = points[points.length - 1];
+  const caption =
+    `Significance band plot: the ${effectName(result)} as ${result.modifier.column} varies over its observed range (shaded, ${fixed(min, decimals)} to ${fixed(max, decimals)}), ` +
+    `with its ${ciText} pointwise band; the dotted line at ${measure.nullValue} marks no effect${visible.length > 0 ? ' and dashed lines mark the Johnson-Neyman boundaries' : ''}. ` +
+    (first && last
+      ? `At ${fixed(first.x, decimals)} the effect is ${formatInterval(first.estimate, first.lower, first.upper, measure.kind)}; at ${fixed(last.x, decimals)} it is ${formatInterval(last.estimate, last.lower, last.upper, measure.kind)}. `
+      : '') +
+    sentence;
+  return { title: `Effect of ${result.exposure.column} across ${result.modifier.column}`, caption, data, layout };
+}
