@@ -4,6 +4,8 @@ import { QueryTypes, type Sequelize } from 'sequelize';
 import { env } from '../src/lib/server/env';
 import { hashPassword } from '../src/lib/server/passwords';
 import { createSequelize } from './connection';
+import { sequelize as appSequelize } from '../src/lib/server/db';
+import { seedDemoExtracts } from './seeds/demoExtracts';
 import { DEMO_INITIATIVES, DEMO_ORGANISATION, DEMO_PASSWORD, DEMO_USERS, demoEmail } from './seeds/demo';
 
 /**
@@ -58,10 +60,13 @@ export async function seedDemo(sequelize: Sequelize): Promise<{ created: boolean
 if (process.argv[1] && fileURLToPath(import.meta.url) === path.resolve(process.argv[1])) {
   const sequelize = createSequelize('owner', { poolMax: 2 });
   seedDemo(sequelize)
-    .then(({ created }) => console.log(created ? 'Demo data loaded.' : 'Demo data already present.'))
+    .then(async ({ created }) => {
+      const extracts = await seedDemoExtracts();
+      console.log(created || extracts ? `Demo data loaded (${extracts} synthetic extracts).` : 'Demo data already present.');
+    })
     .catch((error: unknown) => {
       console.error(error instanceof Error ? error.message : error);
       process.exitCode = 1;
     })
-    .finally(() => sequelize.close());
+    .finally(() => Promise.all([sequelize.close(), appSequelize.close()]));
 }

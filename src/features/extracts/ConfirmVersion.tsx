@@ -1,0 +1,99 @@
+/**
+ * Confirm a version: check or correct each column's type, describe the columns, and sign
+ * the de-identification statement. After this the version is ready and never changes.
+ */
+import { useMutation } from '@tanstack/react-query';
+import { useState, type FormEvent } from 'react';
+import { ApiError, apiFetch } from '../../lib/client/api';
+import { QueryRoot } from '../../components/ui/QueryRoot';
+import type { AnalysableColumnType } from './extracts.schema';
+
+interface ColumnChoice {
+  name: string;
+  inferredType: AnalysableColumnType;
+  allowed: AnalysableColumnType[];
+  summary: string;
+}
+
+interface Props {
+  extractId: string;
+  versionId: string;
+  columns: ColumnChoice[];
+  statement: string;
+  signerName: string;
+}
+
+const TYPE_LABEL: Record<AnalysableColumnType, string> = {
+  binary: 'Binary (two values)',
+  categorical: 'Categorical (levels)',
+  continuous: 'Continuous (a measurement)',
+  count: 'Count (whole numbers)',
+};
+
+function Confirm({ extractId, versionId, columns, statement, signerName }: Props) {
+  const [entries, setEntries] = useState(() => columns.map((c) => ({ name: c.name, type: c.inferredType, description: '' })));
+  const [signedName, setSignedName] = useState('');
+  const [agreed, setAgreed] = useState(false);
+  const confirm = useMutation({
+    mutationFn: () => apiFetch(`/api/extracts/${extractId}/versions/${versionId}/confirm`, { method: 'POST', body: { attestation: { signedName }, columns: entries } }),
+    onSuccess: () => window.location.reload(),
+  });
+  const error = confirm.error instanceof ApiError ? confirm.error : null;
+  const submit = (event: FormEvent) => {
+    event.preventDefault();
+    if (agreed && signedName.trim()) confirm.mutate();
+  };
+  return (
+    <form onSubmit={submit} className="card p-5" aria-labelledby="confirm-heading" noValidate>
+      <h2 id="confirm-heading" className="text-lg">Confirm the data dictionary</h2>
+      <p className="text-sm text-ink-700 mt-1">Check the type Crossgrain inferred for each column, correct it where it is wrong, and describe what the column holds. Analyses offer columns by these types.</p>
+      <table className="data-table w-full text-sm mt-4">
+        <thead><tr><th>Column</th><th>What we saw</th><th>Type</th><th>Description</th></tr></thead>
+        <tbody>
+          {entries.map((entry, index) => (
+            <tr key={entry.name}>
+              <td className="font-semibold font-mono">{entry.name}</td>
+              <td className="text-ink-500">{columns[index].summary}</td>
+              <td>
+                <select aria-label={`Type of ${entry.name}`} className="field-input" value={entry.type}
+                  onChange={(e) => setEntries((all) => all.map((x, i) => (i === index ? { ...x, type: e.target.value as AnalysableColumnType } : x)))}>
+                  {columns[index].allowed.map((t) => <option key={t} value={t}>{TYPE_LABEL[t]}</option>)}
+                </select>
+                {error?.fieldMessage(`columns.${index}.type`) && <p className="field-error">{error.fieldMessage(`columns.${index}.type`)}</p>}
+              </td>
+              <td>
+                <input aria-label={`Description of ${entry.name}`} className="field-input" value={entry.description} maxLength={2000}
+                  onChange={(e) => setEntries((all) => all.map((x, i) => (i === index ? { ...x, description: e.target.value } : x)))} />
+              </td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+      <fieldset className="mt-5 border border-ochre-100 bg-ochre-50 rounded-sm p-4">
+        <legend className="font-semibold text-ochre-700 px-1">De-identification statement</legend>
+        <p className="text-sm">{statement}</p>
+        <label className="flex items-center gap-2 mt-3 text-sm">
+          <input type="checkbox" checked={agreed} onChange={(e) => setAgreed(e.target.checked)} /> I have checked the extract and make this statement.
+        </label>
+        <div className="mt-3 max-w-sm">
+          <label className="field-label" htmlFor="signed-name">Your full name, as signature</label>
+          <input id="signed-name" className="field-input" value={signedName} onChange={(e) => setSignedName(e.target.value)} placeholder={signerName} />
+        </div>
+      </fieldset>
+      {error && !error.details && <p role="alert" className="field-error mt-3">{error.message}</p>}
+      {error?.details && <p role="alert" className="field-error mt-3">{error.message}</p>}
+      <button type="submit" className="btn btn-primary mt-4" disabled={!agreed || !signedName.trim() || confirm.isPending}>
+        {confirm.isPending ? 'Confirming…' : 'Sign and confirm this version'}
+      </button>
+      <p className="text-xs text-ink-500 mt-2">Once confirmed, the version and its dictionary never change. A correction is a new upload.</p>
+    </form>
+  );
+}
+
+export default function ConfirmVersion(props: Props) {
+  return (
+    <QueryRoot>
+      <Confirm {...props} />
+    </QueryRoot>
+  );
+}

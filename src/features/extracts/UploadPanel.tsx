@@ -1,0 +1,185 @@
+/**
+ * Upload an extract: drag and drop or pick a CSV, watch the transfer and then the server's
+ * processing (reading, screening, profiling, storing), cancel at any point. A refusal
+ * lists its reasons; nothing of a refused file is kept.
+ */
+import { useQuery } from '@tanstack/react-query';
+import { useRef, useState, type DragEvent } from 'react';
+import { apiFetch } from '../../lib/client/api';
+import { QueryRoot } from '../../components/ui/QueryRoot';
+import type { ExtractView, VersionView } from './extracts.server';
+
+type Phase =
+  | { kind: 'idle' }
+  | { kind: 'sending'; loaded: number; total: number }
+  | { kind: 'processing'; extractId: string; versionId: string }
+  | { kind: 'refused-at-once'; message: string }
+  | { kind: 'cancelled' };
+
+const STAGE_LABEL: Record<string, string> = {
+  receiving: 'Receiving',
+  reading: 'Reading and checking the file',
+  screening: 'Screening for identifiers',
+  profiling: 'Profiling columns',
+  storing: 'Storing',
+};
+
+interface Props {
+  /** Upload target: a new extract in this initiative, or a new version of this extract. */
+  initiativeId?: string;
+  extractId?: string;
+  maxBytes: number;
+}
+
+function formatBytes(bytes: number): string {
+  if (bytes >= 1024 * 1024) return `${(bytes / 1024 / 1024).toFixed(1)} MB`;
+  if (bytes >= 1024) return `${(bytes / 1024).toFixed(0)} KB`;
+  return `${bytes} B`;
+}
+
+function ProgressBar({ percent, label }: { percent: number; label: string }) {
+  return (
+    <div className="mt-3">
+      <div className="flex justify-between text-sm"><span>{label}</span><span className="tabular-nums">{Math.round(percent)} %</span></div>
+      <div className="h-2.5 mt-1 rounded-full bg-linen-200 overflow-hidden" role="progressbar" aria-label={label} aria-valuemin={0} aria-valuemax={100} aria-valuenow={Math.round(percent)}>
+        <div className="h-full bg-estuary-500 transition-[width] duration-300" style={{ width: `${Math.max(2, Math.min(100, percent))}%` }} />
+      </div>
+    </div>
+  );
+}
+
+function Processing({ extractId, versionId, onCancel }: { extractId: string; versionId: string; onCancel: () => void }) {
+  const status = useQuery({
+    queryKey: ['extract', extractId],
+    queryFn: () => apiFetch<ExtractView>(`/api/extracts/${extractId}`),
+    refetchInterval: (query) => {
+      const version = query.state.data?.versions.find((v) => v.versionId === versionId);
+      return !version || version.status === 'processing' ? 500 : false;
+    },
+  });
+  const version: VersionView | undefined = status.data?.versions.find((v) => v.versionId === versionId);
+  if (!version || version.status === 'processing') {
+    return (
+      <div data-testid="upload-processing">
+        <ProgressBar percent={version?.percent ?? 90} label={STAGE_LABEL[version?.stage ?? 'reading'] ?? 'Processing'} />
+        <button type="button" className="btn btn-secondary mt-3" onClick={onCancel}>Cancel upload</button>
+      </div>
+    );
+  }
+  if (version.status === 'refused' || version.status === 'failed') {
+    const reasons = (version.reasons ?? []) as { message: string; column?: string }[];
+    return (
+      <div role="alert" className="mt-3 border border-brick-100 bg-brick-50 rounded-sm p-3 text-sm text-brick-700" data-testid="upload-refused">
+        <p className="font-semibold">{version.status === 'refused' ? 'The file was refused. Nothing from it was kept.' : 'The upload did not finish. Nothing from it was kept.'}</p>
+        <ul className="list-disc ml-5 mt-1 space-y-0.5">{reasons.map((r, i) => <li key={i}>{r.message}</li>)}</ul>
+        {version.status === 'refused' && <p className="mt-2">Remove the flagged columns from the file (or replace them with grouped values) and upload again.</p>}
+      </div>
+    );
+  }
+  return (
+    <div role="status" className="mt-3 border border-reed-100 bg-reed-50 rounded-sm p-3 text-sm text-reed-700" data-testid="upload-done">
+      <p className="font-semibold">Received: {version.rows?.toLocaleString('en-GB')} rows and {version.columns} columns.</p>
+      <p>Next, check the column types, describe the columns and sign the de-identification statement.</p>
+      <a className="btn btn-primary mt-2" href={`/extracts/${extractId}`}>Review version {version.version}</a>
+    </div>
+  );
+}
+
+function Uploader({ initiativeId, extractId, maxBytes }: Props) {
+  const [file, setFile] = useState<File | null>(null);
+  const [name, setName] = useState('');
+  const [phase, setPhase] = useState<Phase>({ kind: 'idle' });
+  const [dragging, setDragging] = useState(false);
+  const request = useRef<XMLHttpRequest | null>(null);
+  const input = useRef<HTMLInputElement>(null);
+
+  const choose = (chosen: File | undefined) => {
+    if (!chosen) return;
+    setFile(chosen);
+    if (!name) setName(chosen.name.replace(/\.(csv|tsv|txt)$/i, ''));
+    setPhase({ kind: 'idle' });
+  };
+  const onDrop = (event: DragEvent) => {
+    event.preventDefault();
+    setDragging(false);
+    choose(event.dataTransfer.files[0]);
+  };
+  const tooLarge = file ? file.size > maxBytes : false;
+
+  const send = () => {
+    if (!file || tooLarge) return;
+    const url = extractId ? `/api/extracts/${extractId}/versions` : `/api/initiatives/${initiativeId}/extracts?name=${encodeURIComponent(name.trim())}`;
+    const xhr = new XMLHttpRequest();
+    request.current = xhr;
+    xhr.open('POST', url);
+    xhr.setRequestHeader('Content-Type', 'text/csv');
+    xhr.setRequestHeader('Accept', 'application/json');
+    xhr.upload.onprogress = (event) => setPhase({ kind: 'sending', loaded: event.loaded, total: event.total || file.size });
+    xhr.onload = () => {
+      const body = xhr.responseText ? JSON.parse(xhr.responseText) : {};
+      if (xhr.status === 202) setPhase({ kind: 'processing', extractId: body.extractId, versionId: body.versionId });
+      else setPhase({ kind: 'refused-at-once', message: body.error?.message ?? `The server answered ${xhr.status}.` });
+    };
+    xhr.onerror = () => setPhase({ kind: 'refused-at-once', message: 'The connection failed before the upload finished. Nothing was kept.' });
+    xhr.onabort = () => setPhase({ kind: 'cancelled' });
+    setPhase({ kind: 'sending', loaded: 0, total: file.size });
+    xhr.send(file);
+  };
+
+  const cancel = async () => {
+    if (phase.kind === 'sending') request.current?.abort();
+    if (phase.kind === 'processing') {
+      await apiFetch(`/api/extracts/${phase.extractId}/versions/${phase.versionId}/cancel`, { method: 'POST', body: {} }).catch(() => undefined);
+      setPhase({ kind: 'cancelled' });
+    }
+  };
+
+  const busy = phase.kind === 'sending' || phase.kind === 'processing';
+  return (
+    <section className="card p-5" aria-labelledby="upload-heading">
+      <h2 id="upload-heading" className="text-lg">{extractId ? 'Upload a new version' : 'Upload an extract'}</h2>
+      <p className="text-sm text-ink-700 mt-1">
+        A de-identified CSV with a header row (comma, semicolon or tab), UTF-8, at most {formatBytes(maxBytes)}. Columns that look like
+        identifiers (names, record numbers, full dates, ZIP codes, e-mail addresses, ages over 89, …) refuse the file.
+      </p>
+      <div
+        className={`mt-4 border-2 border-dashed rounded-md p-6 text-center ${dragging ? 'border-estuary-500 bg-estuary-50' : 'border-linen-300 bg-linen-50'}`}
+        onDragOver={(e) => { e.preventDefault(); setDragging(true); }}
+        onDragLeave={() => setDragging(false)}
+        onDrop={onDrop}
+      >
+        <p className="text-sm">{file ? <><strong>{file.name}</strong> · {formatBytes(file.size)}</> : 'Drop the CSV file here, or'}</p>
+        <button type="button" className="btn btn-secondary mt-2" onClick={() => input.current?.click()} disabled={busy}>Choose a file…</button>
+        <input ref={input} type="file" accept=".csv,.tsv,.txt,text/csv" className="sr-only" aria-label="CSV file" data-testid="upload-file"
+          onChange={(e) => choose(e.target.files?.[0])} />
+      </div>
+      {tooLarge && <p role="alert" className="field-error">This file is larger than the limit of {formatBytes(maxBytes)}.</p>}
+      {!extractId && (
+        <div className="mt-4 max-w-md">
+          <label className="field-label" htmlFor="extract-name">Name of the extract</label>
+          <input id="extract-name" className="field-input" value={name} onChange={(e) => setName(e.target.value)} disabled={busy} placeholder="e.g. Discharges Jan–Sep 2026" />
+        </div>
+      )}
+      <div className="mt-4 flex gap-3">
+        <button type="button" className="btn btn-primary" onClick={send} disabled={!file || tooLarge || busy || (!extractId && !name.trim())}>Upload</button>
+        {phase.kind === 'sending' && <button type="button" className="btn btn-secondary" onClick={() => void cancel()}>Cancel upload</button>}
+      </div>
+      {phase.kind === 'sending' && <ProgressBar percent={(phase.loaded / Math.max(1, phase.total)) * 100} label={`Sending ${formatBytes(phase.loaded)} of ${formatBytes(phase.total)}`} />}
+      {phase.kind === 'processing' && <Processing extractId={phase.extractId} versionId={phase.versionId} onCancel={() => void cancel()} />}
+      {phase.kind === 'refused-at-once' && (
+        <p role="alert" className="mt-3 border border-brick-100 bg-brick-50 rounded-sm p-3 text-sm text-brick-700" data-testid="upload-refused">
+          <strong>The file was refused. Nothing from it was kept.</strong> {phase.message}
+        </p>
+      )}
+      {phase.kind === 'cancelled' && <p role="status" className="mt-3 text-sm text-ink-700">Upload cancelled. Nothing was kept.</p>}
+    </section>
+  );
+}
+
+export default function UploadPanel(props: Props) {
+  return (
+    <QueryRoot>
+      <Uploader {...props} />
+    </QueryRoot>
+  );
+}

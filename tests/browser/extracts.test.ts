@@ -1,0 +1,95 @@
+/**
+ * The extract area in a real browser: the demo analyst uploads a file through the
+ * drag-and-drop panel, watches it process, confirms the dictionary with the attestation,
+ * and pages through the rows; the demo clinician sees the profile but not the rows.
+ */
+import { writeFileSync } from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
+import { seedDemo } from '../../db/seed';
+import { seedDemoExtracts } from '../../db/seeds/demoExtracts';
+import { DEMO_PASSWORD, demoEmail } from '../../db/seeds/demo';
+import { saveScreenshot, startHarness, type Harness } from './harness';
+import { closeOwnerDb, ownerDb } from '../support/factories';
+
+let harness: Harness;
+
+beforeAll(async () => {
+  await seedDemo(ownerDb());
+  await seedDemoExtracts();
+  harness = await startHarness();
+});
+
+afterAll(async () => {
+  await harness?.close();
+  await closeOwnerDb();
+});
+
+async function signIn(page: Page, who: string) {
+  await page.goto('/sign-in');
+  await page.getByLabel('E-mail address').fill(demoEmail(who));
+  await page.getByLabel('Password').fill(DEMO_PASSWORD);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL((url) => url.pathname === '/');
+}
+
+async function openCallBackExtracts(page: Page) {
+  await page.getByRole('navigation', { name: 'Initiatives' }).getByRole('link', { name: /Call-back within 72 hours/ }).click();
+  await page.getByRole('navigation', { name: 'Initiative sections' }).getByRole('link', { name: 'Extracts' }).click();
+  await page.getByTestId('extracts-table').waitFor();
+}
+
+describe('extracts in the browser', () => {
+  it('an analyst uploads, confirms and previews an extract', async () => {
+    const { page, context, consoleErrors } = await harness.newPage();
+    await signIn(page, 'analyst');
+    await openCallBackExtracts(page);
+    await expect(page.getByTestId('extracts-table').textContent()).resolves.toContain('Discharges with call-back status (synthetic)');
+
+    const file = path.join(os.tmpdir(), `ward-audit-${Date.now()}.csv`);
+    const lines = ['call_back,readmitted_30d,age_band,los_days'];
+    for (let i = 0; i < 400; i += 1) lines.push(`${i % 2},${i % 6 === 0 ? 1 : 0},${['18-44', '45-64', '65-79', '80+'][i % 4]},${(2 + (i % 9) * 0.5).toFixed(1)}`);
+    writeFileSync(file, `${lines.join('\n')}\n`);
+    await page.getByTestId('upload-file').setInputFiles(file);
+    await expect(page.getByLabel('Name of the extract').inputValue()).resolves.toBe(path.basename(file, '.csv'));
+    await page.getByLabel('Name of the extract').fill('Ward audit sample (synthetic)');
+    await page.getByRole('button', { name: 'Upload', exact: true }).click();
+    await page.getByTestId('upload-done').waitFor();
+    await expect(page.getByTestId('upload-done').textContent()).resolves.toContain('400 rows and 4 columns');
+    await saveScreenshot(page, 'extract-uploaded');
+    await page.getByRole('link', { name: 'Review version 1' }).click();
+
+    await page.getByLabel('Type of los_days').selectOption('continuous');
+    await page.getByLabel('Description of los_days').fill('Length of stay, days');
+    await page.getByLabel('I have checked the extract and make this statement.').check();
+    await page.getByLabel('Your full name, as signature').fill('Ada Marsh');
+    await page.getByRole('button', { name: 'Sign and confirm this version' }).click();
+    await page.getByTestId('attestation').waitFor();
+    await expect(page.getByTestId('attestation').textContent()).resolves.toContain('Ada Marsh');
+
+    await page.getByRole('button', { name: 'Show rows' }).click();
+    await page.getByTestId('rows-preview').locator('tbody tr').first().waitFor();
+    await expect(page.getByTestId('rows-preview').locator('tbody tr').count()).resolves.toBe(25);
+    await page.getByRole('button', { name: /los_days/ }).click();
+    await page.waitForFunction(() => document.querySelector('[data-testid="rows-preview"] th[aria-sort]') !== null);
+    await saveScreenshot(page, 'extract-page');
+    expect(consoleErrors).toEqual([]);
+    await context.close();
+  });
+
+  it('a clinician sees the profile and dictionary but no rows', async () => {
+    const { page, context, consoleErrors } = await harness.newPage();
+    await signIn(page, 'clinician');
+    await openCallBackExtracts(page);
+    await page.getByRole('link', { name: 'Discharges with call-back status (synthetic)' }).click();
+    await page.getByTestId('profile-table').waitFor();
+    await expect(page.getByTestId('profile-table').textContent()).resolves.toContain('age_band');
+    await expect(page.getByRole('button', { name: 'Show rows' }).count()).resolves.toBe(0);
+    await expect(page.getByText('shows row-level data to analysts only').count()).resolves.toBe(1);
+    await saveScreenshot(page, 'extract-clinician');
+    expect(consoleErrors).toEqual([]);
+    await context.close();
+  });
+});
