@@ -8,66 +8,21 @@
  * (the slower path of the parser). The file is generated before timing starts and deleted
  * at the end.
  */
-import { createReadStream, createWriteStream } from 'node:fs';
+import { createReadStream } from 'node:fs';
 import { mkdtemp, rm, stat } from 'node:fs/promises';
-import { once } from 'node:events';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { ingestExtract } from '../src/features/extracts/extracts';
-import { SeededRandom } from '../src/features/extracts/seededRandom';
+import { generateSyntheticExtract } from './support/syntheticExtract';
 
 const args = process.argv.slice(2);
 const quoted = args.includes('--quoted');
 const rows = Number(args.find((a) => /^\d+$/.test(a)) ?? 1_000_000);
-const SEED = 20260501;
-
-const HEADER = 'readmitted_30d,call_back,age_band,sex,site,comorbidity_score,prior_admissions,frailty_score,length_of_stay_days,systolic_bp,creatinine,ward';
-const AGE_BANDS = ['18-44', '45-64', '65-79', '80+'];
-const SITES = ['TVG', 'ESH', 'RMH'];
-
-async function generate(path: string, count: number): Promise<void> {
-  const random = new SeededRandom(SEED);
-  const out = createWriteStream(path, { highWaterMark: 1 << 20 });
-  const text = (value: string): string => (quoted ? `"${value}"` : value);
-  const eol = quoted ? '\r\n' : '\n';
-  out.write(`${HEADER}${eol}`);
-  let batch: string[] = [];
-  for (let i = 0; i < count; i++) {
-    const band = random.pick([0.3, 0.3, 0.25, 0.15]);
-    const callBack = random.bernoulli(0.5) ? 1 : 0;
-    const readmitted = random.bernoulli(0.08 + 0.04 * band - 0.02 * callBack * band) ? 1 : 0;
-    const frailty = Math.min(9, Math.max(1, 2 + band + random.normal())).toFixed(1);
-    const los = Math.max(0.5, 3 + 2 * random.normal() + band).toFixed(1);
-    const creatinine = Math.max(0.3, 1 + 0.3 * random.normal()).toFixed(2);
-    const row = [
-      readmitted,
-      callBack,
-      text(AGE_BANDS[band]),
-      text(random.bernoulli(0.52) ? 'F' : 'M'),
-      text(SITES[random.integerBelow(3)]),
-      random.poisson(2 + band),
-      random.poisson(0.6),
-      frailty,
-      los,
-      Math.round(125 + 15 * random.normal()),
-      creatinine,
-      text(`Ward-${random.integerBelow(12) + 1}`),
-    ];
-    batch.push(row.join(','));
-    if (batch.length === 10_000) {
-      if (!out.write(`${batch.join(eol)}${eol}`)) await once(out, 'drain');
-      batch = [];
-    }
-  }
-  if (batch.length > 0) out.write(`${batch.join(eol)}${eol}`);
-  out.end();
-  await once(out, 'finish');
-}
 
 const dir = await mkdtemp(join(tmpdir(), 'crossgrain-ingest-bench-'));
 const path = join(dir, 'extract.csv');
 try {
-  await generate(path, rows);
+  await generateSyntheticExtract(path, rows, { quoted });
   const { size } = await stat(path);
   if (global.gc) global.gc();
   const rssBefore = process.memoryUsage().rss;
