@@ -372,13 +372,13 @@ export function planningInWords(result: Pick<Result, 'planning'>, measure: Measu
     .map((level) => {
       const lower = formatNumber(level.detectable.lower, measure.ratio ? 'ratio' : measure.kind);
       const upper = formatNumber(level.detectable.upper, measure.ratio ? 'ratio' : measure.kind);
-      return `${level.level}: below ${lower} or above ${upper}`;
+      return `below ${lower} or above ${upper} (${level.level})`;
     });
   if (clauses.length === 0) return null;
   const what = measure.ratio ? `a ${measure.interactionName}` : `an interaction (${measure.interactionName})`;
   return (
     `With ${formatCount(planning.n)} rows, ${what} would be detected with ${percentText(planning.targetPower)} % power at the ` +
-    `${percentText(planning.alpha)} % level only if it lay ${clauses.join('; ')}; a smaller interaction could easily be missed.`
+    `${percentText(planning.alpha)} % level only if it were ${clauses.join('; ')}; a smaller interaction could easily be missed.`
   );
 }
 

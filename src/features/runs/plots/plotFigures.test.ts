@@ -49,7 +49,7 @@ describe('plot figures from real engine results', () => {
         expect(trace.y[index]).toBeCloseTo(cell.risk! * 100, 12);
       });
     });
-    expect((figure.layout as { yaxis: { title: { text: string } } }).yaxis.title.text).toBe('Observed proportion with readmitted_30d = 1 (%)');
+    expect((figure.layout as { yaxis: { title: { text: string } } }).yaxis.title.text).toBe('% with readmitted_30d = 1');
   });
 
   it('profile plot of a continuous modifier: predicted lines whose gap at each chosen value is the simple slope', () => {

@@ -41,9 +41,9 @@ function baseLayout(): Record<string, unknown> {
     font: { family: "'Noto Sans', ui-sans-serif, system-ui, sans-serif", size: 13, color: PLOT_COLOURS.ink },
     paper_bgcolor: '#ffffff',
     plot_bgcolor: '#ffffff',
-    margin: { l: 72, r: 24, t: 16, b: 64 },
+    margin: { l: 72, r: 24, t: 40, b: 64 },
     hoverlabel: { font: { family: "'Noto Sans', sans-serif" } },
-    legend: { orientation: 'h', x: 0, y: 1.12, font: { size: 12 } },
+    legend: { orientation: 'h', x: 0, xanchor: 'left', y: 1.02, yanchor: 'bottom', font: { size: 12 } },
   };
 }
 
@@ -153,7 +153,7 @@ export function stratumForestFigure(result: Result): PlotFigure {
     height: 80 + 44 * Math.max(categories.length, 2),
     showlegend: data.length > 1,
     xaxis: axis(`${capitalise(measure.name)} (${ciText})${measure.ratio ? ', log scale' : ''}`, measure.ratio ? { type: 'log' } : {}),
-    yaxis: axis(result.modifier.type === 'categorical' ? result.modifier.column : `${result.modifier.column} (value)`, {
+    yaxis: axis(result.modifier.column, {
       type: 'category',
       categoryorder: 'array',
       categoryarray: categories,
@@ -213,7 +213,7 @@ export function profileFigure(result: Result): PlotFigure {
         hovertemplate: `${armName(arm)}, %{x}: %{y:.${binary ? 1 : 2}f}${binary ? ' %' : ''} (%{text})<extra></extra>`,
       };
     });
-    const yTitle = binary ? `Observed proportion with ${outcomeColumn} = ${result.outcome.event ?? '1'} (%)` : `Observed mean ${outcomeColumn}`;
+    const yTitle = binary ? `% with ${outcomeColumn} = ${result.outcome.event ?? '1'}` : `Mean ${outcomeColumn}`;
     const layout = {
       ...baseLayout(),
       height: 360,
@@ -273,7 +273,7 @@ export function profileFigure(result: Result): PlotFigure {
       });
     });
   }
-  const yTitle = binary ? `Predicted proportion with ${outcomeColumn} = ${result.outcome.event ?? '1'} (%)` : `Predicted ${outcomeColumn}`;
+  const yTitle = binary ? `% with ${outcomeColumn} = ${result.outcome.event ?? '1'}` : outcomeColumn;
   const layout = {
     ...baseLayout(),
     height: 360,
@@ -343,7 +343,7 @@ export function significanceBandFigure(result: Result): PlotFigure | null {
     nullLine('horizontal', measure.nullValue),
   ];
   const annotations: Record<string, unknown>[] = [
-    { xref: 'x', yref: 'paper', x: (min + max) / 2, y: 1, yanchor: 'bottom', text: 'observed range', showarrow: false, font: { size: 11, color: PLOT_COLOURS.inkMuted } },
+    { xref: 'x', yref: 'paper', x: max, y: 0.99, xanchor: 'right', yanchor: 'top', text: 'observed range', showarrow: false, font: { size: 11, color: PLOT_COLOURS.inkMuted } },
   ];
   const decimals = modifierDecimals(jn.observed);
   const visible = (jn.bounds ?? []).filter((bound) => bound >= view[0] && bound <= view[1]);
