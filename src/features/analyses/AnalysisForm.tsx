@@ -5,7 +5,7 @@
  * /api/analyses, or PATCH /api/analyses/{id} when editing) and then goes to the analysis.
  */
 import { useMutation } from '@tanstack/react-query';
-import { useId, useMemo, useState, type FormEvent, type ReactNode } from 'react';
+import { useId, useMemo, useState, type ReactNode, type SubmitEvent } from 'react';
 import type { Spec } from '../../engine/boundary/schemas';
 import { ApiError, apiFetch } from '../../lib/client/api';
 import { QueryRoot } from '../../components/ui/QueryRoot';
@@ -169,7 +169,7 @@ function Form({ initiativeId, extractVersionId, columns, existing, onSavedHref =
   const apiError = save.error instanceof ApiError ? save.error : null;
   const unplacedServerErrors = apiError?.details?.filter((detail) => !document.getElementById(fieldId(fieldForServerPath(detail.path)))) ?? [];
 
-  const submit = (event: FormEvent) => {
+  const submit = (event: SubmitEvent<HTMLFormElement>) => {
     event.preventDefault();
     setSubmitted(true);
     if (Object.keys(errors).length > 0 || !converted.ok) {
