@@ -41,6 +41,10 @@ const Env = z.object({
 
   CROSSGRAIN_UPLOAD_MAX_BYTES: z.coerce.number().int().positive().default(500 * 1024 * 1024),
   CROSSGRAIN_DATA_DIR: z.string().default('.data'),
+  /** A running analysis whose worker has not reported for this long is marked failed. */
+  CROSSGRAIN_RUN_STALE_SECONDS: z.coerce.number().int().positive().default(60),
+  /** Worker threads the engine may use for one run (bootstrap and large fits). */
+  CROSSGRAIN_ENGINE_THREADS: z.coerce.number().int().min(0).default(2),
 });
 
 export type Env = z.infer<typeof Env>;

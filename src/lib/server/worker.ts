@@ -1,0 +1,45 @@
+/**
+ * The job worker: `npm run worker` (and `npm start`, beside the app). Takes analysis runs
+ * from the PostgreSQL-backed queue, one at a time, executes them, and sweeps runs whose
+ * worker died. Any number of workers on any number of machines can share the queue.
+ */
+import { hostname } from 'node:os';
+import { executeRun, sweepStaleRuns } from '../../features/runs/runs.server';
+import { sequelize } from './db';
+import { logger } from './logger';
+import { createQueue, RUN_QUEUE, type RunJob } from './queue';
+
+const SWEEP_MS = 15_000;
+const name = `${hostname()}:${process.pid}`;
+
+export async function startWorker(): Promise<{ stop: () => Promise<void> }> {
+  const boss = createQueue({ supervise: true });
+  await boss.start();
+  await boss.work<RunJob>(RUN_QUEUE, { batchSize: 1, pollingIntervalSeconds: 1 }, async ([job]) => {
+    logger.info({ runId: job.data.runId, worker: name }, 'run taken');
+    const status = await executeRun(job.data.runId, job.data.startedBy, { workerName: name });
+    logger.info({ runId: job.data.runId, status }, 'run ended');
+  });
+  const sweep = setInterval(() => {
+    sweepStaleRuns().then((ids) => {
+      if (ids.length) logger.warn({ runs: ids }, 'runs whose worker stopped were marked failed');
+    }).catch((error: unknown) => logger.warn({ err: error }, 'stale-run sweep failed'));
+  }, SWEEP_MS);
+  logger.info({ worker: name }, 'worker ready');
+  return {
+    stop: async () => {
+      clearInterval(sweep);
+      await boss.stop({ graceful: true, timeout: 5_000 });
+      await sequelize.close();
+    },
+  };
+}
+
+if (process.argv[1] && import.meta.url.endsWith(process.argv[1].split('/').pop() ?? '')) {
+  const worker = await startWorker();
+  const stop = () => {
+    worker.stop().then(() => process.exit(0)).catch(() => process.exit(1));
+  };
+  process.on('SIGTERM', stop);
+  process.on('SIGINT', stop);
+}

@@ -1,0 +1,141 @@
+/**
+ * Runs end to end below the web layer: a queued run executed by the worker code stores
+ * the engine's result unchanged with its provenance; a worker killed mid-run leaves its
+ * run failed with a reason after the stale timeout, and a new run then succeeds.
+ */
+import { spawn, type ChildProcess } from 'node:child_process';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { QueryTypes } from 'sequelize';
+import { runAnalysis } from '../../src/engine';
+import { createAnalysis } from '../../src/features/analyses/analyses.server';
+import { generateCallBackCohort } from '../../src/features/extracts/demoCohorts';
+import { loadColumns, toEngineData } from '../../src/features/extracts/extracts.server';
+import { columnRoles, executeRun, getRun, specHash, startRun } from '../../src/features/runs/runs.server';
+import { cautionText } from '../../src/lib/cautions';
+import { withIdentity } from '../../src/lib/server/db';
+import { makeReadyExtract } from '../support/extractFactory';
+import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
+
+const root = path.resolve(import.meta.dirname, '../..');
+let analystId: string;
+let initiativeId: string;
+let versionId: string;
+
+const spec = {
+  outcome: { column: 'readmitted_30d', type: 'binary' as const },
+  exposure: { column: 'call_back', reference: '0' },
+  modifier: { column: 'age_band', type: 'categorical' as const, reference: '18-44' },
+  covariates: [
+    { column: 'sex', type: 'categorical' as const, reference: 'F' },
+    { column: 'comorbidity_score', type: 'continuous' as const },
+  ],
+  model: 'logistic' as const,
+  ci: { level: 0.95, method: 'delta' as const },
+};
+
+beforeAll(async () => {
+  analystId = (await makeUser()).id;
+  initiativeId = (await makeInitiative('Run ward')).id;
+  await addMember(initiativeId, analystId, 'analyst');
+  ({ versionId } = await makeReadyExtract(analystId, initiativeId, generateCallBackCohort({ rows: 3000 }).csv));
+});
+
+afterAll(async () => {
+  await closeOwnerDb();
+});
+
+async function newAnalysis(specOverride: object = spec) {
+  return withIdentity(analystId, (t) =>
+    createAnalysis(t, { id: analystId, clientAddress: 'test' }, {
+      initiativeId, extractVersionId: versionId, title: 'Call-back by age band', question: 'Does the call-back help older patients more?',
+      prespecified: true, spec: specOverride as never,
+    }),
+  );
+}
+
+async function queue(analysisId: string) {
+  return withIdentity(analystId, (t) => startRun(t, { id: analystId, clientAddress: 'test' }, analysisId));
+}
+
+describe('a run', () => {
+  it('stores the engine result unchanged, with the extract hash, spec hash, engine version and caution', async () => {
+    const { id } = await newAnalysis();
+    const { runId } = await queue(id);
+    expect(await executeRun(runId, analystId, { threads: 0 })).toBe('succeeded');
+    const run = await withIdentity(analystId, (t) => getRun(t, runId));
+    expect(run?.status).toBe('succeeded');
+    // The same engine call on the same columns gives the same result, bit for bit.
+    const loaded = await withIdentity(analystId, (t) => loadColumns(t, versionId, Object.keys(columnRoles(spec as never))));
+    const direct = await runAnalysis(toEngineData(loaded.rowCount, loaded.columns, columnRoles(spec as never)), spec as never, { threads: 0 });
+    expect(run?.result).toEqual(JSON.parse(JSON.stringify(direct)));
+    expect(run?.specHash).toBe(specHash(spec as never));
+    expect(run?.cautionText).toBe(cautionText());
+    expect(run?.engineVersion).toBe((direct as { engineVersion: string }).engineVersion);
+    // Prespecified before... the extract was uploaded earlier than the declaration: not exploratory.
+    expect(run?.exploratory).toBe(false);
+    const events = await ownerDb().query<{ action: string; details: Record<string, unknown> }>(
+      'SELECT action, details FROM audit_events WHERE subject_id = :id ORDER BY chain_position', { replacements: { id: runId }, type: QueryTypes.SELECT },
+    );
+    expect(events.map((e) => e.action)).toEqual(['run.started', 'run.finished']);
+    expect(events[1].details).toMatchObject({ specHash: run?.specHash, extractSha256: run?.extractSha256, cautionText: cautionText() });
+  });
+
+  it('fails with the engine’s readable reason on a bad reference level', async () => {
+    const { id } = await newAnalysis({ ...spec, covariates: [] });
+    // Make the stored spec name a level that the data lack, as a stale analysis might.
+    await ownerDb().query(`UPDATE analyses SET spec = jsonb_set(spec, '{modifier,reference}', '"17-"') WHERE id = :id`, { replacements: { id } });
+    const { runId } = await queue(id);
+    expect(await executeRun(runId, analystId, { threads: 0 })).toBe('failed');
+    const run = await withIdentity(analystId, (t) => getRun(t, runId));
+    expect(run?.error?.message).toContain('17-');
+    expect(run?.result).toBeNull();
+  });
+});
+
+describe('a worker that dies mid-run', () => {
+  let worker: ChildProcess | null = null;
+  const startWorker = () => {
+    const child = spawn('npx', ['tsx', path.join(root, 'src/lib/server/worker.ts')], { cwd: root, env: process.env, stdio: 'ignore', detached: true });
+    worker = child;
+    return child;
+  };
+  afterAll(() => {
+    if (worker?.pid && worker.exitCode === null) process.kill(-worker.pid, 'SIGKILL');
+  });
+
+  it('leaves the run failed with a reason after the timeout, and a new run then succeeds', async () => {
+    const long = { ...spec, ci: { level: 0.95, method: 'bootstrap' as const, replicates: 20_000, seed: 7 } };
+    const { id } = await newAnalysis(long);
+    const first = await queue(id);
+    await first.enqueue();
+    const child = startWorker();
+    // Wait until the worker reports bootstrap progress.
+    let run = await withIdentity(analystId, (t) => getRun(t, first.runId, { withResult: false }));
+    for (let i = 0; i < 300 && !(run?.status === 'running' && run.progress.fraction > 0); i += 1) {
+      await new Promise((resolve) => setTimeout(resolve, 100));
+      run = await withIdentity(analystId, (t) => getRun(t, first.runId, { withResult: false }));
+    }
+    expect(run?.status).toBe('running');
+    process.kill(-child.pid!, 'SIGKILL');
+    await new Promise((resolve) => child.once('exit', resolve));
+    // After the stale timeout (5 s in tests) any reader's sweep marks it failed.
+    await new Promise((resolve) => setTimeout(resolve, 6_500));
+    run = await withIdentity(analystId, (t) => getRun(t, first.runId, { withResult: false }));
+    expect(run?.status).toBe('failed');
+    expect(run?.error?.code).toBe('worker-stopped');
+    expect(run?.error?.message).toMatch(/stopped/);
+
+    // A retry is a new run; a fresh worker takes it.
+    await ownerDb().query(`UPDATE analyses SET spec = CAST(:spec AS jsonb) WHERE id = :id`, { replacements: { id, spec: JSON.stringify(spec) } });
+    const second = await queue(id);
+    await second.enqueue();
+    startWorker();
+    let retry = await withIdentity(analystId, (t) => getRun(t, second.runId, { withResult: false }));
+    for (let i = 0; i < 300 && retry && (retry.status === 'queued' || retry.status === 'running'); i += 1) {
+      await new Promise((resolve) => setTimeout(resolve, 100));
+      retry = await withIdentity(analystId, (t) => getRun(t, second.runId, { withResult: false }));
+    }
+    expect(retry?.status).toBe('succeeded');
+  }, 90_000);
+});
