@@ -44,6 +44,25 @@ export interface ServerHandle {
   close: () => Promise<void>;
 }
 
+/** Starts a job worker process (npm run worker); kill it with `stop`. */
+export function startWorker(): { child: ChildProcess; stop: () => Promise<void> } {
+  const child = spawn('npx', ['tsx', path.join(root, 'src/lib/server/worker.ts')], {
+    cwd: root,
+    env: process.env,
+    stdio: 'ignore',
+    detached: true,
+  });
+  return {
+    child,
+    stop: async () => {
+      if (child.exitCode !== null || !child.pid) return;
+      const exited = new Promise((resolve) => child.once('exit', resolve));
+      process.kill(-child.pid, 'SIGTERM');
+      await exited;
+    },
+  };
+}
+
 /** Starts the built server and the local mail server. */
 export async function startServer(): Promise<ServerHandle> {
   const url = new URL(appUrl);

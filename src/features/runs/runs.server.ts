@@ -130,25 +130,24 @@ function toRunView(r: RunRow): RunView {
 }
 
 const SELECT_RUN = `SELECT r.*, u.display_name AS starter FROM runs r JOIN users u ON u.id = r.started_by`;
+/** Every column but the result, for listings and progress polling. */
+const RUN_COLUMNS = `r.id, r.analysis_id, r.initiative_id, r.extract_version_id, r.status, r.progress, r.spec, r.spec_hash,
+  r.extract_sha256, r.engine_version, r.seed, r.exploratory, r.caution_text, r.error, r.started_by, r.queued_at, r.started_at,
+  r.finished_at, r.cancel_requested`;
 
 /** One run, or null when not visible. Sweeps stale runs first so none reads as running forever. */
 export async function getRun(transaction: Transaction, runId: string, options: { withResult?: boolean } = {}): Promise<RunView | null> {
   await sweepStaleRuns(transaction);
-  const select = options.withResult === false ? SELECT_RUN.replace('r.*', 'r.*, NULL AS result_omitted') : SELECT_RUN;
+  const select = options.withResult === false ? SELECT_RUN.replace('r.*', `${RUN_COLUMNS}, NULL AS result`) : SELECT_RUN;
   const [row] = await sequelize.query<RunRow>(`${select} WHERE r.id = :id`, { replacements: { id: runId }, type: QueryTypes.SELECT, transaction });
-  if (!row) return null;
-  const view = toRunView(row);
-  if (options.withResult === false) view.result = null;
-  return view;
+  return row ? toRunView(row) : null;
 }
 
 /** The runs of an analysis, newest first, without their results. */
 export async function listRuns(transaction: Transaction, analysisId: string): Promise<RunView[]> {
   await sweepStaleRuns(transaction);
   const rows = await sequelize.query<RunRow>(
-    `SELECT r.id, r.analysis_id, r.initiative_id, r.extract_version_id, r.status, r.progress, r.spec, r.spec_hash, r.extract_sha256,
-            r.engine_version, r.seed, r.exploratory, r.caution_text, NULL AS result, r.error, r.started_by, u.display_name AS starter,
-            r.queued_at, r.started_at, r.finished_at, r.cancel_requested
+    `SELECT ${RUN_COLUMNS}, NULL AS result, u.display_name AS starter
        FROM runs r JOIN users u ON u.id = r.started_by WHERE r.analysis_id = :id ORDER BY r.queued_at DESC`,
     { replacements: { id: analysisId }, type: QueryTypes.SELECT, transaction },
   );

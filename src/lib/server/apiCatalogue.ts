@@ -10,6 +10,7 @@ import {
 } from '../../features/admin/admin.schema';
 import { ApiTokenView, CreateApiTokenBody, CreatedApiToken, ForgotPasswordBody, MeResponse, SetPasswordBody, SignInBody } from '../../features/auth/auth.schema';
 import { ArchiveBody, ConfirmVersionBody, NewExtractQuery, RowsQuery, UploadAccepted } from '../../features/extracts/extracts.schema';
+import { AnalysisBody, Created, DownloadQuery, RunAccepted } from '../../features/analyses/analysisApi.schema';
 import { OutboxQuery } from './outbox';
 
 export type Auth = 'none' | 'session' | 'admin';
@@ -94,6 +95,18 @@ export const OPERATIONS: Operation[] = [
   { method: 'GET', path: '/api/extracts/{extractId}/versions/{versionId}/rows', tag: 'Extracts', summary: 'One page of rows, sorted on the server (audited)', auth: 'session', query: RowsQuery, status: 200,
     description: 'Analysts; clinicians and auditors only where the initiative allows row previews.' },
   { method: 'POST', path: '/api/extracts/{extractId}/archive', tag: 'Extracts', summary: 'Archive (hide from new analyses) or restore an extract', auth: 'session', body: ArchiveBody, status: 204 },
+
+  { method: 'GET', path: '/api/initiatives/{initiativeId}/analyses', tag: 'Analyses and runs', summary: "The initiative's analyses", auth: 'session', status: 200 },
+  { method: 'POST', path: '/api/analyses', tag: 'Analyses and runs', summary: 'Create an analysis pinned to one confirmed extract version', auth: 'session',
+    body: AnalysisBody, response: Created, status: 201, description: 'Analysts. `spec` is the engine specification (see spec.schema.json); 422 names the field when a column or level does not fit.' },
+  { method: 'GET', path: '/api/analyses/{id}', tag: 'Analyses and runs', summary: 'One analysis with its specification and latest run', auth: 'session', status: 200 },
+  { method: 'PATCH', path: '/api/analyses/{id}', tag: 'Analyses and runs', summary: 'Change an analysis; past runs keep their snapshot', auth: 'session', body: AnalysisBody, status: 204 },
+  { method: 'GET', path: '/api/analyses/{id}/runs', tag: 'Analyses and runs', summary: "The analysis's runs, newest first", auth: 'session', status: 200 },
+  { method: 'POST', path: '/api/analyses/{id}/runs', tag: 'Analyses and runs', summary: 'Queue a run of the analysis', auth: 'session', response: RunAccepted, status: 202 },
+  { method: 'GET', path: '/api/runs/{runId}', tag: 'Analyses and runs', summary: 'A run: status (queued, running, succeeded, failed, cancelled), progress and the engine result', auth: 'session', status: 200,
+    description: '`result` is the engine result schema unchanged (result.schema.json). `?fields=status` leaves it out, for polling.' },
+  { method: 'POST', path: '/api/runs/{runId}/cancel', tag: 'Analyses and runs', summary: 'Cancel a queued or running run', auth: 'session', status: 200 },
+  { method: 'GET', path: '/api/runs/{runId}/download', tag: 'Analyses and runs', summary: 'The result as JSON or the tables as CSV (audited)', auth: 'session', query: DownloadQuery, status: 200 },
 
   { method: 'POST', path: '/api/audit/verify', tag: 'Audit', summary: 'Recompute the hash chain and report the first broken link', auth: 'session', response: ChainReport, status: 200,
     description: 'Auditors and administrators. The check itself is an audit event.' },

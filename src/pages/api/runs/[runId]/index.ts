@@ -7,10 +7,11 @@ import { endpoint, json, requireUser, uuidParam } from '../../../../lib/server/h
  * GET /api/runs/{runId}: `{ status, progress, result, ... }` where `result` is the engine's
  * result schema unchanged (null until the run succeeds).
  */
-export const GET = endpoint(async ({ locals, params }) => {
+export const GET = endpoint(async ({ locals, params, url }) => {
   const user = requireUser(locals);
   const runId = uuidParam(params.runId, 'That run');
-  const run = await locals.db((t) => getRun(t, runId));
+  // `?fields=status` leaves the (large) result out, for progress polling.
+  const run = await locals.db((t) => getRun(t, runId, { withResult: url.searchParams.get('fields') !== 'status' }));
   if (!run) throw notFound('That run');
   authorize(user, 'read', 'Run', { initiativeId: run.initiativeId }, { hide: true });
   return json(run);

@@ -1,0 +1,45 @@
+import { recordAudit } from '../../../../features/audit/audit.server';
+import { resultCsv } from '../../../../features/runs/resultTables';
+import { getRun } from '../../../../features/runs/runs.server';
+import { DownloadQuery } from '../../../../features/analyses/analysisApi.schema';
+import type { Result } from '../../../../engine/boundary/schemas';
+import { authorize } from '../../../../lib/server/authorize';
+import { cautionText } from '../../../../lib/cautions';
+import { conflict, notFound } from '../../../../lib/server/errors';
+import { clientAddress, endpoint, parseQuery, requireUser, uuidParam } from '../../../../lib/server/http';
+
+/**
+ * GET /api/runs/{runId}/download?format=json|csv: the result as JSON (with its provenance
+ * and caution) or the tables as CSV (caution first, formula-injection safe). Audited.
+ */
+export const GET = endpoint(async (context) => {
+  const user = requireUser(context.locals);
+  const runId = uuidParam(context.params.runId, 'That run');
+  const { format } = parseQuery(context.url, DownloadQuery);
+  const body = await context.locals.db(async (t) => {
+    const run = await getRun(t, runId);
+    if (!run) throw notFound('That run');
+    authorize(user, 'read', 'Run', { initiativeId: run.initiativeId }, { hide: true });
+    authorize(user, 'export', 'Run', { initiativeId: run.initiativeId });
+    if (run.status !== 'succeeded') throw conflict('Only a finished run has results to download.');
+    await recordAudit(t, {
+      action: 'run.downloaded', actorId: user.id, subjectType: 'run', subjectId: runId, initiativeId: run.initiativeId,
+      clientAddress: clientAddress(context), details: { format, specHash: run.specHash, extractSha256: run.extractSha256, engineVersion: run.engineVersion },
+    });
+    if (format === 'csv') return resultCsv(run.result as Result, run.spec);
+    return JSON.stringify({
+      caution: cautionText(), exploratory: run.exploratory, runId: run.id, analysisId: run.analysisId,
+      extractVersionId: run.extractVersionId, extractSha256: run.extractSha256, specHash: run.specHash, engineVersion: run.engineVersion,
+      seed: run.seed, startedBy: run.startedBy.name, queuedAt: run.queuedAt, finishedAt: run.finishedAt, spec: run.spec, result: run.result,
+    }, null, 2);
+  });
+  const name = `crossgrain-run-${runId.slice(0, 8)}.${format}`;
+  return new Response(body, {
+    status: 200,
+    headers: {
+      'Content-Type': format === 'csv' ? 'text/csv; charset=utf-8' : 'application/json; charset=utf-8',
+      'Content-Disposition': `attachment; filename="${name}"`,
+      'Cache-Control': 'no-store',
+    },
+  });
+});

@@ -1,0 +1,161 @@
+/**
+ * Analyses and runs in a real browser, on the synthetic demo data: the demo analyst
+ * creates an analysis by age band through the form, runs it, watches the progress and
+ * reads the table and plots, whose numbers must equal the engine's stored result; the
+ * demo clinician opens the same run read-only; a continuous-modifier run shows the
+ * significance band plot.
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
+import { seedDemo } from '../../db/seed';
+import { seedDemoExtracts } from '../../db/seeds/demoExtracts';
+import { DEMO_PASSWORD, demoEmail } from '../../db/seeds/demo';
+import { saveScreenshot, startHarness, startWorker, type Harness } from './harness';
+import { closeOwnerDb, ownerDb } from '../support/factories';
+
+let harness: Harness;
+let worker: ReturnType<typeof startWorker>;
+let runUrl = '';
+
+beforeAll(async () => {
+  await seedDemo(ownerDb());
+  await seedDemoExtracts();
+  harness = await startHarness();
+  worker = startWorker();
+});
+
+afterAll(async () => {
+  await worker?.stop();
+  await harness?.close();
+  await closeOwnerDb();
+});
+
+async function signIn(page: Page, who: string) {
+  await page.goto('/sign-in');
+  await page.getByLabel('E-mail address').fill(demoEmail(who));
+  await page.getByLabel('Password').fill(DEMO_PASSWORD);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL((url) => url.pathname === '/');
+}
+
+interface StoredRun {
+  status: string;
+  result: {
+    strata: { level: string; effect: { estimate: number } }[];
+    interaction: { additive: { level: string; reri: { estimate: number } | null }[]; omnibus: { p: number } };
+  };
+}
+
+describe('an analysis by age band', () => {
+  it('is created through the form, run, and read with numbers equal to the engine result', async () => {
+    const { page, context, consoleErrors } = await harness.newPage();
+    await signIn(page, 'analyst');
+    await page.getByRole('navigation', { name: 'Initiatives' }).getByRole('link', { name: /Call-back within 72 hours/ }).click();
+    await page.getByRole('navigation', { name: 'Initiative sections' }).getByRole('link', { name: 'Analyses' }).click();
+    await page.getByRole('link', { name: 'New analysis' }).click();
+    const form = page.getByTestId('analysis-form');
+    await form.waitFor();
+    await page.getByLabel('Title', { exact: true }).fill('Call-back effect by age band');
+    await page.getByLabel('Question', { exact: true }).fill('Does the 72-hour call-back prevent more readmissions in older patients?');
+    await page.getByLabel('Outcome', { exact: true }).selectOption('readmitted_30d');
+    await page.getByLabel('Intervention', { exact: true }).selectOption('call_back');
+    await page.getByLabel('Modifier', { exact: true }).selectOption('age_band');
+    for (const covariate of ['sex', 'comorbidity_score', 'prior_admissions', 'site']) {
+      await form.getByRole('checkbox', { name: new RegExp(`^${covariate}`) }).check();
+    }
+    await expect(page.getByTestId('model-equation').first().textContent()).resolves.toContain('call_back');
+    await saveScreenshot(page, 'analysis-form');
+    await page.getByTestId('analysis-submit').click();
+    await page.waitForURL(/\/analyses\/[0-9a-f-]{36}$/);
+    await expect(page.getByTestId('analysis-title').textContent()).resolves.toBe('Call-back effect by age band');
+
+    await page.getByRole('button', { name: 'Run this analysis' }).click();
+    await page.getByTestId('run-progress').or(page.getByTestId('run-finished')).first().waitFor();
+    await page.getByTestId('run-finished').waitFor({ timeout: 60_000 });
+    await page.getByRole('link', { name: 'Read the results' }).click();
+    await page.waitForURL(/\/runs\/[0-9a-f-]{36}$/);
+    runUrl = page.url();
+    await page.getByTestId('result-cautions').waitFor();
+    await page.getByTestId('plot-stratum-forest').locator('.main-svg').first().waitFor();
+    await page.getByTestId('plot-profile').locator('.main-svg').first().waitFor();
+
+    // Every number on the page comes from the stored engine result.
+    const runId = runUrl.split('/').pop()!;
+    const stored = (await (await page.request.get(`/api/runs/${runId}`)).json()) as StoredRun;
+    expect(stored.status).toBe('succeeded');
+    for (const stratum of stored.result.strata) {
+      const shown = await page.getByTestId(`stratum-effect-${stratum.level}`).first().getAttribute('data-estimate');
+      expect(Number(shown)).toBe(stratum.effect.estimate);
+    }
+    for (const row of stored.result.interaction.additive) {
+      if (!row.reri) continue;
+      const shown = await page.getByTestId(`reri-${row.level}`).first().getAttribute('data-estimate');
+      expect(Number(shown)).toBe(row.reri.estimate);
+    }
+    expect(Number(await page.getByTestId('omnibus-p').first().getAttribute('data-value'))).toBe(stored.result.interaction.omnibus.p);
+    // The caution block sits above the results.
+    const cautionTop = (await page.getByTestId('result-cautions').first().boundingBox())!.y;
+    const tablesTop = (await page.getByTestId('result-tables').boundingBox())!.y;
+    expect(cautionTop).toBeLessThan(tablesTop);
+    await saveScreenshot(page, 'run-results');
+    expect(consoleErrors).toEqual([]);
+    await context.close();
+  });
+
+  it('is readable, but not runnable, by the demo clinician', async () => {
+    expect(runUrl).not.toBe('');
+    const { page, context, consoleErrors } = await harness.newPage();
+    await signIn(page, 'clinician');
+    await page.goto(runUrl);
+    await page.getByTestId('plot-stratum-forest').locator('.main-svg').first().waitFor();
+    await page.getByRole('link', { name: 'Call-back effect by age band' }).first().click();
+    await page.getByTestId('runs-table').waitFor();
+    await expect(page.getByRole('button', { name: /Run this analysis|Run again/ }).count()).resolves.toBe(0);
+    await expect(page.getByRole('link', { name: 'Edit analysis' }).count()).resolves.toBe(0);
+    await page.goto(runUrl);
+    await page.getByTestId('plot-profile').locator('.main-svg').first().waitFor();
+    await saveScreenshot(page, 'run-results-clinician');
+    expect(consoleErrors).toEqual([]);
+    await context.close();
+  });
+});
+
+describe('an analysis with a continuous modifier', () => {
+  it('shows the significance band plot with its boundaries', async () => {
+    const { page, context, consoleErrors } = await harness.newPage();
+    await signIn(page, 'analyst');
+    const me = await (await page.request.get('/api/me')).json();
+    const upAndAbout = me.memberships.find((m: { initiativeName: string }) => m.initiativeName === 'Up-and-about');
+    const extracts = await (await page.request.get(`/api/initiatives/${upAndAbout.initiativeId}/extracts`)).json();
+    const extract = await (await page.request.get(`/api/extracts/${extracts[0].id}`)).json();
+    const created = await page.request.post('/api/analyses', {
+      data: {
+        initiativeId: upAndAbout.initiativeId,
+        extractVersionId: extract.versions[0].versionId,
+        title: 'Early mobility by frailty',
+        question: 'Does early mobility shorten stays less for frailer patients?',
+        prespecified: false,
+        spec: {
+          outcome: { column: 'length_of_stay_days', type: 'continuous' },
+          exposure: { column: 'early_mobility', reference: '0' },
+          modifier: { column: 'frailty_score', type: 'continuous' },
+          covariates: [{ column: 'sex', type: 'categorical', reference: 'F' }, { column: 'comorbidity_score', type: 'continuous' }],
+          model: 'linear',
+          ci: { level: 0.95, method: 'delta' },
+        },
+      },
+    });
+    expect(created.status()).toBe(201);
+    const { id } = await created.json();
+    const started = await page.request.post(`/api/analyses/${id}/runs`, { data: {} });
+    expect(started.status()).toBe(202);
+    const { runId } = await started.json();
+    await page.goto(`/runs/${runId}`);
+    await page.getByTestId('plot-significance-band').locator('.main-svg').first().waitFor({ timeout: 60_000 });
+    await expect(page.getByTestId('jn-sentence').first().textContent()).resolves.toMatch(/frailty_score/);
+    await expect(page.getByTestId('exploratory-label').textContent()).resolves.toContain('Exploratory');
+    await saveScreenshot(page, 'run-results-continuous');
+    expect(consoleErrors).toEqual([]);
+    await context.close();
+  });
+});
