@@ -1,0 +1,98 @@
+/**
+ * Results-page benchmark (issue target, measured, not asserted): the results page of a
+ * 12,000-row demo run answers in under 200 ms at the 95th percentile with 20 concurrent
+ * readers on loopback. Uses its own cluster (port 54369, .data/bench-results) and the
+ * built server (built first when dist/ is missing), both removed or stopped at the end.
+ */
+import { spawn, spawnSync } from 'node:child_process';
+import { existsSync } from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
+const dbPort = 54369;
+const appPort = 4339;
+const dataRoot = path.join(root, '.data', 'bench-results');
+Object.assign(process.env, {
+  CROSSGRAIN_DB_PORT: String(dbPort), CROSSGRAIN_ENV: 'test', CROSSGRAIN_DATA_DIR: dataRoot, CROSSGRAIN_SMTP_PORT: '2539',
+});
+const READERS = 20;
+const REQUESTS = 600;
+
+const { startCluster, destroyCluster } = await import('../db/scripts/postgres.mjs');
+const cluster = { port: dbPort, dataRoot };
+startCluster(cluster);
+const env = { ...process.env };
+let server: ReturnType<typeof spawn> | null = null;
+try {
+  if (spawnSync('npx', ['tsx', 'db/migrate.ts', 'up'], { cwd: root, env }).status !== 0) throw new Error('migration failed');
+  if (!existsSync(path.join(root, 'dist/server/entry.mjs'))) spawnSync('npx', ['astro', 'build', '--silent'], { cwd: root, env, stdio: 'inherit' });
+  const { seedDemo } = await import('../db/seed');
+  const { seedDemoExtracts } = await import('../db/seeds/demoExtracts');
+  const { ownerDb, closeOwnerDb } = await import('../tests/support/factories');
+  const { sequelize, withIdentity } = await import('../src/lib/server/db');
+  const { createAnalysis, analysableVersions } = await import('../src/features/analyses/analyses.server');
+  const { executeRun, startRun } = await import('../src/features/runs/runs.server');
+  await seedDemo(ownerDb());
+  await seedDemoExtracts();
+  const [analyst] = await ownerDb().query<{ id: string }>("SELECT id FROM users WHERE email = 'analyst@tern-valley.example'", { type: 'SELECT' as never });
+  const [initiative] = await ownerDb().query<{ id: string }>("SELECT id FROM initiatives WHERE slug = 'call-back-72h'", { type: 'SELECT' as never });
+  const runId = await withIdentity(analyst.id, async (t) => {
+    const [version] = await analysableVersions(t, initiative.id);
+    const { id } = await createAnalysis(t, { id: analyst.id, clientAddress: 'bench' }, {
+      initiativeId: initiative.id, extractVersionId: version.id, title: 'Benchmark by age band', question: 'Does the call-back help older patients more?',
+      prespecified: false,
+      spec: {
+        outcome: { column: 'readmitted_30d', type: 'binary' }, exposure: { column: 'call_back', reference: '0' },
+        modifier: { column: 'age_band', type: 'categorical', reference: '18-44' },
+        covariates: [{ column: 'sex', type: 'categorical', reference: 'F' }, { column: 'comorbidity_score', type: 'continuous' }, { column: 'prior_admissions', type: 'continuous' }, { column: 'site', type: 'categorical' }],
+        model: 'logistic', ci: { level: 0.95, method: 'delta' },
+      } as never,
+    });
+    return (await startRun(t, { id: analyst.id, clientAddress: 'bench' }, id)).runId;
+  });
+  if ((await executeRun(runId, analyst.id, { threads: 0 })) !== 'succeeded') throw new Error('the benchmark run failed');
+  await sequelize.close();
+  await closeOwnerDb();
+
+  server = spawn(process.execPath, [path.join(root, 'dist/server/entry.mjs')], { cwd: root, env: { ...env, HOST: '127.0.0.1', PORT: String(appPort) }, stdio: 'ignore' });
+  const base = `http://127.0.0.1:${appPort}`;
+  for (let i = 0; i < 100; i += 1) {
+    try {
+      if ((await fetch(`${base}/api/health`)).ok) break;
+    } catch { /* not up yet */ }
+    await new Promise((resolve) => setTimeout(resolve, 100));
+  }
+  const signIn = await fetch(`${base}/api/auth/sign-in`, {
+    method: 'POST', headers: { 'Content-Type': 'application/json' },
+    body: JSON.stringify({ email: 'clinician@tern-valley.example', password: 'tern-valley-demo' }),
+  });
+  const cookie = signIn.headers.getSetCookie()[0].split(';')[0];
+  const url = `${base}/runs/${runId}`;
+  for (let i = 0; i < 20; i += 1) await (await fetch(url, { headers: { Cookie: cookie } })).text();
+
+  const latencies: number[] = [];
+  let next = 0;
+  let failures = 0;
+  const started = performance.now();
+  await Promise.all(Array.from({ length: READERS }, async () => {
+    while (next < REQUESTS) {
+      next += 1;
+      const t0 = performance.now();
+      const response = await fetch(url, { headers: { Cookie: cookie } });
+      const html = await response.text();
+      latencies.push(performance.now() - t0);
+      if (response.status !== 200 || !html.includes('result-tables')) failures += 1;
+    }
+  }));
+  const seconds = (performance.now() - started) / 1000;
+  latencies.sort((a, b) => a - b);
+  const at = (q: number) => latencies[Math.min(latencies.length - 1, Math.floor(q * latencies.length))];
+  console.log(`results-page: ${REQUESTS} requests of /runs/{id} (12,000-row demo run), ${READERS} concurrent readers, ${(REQUESTS / seconds).toFixed(0)} requests/s, ${failures} failures`);
+  console.log(`${'p50'.padEnd(8)} ${at(0.5).toFixed(1).padStart(7)} ms`);
+  console.log(`${'p95'.padEnd(8)} ${at(0.95).toFixed(1).padStart(7)} ms   target < 200 ms   ${at(0.95) < 200 ? 'met' : 'NOT MET'}`);
+  console.log(`${'max'.padEnd(8)} ${latencies[latencies.length - 1].toFixed(1).padStart(7)} ms`);
+} finally {
+  server?.kill('SIGTERM');
+  destroyCluster(cluster);
+}
