@@ -2,10 +2,11 @@
 // the demo data once, builds, and serves Crossgrain with its fake mail server and job
 // worker beside it. Ctrl-C stops everything, the database included.
 // `npm run dev` does the same with Astro's hot-reloading development server.
+import { spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { ensureNodeModules, run, startChild, step } from './lib/system.mjs';
+import { ensureNodeModules, run, signalGroup, startChild, step } from './lib/system.mjs';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 const dev = process.argv.includes('--dev');
@@ -21,15 +22,20 @@ function endLeftovers() {
     const file = path.join(runDir, `${name}.pid`);
     if (!existsSync(file)) continue;
     const pid = Number(readFileSync(file, 'utf8'));
-    try {
-      process.kill(pid, 0);
-      step(`Ending the ${name} process (${pid}) that a previous start left running`);
-      process.kill(pid, 'SIGTERM');
-    } catch {
-      // Already gone.
+    if (signalGroup(pid, 0)) {
+      step(`Ending the ${name} processes (group ${pid}) that a previous start left running`);
+      signalGroup(pid, 'SIGTERM');
+      waitForGroupToEnd(pid);
     }
     rmSync(file, { force: true });
   }
+}
+
+/** Waits up to 5 s for a process group to end, then kills what is left of it. */
+function waitForGroupToEnd(pid) {
+  const until = Date.now() + 5000;
+  while (Date.now() < until && signalGroup(pid, 0)) spawnSync('sleep', ['0.1']);
+  if (signalGroup(pid, 0)) signalGroup(pid, 'SIGKILL');
 }
 
 ensureNodeModules(root);
@@ -70,9 +76,9 @@ async function shutdown(code = 0) {
   const exited = children.map((child) =>
     child.exitCode !== null || child.signalCode !== null ? Promise.resolve() : new Promise((resolve) => child.once('exit', resolve)),
   );
-  for (const child of children) child.kill('SIGTERM');
+  for (const child of children) signalGroup(child.pid, 'SIGTERM');
   const grace = setTimeout(() => {
-    for (const child of children) if (child.exitCode === null) child.kill('SIGKILL');
+    for (const child of children) if (child.exitCode === null) signalGroup(child.pid, 'SIGKILL');
   }, 3000);
   await Promise.all(exited);
   clearTimeout(grace);

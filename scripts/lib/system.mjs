@@ -34,7 +34,9 @@ export function capture(command, args, options = {}) {
 
 /** Starts a long-running child process whose output is prefixed with a tag. */
 export function startChild(tag, command, args, options = {}) {
-  const child = spawn(command, args, { stdio: ['ignore', 'pipe', 'pipe'], ...options });
+  // Each child leads its own process group, so that it and everything it starts (npx,
+  // tsx, worker threads) can be stopped together, also by a later start after a crash.
+  const child = spawn(command, args, { stdio: ['ignore', 'pipe', 'pipe'], detached: true, ...options });
   const prefix = (stream, out) => {
     let pending = '';
     stream.on('data', (chunk) => {
@@ -47,6 +49,16 @@ export function startChild(tag, command, args, options = {}) {
   prefix(child.stdout, process.stdout);
   prefix(child.stderr, process.stderr);
   return child;
+}
+
+/** Sends a signal to a child's whole process group; false when it is already gone. */
+export function signalGroup(pid, signal) {
+  try {
+    process.kill(-pid, signal);
+    return true;
+  } catch {
+    return false;
+  }
 }
 
 const isRoot = typeof process.getuid === 'function' && process.getuid() === 0;
