@@ -9,7 +9,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { seedDemo } from '../../db/seed';
 import { DEMO_INITIATIVES, DEMO_PASSWORD, DEMO_USERS, demoEmail } from '../../db/seeds/demo';
-import { mailDir, saveScreenshot, startHarness, type Harness } from './harness';
+import { mailDir, saveScreenshot, signInThroughPage, startHarness, type Harness } from './harness';
 import { closeOwnerDb, makeInitiative, ownerDb } from '../support/factories';
 
 let harness: Harness;
@@ -27,18 +27,11 @@ afterAll(async () => {
   await closeOwnerDb();
 });
 
-async function signIn(page: Page, email: string, password: string) {
-  await page.goto('/sign-in');
-  await page.getByLabel('E-mail address').fill(email);
-  await page.getByLabel('Password').fill(password);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL((url) => url.pathname !== '/sign-in');
-}
 
 describe('the demo accounts', () => {
   it.each(DEMO_USERS.map((u) => [u.local, u] as const))('%s signs in, sees only its initiatives, and signs out', async (_local, user) => {
     const { page, context, consoleErrors } = await harness.newPage();
-    await signIn(page, demoEmail(user.local), DEMO_PASSWORD);
+    await signInThroughPage(page, demoEmail(user.local), DEMO_PASSWORD);
     await expect(page.getByTestId('signed-in-user').textContent()).resolves.toContain(user.displayName);
     const nav = page.getByRole('navigation', { name: 'Initiatives' });
     const navText = (await nav.textContent()) ?? '';
@@ -83,7 +76,7 @@ describe('an invitation', () => {
   it('goes out from the people page, arrives in the local mail server, and its link signs the person in', async () => {
     const invitee = `new.analyst.${Date.now()}@tern-valley.example`;
     const admin = await harness.newPage();
-    await signIn(admin.page, demoEmail('admin'), DEMO_PASSWORD);
+    await signInThroughPage(admin.page, demoEmail('admin'), DEMO_PASSWORD);
     await admin.page.goto('/admin/users');
     await admin.page.getByLabel('E-mail address').fill(invitee);
     await admin.page.getByLabel('Name', { exact: true }).fill('Noor Field');

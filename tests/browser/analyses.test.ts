@@ -10,7 +10,7 @@ import type { Page } from 'playwright-core';
 import { seedDemo } from '../../db/seed';
 import { seedDemoExtracts } from '../../db/seeds/demoExtracts';
 import { DEMO_PASSWORD, demoEmail } from '../../db/seeds/demo';
-import { saveScreenshot, startHarness, startWorker, type Harness } from './harness';
+import { saveScreenshot, signInThroughPage, startHarness, startWorker, type Harness } from './harness';
 import { closeOwnerDb, ownerDb } from '../support/factories';
 
 let harness: Harness;
@@ -30,13 +30,6 @@ afterAll(async () => {
   await closeOwnerDb();
 });
 
-async function signIn(page: Page, who: string) {
-  await page.goto('/sign-in');
-  await page.getByLabel('E-mail address').fill(demoEmail(who));
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL((url) => url.pathname === '/');
-}
 
 interface StoredRun {
   status: string;
@@ -49,7 +42,7 @@ interface StoredRun {
 describe('an analysis by age band', () => {
   it('is created through the form, run, and read with numbers equal to the engine result', async () => {
     const { page, context, consoleErrors } = await harness.newPage();
-    await signIn(page, 'analyst');
+    await signInThroughPage(page, demoEmail('analyst'), DEMO_PASSWORD);
     await page.getByRole('navigation', { name: 'Initiatives' }).getByRole('link', { name: /Call-back within 72 hours/ }).click();
     await page.getByRole('navigation', { name: 'Initiative sections' }).getByRole('link', { name: 'Analyses' }).click();
     await page.getByRole('link', { name: 'New analysis' }).click();
@@ -105,7 +98,7 @@ describe('an analysis by age band', () => {
   it('is readable, but not runnable, by the demo clinician', async () => {
     expect(runUrl).not.toBe('');
     const { page, context, consoleErrors } = await harness.newPage();
-    await signIn(page, 'clinician');
+    await signInThroughPage(page, demoEmail('clinician'), DEMO_PASSWORD);
     await page.goto(runUrl);
     await page.getByTestId('plot-stratum-forest').locator('.main-svg').first().waitFor();
     await page.getByRole('link', { name: 'Call-back effect by age band' }).first().click();
@@ -123,7 +116,7 @@ describe('an analysis by age band', () => {
 describe('an analysis with a continuous modifier', () => {
   it('shows the significance band plot with its boundaries', async () => {
     const { page, context, consoleErrors } = await harness.newPage();
-    await signIn(page, 'analyst');
+    await signInThroughPage(page, demoEmail('analyst'), DEMO_PASSWORD);
     const me = await (await page.request.get('/api/me')).json();
     const upAndAbout = me.memberships.find((m: { initiativeName: string }) => m.initiativeName === 'Up-and-about');
     const extracts = await (await page.request.get(`/api/initiatives/${upAndAbout.initiativeId}/extracts`)).json();

@@ -11,7 +11,7 @@ import type { Page } from 'playwright-core';
 import { seedDemo } from '../../db/seed';
 import { seedDemoExtracts } from '../../db/seeds/demoExtracts';
 import { DEMO_PASSWORD, demoEmail } from '../../db/seeds/demo';
-import { saveScreenshot, startHarness, type Harness } from './harness';
+import { saveScreenshot, signInThroughPage, startHarness, type Harness } from './harness';
 import { closeOwnerDb, ownerDb } from '../support/factories';
 
 let harness: Harness;
@@ -27,13 +27,6 @@ afterAll(async () => {
   await closeOwnerDb();
 });
 
-async function signIn(page: Page, who: string) {
-  await page.goto('/sign-in');
-  await page.getByLabel('E-mail address').fill(demoEmail(who));
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL((url) => url.pathname === '/');
-}
 
 async function openCallBackExtracts(page: Page) {
   await page.getByRole('navigation', { name: 'Initiatives' }).getByRole('link', { name: /Call-back within 72 hours/ }).click();
@@ -44,7 +37,7 @@ async function openCallBackExtracts(page: Page) {
 describe('extracts in the browser', () => {
   it('an analyst uploads, confirms and previews an extract', async () => {
     const { page, context, consoleErrors } = await harness.newPage();
-    await signIn(page, 'analyst');
+    await signInThroughPage(page, demoEmail('analyst'), DEMO_PASSWORD);
     await openCallBackExtracts(page);
     await expect(page.getByTestId('extracts-table').textContent()).resolves.toContain('Discharges with call-back status (synthetic)');
 
@@ -81,7 +74,7 @@ describe('extracts in the browser', () => {
 
   it('a clinician sees the profile and dictionary but no rows', async () => {
     const { page, context, consoleErrors } = await harness.newPage();
-    await signIn(page, 'clinician');
+    await signInThroughPage(page, demoEmail('clinician'), DEMO_PASSWORD);
     await openCallBackExtracts(page);
     await page.getByRole('link', { name: 'Discharges with call-back status (synthetic)' }).click();
     await page.getByTestId('profile-table').waitFor();

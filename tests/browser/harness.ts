@@ -134,3 +134,12 @@ export async function saveScreenshot(page: Page, name: string): Promise<string> 
   await page.screenshot({ path: file, fullPage: true });
   return file;
 }
+
+/** Signs in through the real sign-in page and waits to leave it. */
+export async function signInThroughPage(page: Page, email: string, password: string): Promise<void> {
+  await page.goto('/sign-in');
+  await page.getByLabel('E-mail address').fill(email);
+  await page.getByLabel('Password').fill(password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL((url) => url.pathname !== '/sign-in');
+}

@@ -21,6 +21,7 @@ import {
   type SortingState,
 } from '@tanstack/react-table';
 import { useState } from 'react';
+import { SortableHeader } from './SortableHeader';
 
 export const dataTableFeatures = tableFeatures({
   rowSortingFeature,
@@ -75,26 +76,11 @@ export function DataTable<T extends RowData>({ data, columns, filterLabel, empty
           <thead>
             {table.getHeaderGroups().map((group) => (
               <tr key={group.id}>
-                {group.headers.map((header) => {
-                  const sorted = header.column.getIsSorted();
-                  const canSort = header.column.getCanSort();
-                  return (
-                    <th key={header.id} aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : undefined}>
-                      {header.isPlaceholder ? null : canSort ? (
-                        <button
-                          type="button"
-                          className="inline-flex items-center gap-1 uppercase tracking-wide font-semibold cursor-pointer"
-                          onClick={header.column.getToggleSortingHandler()}
-                        >
-                          <FlexRender header={header} />
-                          <span aria-hidden="true" className="text-ink-500">{sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '↕'}</span>
-                        </button>
-                      ) : (
-                        <FlexRender header={header} />
-                      )}
-                    </th>
-                  );
-                })}
+                {group.headers.map((header) => (
+                  <SortableHeader key={header.id} sorted={header.column.getIsSorted()} canSort={header.column.getCanSort()} onToggle={header.column.getToggleSortingHandler()}>
+                    {header.isPlaceholder ? null : <FlexRender header={header} />}
+                  </SortableHeader>
+                ))}
               </tr>
             ))}
           </thead>

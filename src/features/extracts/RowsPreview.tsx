@@ -17,6 +17,7 @@ import {
 import { useMemo, useState } from 'react';
 import { apiFetch } from '../../lib/client/api';
 import { QueryRoot } from '../../components/ui/QueryRoot';
+import { SortableHeader } from '../../components/ui/SortableHeader';
 import type { RowsPage } from './extracts.server';
 
 const features = tableFeatures({ rowSortingFeature, rowPaginationFeature });
@@ -86,17 +87,11 @@ function Preview({ extractId, versionId, columns }: Props) {
           <thead>
             {table.getHeaderGroups().map((group) => (
               <tr key={group.id}>
-                {group.headers.map((header) => {
-                  const sorted = header.column.getIsSorted();
-                  return (
-                    <th key={header.id} aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : undefined}>
-                      <button type="button" className="inline-flex gap-1 items-center font-semibold uppercase tracking-wide cursor-pointer" onClick={header.column.getToggleSortingHandler()}>
-                        <FlexRender header={header} />
-                        <span aria-hidden="true" className="text-ink-500">{sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '↕'}</span>
-                      </button>
-                    </th>
-                  );
-                })}
+                {group.headers.map((header) => (
+                  <SortableHeader key={header.id} sorted={header.column.getIsSorted()} onToggle={header.column.getToggleSortingHandler()}>
+                    <FlexRender header={header} />
+                  </SortableHeader>
+                ))}
               </tr>
             ))}
           </thead>
