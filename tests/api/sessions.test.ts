@@ -8,7 +8,9 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
 import { hashPassword } from '../../src/lib/server/passwords';
 import { hashToken, SESSION_COOKIE } from '../../src/lib/server/session';
-import { startServer, type ServerHandle } from '../browser/harness';
+import { readdirSync, readFileSync } from 'node:fs';
+import path from 'node:path';
+import { mailDir, startServer, type ServerHandle } from '../browser/harness';
 import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
 import { ApiClient } from '../support/http';
 
@@ -32,6 +34,23 @@ async function signedIn(options: { isAdmin?: boolean } = {}) {
   const response = await client.signIn(user.email, password);
   expect(response.status).toBe(204);
   return { user, client };
+}
+
+/** The reset token from the newest message the local mail server kept for an address. */
+async function resetTokenFor(email: string): Promise<string> {
+  for (let attempt = 0; attempt < 50; attempt += 1) {
+    const files = readdirSync(mailDir).filter((f) => f.endsWith('.json')).sort().reverse();
+    for (const file of files) {
+      const summary = JSON.parse(readFileSync(path.join(mailDir, file), 'utf8')) as { id: string; to: string[] | string; subject: string };
+      const to = Array.isArray(summary.to) ? summary.to : [summary.to];
+      if (!to.some((t) => t.includes(email)) || !/reset/i.test(summary.subject)) continue;
+      const eml = readFileSync(path.join(mailDir, `${summary.id}.eml`), 'utf8').replace(/=\r?\n/g, '').replace(/=3D/g, '=');
+      const token = /reset-password\?token=([A-Za-z0-9_%-]+)/.exec(eml)?.[1];
+      if (token) return decodeURIComponent(token);
+    }
+    await new Promise((resolve) => setTimeout(resolve, 100));
+  }
+  throw new Error(`no reset message for ${email}`);
 }
 
 /** Moves the session's clock back, as if time had passed. */
@@ -128,6 +147,30 @@ describe('ending sessions', () => {
     expect((await laptop.request('GET', '/api/me')).status).toBe(401);
     expect((await phone.request('GET', '/api/me')).status).toBe(401);
     expect((await laptop.signIn(target.email, password)).status).toBe(401);
+  });
+});
+
+describe('a forgotten password', () => {
+  it('is reset by a single-use e-mailed link that ends every other session', async () => {
+    const { user, client: oldSession } = await signedIn();
+    const asked = await new ApiClient().request('POST', '/api/auth/forgot-password', { email: user.email });
+    expect(asked.status).toBe(202);
+    // The same answer for an address with no account.
+    const unknown = await new ApiClient().request('POST', '/api/auth/forgot-password', { email: 'nobody@test.example' });
+    expect(unknown.status).toBe(202);
+    expect(await unknown.json()).toEqual(await asked.clone().json());
+
+    const token = await resetTokenFor(user.email);
+    const weak = await new ApiClient().request('POST', '/api/auth/reset-password', { token, password: 'qwerty123456' });
+    expect(weak.status).toBe(422);
+    const reset = await new ApiClient().request('POST', '/api/auth/reset-password', { token, password: 'reed-warbler-estuary' });
+    expect(reset.status).toBe(204);
+    expect((await oldSession.request('GET', '/api/me')).status).toBe(401);
+    expect((await new ApiClient().signIn(user.email, password)).status).toBe(401);
+    expect((await new ApiClient().signIn(user.email, 'reed-warbler-estuary')).status).toBe(204);
+    const again = await new ApiClient().request('POST', '/api/auth/reset-password', { token, password: 'another-long-phrase' });
+    expect(again.status).toBe(422);
+    expect((await again.json()).error.code).toBe('link-used');
   });
 });
 
