@@ -6,7 +6,6 @@
 import { readdirSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Page } from 'playwright-core';
 import { seedDemo } from '../../db/seed';
 import { DEMO_INITIATIVES, DEMO_PASSWORD, DEMO_USERS, demoEmail } from '../../db/seeds/demo';
 import { mailDir, saveScreenshot, signInThroughPage, startHarness, type Harness } from './harness';

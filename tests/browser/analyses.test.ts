@@ -6,7 +6,6 @@
  * significance band plot.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Page } from 'playwright-core';
 import { seedDemo } from '../../db/seed';
 import { seedDemoExtracts } from '../../db/seeds/demoExtracts';
 import { DEMO_PASSWORD, demoEmail } from '../../db/seeds/demo';

@@ -1,6 +1,6 @@
 /** The administrators' initiatives page: the list and the form that creates one. */
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import { useMemo, useState, type FormEvent } from 'react';
+import { useMemo, useState, type SyntheticEvent } from 'react';
 import { ApiError, apiFetch } from '../../lib/client/api';
 import { DataTable, type DataColumn } from '../../components/ui/DataTable';
 import { QueryRoot } from '../../components/ui/QueryRoot';
@@ -20,7 +20,7 @@ function CreateForm({ defaultOrganisation }: { defaultOrganisation: string }) {
     },
   });
   const error = create.error instanceof ApiError ? create.error : null;
-  const submit = (event: FormEvent) => {
+  const submit = (event: SyntheticEvent) => {
     event.preventDefault();
     create.mutate();
   };

@@ -1,6 +1,6 @@
 /** The administrators' people page: a sortable, filterable list, invitations, deactivation. */
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import { useMemo, useState, type FormEvent } from 'react';
+import { useMemo, useState, type SyntheticEvent } from 'react';
 import { ApiError, apiFetch } from '../../lib/client/api';
 import { DataTable, type DataColumn } from '../../components/ui/DataTable';
 import { QueryRoot } from '../../components/ui/QueryRoot';
@@ -38,7 +38,7 @@ function InviteForm({ initiatives }: { initiatives: InitiativeItem[] }) {
     },
   });
   const error = invite.error instanceof ApiError ? invite.error : null;
-  const submit = (event: FormEvent) => {
+  const submit = (event: SyntheticEvent) => {
     event.preventDefault();
     invite.mutate();
   };

@@ -1,6 +1,6 @@
 /** Personal API tokens on the profile page: create (the secret is shown once), list, revoke. */
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import { useState, type FormEvent } from 'react';
+import { useState, type SyntheticEvent } from 'react';
 import { ApiError, apiFetch } from '../../lib/client/api';
 import { QueryRoot } from '../../components/ui/QueryRoot';
 import type { ApiTokenItem } from '../../lib/server/apiTokens';
@@ -23,7 +23,7 @@ function Tokens() {
     onSuccess: () => void client.invalidateQueries({ queryKey: ['api-tokens'] }),
   });
   const error = create.error instanceof ApiError ? create.error : null;
-  const submit = (event: FormEvent) => {
+  const submit = (event: SyntheticEvent) => {
     event.preventDefault();
     create.mutate();
   };

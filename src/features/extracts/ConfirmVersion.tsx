@@ -3,7 +3,7 @@
  * the de-identification statement. After this the version is ready and never changes.
  */
 import { useMutation } from '@tanstack/react-query';
-import { useState, type FormEvent } from 'react';
+import { useState, type SyntheticEvent } from 'react';
 import { ApiError, apiFetch } from '../../lib/client/api';
 import { QueryRoot } from '../../components/ui/QueryRoot';
 import type { AnalysableColumnType } from './extracts.schema';
@@ -39,7 +39,7 @@ function Confirm({ extractId, versionId, columns, statement, signerName }: Props
     onSuccess: () => window.location.reload(),
   });
   const error = confirm.error instanceof ApiError ? confirm.error : null;
-  const submit = (event: FormEvent) => {
+  const submit = (event: SyntheticEvent) => {
     event.preventDefault();
     if (agreed && signedName.trim()) confirm.mutate();
   };

@@ -12,7 +12,7 @@ const Env = z.object({
   HOST: z.string().default('127.0.0.1'),
   PORT: z.coerce.number().int().positive().default(4321),
   /** The address users reach the app at; used in links inside e-mails. */
-  CROSSGRAIN_PUBLIC_URL: z.string().url().optional(),
+  CROSSGRAIN_PUBLIC_URL: z.url().optional(),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
 
   CROSSGRAIN_DB_HOST: z.string().default('127.0.0.1'),
