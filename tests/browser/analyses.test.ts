@@ -107,6 +107,9 @@ describe('an analysis by age band', () => {
     await page.goto(runUrl);
     await page.getByTestId('plot-profile').locator('.main-svg').first().waitFor();
     await saveScreenshot(page, 'run-results-clinician');
+    // The initiative's overview lists the run among the latest.
+    await page.getByRole('navigation', { name: 'Initiative sections' }).getByRole('link', { name: 'Overview' }).click();
+    await expect(page.getByTestId('recent-runs').textContent()).resolves.toContain('Call-back effect by age band');
     expect(consoleErrors).toEqual([]);
     await context.close();
   });

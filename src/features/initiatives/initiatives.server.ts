@@ -28,3 +28,30 @@ export async function getInitiative(transaction: Transaction, initiativeId: stri
   );
   return { id: row.id, name: row.name, organisation: row.organisation, description: row.description, readersSeeRows: row.readers_see_rows, members };
 }
+
+export interface InitiativeActivity {
+  readyExtracts: number;
+  analyses: number;
+  recentRuns: { id: string; analysisId: string; title: string; status: string; queuedAt: string; startedBy: string }[];
+}
+
+/** Counts and the latest runs, for the initiative's overview. */
+export async function initiativeActivity(transaction: Transaction, initiativeId: string): Promise<InitiativeActivity> {
+  const [counts] = await sequelize.query<{ extracts: string; analyses: string }>(
+    `SELECT (SELECT count(*) FROM extracts e WHERE e.initiative_id = :id AND e.archived_at IS NULL
+               AND EXISTS (SELECT 1 FROM extract_versions v WHERE v.extract_id = e.id AND v.status = 'ready')) AS extracts,
+            (SELECT count(*) FROM analyses a WHERE a.initiative_id = :id) AS analyses`,
+    { replacements: { id: initiativeId }, type: QueryTypes.SELECT, transaction },
+  );
+  const runs = await sequelize.query<{ id: string; analysis_id: string; title: string; status: string; queued_at: Date; starter: string }>(
+    `SELECT r.id, r.analysis_id, a.title, r.status, r.queued_at, u.display_name AS starter
+       FROM runs r JOIN analyses a ON a.id = r.analysis_id JOIN users u ON u.id = r.started_by
+      WHERE r.initiative_id = :id ORDER BY r.queued_at DESC LIMIT 6`,
+    { replacements: { id: initiativeId }, type: QueryTypes.SELECT, transaction },
+  );
+  return {
+    readyExtracts: Number(counts.extracts),
+    analyses: Number(counts.analyses),
+    recentRuns: runs.map((r) => ({ id: r.id, analysisId: r.analysis_id, title: r.title, status: r.status, queuedAt: new Date(r.queued_at).toISOString(), startedBy: r.starter })),
+  };
+}
