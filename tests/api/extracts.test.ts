@@ -197,6 +197,28 @@ describe('bad input gets a clear message and changes nothing', () => {
   });
 });
 
+describe('leaving flagged columns out', () => {
+  it('stores the rest of the file and never the dropped values', async () => {
+    const csv = `contact,call_back,y\n${Array.from({ length: 40 }, (_, i) => `p${i}@mail.example,${i % 2},${i % 3 === 0 ? 1 : 0}`).join('\n')}`;
+    const refused = await upload(analyst, 'With contacts', csv);
+    const refusedView = await settled(analyst, JSON.parse(refused.body).extractId);
+    expect(refusedView.versions[0].status).toBe('refused');
+    const response = await streamUpload(`${uploadPath('Without contacts')}&drop=contact`, [csv], { Cookie: `${SESSION_COOKIE}=${analyst.cookie(SESSION_COOKIE)}` });
+    expect(response.status).toBe(202);
+    const { extractId, versionId } = JSON.parse(response.body);
+    const view = await settled(analyst, extractId);
+    expect(view.versions[0]).toMatchObject({ status: 'needs-review', columns: 2, droppedColumns: ['contact'] });
+    const stored = await ownerDb().query<{ name: string }>('SELECT name FROM extract_columns WHERE version_id = :id ORDER BY position', {
+      replacements: { id: versionId }, type: QueryTypes.SELECT,
+    });
+    expect(stored.map((c) => c.name)).toEqual(['call_back', 'y']);
+    // A column that is not in the file is refused by name, at once.
+    const unknown = await streamUpload(`${uploadPath('Typo')}&drop=contcat`, [csv], { Cookie: `${SESSION_COOKIE}=${analyst.cookie(SESSION_COOKIE)}` });
+    expect(unknown.status).toBe(422);
+    expect(JSON.parse(unknown.body).error.message).toContain('contcat');
+  });
+});
+
 describe('who may do what with extracts', () => {
   it('lets only analysts upload; other initiatives see 404', async () => {
     const before = await dataCounts();

@@ -72,6 +72,27 @@ describe('extracts in the browser', () => {
     await context.close();
   });
 
+  it('a refused upload can be sent again without its flagged columns', async () => {
+    const { page, context, consoleErrors } = await harness.newPage();
+    await signInThroughPage(page, demoEmail('analyst'), DEMO_PASSWORD);
+    await openCallBackExtracts(page);
+    const file = path.join(os.tmpdir(), `with-contacts-${Date.now()}.csv`);
+    const lines = ['contact_email,call_back,readmitted_30d'];
+    for (let i = 0; i < 60; i += 1) lines.push(`person${i}@mail.example,${i % 2},${i % 4 === 0 ? 1 : 0}`);
+    writeFileSync(file, `${lines.join('\n')}\n`);
+    await page.getByTestId('upload-file').setInputFiles(file);
+    await page.getByLabel('Name of the extract').fill('Contacts sample (synthetic)');
+    await page.getByRole('button', { name: 'Upload', exact: true }).click();
+    await page.getByTestId('upload-refused').waitFor();
+    await expect(page.getByTestId('upload-refused').textContent()).resolves.toContain('contact_email');
+    await saveScreenshot(page, 'extract-refused');
+    await page.getByTestId('retry-without').click();
+    await page.getByTestId('upload-done').waitFor();
+    await expect(page.getByTestId('upload-done').textContent()).resolves.toContain('60 rows and 2 columns');
+    expect(consoleErrors).toEqual([]);
+    await context.close();
+  });
+
   it('a clinician sees the profile and dictionary but no rows', async () => {
     const { page, context, consoleErrors } = await harness.newPage();
     await signInThroughPage(page, demoEmail('clinician'), DEMO_PASSWORD);

@@ -4,7 +4,7 @@
  * lists its reasons; nothing of a refused file is kept.
  */
 import { useQuery } from '@tanstack/react-query';
-import { useRef, useState, type DragEvent } from 'react';
+import { useEffect, useRef, useState, type DragEvent } from 'react';
 import { apiFetch } from '../../lib/client/api';
 import { QueryRoot } from '../../components/ui/QueryRoot';
 import type { ExtractView, VersionView } from './extracts.server';
@@ -48,7 +48,14 @@ function ProgressBar({ percent, label }: { percent: number; label: string }) {
   );
 }
 
-function Processing({ extractId, versionId, onCancel }: { extractId: string; versionId: string; onCancel: () => void }) {
+function Processing({ extractId, versionId, onCancel, onRetryWithout, onSettled }: {
+  extractId: string;
+  versionId: string;
+  onCancel: () => void;
+  onRetryWithout: (columns: string[]) => void;
+  /** Called once the upload has left processing, so the panel takes a new file again. */
+  onSettled: () => void;
+}) {
   const status = useQuery({
     queryKey: ['extract', extractId],
     queryFn: () => apiFetch<ExtractView>(`/api/extracts/${extractId}`),
@@ -58,6 +65,10 @@ function Processing({ extractId, versionId, onCancel }: { extractId: string; ver
     },
   });
   const version: VersionView | undefined = status.data?.versions.find((v) => v.versionId === versionId);
+  const settled = Boolean(version && version.status !== 'processing');
+  useEffect(() => {
+    if (settled) onSettled();
+  }, [settled, onSettled]);
   if (!version || version.status === 'processing') {
     return (
       <div data-testid="upload-processing">
@@ -72,7 +83,20 @@ function Processing({ extractId, versionId, onCancel }: { extractId: string; ver
       <div role="alert" className="mt-3 border border-brick-100 bg-brick-50 rounded-sm p-3 text-sm text-brick-700" data-testid="upload-refused">
         <p className="font-semibold">{version.status === 'refused' ? 'The file was refused. Nothing from it was kept.' : 'The upload did not finish. Nothing from it was kept.'}</p>
         <ul className="list-disc ml-5 mt-1 space-y-0.5">{reasons.map((r, i) => <li key={i}>{r.message}</li>)}</ul>
-        {version.status === 'refused' && <p className="mt-2">Remove the flagged columns from the file (or replace them with grouped values) and upload again.</p>}
+        {version.status === 'refused' && (() => {
+          const flagged = [...new Set(reasons.map((r) => r.column).filter((c): c is string => Boolean(c)))];
+          return (
+            <>
+              <p className="mt-2">Remove the flagged columns from the file (or replace them with grouped values) and upload again
+                {flagged.length > 0 && ', or upload the same file again leaving them out: their values are then never stored'}.</p>
+              {flagged.length > 0 && (
+                <button type="button" className="btn btn-secondary mt-2" onClick={() => onRetryWithout(flagged)} data-testid="retry-without">
+                  Upload again without {flagged.join(', ')}
+                </button>
+              )}
+            </>
+          );
+        })()}
       </div>
     );
   }
@@ -90,6 +114,7 @@ function Uploader({ initiativeId, extractId, maxBytes }: Props) {
   const [name, setName] = useState('');
   const [phase, setPhase] = useState<Phase>({ kind: 'idle' });
   const [dragging, setDragging] = useState(false);
+  const [settled, setSettled] = useState(false);
   const request = useRef<XMLHttpRequest | null>(null);
   const input = useRef<HTMLInputElement>(null);
 
@@ -106,9 +131,13 @@ function Uploader({ initiativeId, extractId, maxBytes }: Props) {
   };
   const tooLarge = file ? file.size > maxBytes : false;
 
-  const send = () => {
+  const send = (drop: string[] = []) => {
     if (!file || tooLarge) return;
-    const url = extractId ? `/api/extracts/${extractId}/versions` : `/api/initiatives/${initiativeId}/extracts?name=${encodeURIComponent(name.trim())}`;
+    const params = new URLSearchParams();
+    if (!extractId) params.set('name', name.trim());
+    if (drop.length) params.set('drop', drop.join(','));
+    const query = params.toString() ? `?${params}` : '';
+    const url = extractId ? `/api/extracts/${extractId}/versions${query}` : `/api/initiatives/${initiativeId}/extracts${query}`;
     const xhr = new XMLHttpRequest();
     request.current = xhr;
     xhr.open('POST', url);
@@ -122,6 +151,7 @@ function Uploader({ initiativeId, extractId, maxBytes }: Props) {
     };
     xhr.onerror = () => setPhase({ kind: 'refused-at-once', message: 'The connection failed before the upload finished. Nothing was kept.' });
     xhr.onabort = () => setPhase({ kind: 'cancelled' });
+    setSettled(false);
     setPhase({ kind: 'sending', loaded: 0, total: file.size });
     xhr.send(file);
   };
@@ -134,7 +164,8 @@ function Uploader({ initiativeId, extractId, maxBytes }: Props) {
     }
   };
 
-  const busy = phase.kind === 'sending' || phase.kind === 'processing';
+  const busy = phase.kind === 'sending' || (phase.kind === 'processing' && !settled);
+  const markSettled = () => setSettled(true);
   return (
     <section className="card p-5" aria-labelledby="upload-heading">
       <h2 id="upload-heading" className="text-lg">{extractId ? 'Upload a new version' : 'Upload an extract'}</h2>
@@ -161,11 +192,13 @@ function Uploader({ initiativeId, extractId, maxBytes }: Props) {
         </div>
       )}
       <div className="mt-4 flex gap-3">
-        <button type="button" className="btn btn-primary" onClick={send} disabled={!file || tooLarge || busy || (!extractId && !name.trim())}>Upload</button>
+        <button type="button" className="btn btn-primary" onClick={() => send()} disabled={!file || tooLarge || busy || (!extractId && !name.trim())}>Upload</button>
         {phase.kind === 'sending' && <button type="button" className="btn btn-secondary" onClick={() => void cancel()}>Cancel upload</button>}
       </div>
       {phase.kind === 'sending' && <ProgressBar percent={(phase.loaded / Math.max(1, phase.total)) * 100} label={`Sending ${formatBytes(phase.loaded)} of ${formatBytes(phase.total)}`} />}
-      {phase.kind === 'processing' && <Processing extractId={phase.extractId} versionId={phase.versionId} onCancel={() => void cancel()} />}
+      {phase.kind === 'processing' && (
+        <Processing extractId={phase.extractId} versionId={phase.versionId} onCancel={() => void cancel()} onRetryWithout={(columns) => send(columns)} onSettled={markSettled} />
+      )}
       {phase.kind === 'refused-at-once' && (
         <p role="alert" className="mt-3 border border-brick-100 bg-brick-50 rounded-sm p-3 text-sm text-brick-700" data-testid="upload-refused">
           <strong>The file was refused. Nothing from it was kept.</strong> {phase.message}

@@ -143,9 +143,20 @@ export const VersionStatus = z.discriminatedUnion('status', [
 export type VersionStatus = z.infer<typeof VersionStatus>;
 
 /** Query of POST /api/initiatives/{initiativeId}/extracts. */
+/** Columns to leave out while reading (their values are never stored), comma-separated. */
+const DropColumns = z
+  .string()
+  .max(4000)
+  .optional()
+  .transform((value) => (value ? value.split(',').map((name) => name.trim()).filter(Boolean) : []));
+
 export const NewExtractQuery = z.object({
   name: z.string().trim().min(1, 'Give the extract a name (the query parameter "name").').max(120, 'Keep the name under 120 characters.'),
+  drop: DropColumns,
 });
+
+/** Query of POST /api/extracts/{extractId}/versions. */
+export const NewVersionQuery = z.object({ drop: DropColumns });
 export type NewExtractQuery = z.infer<typeof NewExtractQuery>;
 
 /** Query of the row preview. */

@@ -125,6 +125,7 @@ export async function receiveUpload(
   uploader: Uploader,
   target: { initiativeId: string; name: string } | { extractId: string },
   request: Request,
+  options: { dropColumns?: readonly string[] } = {},
 ): Promise<{ extractId: string; versionId: string; done: Promise<void> }> {
   const start = await withIdentity(uploader.id, async (transaction): Promise<IntakeStart> => {
     let initiativeId: string;
@@ -172,6 +173,7 @@ export async function receiveUpload(
   try {
     read = await readExtractColumns(keepWhileReading(uploadSource(request), file), {
       expectedBytes,
+      dropColumns: options.dropColumns,
       maxBytes: env.CROSSGRAIN_UPLOAD_MAX_BYTES,
       onProgress: ({ percent }) => {
         if (Date.now() - lastReport < 500) return;

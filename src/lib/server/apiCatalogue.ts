@@ -9,7 +9,7 @@ import {
   CreateInitiativeBody, InitiativeItem, InviteUserBody, SetMembershipBody, UpdateInitiativeBody, UpdateUserBody, UserListItem,
 } from '../../features/admin/admin.schema';
 import { ApiTokenView, CreateApiTokenBody, CreatedApiToken, ForgotPasswordBody, MeResponse, SetPasswordBody, SignInBody } from '../../features/auth/auth.schema';
-import { ArchiveBody, ConfirmVersionBody, NewExtractQuery, RowsQuery, UploadAccepted } from '../../features/extracts/extracts.schema';
+import { ArchiveBody, ConfirmVersionBody, NewExtractQuery, NewVersionQuery, RowsQuery, UploadAccepted } from '../../features/extracts/extracts.schema';
 import { AnalysisBody, Created, DownloadQuery, RunAccepted } from '../../features/analyses/analysisApi.schema';
 import { OutboxQuery } from './outbox';
 
@@ -85,10 +85,10 @@ export const OPERATIONS: Operation[] = [
   { method: 'GET', path: '/api/initiatives/{initiativeId}/extracts', tag: 'Extracts', summary: "The initiative's extracts", auth: 'session', status: 200 },
   { method: 'POST', path: '/api/initiatives/{initiativeId}/extracts', tag: 'Extracts', summary: 'Upload a new extract (CSV as the raw body or a multipart file)', auth: 'session',
     query: NewExtractQuery, body: z.string().describe('The CSV file: header row, comma, semicolon or tab delimited, UTF-8.'), bodyType: 'text/csv', response: UploadAccepted, status: 202,
-    description: 'Analysts. Refused at once (413, 415, 422 with the first bad line) when the file is not an acceptable CSV; the identifier screen, profile and storage run after the 202: poll GET /api/extracts/{extractId}.' },
+    description: 'Analysts. Refused at once (413, 415, 422 with the first bad line) when the file is not an acceptable CSV; the identifier screen, profile and storage run after the 202: poll GET /api/extracts/{extractId}. `drop=col,col` leaves columns out while reading, so their values are never stored.' },
   { method: 'GET', path: '/api/extracts/{extractId}', tag: 'Extracts', summary: 'The extract and the status of each version (processing, needs-review, ready, refused, failed)', auth: 'session', status: 200 },
   { method: 'POST', path: '/api/extracts/{extractId}/versions', tag: 'Extracts', summary: 'Upload version n+1 of an extract', auth: 'session',
-    body: z.string(), bodyType: 'text/csv', response: UploadAccepted, status: 202 },
+    query: NewVersionQuery, body: z.string(), bodyType: 'text/csv', response: UploadAccepted, status: 202 },
   { method: 'POST', path: '/api/extracts/{extractId}/versions/{versionId}/confirm', tag: 'Extracts', summary: 'Sign the attestation and confirm the data dictionary; the version becomes ready', auth: 'session',
     body: ConfirmVersionBody, status: 204 },
   { method: 'POST', path: '/api/extracts/{extractId}/versions/{versionId}/cancel', tag: 'Extracts', summary: 'Cancel an upload that is still being processed', auth: 'session', status: 200 },

@@ -12,16 +12,17 @@ export const GET = endpoint(async ({ locals, params }) => {
 });
 
 /**
- * POST /api/initiatives/{initiativeId}/extracts?name=…: uploads a new extract, as a raw
+ * POST /api/initiatives/{initiativeId}/extracts?name=…[&drop=col,col]: uploads a new extract, as a raw
  * `text/csv` body or a file in multipart form data. 202 with `{ extractId, versionId }`;
  * screening, profiling and storing finish in the background (poll GET /api/extracts/{id}).
+ * Columns named in `drop` are skipped while reading: their values are never stored.
  */
 export const POST = endpoint(async (context) => {
   const user = requireUser(context.locals);
   const initiativeId = uuidParam(context.params.initiativeId, 'That initiative');
   requireMember(user, initiativeId);
   authorize(user, 'create', 'Extract', { initiativeId });
-  const { name } = parseQuery(context.url, NewExtractQuery);
-  const accepted = await receiveUpload({ id: user.id, clientAddress: clientAddress(context) }, { initiativeId, name }, context.request);
+  const { name, drop } = parseQuery(context.url, NewExtractQuery);
+  const accepted = await receiveUpload({ id: user.id, clientAddress: clientAddress(context) }, { initiativeId, name }, context.request, { dropColumns: drop });
   return json({ extractId: accepted.extractId, versionId: accepted.versionId }, 202);
 });

@@ -1,7 +1,8 @@
+import { NewVersionQuery } from '../../../../../features/extracts/extracts.schema';
 import { getExtract, receiveUpload } from '../../../../../features/extracts/extracts.server';
 import { authorize } from '../../../../../lib/server/authorize';
 import { notFound } from '../../../../../lib/server/errors';
-import { clientAddress, endpoint, json, requireUser, uuidParam } from '../../../../../lib/server/http';
+import { clientAddress, endpoint, json, parseQuery, requireUser, uuidParam } from '../../../../../lib/server/http';
 
 /** POST /api/extracts/{extractId}/versions: uploads version n+1 of an extract (202). */
 export const POST = endpoint(async (context) => {
@@ -11,6 +12,7 @@ export const POST = endpoint(async (context) => {
   if (!extract) throw notFound('That extract');
   authorize(user, 'read', 'Extract', { initiativeId: extract.initiativeId }, { hide: true });
   authorize(user, 'update', 'Extract', { initiativeId: extract.initiativeId });
-  const accepted = await receiveUpload({ id: user.id, clientAddress: clientAddress(context) }, { extractId }, context.request);
+  const { drop } = parseQuery(context.url, NewVersionQuery);
+  const accepted = await receiveUpload({ id: user.id, clientAddress: clientAddress(context) }, { extractId }, context.request, { dropColumns: drop });
   return json({ extractId: accepted.extractId, versionId: accepted.versionId }, 202);
 });
