@@ -67,6 +67,55 @@ function getColumn(data: EngineData, name: string): EngineColumn {
   return column;
 }
 
+/**
+ * Whether a column has a missing value (missing mask 1, NaN, or a categorical code outside
+ * its levels) and, for a numeric column, whether every value is finite, which spares the
+ * continuous-variable check a second pass. Numbers are tested without a branch per row.
+ */
+function scanColumn(column: EngineColumn, rowCount: number): { missing: boolean; finite: boolean } {
+  if (column.missing !== undefined) {
+    const mask = column.missing;
+    for (let row = 0; row < rowCount; row++) if (mask[row] === 1) return { missing: true, finite: false };
+  }
+  if (column.kind === 'numeric') {
+    const values = column.values;
+    let nonFinite = 0;
+    for (let row = 0; row < rowCount; row++) {
+      const value = values[row];
+      nonFinite |= +(value - value !== 0);
+    }
+    if (nonFinite === 0) return { missing: false, finite: true };
+    for (let row = 0; row < rowCount; row++) if (values[row] !== values[row]) return { missing: true, finite: false };
+    return { missing: false, finite: false };
+  }
+  const codes = column.codes;
+  const levelCount = column.levels.length;
+  for (let row = 0; row < rowCount; row++) {
+    const code = codes[row];
+    if (code < 0 || code >= levelCount) return { missing: true, finite: false };
+  }
+  return { missing: false, finite: false };
+}
+
+/** Sets `missingRow[row]` to 1 for every row missing in the column (see scanColumn). */
+function markMissingRows(column: EngineColumn, rowCount: number, missingRow: Uint8Array): void {
+  if (column.missing !== undefined) {
+    const mask = column.missing;
+    for (let row = 0; row < rowCount; row++) missingRow[row] |= mask[row] === 1 ? 1 : 0;
+  }
+  if (column.kind === 'numeric') {
+    const values = column.values;
+    for (let row = 0; row < rowCount; row++) if (values[row] !== values[row]) missingRow[row] = 1;
+  } else {
+    const codes = column.codes;
+    const levelCount = column.levels.length;
+    for (let row = 0; row < rowCount; row++) {
+      const code = codes[row];
+      if (code < 0 || code >= levelCount) missingRow[row] = 1;
+    }
+  }
+}
+
 /** Shortest round-trip text of a number, used as a level name for numeric columns. */
 export function numberLevel(value: number): string {
   return Object.is(value, -0) ? '0' : String(value);
@@ -96,6 +145,52 @@ function presentLevels(column: EngineColumn, rows: Int32Array): string[] {
   return distinct.sort((a, b) => a - b).map(numberLevel);
 }
 
+/**
+ * Writes the exposure code of every kept row into `out` (0 for the reference, 1 otherwise)
+ * and returns the levels present, as presentLevels gives them. A numeric column with a
+ * third distinct value stops the shortcut: its levels are then listed by presentLevels,
+ * for the error that follows.
+ */
+function codeExposure(column: EngineColumn, reference: string, rows: Int32Array, allRows: boolean, out: Uint8Array): string[] {
+  const n = rows.length;
+  if (column.kind === 'categorical') {
+    const referenceCode = column.levels.indexOf(reference);
+    const codes = column.codes;
+    const seen = new Uint8Array(column.levels.length);
+    for (let i = 0; i < n; i++) {
+      const code = codes[allRows ? i : rows[i]];
+      seen[code] = 1;
+      out[i] = +(code !== referenceCode); // a number, not a branch (see below)
+    }
+    return column.levels.filter((_, code) => seen[code] === 1);
+  }
+  const referenceValue = Number(reference);
+  const values = column.values;
+  const first = values[rows[0]];
+  let second = first;
+  let distinct = 1;
+  for (let i = 0; i < n; i++) {
+    const value = values[allRows ? i : rows[i]];
+    // Comparisons turned into numbers, not branches: the exposure of consecutive rows is
+    // as good as random, and a mispredicted branch per row costs more than the rest.
+    out[i] = +(value !== referenceValue);
+    if ((+(value !== first) & +(value !== second)) !== 0) {
+      if (distinct === 2) return presentLevels(column, rows);
+      second = value;
+      distinct = 2;
+    }
+  }
+  const levels = distinct === 1 ? [first] : [first, second];
+  return levels.sort((a, b) => a - b).map(numberLevel);
+}
+
+/** Rows per stored code of a categorical column over the kept rows. */
+function countCodes(codes: Int32Array, levelCount: number, rows: Int32Array, allRows: boolean): Int32Array {
+  const counts = new Int32Array(levelCount);
+  for (let i = 0; i < rows.length; i++) counts[codes[allRows ? i : rows[i]]]++;
+  return counts;
+}
+
 function codeFactor(
   column: EngineColumn,
   name: string,
@@ -103,9 +198,13 @@ function codeFactor(
   reference: string | undefined,
   role: 'modifier' | 'covariate',
   warnings: EngineWarning[],
+  allRows: boolean,
 ): CodedFactor {
+  // A categorical column is counted per stored code in one pass; the counts give the levels
+  // present (as presentLevels would) and, after recoding, the rows per level.
+  const storedCounts = column.kind === 'categorical' ? countCodes(column.codes, column.levels.length, rows, allRows) : null;
   const declared = column.kind === 'categorical' ? [...column.levels] : presentLevels(column, rows);
-  const present = presentLevels(column, rows);
+  const present = column.kind === 'categorical' ? column.levels.filter((_, code) => (storedCounts as Int32Array)[code] > 0) : presentLevels(column, rows);
   if (present.length > 1000) {
     throw new InvalidSpecError(`The column "${name}" has more than 1,000 distinct values; treat it as continuous.`, { column: name });
   }
@@ -130,36 +229,48 @@ function codeFactor(
   if (present.length < 2) throw new ConstantColumnError(name);
   const levels = [referenceLevel, ...present.filter((level) => level !== referenceLevel)];
   const lookup = new Map(levels.map((level, code) => [level, code]));
-  const codes = new Int32Array(rows.length);
   const counts = new Int32Array(levels.length);
   if (column.kind === 'categorical') {
     const codeMap = new Int32Array(column.levels.length).fill(-1);
+    let identity = true;
     column.levels.forEach((level, code) => {
       const mapped = lookup.get(level);
-      if (mapped !== undefined) codeMap[code] = mapped;
+      if (mapped !== undefined) {
+        codeMap[code] = mapped;
+        counts[mapped] = (storedCounts as Int32Array)[code];
+        if (mapped !== code) identity = false;
+      }
     });
-    for (let i = 0; i < rows.length; i++) {
-      const code = codeMap[column.codes[rows[i]]];
-      codes[i] = code;
-      counts[code]++;
-    }
-  } else {
-    const numericLookup = new Map<number, number>();
-    for (const [level, code] of lookup) numericLookup.set(Number(level), code);
-    for (let i = 0; i < rows.length; i++) {
-      const value = column.values[rows[i]];
-      const code = numericLookup.get(value === 0 ? 0 : value) as number;
-      codes[i] = code;
-      counts[code]++;
-    }
+    // Stored codes that already are the reference-first codes, on every row, are used as
+    // they are (read only), saving a copy.
+    if (identity && allRows) return { kind: 'categorical', column: name, levels, codes: column.codes, counts };
+    const codes = new Int32Array(rows.length);
+    const stored = column.codes;
+    for (let i = 0; i < rows.length; i++) codes[i] = codeMap[stored[allRows ? i : rows[i]]];
+    return { kind: 'categorical', column: name, levels, codes, counts };
+  }
+  const codes = new Int32Array(rows.length);
+  const numericLookup = new Map<number, number>();
+  for (const [level, code] of lookup) numericLookup.set(Number(level), code);
+  for (let i = 0; i < rows.length; i++) {
+    const value = column.values[rows[i]];
+    const code = numericLookup.get(value === 0 ? 0 : value) as number;
+    codes[i] = code;
+    counts[code]++;
   }
   return { kind: 'categorical', column: name, levels, codes, counts };
 }
 
-function numericVariable(column: EngineColumn, name: string, rows: Int32Array, allRows: boolean): NumericVariable {
+function numericVariable(column: EngineColumn, name: string, rows: Int32Array, allRows: boolean, knownFinite: boolean): NumericVariable {
   if (column.kind !== 'numeric') throw new ColumnTypeMismatchError(name, 'numeric to be used as a continuous variable');
-  // With no row dropped the column is used as is (read only), saving a copy per column.
+  // With no row dropped the column is used as is (read only), saving a copy per column;
+  // when its values are known to be finite, only constancy is left to check.
   const source = column.values;
+  if (allRows && knownFinite) {
+    const first = source[0];
+    for (let i = 1; i < source.length; i++) if (source[i] !== first) return { kind: 'continuous', column: name, values: source };
+    throw new ConstantColumnError(name);
+  }
   const values = allRows ? source : new Float64Array(rows.length);
   const first = source[rows[0]];
   let constant = true;
@@ -193,35 +304,40 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
   }
   const columns = used.map((name) => getColumn(data, name));
 
-  // Mark missing rows column by column (one tight loop per column), then keep the rest.
-  const missingRow = new Uint8Array(data.rowCount);
-  for (const column of columns) {
-    if (column.missing !== undefined) {
-      const mask = column.missing;
-      for (let row = 0; row < data.rowCount; row++) missingRow[row] |= mask[row] === 1 ? 1 : 0;
-    }
-    if (column.kind === 'numeric') {
-      const values = column.values;
-      for (let row = 0; row < data.rowCount; row++) if (values[row] !== values[row]) missingRow[row] = 1;
-    } else {
-      const codes = column.codes;
-      const levelCount = column.levels.length;
-      for (let row = 0; row < data.rowCount; row++) {
-        const code = codes[row];
-        if (code < 0 || code >= levelCount) missingRow[row] = 1;
-      }
-    }
+  // Most extracts have no missing value in the used columns: a read-only scan per column
+  // finds that out, and then every column is used in place (no row list, no copies). Only
+  // when a row is missing are rows marked column by column and the rest kept.
+  let anyMissing = false;
+  const finite = columns.map(() => false);
+  for (let index = 0; index < columns.length && !anyMissing; index++) {
+    const scan = scanColumn(columns[index], data.rowCount);
+    anyMissing = scan.missing;
+    finite[index] = scan.finite;
   }
-  let kept = 0;
-  const keep = new Int32Array(data.rowCount);
-  for (let row = 0; row < data.rowCount; row++) if (missingRow[row] === 0) keep[kept++] = row;
-  if (kept === 0) throw new NoCompleteRowsError();
-  const rowIndex = keep.slice(0, kept);
+  let kept = data.rowCount;
+  let rowIndex: Int32Array;
+  if (anyMissing) {
+    const missingRow = new Uint8Array(data.rowCount);
+    for (const column of columns) markMissingRows(column, data.rowCount, missingRow);
+    kept = 0;
+    const keep = new Int32Array(data.rowCount);
+    for (let row = 0; row < data.rowCount; row++) if (missingRow[row] === 0) keep[kept++] = row;
+    if (kept === 0) throw new NoCompleteRowsError();
+    rowIndex = keep.slice(0, kept);
+  } else {
+    if (kept === 0) throw new NoCompleteRowsError();
+    rowIndex = new Int32Array(kept);
+    for (let row = 0; row < kept; row++) rowIndex[row] = row;
+  }
+  const allRows = kept === data.rowCount;
 
   // Outcome.
   const outcomeColumn = columns[0];
   const outcomeName = spec.outcome.column;
-  const outcome = new Float64Array(kept);
+  // A numeric outcome with every row kept is used as is (read only), like continuous
+  // variables: one check, no copy.
+  const outcomeInPlace = allRows && outcomeColumn.kind === 'numeric';
+  const outcome = outcomeInPlace ? outcomeColumn.values : new Float64Array(kept);
   const binaryModel = spec.model !== 'linear';
   const outcomeBinary = spec.outcome.type === 'binary';
   if (binaryModel && !outcomeBinary) {
@@ -230,10 +346,27 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
   let eventLevel: string | null = null;
   if (outcomeBinary) {
     if (outcomeColumn.kind === 'numeric') {
-      for (let i = 0; i < kept; i++) {
-        const value = outcomeColumn.values[rowIndex[i]];
-        if (value !== 0 && value !== 1) throw new OutcomeNotBinaryError(outcomeName, numberLevel(value));
-        outcome[i] = value;
+      const values = outcomeColumn.values;
+      if (outcomeInPlace) {
+        // Checked without a branch per row (outcomes alternate unpredictably); the first
+        // offending value is looked up only when there is one.
+        let other = 0;
+        for (let i = 0; i < kept; i++) {
+          const value = values[i];
+          other |= +(value !== 0) & +(value !== 1);
+        }
+        if (other !== 0) {
+          for (let i = 0; i < kept; i++) {
+            const value = values[i];
+            if (value !== 0 && value !== 1) throw new OutcomeNotBinaryError(outcomeName, numberLevel(value));
+          }
+        }
+      } else {
+        for (let i = 0; i < kept; i++) {
+          const value = values[rowIndex[i]];
+          if (value !== 0 && value !== 1) throw new OutcomeNotBinaryError(outcomeName, numberLevel(value));
+          outcome[i] = value;
+        }
       }
       eventLevel = '1';
     } else {
@@ -256,7 +389,7 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
     for (let i = 0; i < kept; i++) {
       const value = outcomeColumn.values[rowIndex[i]];
       if (!Number.isFinite(value)) throw new InvalidDataError(`The outcome "${outcomeName}" holds a non-finite value in row ${rowIndex[i] + 1}.`, { column: outcomeName });
-      outcome[i] = value;
+      if (!outcomeInPlace) outcome[i] = value;
     }
   }
   let constantOutcome = true;
@@ -272,7 +405,9 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
   // Exposure: exactly two levels, the reference coded 0.
   const exposureColumn = columns[1];
   const exposureName = spec.exposure.column;
-  const exposurePresent = presentLevels(exposureColumn, rowIndex);
+  // Coded and its levels found in one pass; the checks below then run on the levels.
+  const exposure = new Uint8Array(kept);
+  const exposurePresent = codeExposure(exposureColumn, spec.exposure.reference, rowIndex, allRows, exposure);
   const exposureDeclared = exposureColumn.kind === 'categorical' ? [...exposureColumn.levels] : exposurePresent;
   if (!exposureDeclared.includes(spec.exposure.reference)) {
     throw new ReferenceLevelNotFoundError(exposureName, spec.exposure.reference, exposureDeclared);
@@ -284,29 +419,19 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
   if (exposurePresent.length !== 2) throw new ExposureNotBinaryError(exposureName, exposurePresent.length);
   if (!exposurePresent.includes(spec.exposure.reference)) throw new EmptyStratumError(exposureName, spec.exposure.reference);
   const exposureOther = exposurePresent.find((level) => level !== spec.exposure.reference) as string;
-  const exposure = new Uint8Array(kept);
-  if (exposureColumn.kind === 'numeric') {
-    const referenceValue = Number(spec.exposure.reference);
-    const values = exposureColumn.values;
-    for (let i = 0; i < kept; i++) exposure[i] = values[rowIndex[i]] === referenceValue ? 0 : 1;
-  } else {
-    const referenceCode = exposureColumn.levels.indexOf(spec.exposure.reference);
-    const codes = exposureColumn.codes;
-    for (let i = 0; i < kept; i++) exposure[i] = codes[rowIndex[i]] === referenceCode ? 0 : 1;
-  }
 
   // Modifier.
   const modifierColumn = columns[2];
   const modifier: FrameVariable =
     spec.modifier.type === 'categorical'
-      ? codeFactor(modifierColumn, spec.modifier.column, rowIndex, spec.modifier.reference, 'modifier', warnings)
-      : numericVariable(modifierColumn, spec.modifier.column, rowIndex, kept === data.rowCount);
+      ? codeFactor(modifierColumn, spec.modifier.column, rowIndex, spec.modifier.reference, 'modifier', warnings, allRows)
+      : numericVariable(modifierColumn, spec.modifier.column, rowIndex, allRows, finite[2]);
 
   const covariates = spec.covariates.map((covariate, index) => {
     const column = columns[3 + index];
     return covariate.type === 'categorical'
-      ? codeFactor(column, covariate.column, rowIndex, covariate.reference, 'covariate', warnings)
-      : numericVariable(column, covariate.column, rowIndex, kept === data.rowCount);
+      ? codeFactor(column, covariate.column, rowIndex, covariate.reference, 'covariate', warnings, allRows)
+      : numericVariable(column, covariate.column, rowIndex, allRows, finite[3 + index]);
   });
 
   if (kept < data.rowCount) {

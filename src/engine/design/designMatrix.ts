@@ -63,11 +63,13 @@ const MAX_CELLS = 4096;
 const MAX_DISTINCT_IN_CELL = 16;
 
 /**
- * Codes of a numeric column with at most `limit` distinct values (codes index the sorted
- * values), or null when it has more. Stops scanning as soon as the limit is passed.
+ * Sorted distinct values of a numeric column when it has at most `limit` of them, or null
+ * when it has more. Stops scanning as soon as the limit is passed.
  */
-function fewValueCodes(values: Float64Array, limit: number): { codes: Int32Array; values: Float64Array } | null {
+function fewDistinctValues(values: Float64Array, limit: number): Float64Array | null {
   if (limit < 2) return null;
+  const two = twoDistinctValues(values);
+  if (two !== null) return two;
   const distinct: number[] = [];
   let last = Number.NaN;
   for (let i = 0; i < values.length; i++) {
@@ -86,14 +88,68 @@ function fewValueCodes(values: Float64Array, limit: number): { codes: Int32Array
     if (distinct.length > limit) return null;
   }
   distinct.sort((a, b) => a - b);
-  const codes = new Int32Array(values.length);
+  return Float64Array.from(distinct);
+}
+
+/** Rows checked between looks at whether a third value has turned up. */
+const TWO_VALUE_CHUNK = 4096;
+
+/**
+ * The two distinct values of a column (sorted) when it has exactly two, else null (also
+ * for one value). 0/1 flags alternate unpredictably from row to row, so the rows are
+ * compared without a branch per row, in chunks so that a column with many values is
+ * given up after its first chunk.
+ */
+function twoDistinctValues(values: Float64Array): Float64Array | null {
+  const n = values.length;
+  const first = values[0];
+  let i = 1;
+  while (i < n && values[i] === first) i++;
+  if (i === n) return null;
+  const second = values[i];
+  while (i < n) {
+    const end = Math.min(n, i + TWO_VALUE_CHUNK);
+    let other = 0;
+    for (; i < end; i++) {
+      const value = values[i];
+      other |= +(value !== first) & +(value !== second);
+    }
+    if (other !== 0) return null;
+  }
+  return first < second ? Float64Array.of(first, second) : Float64Array.of(second, first);
+}
+
+/**
+ * Adds radix × (index of the row's value among `distinct`) to every row's cell, straight
+ * from the column: no array of codes is kept.
+ */
+function addValueCodes(cellOfRow: Int32Array, values: Float64Array, distinct: Float64Array, radix: number): void {
   if (distinct.length === 2) {
     const high = distinct[1];
-    for (let i = 0; i < values.length; i++) codes[i] = values[i] === high ? 1 : 0;
-  } else {
-    for (let i = 0; i < values.length; i++) codes[i] = distinct.indexOf(values[i]);
+    for (let i = 0; i < values.length; i++) cellOfRow[i] += radix * +(values[i] === high); // no branch: flags look random
+    return;
   }
-  return { codes, values: Float64Array.from(distinct) };
+  const list = Array.from(distinct);
+  for (let i = 0; i < values.length; i++) cellOfRow[i] += radix * list.indexOf(values[i]);
+}
+
+/** Writes `columns[k][i]` to `rowMajor[i · width + positions[k]]` for every row i, row by row. */
+function copyColumnsIntoRows(rowMajor: Float64Array, width: number, columns: readonly Float64Array[], positions: readonly number[], rows: number): void {
+  const count = columns.length;
+  if (count === 0) return;
+  if (count === 2) {
+    const [first, second] = columns;
+    const [a, b] = positions;
+    for (let i = 0, base = 0; i < rows; i++, base += width) {
+      rowMajor[base + a] = first[i];
+      rowMajor[base + b] = second[i];
+    }
+    return;
+  }
+  const at = Int32Array.from(positions);
+  for (let i = 0, base = 0; i < rows; i++, base += width) {
+    for (let k = 0; k < count; k++) rowMajor[base + at[k]] = columns[k][i];
+  }
 }
 
 function allocateFloat(length: number, shared: boolean): Float64Array {
@@ -156,32 +212,35 @@ export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions):
   // small counts), while the cell count stays small. A continuous covariate in a cell
   // keeps its exact value: its term's value in the cell is the covariate's value.
   interface CellFactor {
-    readonly codes: Int32Array;
+    /** Codes of a categorical variable, or null for a continuous covariate. */
+    readonly codes: Int32Array | null;
     readonly levels: number;
     readonly covariate: number;
-    /** For a continuous covariate: the value of each code. */
+    /** For a continuous covariate: the value of each code (its sorted distinct values). */
     readonly values: Float64Array | null;
+    /** For a continuous covariate: its column, coded on the fly. */
+    readonly column: Float64Array | null;
   }
   const cellFactors: CellFactor[] = [];
   let cellCount = 2;
   if (modifier.kind === 'categorical') {
-    cellFactors.push({ codes: modifier.codes, levels: modifier.levels.length, covariate: -1, values: null });
+    cellFactors.push({ codes: modifier.codes, levels: modifier.levels.length, covariate: -1, values: null, column: null });
     cellCount *= modifier.levels.length;
   }
   const covariateInCell = frame.covariates.map(() => false);
   frame.covariates.forEach((covariate, index) => {
     if (covariate.kind === 'categorical' && cellCount * covariate.levels.length <= MAX_CELLS) {
-      cellFactors.push({ codes: covariate.codes, levels: covariate.levels.length, covariate: index, values: null });
+      cellFactors.push({ codes: covariate.codes, levels: covariate.levels.length, covariate: index, values: null, column: null });
       cellCount *= covariate.levels.length;
       covariateInCell[index] = true;
     }
   });
   frame.covariates.forEach((covariate, index) => {
     if (covariate.kind !== 'continuous') return;
-    const coded = fewValueCodes(covariate.values, Math.min(MAX_DISTINCT_IN_CELL, Math.floor(MAX_CELLS / cellCount)));
-    if (coded === null) return;
-    cellFactors.push({ codes: coded.codes, levels: coded.values.length, covariate: index, values: coded.values });
-    cellCount *= coded.values.length;
+    const distinct = fewDistinctValues(covariate.values, Math.min(MAX_DISTINCT_IN_CELL, Math.floor(MAX_CELLS / cellCount)));
+    if (distinct === null) return;
+    cellFactors.push({ codes: null, levels: distinct.length, covariate: index, values: distinct, column: covariate.values });
+    cellCount *= distinct.length;
     covariateInCell[index] = true;
   });
   const isCellTerm = new Uint8Array(p);
@@ -212,8 +271,12 @@ export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions):
   const cellOfRow = allocateInt(rows, shared);
   for (let i = 0; i < rows; i++) cellOfRow[i] = frame.exposure[i];
   let radix = 2;
-  for (const { codes, levels } of cellFactors) {
-    for (let i = 0; i < rows; i++) cellOfRow[i] += radix * codes[i];
+  for (const { codes, levels, values, column } of cellFactors) {
+    if (codes !== null) {
+      for (let i = 0; i < rows; i++) cellOfRow[i] += radix * codes[i];
+    } else {
+      addValueCodes(cellOfRow, column as Float64Array, values as Float64Array, radix);
+    }
     radix *= levels;
   }
 
@@ -242,7 +305,8 @@ export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions):
     }
   }
 
-  // Free terms, row-major, written column by column.
+  // Free terms, row-major. Continuous covariates are copied in one pass over the rows,
+  // filling each row's slots together (one sweep of the buffer instead of one per column).
   const free = allocateFloat(rows * r, shared);
   if (modifier.kind === 'continuous') {
     const mainPosition = freePosition[modifierIndices[0]];
@@ -254,13 +318,14 @@ export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions):
       if (productPosition >= 0) free[i * r + productPosition] = frame.exposure[i] * value;
     }
   }
+  const copied: Float64Array[] = [];
+  const copiedPositions: number[] = [];
   frame.covariates.forEach((covariate, index) => {
     if (covariateInCell[index]) return;
     const start = covariateStarts[index];
     if (covariate.kind === 'continuous') {
-      const position = freePosition[start];
-      const values = covariate.values;
-      for (let i = 0; i < rows; i++) free[i * r + position] = values[i];
+      copied.push(covariate.values);
+      copiedPositions.push(freePosition[start]);
     } else {
       const codes = covariate.codes;
       for (let i = 0; i < rows; i++) {
@@ -269,6 +334,7 @@ export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions):
       }
     }
   });
+  copyColumnsIntoRows(free, r, copied, copiedPositions, rows);
 
   return {
     rows,
