@@ -154,3 +154,17 @@ describe('an analysis with a continuous modifier', () => {
     await context.close();
   });
 });
+
+describe('the demo auditor', () => {
+  it('verifies the audit trail from the initiative overview', async () => {
+    const { page, context, consoleErrors } = await harness.newPage();
+    await signInThroughPage(page, demoEmail('auditor'), DEMO_PASSWORD);
+    await page.getByRole('navigation', { name: 'Initiatives' }).getByRole('link', { name: /Call-back within 72 hours/ }).click();
+    await page.getByRole('button', { name: 'Verify the audit trail' }).click();
+    await page.getByTestId('chain-report').waitFor();
+    await expect(page.getByTestId('chain-report').textContent()).resolves.toMatch(/^Intact: all [\d,]+ events link up/);
+    await saveScreenshot(page, 'auditor-overview');
+    expect(consoleErrors).toEqual([]);
+    await context.close();
+  });
+});
