@@ -115,6 +115,7 @@ interface RunRow {
   progress: RunView['progress']; spec: Spec; spec_hash: string; extract_sha256: string; engine_version: string | null;
   seed: string | null; exploratory: boolean; caution_text: string; result: unknown; error: RunView['error'];
   started_by: string; starter: string; queued_at: Date; started_at: Date | null; finished_at: Date | null; cancel_requested: boolean;
+  heartbeat_at: Date | null;
 }
 
 const iso = (d: Date | null) => (d ? new Date(d).toISOString() : null);
@@ -133,14 +134,26 @@ const SELECT_RUN = `SELECT r.*, u.display_name AS starter FROM runs r JOIN users
 /** Every column but the result, for listings and progress polling. */
 const RUN_COLUMNS = `r.id, r.analysis_id, r.initiative_id, r.extract_version_id, r.status, r.progress, r.spec, r.spec_hash,
   r.extract_sha256, r.engine_version, r.seed, r.exploratory, r.caution_text, r.error, r.started_by, r.queued_at, r.started_at,
-  r.finished_at, r.cancel_requested`;
+  r.finished_at, r.cancel_requested, r.heartbeat_at`;
 
-/** One run, or null when not visible. Sweeps stale runs first so none reads as running forever. */
+/**
+ * One run, or null when not visible. A run that reads as running but whose worker has
+ * stopped reporting is swept (marked failed) first, so none reads as running forever.
+ */
 export async function getRun(transaction: Transaction, runId: string, options: { withResult?: boolean } = {}): Promise<RunView | null> {
-  await sweepStaleRuns(transaction);
   const select = options.withResult === false ? SELECT_RUN.replace('r.*', `${RUN_COLUMNS}, NULL AS result`) : SELECT_RUN;
-  const [row] = await sequelize.query<RunRow>(`${select} WHERE r.id = :id`, { replacements: { id: runId }, type: QueryTypes.SELECT, transaction });
+  const read = async () =>
+    (await sequelize.query<RunRow>(`${select} WHERE r.id = :id`, { replacements: { id: runId }, type: QueryTypes.SELECT, transaction }))[0];
+  let row = await read();
+  if (row?.status === 'running' && isStale(row.heartbeat_at)) {
+    await sweepStaleRuns(transaction);
+    row = await read();
+  }
   return row ? toRunView(row) : null;
+}
+
+function isStale(heartbeat: Date | null): boolean {
+  return !heartbeat || Date.now() - new Date(heartbeat).getTime() > env.CROSSGRAIN_RUN_STALE_SECONDS * 1000;
 }
 
 /** The runs of an analysis, newest first, without their results. */
