@@ -142,6 +142,10 @@ export function accumulateWeighted(
   to = design.rows,
 ): void {
   const r = design.freeTerms.length;
+  if (weights === null && responses !== null && r === 3) {
+    accumulateUnweightedThreeFree(design, responses, accumulator, from, to);
+    return;
+  }
   const { free, cellOfRow } = design;
   const { cellWeight, cellResponse, cellFree, freeFree, freeResponse } = accumulator;
   for (let i = from; i < to; i++) {
@@ -180,6 +184,7 @@ export function accumulateResiduals(
   to: number,
 ): number {
   const r = design.freeTerms.length;
+  if (weights === null && r === 3) return accumulateUnweightedResidualsThreeFree(design, y, cellEta, freeBeta, accumulator, from, to);
   const { free, cellOfRow } = design;
   const { cellResponse, freeResponse } = accumulator;
   let sumOfSquares = 0;
@@ -196,6 +201,192 @@ export function accumulateResiduals(
     cellResponse[cell] += weighted;
     for (let k = 0; k < r; k++) freeResponse[k] += free[base + k] * weighted;
   }
+  return sumOfSquares;
+}
+
+/*
+ * Unrolled kernels for unit weights and three free terms (a linear model with two
+ * continuous variables and their product, or one continuous modifier with its product and
+ * a continuous covariate). They do exactly the additions of the general loops above, in the
+ * same row order and with the same operands (a weight of 1 multiplies exactly, so it is
+ * left out), so their sums are bit-identical; they only keep the sums in locals instead of
+ * arrays, drop the weight branch and, with one cell, the per-row cell lookup. On 1,000,000
+ * rows this takes a least-squares pass from about 13 ms to about 3–4 ms on one thread.
+ *
+ * They are called on chunks of KERNEL_ROWS rows rather than on a whole block: a kernel
+ * called many times is optimised as a whole function, while one long loop is optimised
+ * mid-loop before the code after it has run, and that code then deoptimises when first
+ * reached.
+ */
+const KERNEL_ROWS = 4096;
+
+/** {@link accumulateWeighted} with weights 1, responses given and r = 3. */
+function accumulateUnweightedThreeFree(
+  design: DesignMatrix,
+  responses: Float64Array,
+  accumulator: CrossProductAccumulator,
+  from: number,
+  to: number,
+): void {
+  const kernel = design.cellCount === 1 ? weightedOneCellThreeFree : weightedCellsThreeFree;
+  for (let start = from; start < to; start += KERNEL_ROWS) kernel(design, responses, accumulator, start, Math.min(to, start + KERNEL_ROWS));
+}
+
+function weightedOneCellThreeFree(design: DesignMatrix, responses: Float64Array, accumulator: CrossProductAccumulator, from: number, to: number): void {
+  const free = design.free;
+  const { cellWeight, cellResponse, cellFree, freeFree, freeResponse } = accumulator;
+  let cw = cellWeight[0], cr = cellResponse[0];
+  let cf0 = cellFree[0], cf1 = cellFree[1], cf2 = cellFree[2];
+  let ff00 = freeFree[0], ff01 = freeFree[1], ff02 = freeFree[2];
+  let ff11 = freeFree[4], ff12 = freeFree[5], ff22 = freeFree[8];
+  let fr0 = freeResponse[0], fr1 = freeResponse[1], fr2 = freeResponse[2];
+  for (let i = from, base = 3 * from; i < to; i++, base += 3) {
+    const response = responses[i];
+    const f0 = free[base], f1 = free[base + 1], f2 = free[base + 2];
+    cw += 1;
+    cr += response;
+    cf0 += f0;
+    fr0 += f0 * response;
+    ff00 += f0 * f0;
+    ff01 += f0 * f1;
+    ff02 += f0 * f2;
+    cf1 += f1;
+    fr1 += f1 * response;
+    ff11 += f1 * f1;
+    ff12 += f1 * f2;
+    cf2 += f2;
+    fr2 += f2 * response;
+    ff22 += f2 * f2;
+  }
+  cellWeight[0] = cw;
+  cellResponse[0] = cr;
+  cellFree[0] = cf0;
+  cellFree[1] = cf1;
+  cellFree[2] = cf2;
+  freeFree[0] = ff00;
+  freeFree[1] = ff01;
+  freeFree[2] = ff02;
+  freeFree[4] = ff11;
+  freeFree[5] = ff12;
+  freeFree[8] = ff22;
+  freeResponse[0] = fr0;
+  freeResponse[1] = fr1;
+  freeResponse[2] = fr2;
+}
+
+function weightedCellsThreeFree(design: DesignMatrix, responses: Float64Array, accumulator: CrossProductAccumulator, from: number, to: number): void {
+  const { free, cellOfRow } = design;
+  const { cellWeight, cellResponse, cellFree, freeFree, freeResponse } = accumulator;
+  let ff00 = freeFree[0], ff01 = freeFree[1], ff02 = freeFree[2];
+  let ff11 = freeFree[4], ff12 = freeFree[5], ff22 = freeFree[8];
+  let fr0 = freeResponse[0], fr1 = freeResponse[1], fr2 = freeResponse[2];
+  for (let i = from, base = 3 * from; i < to; i++, base += 3) {
+    const response = responses[i];
+    const cell = cellOfRow[i];
+    const cellBase = 3 * cell;
+    const f0 = free[base], f1 = free[base + 1], f2 = free[base + 2];
+    cellWeight[cell] += 1;
+    cellResponse[cell] += response;
+    cellFree[cellBase] += f0;
+    fr0 += f0 * response;
+    ff00 += f0 * f0;
+    ff01 += f0 * f1;
+    ff02 += f0 * f2;
+    cellFree[cellBase + 1] += f1;
+    fr1 += f1 * response;
+    ff11 += f1 * f1;
+    ff12 += f1 * f2;
+    cellFree[cellBase + 2] += f2;
+    fr2 += f2 * response;
+    ff22 += f2 * f2;
+  }
+  freeFree[0] = ff00;
+  freeFree[1] = ff01;
+  freeFree[2] = ff02;
+  freeFree[4] = ff11;
+  freeFree[5] = ff12;
+  freeFree[8] = ff22;
+  freeResponse[0] = fr0;
+  freeResponse[1] = fr1;
+  freeResponse[2] = fr2;
+}
+
+/** {@link accumulateResiduals} with weights 1 and r = 3. */
+function accumulateUnweightedResidualsThreeFree(
+  design: DesignMatrix,
+  y: Float64Array,
+  cellEta: Float64Array,
+  freeBeta: Float64Array,
+  accumulator: CrossProductAccumulator,
+  from: number,
+  to: number,
+): number {
+  const kernel = design.cellCount === 1 ? residualsOneCellThreeFree : residualsCellsThreeFree;
+  // The running sum of squares goes through the kernels so that it is one sum in row order.
+  let sumOfSquares = 0;
+  for (let start = from; start < to; start += KERNEL_ROWS) {
+    sumOfSquares = kernel(design, y, cellEta, freeBeta, accumulator, start, Math.min(to, start + KERNEL_ROWS), sumOfSquares);
+  }
+  return sumOfSquares;
+}
+
+function residualsOneCellThreeFree(
+  design: DesignMatrix, y: Float64Array, cellEta: Float64Array, freeBeta: Float64Array,
+  accumulator: CrossProductAccumulator, from: number, to: number, sumSoFar: number,
+): number {
+  const free = design.free;
+  const { cellResponse, freeResponse } = accumulator;
+  const eta = cellEta[0];
+  const b0 = freeBeta[0], b1 = freeBeta[1], b2 = freeBeta[2];
+  let cr = cellResponse[0];
+  let fr0 = freeResponse[0], fr1 = freeResponse[1], fr2 = freeResponse[2];
+  let sumOfSquares = sumSoFar;
+  for (let i = from, base = 3 * from; i < to; i++, base += 3) {
+    const f0 = free[base], f1 = free[base + 1], f2 = free[base + 2];
+    let fitted = eta;
+    fitted += f0 * b0;
+    fitted += f1 * b1;
+    fitted += f2 * b2;
+    const residual = y[i] - fitted;
+    sumOfSquares += residual * residual;
+    cr += residual;
+    fr0 += f0 * residual;
+    fr1 += f1 * residual;
+    fr2 += f2 * residual;
+  }
+  cellResponse[0] = cr;
+  freeResponse[0] = fr0;
+  freeResponse[1] = fr1;
+  freeResponse[2] = fr2;
+  return sumOfSquares;
+}
+
+function residualsCellsThreeFree(
+  design: DesignMatrix, y: Float64Array, cellEta: Float64Array, freeBeta: Float64Array,
+  accumulator: CrossProductAccumulator, from: number, to: number, sumSoFar: number,
+): number {
+  const { free, cellOfRow } = design;
+  const { cellResponse, freeResponse } = accumulator;
+  const b0 = freeBeta[0], b1 = freeBeta[1], b2 = freeBeta[2];
+  let fr0 = freeResponse[0], fr1 = freeResponse[1], fr2 = freeResponse[2];
+  let sumOfSquares = sumSoFar;
+  for (let i = from, base = 3 * from; i < to; i++, base += 3) {
+    const cell = cellOfRow[i];
+    const f0 = free[base], f1 = free[base + 1], f2 = free[base + 2];
+    let fitted = cellEta[cell];
+    fitted += f0 * b0;
+    fitted += f1 * b1;
+    fitted += f2 * b2;
+    const residual = y[i] - fitted;
+    sumOfSquares += residual * residual;
+    cellResponse[cell] += residual;
+    fr0 += f0 * residual;
+    fr1 += f1 * residual;
+    fr2 += f2 * residual;
+  }
+  freeResponse[0] = fr0;
+  freeResponse[1] = fr1;
+  freeResponse[2] = fr2;
   return sumOfSquares;
 }
 
