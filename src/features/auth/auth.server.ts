@@ -153,36 +153,50 @@ export async function issueToken(
   return token;
 }
 
-/** Marks a token used and returns its user, or throws a clear 422 when it cannot be used. */
-async function consumeToken(transaction: Transaction, token: string, purpose: TokenPurpose): Promise<UserRow> {
-  const [row] = await sequelize.query<UserRow & { token_id: string; expires_at: Date; used_at: Date | null }>(
+interface TokenRow extends UserRow {
+  token_id: string;
+  expires_at: Date;
+  used_at: Date | null;
+}
+
+/**
+ * Finds a single-use token and says why it cannot be used, if it cannot: one rule for
+ * showing the set-password form and for using the link. `lock` holds the row until the
+ * transaction ends, so a link is never used twice at once.
+ */
+async function findToken(
+  transaction: Transaction,
+  token: string,
+  purpose: TokenPurpose,
+  lock: boolean,
+): Promise<{ row: TokenRow; problem: null } | { row: null; problem: { code: string; message: string } }> {
+  const [row] = await sequelize.query<TokenRow>(
     `SELECT t.id AS token_id, t.expires_at, t.used_at, u.id, u.email, u.password_hash, u.status
        FROM auth_tokens t JOIN users u ON u.id = t.user_id
-      WHERE t.token_hash = :hash AND t.purpose = :purpose
-      FOR UPDATE OF t`,
+      WHERE t.token_hash = :hash AND t.purpose = :purpose${lock ? ' FOR UPDATE OF t' : ''}`,
     { replacements: { hash: hashToken(token), purpose }, type: QueryTypes.SELECT, transaction },
   );
   const label = purpose === 'invitation' ? 'invitation' : 'password-reset';
-  if (!row) throw unprocessable('link-invalid', `This ${label} link is not valid. Ask for a new one.`);
-  if (row.used_at) throw unprocessable('link-used', `This ${label} link has already been used. Ask for a new one.`);
-  if (new Date(row.expires_at).getTime() < Date.now()) throw unprocessable('link-expired', `This ${label} link has expired. Ask for a new one.`);
-  if (row.status === 'deactivated') throw unprocessable('link-invalid', `This ${label} link is not valid. Ask for a new one.`);
-  await sequelize.query('UPDATE auth_tokens SET used_at = now() WHERE id = :id', { replacements: { id: row.token_id }, transaction });
-  return row;
+  const refuse = (code: string, message: string) => ({ row: null, problem: { code, message } });
+  if (!row || row.status === 'deactivated') return refuse('link-invalid', `This ${label} link is not valid. Ask for a new one.`);
+  if (row.used_at) return refuse('link-used', `This ${label} link has already been used. Ask for a new one.`);
+  if (new Date(row.expires_at).getTime() < Date.now()) return refuse('link-expired', `This ${label} link has expired. Ask for a new one.`);
+  return { row, problem: null };
+}
+
+/** Marks a token used and returns its user, or throws a clear 422 when it cannot be used. */
+async function consumeToken(transaction: Transaction, token: string, purpose: TokenPurpose): Promise<UserRow> {
+  const found = await findToken(transaction, token, purpose, true);
+  if (found.problem) throw unprocessable(found.problem.code, found.problem.message);
+  await sequelize.query('UPDATE auth_tokens SET used_at = now() WHERE id = :id', { replacements: { id: found.row.token_id }, transaction });
+  return found.row;
 }
 
 /** Checks a token without using it (to show the set-password form or a clear error). */
 export async function checkToken(token: string, purpose: TokenPurpose): Promise<{ email: string } | { problem: string }> {
   return withIdentity(null, async (transaction) => {
-    const [row] = await sequelize.query<{ email: string; expires_at: Date; used_at: Date | null; status: string }>(
-      `SELECT u.email, t.expires_at, t.used_at, u.status FROM auth_tokens t JOIN users u ON u.id = t.user_id
-        WHERE t.token_hash = :hash AND t.purpose = :purpose`,
-      { replacements: { hash: hashToken(token), purpose }, type: QueryTypes.SELECT, transaction },
-    );
-    if (!row || row.status === 'deactivated') return { problem: 'This link is not valid. Ask for a new one.' };
-    if (row.used_at) return { problem: 'This link has already been used. Ask for a new one.' };
-    if (new Date(row.expires_at).getTime() < Date.now()) return { problem: 'This link has expired. Ask for a new one.' };
-    return { email: row.email };
+    const found = await findToken(transaction, token, purpose, false);
+    return found.problem ? { problem: found.problem.message } : { email: found.row.email };
   });
 }
 

@@ -451,6 +451,20 @@ export async function getExtract(transaction: Transaction, extractId: string, op
   };
 }
 
+/**
+ * The initiative an extract (or an upload that never became one) belongs to, as the
+ * caller may see it; null otherwise. Enough to authorise an action without reading the
+ * whole extract.
+ */
+export async function extractScope(transaction: Transaction, extractId: string): Promise<{ initiativeId: string } | null> {
+  const [row] = await appSequelize.query<{ initiative_id: string }>(
+    `SELECT initiative_id FROM extracts WHERE id = :id
+     UNION ALL SELECT initiative_id FROM extract_intakes WHERE extract_id = :id LIMIT 1`,
+    { replacements: { id: extractId }, type: QueryTypes.SELECT, transaction },
+  );
+  return row ? { initiativeId: row.initiative_id } : null;
+}
+
 export interface ExtractListItem {
   id: string;
   name: string;

@@ -130,7 +130,6 @@ function toRunView(r: RunRow): RunView {
   };
 }
 
-const SELECT_RUN = `SELECT r.*, u.display_name AS starter FROM runs r JOIN users u ON u.id = r.started_by`;
 /** Every column but the result, for listings and progress polling. */
 const RUN_COLUMNS = `r.id, r.analysis_id, r.initiative_id, r.extract_version_id, r.status, r.progress, r.spec, r.spec_hash,
   r.extract_sha256, r.engine_version, r.seed, r.exploratory, r.caution_text, r.error, r.started_by, r.queued_at, r.started_at,
@@ -141,7 +140,8 @@ const RUN_COLUMNS = `r.id, r.analysis_id, r.initiative_id, r.extract_version_id,
  * stopped reporting is swept (marked failed) first, so none reads as running forever.
  */
 export async function getRun(transaction: Transaction, runId: string, options: { withResult?: boolean } = {}): Promise<RunView | null> {
-  const select = options.withResult === false ? SELECT_RUN.replace('r.*', `${RUN_COLUMNS}, NULL AS result`) : SELECT_RUN;
+  const columns = options.withResult === false ? `${RUN_COLUMNS}, NULL AS result` : 'r.*';
+  const select = `SELECT ${columns}, u.display_name AS starter FROM runs r JOIN users u ON u.id = r.started_by`;
   const read = async () =>
     (await sequelize.query<RunRow>(`${select} WHERE r.id = :id`, { replacements: { id: runId }, type: QueryTypes.SELECT, transaction }))[0];
   let row = await read();

@@ -1,5 +1,5 @@
 import { ArchiveBody } from '../../../../features/extracts/extracts.schema';
-import { getExtract, setArchived } from '../../../../features/extracts/extracts.server';
+import { extractScope, setArchived } from '../../../../features/extracts/extracts.server';
 import { authorize } from '../../../../lib/server/authorize';
 import { notFound } from '../../../../lib/server/errors';
 import { clientAddress, endpoint, noContent, parseBody, requireUser, uuidParam } from '../../../../lib/server/http';
@@ -10,7 +10,7 @@ export const POST = endpoint(async (context) => {
   const extractId = uuidParam(context.params.extractId, 'That extract');
   const body = await parseBody(context.request, ArchiveBody);
   await context.locals.db(async (t) => {
-    const extract = await getExtract(t, extractId);
+    const extract = await extractScope(t, extractId);
     if (!extract) throw notFound('That extract');
     authorize(user, 'read', 'Extract', { initiativeId: extract.initiativeId }, { hide: true });
     authorize(user, 'archive', 'Extract', { initiativeId: extract.initiativeId });

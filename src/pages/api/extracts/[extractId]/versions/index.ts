@@ -1,5 +1,5 @@
 import { NewVersionQuery } from '../../../../../features/extracts/extracts.schema';
-import { getExtract, receiveUpload } from '../../../../../features/extracts/extracts.server';
+import { extractScope, receiveUpload } from '../../../../../features/extracts/extracts.server';
 import { authorize } from '../../../../../lib/server/authorize';
 import { notFound } from '../../../../../lib/server/errors';
 import { clientAddress, endpoint, json, parseQuery, requireUser, uuidParam } from '../../../../../lib/server/http';
@@ -8,7 +8,7 @@ import { clientAddress, endpoint, json, parseQuery, requireUser, uuidParam } fro
 export const POST = endpoint(async (context) => {
   const user = requireUser(context.locals);
   const extractId = uuidParam(context.params.extractId, 'That extract');
-  const extract = await context.locals.db((t) => getExtract(t, extractId));
+  const extract = await context.locals.db((t) => extractScope(t, extractId));
   if (!extract) throw notFound('That extract');
   authorize(user, 'read', 'Extract', { initiativeId: extract.initiativeId }, { hide: true });
   authorize(user, 'update', 'Extract', { initiativeId: extract.initiativeId });

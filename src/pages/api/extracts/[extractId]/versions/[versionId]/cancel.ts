@@ -1,4 +1,4 @@
-import { cancelIntake, getExtract } from '../../../../../../features/extracts/extracts.server';
+import { cancelIntake, extractScope } from '../../../../../../features/extracts/extracts.server';
 import { authorize } from '../../../../../../lib/server/authorize';
 import { notFound } from '../../../../../../lib/server/errors';
 import { clientAddress, endpoint, json, requireUser, uuidParam } from '../../../../../../lib/server/http';
@@ -9,7 +9,7 @@ export const POST = endpoint(async (context) => {
   const extractId = uuidParam(context.params.extractId, 'That extract');
   const versionId = uuidParam(context.params.versionId, 'That upload');
   const cancelled = await context.locals.db(async (t) => {
-    const extract = await getExtract(t, extractId);
+    const extract = await extractScope(t, extractId);
     if (!extract) throw notFound('That upload');
     authorize(user, 'read', 'Extract', { initiativeId: extract.initiativeId }, { hide: true });
     authorize(user, 'create', 'Extract', { initiativeId: extract.initiativeId });

@@ -1,5 +1,5 @@
 import { ConfirmVersionBody } from '../../../../../../features/extracts/extracts.schema';
-import { confirmVersion, getExtract } from '../../../../../../features/extracts/extracts.server';
+import { confirmVersion, extractScope } from '../../../../../../features/extracts/extracts.server';
 import { authorize } from '../../../../../../lib/server/authorize';
 import { notFound } from '../../../../../../lib/server/errors';
 import { clientAddress, endpoint, noContent, parseBody, requireUser, uuidParam } from '../../../../../../lib/server/http';
@@ -15,7 +15,7 @@ export const POST = endpoint(async (context) => {
   const versionId = uuidParam(context.params.versionId, 'That version');
   const body = await parseBody(context.request, ConfirmVersionBody);
   await context.locals.db(async (t) => {
-    const extract = await getExtract(t, extractId);
+    const extract = await extractScope(t, extractId);
     if (!extract) throw notFound('That extract');
     authorize(user, 'read', 'Extract', { initiativeId: extract.initiativeId }, { hide: true });
     authorize(user, 'update', 'Extract', { initiativeId: extract.initiativeId });
