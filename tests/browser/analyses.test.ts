@@ -46,6 +46,10 @@ describe('an analysis by age band', () => {
     await page.getByRole('navigation', { name: 'Initiative sections' }).getByRole('link', { name: 'Analyses' }).click();
     await page.getByRole('link', { name: 'New analysis' }).click();
     const form = page.getByTestId('analysis-form');
+    // With several ready extracts (other test files may have uploaded some) the page asks which.
+    const chooser = page.getByRole('link', { name: /Discharges with call-back status \(synthetic\)/ });
+    await form.or(chooser).first().waitFor();
+    if (await chooser.count()) await chooser.click();
     await form.waitFor();
     await page.getByLabel('Title', { exact: true }).fill('Call-back effect by age band');
     await page.getByLabel('Question', { exact: true }).fill('Does the 72-hour call-back prevent more readmissions in older patients?');

@@ -383,6 +383,19 @@ const iso = (value: Date | string) => new Date(value).toISOString();
 
 /** An extract with every version and every upload attempt, or null when not visible. */
 export async function getExtract(transaction: Transaction, extractId: string, options: { withProfiles?: boolean } = {}): Promise<ExtractView | null> {
+  // Upload attempts are read first, then the extract and its versions: an upload stored
+  // in between then shows as its version (its attempt is dropped below) and never vanishes
+  // from both lists, as it could the other way round under read-committed isolation.
+  const intakes = await appSequelize.query<{
+    id: string; initiative_id: string; name: string; status: 'processing' | 'refused' | 'failed' | 'stored'; stage: string;
+    percent: number; reasons: unknown[]; uploaded_by: string; uploader: string; created_at: Date; heartbeat_at: Date; byte_count: string | null;
+  }>(
+    `SELECT i.id, i.initiative_id, i.name, i.status, i.stage, i.percent, i.reasons, i.uploaded_by, u.display_name AS uploader,
+            i.created_at, i.heartbeat_at, i.byte_count
+       FROM extract_intakes i JOIN users u ON u.id = i.uploaded_by
+      WHERE i.extract_id = :id ORDER BY i.created_at DESC`,
+    { replacements: { id: extractId }, type: QueryTypes.SELECT, transaction },
+  );
   const [extract] = await appSequelize.query<{ id: string; initiative_id: string; name: string; created_at: Date; archived_at: Date | null }>(
     'SELECT id, initiative_id, name, created_at, archived_at FROM extracts WHERE id = :id',
     { replacements: { id: extractId }, type: QueryTypes.SELECT, transaction },
@@ -399,18 +412,10 @@ export async function getExtract(transaction: Transaction, extractId: string, op
       WHERE v.extract_id = :id ORDER BY v.version_number DESC`,
     { replacements: { id: extractId }, type: QueryTypes.SELECT, transaction },
   );
-  const intakes = await appSequelize.query<{
-    id: string; initiative_id: string; name: string; status: 'processing' | 'refused' | 'failed' | 'stored'; stage: string;
-    percent: number; reasons: unknown[]; uploaded_by: string; uploader: string; created_at: Date; heartbeat_at: Date; byte_count: string | null;
-  }>(
-    `SELECT i.id, i.initiative_id, i.name, i.status, i.stage, i.percent, i.reasons, i.uploaded_by, u.display_name AS uploader,
-            i.created_at, i.heartbeat_at, i.byte_count
-       FROM extract_intakes i JOIN users u ON u.id = i.uploaded_by
-      WHERE i.extract_id = :id AND i.status <> 'stored' ORDER BY i.created_at DESC`,
-    { replacements: { id: extractId }, type: QueryTypes.SELECT, transaction },
-  );
-  if (!extract && intakes.length === 0) return null;
-  const pending: VersionView[] = intakes.map((i) => {
+  const storedIds = new Set(versions.map((v) => v.id));
+  const open = intakes.filter((i) => i.status !== 'stored' && !storedIds.has(i.id));
+  if (!extract && open.length === 0) return null;
+  const pending: VersionView[] = open.map((i) => {
     const stale = i.status === 'processing' && Date.now() - new Date(i.heartbeat_at).getTime() > INTAKE_STALE_MS;
     return {
       versionId: i.id,
