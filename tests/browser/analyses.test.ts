@@ -9,7 +9,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { seedDemo } from '../../db/seed';
 import { seedDemoExtracts } from '../../db/seeds/demoExtracts';
 import { DEMO_PASSWORD, demoEmail } from '../../db/seeds/demo';
-import { saveScreenshot, signInThroughPage, startHarness, startWorker, type Harness } from './harness';
+import { saveScreenshot, signInThroughPage, startHarness, startWorker, waitForHydrated, type Harness } from './harness';
 import { closeOwnerDb, ownerDb } from '../support/factories';
 
 let harness: Harness;
@@ -50,7 +50,7 @@ describe('an analysis by age band', () => {
     const chooser = page.getByRole('link', { name: /Discharges with call-back status \(synthetic\)/ });
     await form.or(chooser).first().waitFor();
     if (await chooser.count()) await chooser.click();
-    await form.waitFor();
+    await waitForHydrated(page, 'analysis-form');
     await page.getByLabel('Title', { exact: true }).fill('Call-back effect by age band');
     await page.getByLabel('Question', { exact: true }).fill('Does the 72-hour call-back prevent more readmissions in older patients?');
     await page.getByLabel('Outcome', { exact: true }).selectOption('readmitted_30d');

@@ -11,7 +11,7 @@ import type { Page } from 'playwright-core';
 import { seedDemo } from '../../db/seed';
 import { seedDemoExtracts } from '../../db/seeds/demoExtracts';
 import { DEMO_PASSWORD, demoEmail } from '../../db/seeds/demo';
-import { saveScreenshot, signInThroughPage, startHarness, type Harness } from './harness';
+import { saveScreenshot, signInThroughPage, startHarness, waitForHydrated, type Harness } from './harness';
 import { closeOwnerDb, ownerDb } from '../support/factories';
 
 let harness: Harness;
@@ -45,6 +45,7 @@ describe('extracts in the browser', () => {
     const lines = ['call_back,readmitted_30d,age_band,los_days'];
     for (let i = 0; i < 400; i += 1) lines.push(`${i % 2},${i % 6 === 0 ? 1 : 0},${['18-44', '45-64', '65-79', '80+'][i % 4]},${(2 + (i % 9) * 0.5).toFixed(1)}`);
     writeFileSync(file, `${lines.join('\n')}\n`);
+    await waitForHydrated(page, 'upload-panel');
     await page.getByTestId('upload-file').setInputFiles(file);
     await expect(page.getByLabel('Name of the extract').inputValue()).resolves.toBe(path.basename(file, '.csv'));
     await page.getByLabel('Name of the extract').fill('Ward audit sample (synthetic)');
@@ -80,6 +81,7 @@ describe('extracts in the browser', () => {
     const lines = ['contact_email,call_back,readmitted_30d'];
     for (let i = 0; i < 60; i += 1) lines.push(`person${i}@mail.example,${i % 2},${i % 4 === 0 ? 1 : 0}`);
     writeFileSync(file, `${lines.join('\n')}\n`);
+    await waitForHydrated(page, 'upload-panel');
     await page.getByTestId('upload-file').setInputFiles(file);
     await page.getByLabel('Name of the extract').fill('Contacts sample (synthetic)');
     await page.getByRole('button', { name: 'Upload', exact: true }).click();

@@ -143,3 +143,12 @@ export async function signInThroughPage(page: Page, email: string, password: str
   await page.getByRole('button', { name: 'Sign in' }).click();
   await page.waitForURL((url) => url.pathname !== '/sign-in');
 }
+
+/**
+ * Waits until the island inside `container` has hydrated (it marks itself with
+ * data-hydrated="true"; see src/lib/client/useHydrated.ts). Input given before that
+ * would land in the server's HTML, not in the island's state.
+ */
+export async function waitForHydrated(page: Page, testId: string): Promise<void> {
+  await page.locator(`[data-testid="${testId}"][data-hydrated="true"]`).waitFor();
+}

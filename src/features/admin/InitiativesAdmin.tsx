@@ -4,6 +4,7 @@ import { useMemo, useState, type SyntheticEvent } from 'react';
 import { ApiError, apiFetch } from '../../lib/client/api';
 import { DataTable, type DataColumn } from '../../components/ui/DataTable';
 import { QueryRoot } from '../../components/ui/QueryRoot';
+import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
 import type { InitiativeItem } from './admin.schema';
 
 function CreateForm({ defaultOrganisation }: { defaultOrganisation: string }) {
@@ -26,6 +27,7 @@ function CreateForm({ defaultOrganisation }: { defaultOrganisation: string }) {
   };
   return (
     <form onSubmit={submit} className="card p-5 mb-6 grid gap-4 md:grid-cols-2" noValidate aria-labelledby="create-heading">
+      <HydratedFieldset>
       <h2 id="create-heading" className="md:col-span-2 text-lg">New initiative</h2>
       <div>
         <label className="field-label" htmlFor="initiative-name">Name</label>
@@ -46,6 +48,7 @@ function CreateForm({ defaultOrganisation }: { defaultOrganisation: string }) {
         {error && !error.details && <p role="alert" className="text-sm text-brick-700">{error.message}</p>}
         <button className="btn btn-primary" type="submit" disabled={create.isPending}>{create.isPending ? 'Creating…' : 'Create initiative'}</button>
       </div>
+    </HydratedFieldset>
     </form>
   );
 }

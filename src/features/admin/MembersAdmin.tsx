@@ -3,6 +3,7 @@ import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState } from 'react';
 import { apiFetch } from '../../lib/client/api';
 import { QueryRoot } from '../../components/ui/QueryRoot';
+import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
 import type { MemberItem } from './admin.server';
 import type { UserListItem } from './admin.schema';
 
@@ -100,6 +101,7 @@ function Members({ initiativeId, initiativeName, readersSeeRows }: Props) {
             if (newUserId) setRole.mutate({ userId: newUserId, role: newRole }, { onSuccess: () => setNewUserId('') });
           }}
         >
+          <HydratedFieldset>
           <div className="min-w-64">
             <label className="field-label" htmlFor="add-member">Add a person</label>
             <select id="add-member" className="field-input" value={newUserId} onChange={(e) => setNewUserId(e.target.value)}>
@@ -114,6 +116,7 @@ function Members({ initiativeId, initiativeName, readersSeeRows }: Props) {
             </select>
           </div>
           <button className="btn btn-primary" type="submit" disabled={!newUserId || setRole.isPending}>Add member</button>
+        </HydratedFieldset>
         </form>
       </section>
     </div>

@@ -4,6 +4,7 @@ import { useMemo, useState, type SyntheticEvent } from 'react';
 import { ApiError, apiFetch } from '../../lib/client/api';
 import { DataTable, type DataColumn } from '../../components/ui/DataTable';
 import { QueryRoot } from '../../components/ui/QueryRoot';
+import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
 import type { InitiativeItem, UserListItem } from './admin.schema';
 
 const ROLE_LABEL = { analyst: 'Analyst', clinician: 'Clinician', auditor: 'Auditor' } as const;
@@ -44,6 +45,7 @@ function InviteForm({ initiatives }: { initiatives: InitiativeItem[] }) {
   };
   return (
     <form onSubmit={submit} className="card p-5 mb-6 grid gap-4 md:grid-cols-6 items-end" aria-labelledby="invite-heading" noValidate>
+      <HydratedFieldset>
       <h2 id="invite-heading" className="md:col-span-6 text-lg">Invite a person</h2>
       <div className="md:col-span-2">
         <label className="field-label" htmlFor="invite-email">E-mail address</label>
@@ -83,6 +85,7 @@ function InviteForm({ initiatives }: { initiatives: InitiativeItem[] }) {
           {invite.isPending ? 'Sending…' : 'Send invitation'}
         </button>
       </div>
+    </HydratedFieldset>
     </form>
   );
 }

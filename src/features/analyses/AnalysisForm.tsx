@@ -8,6 +8,7 @@ import { useMutation } from '@tanstack/react-query';
 import { useId, useMemo, useState, type ReactNode, type SubmitEvent } from 'react';
 import type { Spec } from '../../engine/boundary/schemas';
 import { ApiError, apiFetch } from '../../lib/client/api';
+import { useHydrated } from '../../lib/client/useHydrated';
 import { QueryRoot } from '../../components/ui/QueryRoot';
 import { ModelEquationView } from './ModelEquationView';
 import {
@@ -126,6 +127,7 @@ function Section({ title, description, children }: { title: string; description?
 
 function Form({ initiativeId, extractVersionId, columns, existing, onSavedHref = '/analyses/{id}' }: AnalysisFormProps) {
   const formId = useId();
+  const hydrated = useHydrated();
   const fieldId = (path: string) => `${formId}-${path.replace(/[^\w-]/g, '-')}`;
   const [draft, setDraft] = useState<AnalysisDraft>(() =>
     existing
@@ -187,7 +189,9 @@ function Form({ initiativeId, extractVersionId, columns, existing, onSavedHref =
   const summary = converted.ok ? computationSummary(converted.spec, columns) : [];
 
   return (
-    <form onSubmit={submit} noValidate className="grid gap-6 lg:grid-cols-[minmax(0,1fr)_24rem] items-start" aria-label={existing ? 'Edit analysis' : 'New analysis'} data-testid="analysis-form">
+    <form onSubmit={submit} noValidate className="grid gap-6 lg:grid-cols-[minmax(0,1fr)_24rem] items-start" aria-label={existing ? 'Edit analysis' : 'New analysis'} data-testid="analysis-form" data-hydrated={hydrated} aria-busy={!hydrated}>
+      {/* Controls stay disabled until the island has hydrated (see useHydrated). */}
+      <fieldset disabled={!hydrated} className="contents">
       <div className="grid gap-5 min-w-0">
         <Section title="The question" description="In plain words, as a clinician would ask it.">
           <Field id={fieldId('title')} label="Title" error={shownError('title')}>
@@ -575,6 +579,7 @@ function Form({ initiativeId, extractVersionId, columns, existing, onSavedHref =
           <p className="text-xs text-ink-500">Saving does not run the analysis; you start runs from the analysis page.</p>
         </div>
       </aside>
+      </fieldset>
     </form>
   );
 }

@@ -3,6 +3,7 @@ import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState, type SyntheticEvent } from 'react';
 import { ApiError, apiFetch } from '../../lib/client/api';
 import { QueryRoot } from '../../components/ui/QueryRoot';
+import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
 import type { ApiTokenItem } from '../../lib/server/apiTokens';
 
 function Tokens() {
@@ -46,12 +47,14 @@ function Tokens() {
         </div>
       )}
       <form onSubmit={submit} className="flex flex-wrap items-end gap-3 mt-4" noValidate>
+        <HydratedFieldset>
         <div className="min-w-72">
           <label className="field-label" htmlFor="token-name">Name (what uses it)</label>
           <input id="token-name" className="field-input" value={name} onChange={(e) => setName(e.target.value)} placeholder="e.g. nightly warehouse export" />
           {error?.fieldMessage('name') && <p className="field-error">{error.fieldMessage('name')}</p>}
         </div>
         <button className="btn btn-primary" type="submit" disabled={create.isPending}>Create token</button>
+      </HydratedFieldset>
       </form>
       {tokens.isPending ? (
         <p role="status" className="text-ink-500 mt-4">Loading tokens…</p>

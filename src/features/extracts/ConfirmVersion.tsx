@@ -6,6 +6,7 @@ import { useMutation } from '@tanstack/react-query';
 import { useState, type SyntheticEvent } from 'react';
 import { ApiError, apiFetch } from '../../lib/client/api';
 import { QueryRoot } from '../../components/ui/QueryRoot';
+import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
 import type { AnalysableColumnType } from './extracts.schema';
 
 interface ColumnChoice {
@@ -45,6 +46,7 @@ function Confirm({ extractId, versionId, columns, statement, signerName }: Props
   };
   return (
     <form onSubmit={submit} className="card p-5" aria-labelledby="confirm-heading" noValidate>
+      <HydratedFieldset>
       <h2 id="confirm-heading" className="text-lg">Confirm the data dictionary</h2>
       <p className="text-sm text-ink-700 mt-1">Check the type Crossgrain inferred for each column, correct it where it is wrong, and describe what the column holds. Analyses offer columns by these types.</p>
       <table className="data-table w-full text-sm mt-4">
@@ -86,6 +88,7 @@ function Confirm({ extractId, versionId, columns, statement, signerName }: Props
         {confirm.isPending ? 'Confirming…' : 'Sign and confirm this version'}
       </button>
       <p className="text-xs text-ink-500 mt-2">Once confirmed, the version and its dictionary never change. A correction is a new upload.</p>
+    </HydratedFieldset>
     </form>
   );
 }

@@ -6,6 +6,7 @@
 import { useQuery } from '@tanstack/react-query';
 import { useEffect, useRef, useState, type DragEvent } from 'react';
 import { apiFetch } from '../../lib/client/api';
+import { useHydrated } from '../../lib/client/useHydrated';
 import { QueryRoot } from '../../components/ui/QueryRoot';
 import type { ExtractView, VersionView } from './extracts.server';
 
@@ -127,7 +128,7 @@ function Uploader({ initiativeId, extractId, maxBytes }: Props) {
   const onDrop = (event: DragEvent) => {
     event.preventDefault();
     setDragging(false);
-    choose(event.dataTransfer.files[0]);
+    if (!busy) choose(event.dataTransfer.files[0]);
   };
   const tooLarge = file ? file.size > maxBytes : false;
 
@@ -164,10 +165,11 @@ function Uploader({ initiativeId, extractId, maxBytes }: Props) {
     }
   };
 
-  const busy = phase.kind === 'sending' || (phase.kind === 'processing' && !settled);
+  const hydrated = useHydrated();
+  const busy = !hydrated || phase.kind === 'sending' || (phase.kind === 'processing' && !settled);
   const markSettled = () => setSettled(true);
   return (
-    <section className="card p-5" aria-labelledby="upload-heading">
+    <section className="card p-5" aria-labelledby="upload-heading" data-testid="upload-panel" data-hydrated={hydrated}>
       <h2 id="upload-heading" className="text-lg">{extractId ? 'Upload a new version' : 'Upload an extract'}</h2>
       <p className="text-sm text-ink-700 mt-1">
         A de-identified CSV with a header row (comma, semicolon or tab), UTF-8, at most {formatBytes(maxBytes)}. Columns that look like
@@ -181,7 +183,7 @@ function Uploader({ initiativeId, extractId, maxBytes }: Props) {
       >
         <p className="text-sm">{file ? <><strong>{file.name}</strong> · {formatBytes(file.size)}</> : 'Drop the CSV file here, or'}</p>
         <button type="button" className="btn btn-secondary mt-2" onClick={() => input.current?.click()} disabled={busy}>Choose a file…</button>
-        <input ref={input} type="file" accept=".csv,.tsv,.txt,text/csv" className="sr-only" aria-label="CSV file" data-testid="upload-file"
+        <input ref={input} type="file" accept=".csv,.tsv,.txt,text/csv" className="sr-only" aria-label="CSV file" data-testid="upload-file" disabled={busy}
           onChange={(e) => choose(e.target.files?.[0])} />
       </div>
       {tooLarge && <p role="alert" className="field-error">This file is larger than the limit of {formatBytes(maxBytes)}.</p>}
