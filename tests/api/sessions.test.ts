@@ -220,3 +220,44 @@ describe('administration endpoints', () => {
     expect((await new ApiClient().request('GET', '/api/admin/users')).status).toBe(401);
   });
 });
+
+describe('audit checkpoints over HTTP', () => {
+  it('are exported to auditors as a file and hold when checked back', async () => {
+    const { user, client } = await signedIn();
+    await addMember((await makeInitiative('Checkpoint ward')).id, user.id, 'auditor');
+    const exported = await client.request('GET', '/api/audit/checkpoint?download=1');
+    expect(exported.status).toBe(200);
+    expect(exported.headers.get('content-disposition')).toMatch(/^attachment; filename="crossgrain-audit-checkpoint-\d+\.json"$/);
+    const checkpoint = await exported.json();
+    expect(checkpoint).toMatchObject({ format: 'crossgrain-audit-checkpoint/1', position: expect.any(Number), hash: expect.stringMatching(/^[0-9a-f]{64}$/) });
+
+    const checked = await client.request('POST', '/api/audit/verify', { checkpoint });
+    expect(checked.status).toBe(200);
+    const report = await checked.json();
+    expect(report.checkpoint).toMatchObject({ position: checkpoint.position, holds: true });
+    expect(report.intact).toBe(true);
+
+    // Both the export and the check are in the trail, naming the checkpoint.
+    const events = await ownerDb().query<{ action: string; details: Record<string, unknown> }>(
+      "SELECT action, details FROM audit_events WHERE actor_id = :id AND action LIKE 'audit.%' ORDER BY chain_position",
+      { replacements: { id: user.id }, type: QueryTypes.SELECT },
+    );
+    expect(events.map((e) => e.action)).toEqual(['audit.checkpoint-exported', 'audit.verified']);
+    expect(events[0].details).toMatchObject({ position: checkpoint.position, hash: checkpoint.hash });
+    expect(events[1].details).toMatchObject({ checkpointPosition: checkpoint.position, checkpointHolds: true });
+  });
+
+  it('refuse a malformed checkpoint with field messages, and people who are not auditors', async () => {
+    const { user, client } = await signedIn();
+    await addMember((await makeInitiative('Checkpoint ward 2')).id, user.id, 'auditor');
+    const bad = await client.request('POST', '/api/audit/verify', { checkpoint: { format: 'crossgrain-audit-checkpoint/1', position: 0, hash: 'abc', eventAt: 'yesterday', takenAt: 'now' } });
+    expect(bad.status).toBe(400);
+    const paths = ((await bad.json()).error.details as { path: string }[]).map((d) => d.path).sort();
+    expect(paths).toEqual(['checkpoint.eventAt', 'checkpoint.hash', 'checkpoint.position', 'checkpoint.takenAt']);
+
+    const analyst = await signedIn();
+    await addMember((await makeInitiative('Checkpoint ward 3')).id, analyst.user.id, 'analyst');
+    expect((await analyst.client.request('GET', '/api/audit/checkpoint')).status).toBe(403);
+    expect((await analyst.client.request('POST', '/api/audit/verify', {})).status).toBe(403);
+  });
+});

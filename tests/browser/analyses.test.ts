@@ -5,6 +5,9 @@
  * demo clinician opens the same run read-only; a continuous-modifier run shows the
  * significance band plot.
  */
+import { readFileSync, writeFileSync } from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { seedDemo } from '../../db/seed';
 import { seedDemoExtracts } from '../../db/seeds/demoExtracts';
@@ -164,10 +167,29 @@ describe('the demo auditor', () => {
     const { page, context, consoleErrors } = await harness.newPage();
     await signInThroughPage(page, demoEmail('auditor'), DEMO_PASSWORD);
     await page.getByRole('navigation', { name: 'Initiatives' }).getByRole('link', { name: /Call-back within 72 hours/ }).click();
+    await waitForHydrated(page, 'chain-check');
     await page.getByRole('button', { name: 'Verify the audit trail' }).click();
     await page.getByTestId('chain-report').waitFor();
     await expect(page.getByTestId('chain-report').textContent()).resolves.toMatch(/^Intact: all [\d,]+ events link up/);
+
+    // Save a checkpoint as a file, then check the trail against it: it holds.
+    const [download] = await Promise.all([page.waitForEvent('download'), page.getByTestId('checkpoint-download').click()]);
+    expect(download.suggestedFilename()).toMatch(/^crossgrain-audit-checkpoint-\d+\.json$/);
+    const saved = path.join(os.tmpdir(), `checkpoint-${Date.now()}.json`);
+    await download.saveAs(saved);
+    const checkpoint = JSON.parse(readFileSync(saved, 'utf8'));
+    expect(checkpoint.format).toBe('crossgrain-audit-checkpoint/1');
+    await page.getByTestId('checkpoint-file').setInputFiles(saved);
+    await page.locator('[data-testid="checkpoint-finding"][data-holds="true"]').waitFor();
+    await expect(page.getByTestId('checkpoint-finding').textContent()).resolves.toContain(`position ${checkpoint.position} still has the checkpoint's hash`);
     await saveScreenshot(page, 'auditor-overview');
+
+    // A file that is not a checkpoint is refused with a message, and nothing is checked.
+    const notCheckpoint = path.join(os.tmpdir(), `not-a-checkpoint-${Date.now()}.json`);
+    writeFileSync(notCheckpoint, '{"format":"something-else"}');
+    await page.getByTestId('checkpoint-file').setInputFiles(notCheckpoint);
+    await expect(page.getByRole('alert').first().textContent()).resolves.toContain('is not a Crossgrain audit checkpoint');
+    await expect(page.getByTestId('chain-report').count()).resolves.toBe(0);
     expect(consoleErrors).toEqual([]);
     await context.close();
   });

@@ -3,9 +3,14 @@
  * against concurrent writers, and verifiable. Standards: HIPAA Security Rule 45 CFR
  * 164.312(b), 21 CFR 11.10(e), NIST SP 800-53 AU-9 (shared design standards, audit trail).
  */
+import { spawnSync } from 'node:child_process';
+import { writeFileSync } from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
-import { recordAudit, verifyAuditChain } from '../../src/features/audit/audit.server';
+import { recordAudit, takeCheckpoint, verifyAuditChain } from '../../src/features/audit/audit.server';
+import type { AuditCheckpoint } from '../../src/features/audit/audit.schema';
 import { sequelize, withIdentity } from '../../src/lib/server/db';
 import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
 
@@ -128,5 +133,96 @@ describe('tamper evidence', () => {
       await rewrite(target.action);
     }
     expect((await verify()).intact).toBe(true);
+  });
+});
+
+describe('checkpoints of the chain head (standards: truncation is detectable)', () => {
+  const append = async (n: number) => {
+    const user = await makeUser();
+    for (let i = 0; i < n; i += 1) await withIdentity(user.id, (t) => recordAudit(t, { action: 'auth.sign-in', actorId: user.id, details: { i } }));
+  };
+  const checkpointNow = async (): Promise<AuditCheckpoint> => (await withIdentity(null, (t) => takeCheckpoint(t)))!;
+
+  it('records the head position and hash, and holds while events are added', async () => {
+    await append(1);
+    const checkpoint = await checkpointNow();
+    const [head] = await ownerDb().query<{ hash: string }>('SELECT hash FROM audit_events WHERE chain_position = :p', {
+      replacements: { p: checkpoint.position }, type: QueryTypes.SELECT,
+    });
+    expect(checkpoint.hash).toBe(head.hash);
+    await append(2);
+    const report = await withIdentity(null, (t) => verifyAuditChain(t, checkpoint));
+    expect(report.intact).toBe(true);
+    expect(report.checkpoint?.holds).toBe(true);
+    expect(report.headPosition).toBeGreaterThanOrEqual(checkpoint.position + 2);
+    expect(report.checkpoint?.finding).toMatch(/^Holds: /);
+  });
+
+  it('fails when the event at the checkpoint no longer has its hash', async () => {
+    await append(1);
+    const checkpoint = await checkpointNow();
+    const forged = { ...checkpoint, hash: checkpoint.hash.replace(/^./, (c) => (c === '0' ? '1' : '0')) };
+    const report = await withIdentity(null, (t) => verifyAuditChain(t, forged));
+    expect(report.broken).toBeNull();
+    expect(report.intact).toBe(false);
+    expect(report.checkpoint?.holds).toBe(false);
+    expect(report.checkpoint?.finding).toMatch(/^Rewritten: the event at position \d+/);
+  });
+
+  it('reveals deleted newest events, which the links alone do not', async () => {
+    await append(3);
+    const checkpoint = await checkpointNow();
+    // Remove the two newest events behind the application's back, as someone with owner
+    // access would, inside a transaction that is rolled back afterwards. The table lock
+    // taken by ALTER TABLE keeps other writers out meanwhile.
+    const t = await ownerDb().transaction();
+    try {
+      await ownerDb().query('ALTER TABLE audit_events DISABLE TRIGGER audit_events_no_change', { transaction: t });
+      await ownerDb().query('DELETE FROM audit_events WHERE chain_position >= :from', { replacements: { from: checkpoint.position - 1 }, transaction: t });
+      const alone = await verifyAuditChain(t);
+      expect(alone.intact).toBe(true);
+      expect(alone.headPosition).toBe(checkpoint.position - 2);
+      const against = await verifyAuditChain(t, checkpoint);
+      expect(against.broken).toBeNull();
+      expect(against.intact).toBe(false);
+      expect(against.checkpoint?.holds).toBe(false);
+      expect(against.checkpoint?.finding).toBe(
+        `Truncated: the checkpoint of ${checkpoint.takenAt} records an event at position ${checkpoint.position}, but the chain now ends at position ${checkpoint.position - 2}.`,
+      );
+    } finally {
+      await t.rollback();
+    }
+    expect((await withIdentity(null, (tx) => verifyAuditChain(tx, checkpoint))).checkpoint?.holds).toBe(true);
+  });
+});
+
+describe('the audit:checkpoint command', () => {
+  const command = path.resolve(import.meta.dirname, '../../src/features/audit/checkpointCommand.ts');
+  const run = (...args: string[]) => spawnSync('npx', ['tsx', command, ...args], { env: process.env, encoding: 'utf8' });
+
+  it('prints a checkpoint, and checks the chain against a file of them (newest line wins)', async () => {
+    const taken = run();
+    expect(taken.status).toBe(0);
+    const checkpoint = JSON.parse(taken.stdout) as AuditCheckpoint;
+    expect(checkpoint.format).toBe('crossgrain-audit-checkpoint/1');
+    const file = path.join(os.tmpdir(), `checkpoints-${process.pid}-${Date.now()}.jsonl`);
+    const older = { ...checkpoint, position: 1, hash: '0'.repeat(64) };
+    writeFileSync(file, `${JSON.stringify(older)}\n${taken.stdout}`);
+    const checked = run('--verify', file);
+    expect(checked.status).toBe(0);
+    expect(JSON.parse(checked.stdout).checkpoint).toMatchObject({ position: checkpoint.position, holds: true });
+
+    writeFileSync(file, `${JSON.stringify({ ...checkpoint, hash: 'f'.repeat(64) })}\n`);
+    const rewritten = run('--verify', file);
+    expect(rewritten.status).toBe(1);
+    expect(JSON.parse(rewritten.stdout).checkpoint.finding).toMatch(/^Rewritten/);
+  });
+
+  it('refuses a file that is not a checkpoint with a JSON error and exit code 2', () => {
+    const file = path.join(os.tmpdir(), `not-a-checkpoint-${process.pid}.json`);
+    writeFileSync(file, 'position,hash\n3,abc\n');
+    const refused = run('--verify', file);
+    expect(refused.status).toBe(2);
+    expect(JSON.parse(refused.stderr).error).toMatch(/is not JSON/);
   });
 });

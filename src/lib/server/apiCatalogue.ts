@@ -11,6 +11,7 @@ import {
 import { ApiTokenView, CreateApiTokenBody, CreatedApiToken, ForgotPasswordBody, MeResponse, SetPasswordBody, SignInBody } from '../../features/auth/auth.schema';
 import { ArchiveBody, ConfirmVersionBody, NewExtractQuery, NewVersionQuery, RowsQuery, UploadAccepted } from '../../features/extracts/extracts.schema';
 import { AnalysisBody, Created, DownloadQuery, RunAccepted } from '../../features/analyses/analysisApi.schema';
+import { AuditCheckpoint, ChainReport, CheckpointQuery, VerifyBody } from '../../features/audit/audit.schema';
 import { OutboxQuery } from './outbox';
 
 export type Auth = 'none' | 'session' | 'admin';
@@ -34,16 +35,6 @@ export interface Operation {
 const HealthResponse = z
   .object({ status: z.enum(['ok', 'degraded']), version: z.string(), database: z.enum(['up', 'down']) })
   .meta({ id: 'Health' });
-
-const ChainReport = z
-  .object({
-    checked: z.number().int(),
-    intact: z.boolean(),
-    headPosition: z.number().int().nullable(),
-    headHash: z.string().nullable(),
-    broken: z.object({ position: z.number().int(), eventId: z.number().int(), reason: z.string() }).nullable(),
-  })
-  .meta({ id: 'AuditChainReport' });
 
 const InvitedResponse = z.object({ userId: z.uuid(), mailed: z.boolean() }).meta({ id: 'Invited' });
 const Member = z
@@ -108,6 +99,8 @@ export const OPERATIONS: Operation[] = [
   { method: 'POST', path: '/api/runs/{runId}/cancel', tag: 'Analyses and runs', summary: 'Cancel a queued or running run', auth: 'session', status: 200 },
   { method: 'GET', path: '/api/runs/{runId}/download', tag: 'Analyses and runs', summary: 'The result as JSON or the tables as CSV (audited)', auth: 'session', query: DownloadQuery, status: 200 },
 
-  { method: 'POST', path: '/api/audit/verify', tag: 'Audit', summary: 'Recompute the hash chain and report the first broken link', auth: 'session', response: ChainReport, status: 200,
-    description: 'Auditors and administrators. The check itself is an audit event.' },
+  { method: 'POST', path: '/api/audit/verify', tag: 'Audit', summary: 'Recompute the hash chain and report the first broken link', auth: 'session', body: VerifyBody, response: ChainReport, status: 200,
+    description: 'Auditors and administrators. Send `{}` to check the chain alone, or `{ "checkpoint": … }` with a file from `GET /api/audit/checkpoint` to check also that the chain still holds that head unchanged (removed newest events show only this way). The check itself is an audit event.' },
+  { method: 'GET', path: '/api/audit/checkpoint', tag: 'Audit', summary: 'Export a checkpoint of the chain head, to keep outside the database', auth: 'session', query: CheckpointQuery, response: AuditCheckpoint, status: 200,
+    description: 'Auditors and administrators. `download=1` answers as a file. The export is an audit event written after the head was read.' },
 ];

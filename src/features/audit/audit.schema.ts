@@ -1,0 +1,53 @@
+/**
+ * The audit API's shapes: the chain report, and the checkpoint file an auditor or an
+ * operator keeps outside the database (format `crossgrain-audit-checkpoint/1`).
+ */
+import { z } from 'zod';
+
+export const CHECKPOINT_FORMAT = 'crossgrain-audit-checkpoint/1';
+
+export const AuditCheckpoint = z
+  .object({
+    format: z.literal(CHECKPOINT_FORMAT),
+    /** Position of the newest event when the checkpoint was taken (1 is the first event). */
+    position: z.number().int().min(1),
+    /** That event's SHA-256, as the chain stores it (64 lower-case hexadecimal digits). */
+    hash: z.string().regex(/^[0-9a-f]{64}$/, 'The hash must be 64 lower-case hexadecimal digits.'),
+    /** When that event was written (UTC), and when the checkpoint was taken. */
+    eventAt: z.iso.datetime(),
+    takenAt: z.iso.datetime(),
+  })
+  .meta({ id: 'AuditCheckpoint' });
+export type AuditCheckpoint = z.infer<typeof AuditCheckpoint>;
+
+export const VerifyBody = z
+  .object({
+    /** A checkpoint exported earlier: the chain must still hold its head, unchanged. */
+    checkpoint: AuditCheckpoint.optional(),
+  })
+  .meta({ id: 'AuditVerifyRequest' });
+
+export const CheckpointQuery = z.object({
+  /** `1` answers with Content-Disposition: attachment, for saving the file. */
+  download: z.enum(['0', '1']).optional(),
+});
+
+export const ChainReport = z
+  .object({
+    checked: z.number().int(),
+    intact: z.boolean(),
+    headPosition: z.number().int().nullable(),
+    headHash: z.string().nullable(),
+    broken: z.object({ position: z.number().int(), eventId: z.number().int(), reason: z.string() }).nullable(),
+    checkpoint: z
+      .object({
+        position: z.number().int(),
+        takenAt: z.string(),
+        holds: z.boolean(),
+        /** What the comparison found, in words. */
+        finding: z.string(),
+      })
+      .nullable(),
+  })
+  .meta({ id: 'AuditChainReport' });
+export type ChainReport = z.infer<typeof ChainReport>;
