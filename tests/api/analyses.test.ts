@@ -156,4 +156,12 @@ describe('runs', () => {
       expect(await page.text()).not.toContain('By age band');
     }
   });
+
+  it('explains how to compare when no two runs were chosen', async () => {
+    for (const path of ['/runs/compare', '/runs/compare?a=not-an-id&b=']) {
+      const page = await clients.analyst.request('GET', path);
+      expect(page.status, path).toBe(400);
+      expect(await page.text(), path).toContain('Choose two runs first');
+    }
+  });
 });
