@@ -8,21 +8,13 @@ import { useRef, useState, type ChangeEvent } from 'react';
 import { apiFetch } from '../../lib/client/api';
 import { useHydrated } from '../../lib/client/useHydrated';
 import { QueryRoot } from '../../components/ui/QueryRoot';
-import { AuditCheckpoint, type ChainReport } from './audit.schema';
+import { parseCheckpointText, type AuditCheckpoint, type ChainReport } from './audit.schema';
 
-/** Reads a checkpoint file chosen in the browser; one per line is fine (the newest wins). */
+/** Reads a checkpoint file chosen in the browser. */
 async function readCheckpointFile(file: File): Promise<AuditCheckpoint> {
-  const lines = (await file.text()).split('\n').map((line) => line.trim()).filter(Boolean);
-  const text = lines.length > 1 && lines.every((line) => line.startsWith('{') && line.endsWith('}')) ? lines.at(-1)! : lines.join('\n');
-  let raw: unknown;
-  try {
-    raw = JSON.parse(text);
-  } catch {
-    throw new Error(`${file.name} is not a checkpoint file (it is not JSON).`);
-  }
-  const parsed = AuditCheckpoint.safeParse(raw);
-  if (!parsed.success) throw new Error(`${file.name} is not a Crossgrain audit checkpoint: ${parsed.error.issues[0]?.message ?? 'unexpected content'}.`);
-  return parsed.data;
+  const read = parseCheckpointText(await file.text());
+  if ('problem' in read) throw new Error(`${file.name} cannot be used: ${read.problem}.`);
+  return read.checkpoint;
 }
 
 function chainSentence(report: ChainReport): string {

@@ -20,6 +20,28 @@ export const AuditCheckpoint = z
   .meta({ id: 'AuditCheckpoint' });
 export type AuditCheckpoint = z.infer<typeof AuditCheckpoint>;
 
+/**
+ * Reads a checkpoint file's text: one checkpoint as JSON, or one per line (JSON Lines, as
+ * `audit:checkpoint >> file` builds up), in which case the newest, last line is used.
+ * Answers the checkpoint or a sentence saying what is wrong, for the browser and the
+ * command line alike.
+ */
+export function parseCheckpointText(text: string): { checkpoint: AuditCheckpoint } | { problem: string } {
+  const lines = text.split('\n').map((line) => line.trim()).filter(Boolean);
+  const jsonLines = lines.length > 1 && lines.every((line) => line.startsWith('{') && line.endsWith('}'));
+  let raw: unknown;
+  try {
+    raw = JSON.parse(jsonLines ? lines.at(-1)! : lines.join('\n'));
+  } catch {
+    return { problem: 'it is not JSON; a checkpoint file holds the JSON that Crossgrain exported' };
+  }
+  const parsed = AuditCheckpoint.safeParse(raw);
+  if (!parsed.success) {
+    return { problem: `it is not a Crossgrain audit checkpoint (${parsed.error.issues.map((issue) => `${issue.path.join('.') || 'file'}: ${issue.message}`).join('; ')})` };
+  }
+  return { checkpoint: parsed.data };
+}
+
 export const VerifyBody = z
   .object({
     /** A checkpoint exported earlier: the chain must still hold its head, unchanged. */

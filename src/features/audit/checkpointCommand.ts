@@ -11,20 +11,12 @@
 import { readFileSync } from 'node:fs';
 import { sequelize, withIdentity } from '../../lib/server/db';
 import { recordAudit, takeCheckpoint, verifyAuditChain } from './audit.server';
-import { AuditCheckpoint } from './audit.schema';
+import { parseCheckpointText, type AuditCheckpoint } from './audit.schema';
 
 function readCheckpoint(file: string): AuditCheckpoint {
-  const lines = readFileSync(file, 'utf8').split('\n').map((line) => line.trim()).filter(Boolean);
-  const text = lines.length > 1 && lines.every((line) => line.startsWith('{') && line.endsWith('}')) ? lines.at(-1)! : lines.join('\n');
-  let raw: unknown;
-  try {
-    raw = JSON.parse(text);
-  } catch {
-    throw new Error(`${file} is not JSON; a checkpoint file holds the JSON that audit:checkpoint printed.`);
-  }
-  const parsed = AuditCheckpoint.safeParse(raw);
-  if (!parsed.success) throw new Error(`${file} is not a Crossgrain audit checkpoint: ${parsed.error.issues.map((issue) => `${issue.path.join('.') || 'file'}: ${issue.message}`).join('; ')}`);
-  return parsed.data;
+  const read = parseCheckpointText(readFileSync(file, 'utf8'));
+  if ('problem' in read) throw new Error(`${file} cannot be used: ${read.problem}.`);
+  return read.checkpoint;
 }
 
 async function main(args: string[]): Promise<number> {
