@@ -193,4 +193,29 @@ describe('the demo auditor', () => {
     expect(consoleErrors).toEqual([]);
     await context.close();
   });
+
+  it('reads the audit trail, filters it to runs, and exports what it shows', async () => {
+    const { page, context, consoleErrors } = await harness.newPage();
+    await signInThroughPage(page, demoEmail('auditor'), DEMO_PASSWORD);
+    await page.getByRole('navigation', { name: 'Initiatives' }).getByRole('link', { name: /Call-back within 72 hours/ }).click();
+    await page.getByRole('navigation', { name: 'Initiative sections' }).getByRole('link', { name: 'Audit trail' }).click();
+    await page.getByTestId('audit-table').waitFor();
+    await page.getByLabel('Area').selectOption('run');
+    await page.getByRole('button', { name: 'Apply filter' }).click();
+    await page.waitForURL(/action=run/);
+    const actions = await page.getByTestId('audit-table').locator('tbody td:nth-child(4)').allTextContents();
+    expect(actions.length).toBeGreaterThan(0);
+    expect(actions.every((action) => action.startsWith('run.'))).toBe(true);
+    expect(actions).toContain('run.finished');
+    await saveScreenshot(page, 'audit-trail');
+
+    const [download] = await Promise.all([page.waitForEvent('download'), page.getByTestId('audit-export-csv').click()]);
+    const saved = path.join(os.tmpdir(), `audit-${Date.now()}.csv`);
+    await download.saveAs(saved);
+    const text = readFileSync(saved, 'utf8');
+    expect(text.startsWith('Caution,')).toBe(true);
+    expect(text).toContain('Filter,action run');
+    expect(consoleErrors).toEqual([]);
+    await context.close();
+  });
 });

@@ -73,3 +73,63 @@ export const ChainReport = z
   })
   .meta({ id: 'AuditChainReport' });
 export type ChainReport = z.infer<typeof ChainReport>;
+
+/** The areas an auditor filters the trail by (the part of the action before the dot). */
+export const AUDIT_AREAS = ['extract', 'analysis', 'run', 'membership', 'audit'] as const;
+
+const dateOnly = z.iso.date({ message: 'Use a date as YYYY-MM-DD.' });
+const isoDay = /^\d{4}-\d{2}-\d{2}$/;
+
+/** Filters for an initiative's trail; dates are UTC days, both ends included. */
+const filterFields = {
+  /** An area (`run`) or one action (`run.finished`). */
+  action: z.string().regex(/^[a-z][a-z-]*(\.[a-z][a-z-]*)*$/, 'Use an area such as run, or an action such as run.finished.').optional(),
+  actor: z.uuid({ message: 'The actor is a user id.' }).optional(),
+  /** One subject's id (a run, an analysis, an extract version). */
+  subject: z.string().min(1).max(200).optional(),
+  from: dateOnly.optional(),
+  to: dateOnly.optional(),
+};
+const datesInOrder: [(f: { from?: string; to?: string }) => boolean, { path: string[]; message: string }] = [
+  // Compared only when both are dates: a malformed one has its own message already.
+  (f) => !isoDay.test(f.from ?? '') || !isoDay.test(f.to ?? '') || f.from! <= f.to!,
+  { path: ['to'], message: 'The end date comes before the start date.' },
+];
+
+export const AuditEventsFilter = z.object(filterFields).refine(...datesInOrder);
+export type AuditEventsFilter = z.infer<typeof AuditEventsFilter>;
+
+export const AuditEventsQuery = z
+  .object({
+    ...filterFields,
+    page: z.coerce.number().int().min(1).default(1),
+    pageSize: z.coerce.number().int().min(10).max(200).default(50),
+  })
+  .refine(...datesInOrder)
+  .meta({ id: 'AuditEventsQuery' });
+
+export const AuditExportQuery = z
+  .object({ ...filterFields, format: z.enum(['csv', 'json']).default('csv') })
+  .refine(...datesInOrder)
+  .meta({ id: 'AuditExportQuery' });
+
+export const AuditEventView = z
+  .object({
+    position: z.number().int(),
+    occurredAt: z.string(),
+    actor: z.object({ id: z.uuid(), name: z.string(), email: z.string() }).nullable(),
+    actorRole: z.string().nullable(),
+    action: z.string(),
+    subjectType: z.string().nullable(),
+    subjectId: z.string().nullable(),
+    clientAddress: z.string().nullable(),
+    details: z.record(z.string(), z.unknown()),
+    prevHash: z.string(),
+    hash: z.string(),
+  })
+  .meta({ id: 'AuditEvent' });
+export type AuditEventView = z.infer<typeof AuditEventView>;
+
+export const AuditEventPage = z
+  .object({ events: z.array(AuditEventView), total: z.number().int(), page: z.number().int(), pageSize: z.number().int() })
+  .meta({ id: 'AuditEventPage' });

@@ -6,7 +6,7 @@
  */
 import { QueryTypes, type Transaction } from 'sequelize';
 import { sequelize } from '../../lib/server/db';
-import { CHECKPOINT_FORMAT, type AuditCheckpoint, type ChainReport } from './audit.schema';
+import { CHECKPOINT_FORMAT, type AuditCheckpoint, type AuditEventsFilter, type AuditEventView, type ChainReport } from './audit.schema';
 
 /** Every kind of event, as `area.verb`. */
 export const AUDIT_ACTIONS = [
@@ -29,6 +29,7 @@ export const AUDIT_ACTIONS = [
   'token.used',
   'audit.verified',
   'audit.checkpoint-exported',
+  'audit.exported',
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number] | `${string}.${string}`;
 
@@ -128,4 +129,96 @@ export async function takeCheckpoint(transaction: Transaction): Promise<AuditChe
  */
 export function mayCheckChain(user: { isAdmin: boolean; memberships: { role: string }[] }): boolean {
   return user.isAdmin || user.memberships.some((m) => m.role === 'auditor');
+}
+
+// ---------------------------------------------------------------------------------------
+// Reading an initiative's trail (auditors). Row-level security decides what is visible;
+// these queries only filter and page within it.
+// ---------------------------------------------------------------------------------------
+
+interface AuditRow {
+  chain_position: string; occurred_at: Date; actor_id: string | null; actor_name: string | null; actor_email: string | null;
+  actor_role: string | null; action: string; subject_type: string | null; subject_id: string | null; client_address: string | null;
+  details: Record<string, unknown>; prev_hash: string; hash: string;
+}
+
+/** The WHERE clause and bind values for one initiative's events under a filter. */
+function filterSql(initiativeId: string, filter: AuditEventsFilter): { where: string; bind: unknown[] } {
+  const bind: unknown[] = [initiativeId];
+  const clauses = ['e.initiative_id = $1'];
+  if (filter.action) {
+    bind.push(filter.action, `${filter.action}.%`);
+    clauses.push(`(e.action = $${bind.length - 1} OR e.action LIKE $${bind.length})`);
+  }
+  if (filter.actor) {
+    bind.push(filter.actor);
+    clauses.push(`e.actor_id = $${bind.length}`);
+  }
+  if (filter.subject) {
+    bind.push(filter.subject);
+    clauses.push(`e.subject_id = $${bind.length}`);
+  }
+  if (filter.from) {
+    bind.push(filter.from);
+    clauses.push(`e.occurred_at >= ($${bind.length}::date)::timestamp AT TIME ZONE 'UTC'`);
+  }
+  if (filter.to) {
+    bind.push(filter.to);
+    clauses.push(`e.occurred_at < ($${bind.length}::date + 1)::timestamp AT TIME ZONE 'UTC'`);
+  }
+  return { where: clauses.join(' AND '), bind };
+}
+
+const EVENT_COLUMNS = `e.chain_position, e.occurred_at, e.actor_id, u.display_name AS actor_name, u.email AS actor_email, e.actor_role,
+  e.action, e.subject_type, e.subject_id, e.client_address, e.details, e.prev_hash, e.hash`;
+
+function toView(row: AuditRow): AuditEventView {
+  return {
+    position: Number(row.chain_position),
+    occurredAt: new Date(row.occurred_at).toISOString(),
+    actor: row.actor_id ? { id: row.actor_id, name: row.actor_name ?? '', email: row.actor_email ?? '' } : null,
+    actorRole: row.actor_role,
+    action: row.action,
+    subjectType: row.subject_type,
+    subjectId: row.subject_id,
+    clientAddress: row.client_address,
+    details: row.details ?? {},
+    prevHash: row.prev_hash,
+    hash: row.hash,
+  };
+}
+
+/** One page of an initiative's events, newest first, and how many match in all. */
+export async function listAuditEvents(
+  transaction: Transaction, initiativeId: string, filter: AuditEventsFilter, paging: { page: number; pageSize: number },
+): Promise<{ events: AuditEventView[]; total: number }> {
+  const { where, bind } = filterSql(initiativeId, filter);
+  const [counted] = await sequelize.query<{ total: string }>(`SELECT count(*) AS total FROM audit_events e WHERE ${where}`, {
+    bind, type: QueryTypes.SELECT, transaction,
+  });
+  const rows = await sequelize.query<AuditRow>(
+    `SELECT ${EVENT_COLUMNS} FROM audit_events e LEFT JOIN users u ON u.id = e.actor_id
+     WHERE ${where} ORDER BY e.chain_position DESC LIMIT ${paging.pageSize} OFFSET ${(paging.page - 1) * paging.pageSize}`,
+    { bind, type: QueryTypes.SELECT, transaction },
+  );
+  return { events: rows.map(toView), total: Number(counted.total) };
+}
+
+/** Every matching event, oldest first (chain order), for an export. */
+export async function exportAuditEvents(transaction: Transaction, initiativeId: string, filter: AuditEventsFilter): Promise<AuditEventView[]> {
+  const { where, bind } = filterSql(initiativeId, filter);
+  const rows = await sequelize.query<AuditRow>(
+    `SELECT ${EVENT_COLUMNS} FROM audit_events e LEFT JOIN users u ON u.id = e.actor_id WHERE ${where} ORDER BY e.chain_position`,
+    { bind, type: QueryTypes.SELECT, transaction },
+  );
+  return rows.map(toView);
+}
+
+/** The people who appear in an initiative's trail, for the actor filter. */
+export async function auditActors(transaction: Transaction, initiativeId: string): Promise<{ id: string; name: string }[]> {
+  return sequelize.query<{ id: string; name: string }>(
+    `SELECT DISTINCT u.id, u.display_name AS name FROM audit_events e JOIN users u ON u.id = e.actor_id
+     WHERE e.initiative_id = $1 ORDER BY name`,
+    { bind: [initiativeId], type: QueryTypes.SELECT, transaction },
+  );
 }

@@ -11,7 +11,7 @@ import {
 import { ApiTokenView, CreateApiTokenBody, CreatedApiToken, ForgotPasswordBody, MeResponse, SetPasswordBody, SignInBody } from '../../features/auth/auth.schema';
 import { ArchiveBody, ConfirmVersionBody, NewExtractQuery, NewVersionQuery, RowsQuery, UploadAccepted } from '../../features/extracts/extracts.schema';
 import { AnalysisBody, Created, DownloadQuery, RunAccepted } from '../../features/analyses/analysisApi.schema';
-import { AuditCheckpoint, ChainReport, CheckpointQuery, VerifyBody } from '../../features/audit/audit.schema';
+import { AuditCheckpoint, AuditEventPage, AuditEventsQuery, AuditExportQuery, ChainReport, CheckpointQuery, VerifyBody } from '../../features/audit/audit.schema';
 import { OutboxQuery } from './outbox';
 
 export type Auth = 'none' | 'session' | 'admin';
@@ -101,6 +101,10 @@ export const OPERATIONS: Operation[] = [
 
   { method: 'POST', path: '/api/audit/verify', tag: 'Audit', summary: 'Recompute the hash chain and report the first broken link', auth: 'session', body: VerifyBody, response: ChainReport, status: 200,
     description: 'Auditors and administrators. Send `{}` to check the chain alone, or `{ "checkpoint": … }` with a file from `GET /api/audit/checkpoint` to check also that the chain still holds that head unchanged (removed newest events show only this way). The check itself is an audit event.' },
+  { method: 'GET', path: '/api/initiatives/{initiativeId}/audit-events', tag: 'Audit', summary: "One page of the initiative's audit trail, newest first", auth: 'session', query: AuditEventsQuery, response: AuditEventPage, status: 200,
+    description: 'Auditors of the initiative. `action` takes an area (`run`) or one action (`run.finished`); `from` and `to` are UTC dates, both included.' },
+  { method: 'GET', path: '/api/initiatives/{initiativeId}/audit-events/export', tag: 'Audit', summary: 'Every matching event as CSV or JSON, caution first (audited)', auth: 'session', query: AuditExportQuery, status: 200,
+    description: 'Auditors of the initiative. Same filters as the list; events in chain order with their positions and hashes.' },
   { method: 'GET', path: '/api/audit/checkpoint', tag: 'Audit', summary: 'Export a checkpoint of the chain head, to keep outside the database', auth: 'session', query: CheckpointQuery, response: AuditCheckpoint, status: 200,
     description: 'Auditors and administrators. `download=1` answers as a file. The export is an audit event written after the head was read.' },
 ];
