@@ -130,6 +130,57 @@ describe('runs', () => {
     expect(downloads.map((d) => d.details.format)).toEqual(['json', 'csv']);
   });
 
+  it('is re-run by an auditor to verify it, and reproduces bit for bit (product brief, audit step)', async () => {
+    for (const role of ['analyst', 'clinician'] as const) {
+      expect((await clients[role].request('POST', `/api/runs/${runId}/verify`, {})).status, role).toBe(403);
+    }
+    expect((await clients.outsider.request('POST', `/api/runs/${runId}/verify`, {})).status).toBe(404);
+    const started = await clients.auditor.request('POST', `/api/runs/${runId}/verify`, {});
+    expect(started.status).toBe(202);
+    const rerunId = (await started.json()).runId;
+    const auditorId = (await (await clients.auditor.request('GET', '/api/me')).json()).id;
+    // The worker acts as the auditor for the re-run (row-level security lets it, and only it).
+    expect(await executeRun(rerunId, auditorId, { threads: 0 })).toBe('succeeded');
+    const rerun = await (await clients.clinician.request('GET', `/api/runs/${rerunId}`)).json();
+    expect(rerun.verifiesRunId).toBe(runId);
+    expect(rerun.verification.reproduced).toBe(true);
+    expect(rerun.verification.checks.map((c: { name: string; same: boolean }) => [c.name, c.same])).toEqual([
+      ['extract', true], ['specification', true], ['engine', true], ['seed', true], ['result', true],
+    ]);
+    const page = await (await clients.auditor.request('GET', `/runs/${rerunId}`)).text();
+    expect(page).toContain('Reproduced bit for bit');
+    expect(await (await clients.auditor.request('GET', `/runs/${runId}`)).text()).toContain('reproduced bit for bit');
+    const events = await ownerDb().query<{ action: string; details: { reproduced?: boolean; rerunId?: string } }>(
+      "SELECT action, details FROM audit_events WHERE action IN ('run.verification-started', 'run.verified') AND (subject_id = :run OR subject_id = :rerun) ORDER BY chain_position",
+      { replacements: { run: runId, rerun: rerunId }, type: QueryTypes.SELECT },
+    );
+    expect(events.map((e) => e.action)).toEqual(['run.verification-started', 'run.verified']);
+    expect(events[1].details).toMatchObject({ rerunId, reproduced: true });
+  });
+
+  it('reports a stored result that no longer matches what the engine computes', async () => {
+    const auditorId = (await (await clients.auditor.request('GET', '/api/me')).json()).id;
+    // Alter one stored estimate behind the application's back, as a database owner could.
+    const altered = (await ownerDb().query<{ result: { strata: { effect: { estimate: number } }[] } }>(
+      'SELECT result FROM runs WHERE id = :id', { replacements: { id: runId }, type: QueryTypes.SELECT },
+    ))[0].result;
+    const before = altered.strata[0].effect.estimate;
+    altered.strata[0].effect.estimate = before * 1.01;
+    await ownerDb().query('UPDATE runs SET result = CAST(:result AS jsonb) WHERE id = :id', { replacements: { id: runId, result: JSON.stringify(altered) } });
+    try {
+      const rerunId = (await (await clients.auditor.request('POST', `/api/runs/${runId}/verify`, {})).json()).runId;
+      expect(await executeRun(rerunId, auditorId, { threads: 0 })).toBe('succeeded');
+      const { verification } = await (await clients.auditor.request('GET', `/api/runs/${rerunId}?fields=status`)).json();
+      expect(verification.reproduced).toBe(false);
+      expect(verification.differences[0]).toEqual({ path: 'strata[0].effect.estimate', original: String(before * 1.01), rerun: String(before) });
+      expect(verification.differenceCount).toBe(1);
+      expect(await (await clients.auditor.request('GET', `/runs/${rerunId}`)).text()).toContain('Not reproduced: the inputs are the same, and 1 result value differs.');
+    } finally {
+      altered.strata[0].effect.estimate = before;
+      await ownerDb().query('UPDATE runs SET result = CAST(:result AS jsonb) WHERE id = :id', { replacements: { id: runId, result: JSON.stringify(altered) } });
+    }
+  });
+
   it('cancels a queued run at once, and only an analyst may', async () => {
     const queued = (await (await clients.analyst.request('POST', `/api/analyses/${analysisId}/runs`, {})).json()).runId;
     expect((await clients.clinician.request('POST', `/api/runs/${queued}/cancel`, {})).status).toBe(403);

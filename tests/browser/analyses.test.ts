@@ -194,6 +194,23 @@ describe('the demo auditor', () => {
     await context.close();
   });
 
+  it('re-runs the age-band run to verify it, and reads that it reproduced bit for bit', async () => {
+    expect(runUrl).not.toBe('');
+    const { page, context, consoleErrors } = await harness.newPage();
+    await signInThroughPage(page, demoEmail('auditor'), DEMO_PASSWORD);
+    await page.goto(runUrl);
+    await page.getByTestId('verify-run').click();
+    await page.waitForURL((url) => url.pathname.startsWith('/runs/') && url.toString() !== runUrl);
+    await page.getByTestId('verification-sentence').waitFor({ timeout: 60_000 });
+    await expect(page.getByTestId('verification-sentence').getAttribute('data-reproduced')).resolves.toBe('true');
+    await expect(page.getByTestId('verification-sentence').textContent()).resolves.toMatch(/^Reproduced bit for bit/);
+    await saveScreenshot(page, 'run-verified');
+    await page.goto(runUrl);
+    await expect(page.getByTestId('verifications').textContent()).resolves.toContain('reproduced bit for bit');
+    expect(consoleErrors).toEqual([]);
+    await context.close();
+  });
+
   it('reads the audit trail, filters it to runs, and exports what it shows', async () => {
     const { page, context, consoleErrors } = await harness.newPage();
     await signInThroughPage(page, demoEmail('auditor'), DEMO_PASSWORD);

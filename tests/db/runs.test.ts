@@ -11,9 +11,9 @@ import { runAnalysis } from '../../src/engine';
 import { createAnalysis } from '../../src/features/analyses/analyses.server';
 import { generateCallBackCohort } from '../../src/features/extracts/demoCohorts';
 import { loadColumns, toEngineData } from '../../src/features/extracts/extracts.server';
-import { columnRoles, executeRun, getRun, specHash, startRun } from '../../src/features/runs/runs.server';
+import { columnRoles, executeRun, getRun, specHash, startRun, startVerification } from '../../src/features/runs/runs.server';
 import { cautionText } from '../../src/lib/cautions';
-import { withIdentity } from '../../src/lib/server/db';
+import { sequelize, withIdentity } from '../../src/lib/server/db';
 import { makeReadyExtract } from '../support/extractFactory';
 import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
 
@@ -138,4 +138,38 @@ describe('a worker that dies mid-run', () => {
     }
     expect(retry?.status).toBe('succeeded');
   }, 90_000);
+});
+
+describe('verification re-runs under row-level security', () => {
+  it('let an auditor start and execute only re-runs that verify a run, never ordinary runs', async () => {
+    const auditorId = (await makeUser()).id;
+    await addMember(initiativeId, auditorId, 'auditor');
+    const { id } = await newAnalysis();
+    const { runId } = await queue(id);
+    expect(await executeRun(runId, analystId, { threads: 0 })).toBe('succeeded');
+
+    // An ordinary run inserted as the auditor is refused by the policy (42501).
+    const ordinary = withIdentity(auditorId, (t) =>
+      sequelize.query(
+        `INSERT INTO runs (analysis_id, initiative_id, extract_version_id, status, spec, spec_hash, extract_sha256, exploratory,
+                           caution_text, caution_version, started_by)
+         SELECT analysis_id, initiative_id, extract_version_id, 'queued', spec, spec_hash, extract_sha256, exploratory,
+                caution_text, caution_version, :auditor FROM runs WHERE id = :id`,
+        { replacements: { id: runId, auditor: auditorId }, transaction: t },
+      ),
+    );
+    await expect(ordinary).rejects.toMatchObject({ parent: { code: '42501' } });
+    // Nor can the auditor change the analyst's run: the update matches no row it may touch.
+    const touched = await withIdentity(auditorId, (t) =>
+      sequelize.query<{ id: string }>("UPDATE runs SET status = 'failed' WHERE id = :id RETURNING id", {
+        replacements: { id: runId }, type: QueryTypes.SELECT, transaction: t,
+      }),
+    );
+    expect(touched).toEqual([]);
+    // A verification re-run goes through, and its worker (acting as the auditor) executes it.
+    const started = await withIdentity(auditorId, (t) => startVerification(t, { id: auditorId, clientAddress: 'test' }, runId));
+    expect(await executeRun(started.runId, auditorId, { threads: 0 })).toBe('succeeded');
+    const rerun = await withIdentity(auditorId, (t) => getRun(t, started.runId, { withResult: false }));
+    expect(rerun?.verification?.reproduced).toBe(true);
+  });
 });

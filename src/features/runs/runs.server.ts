@@ -5,7 +5,6 @@
  * reports progress, and stores the full result, or a failure with its reason. A worker
  * that dies leaves its run marked failed by the stale-run sweep, never stuck as running.
  */
-import { createHash } from 'node:crypto';
 import { hostname } from 'node:os';
 import { QueryTypes, type Transaction } from 'sequelize';
 import { AnalysisCancelledError, ENGINE_VERSION, runAnalysis } from '../../engine';
@@ -18,6 +17,8 @@ import { logger } from '../../lib/server/logger';
 import { enqueueRun } from '../../lib/server/queue';
 import { recordAudit } from '../audit/audit.server';
 import { loadColumns, toEngineData } from '../extracts/extracts.server';
+import { specHash } from './canonical';
+import { compareRuns, verificationSentence, type RunFacts, type Verification } from './runVerification';
 
 export type RunStatus = 'queued' | 'running' | 'succeeded' | 'failed' | 'cancelled';
 
@@ -26,21 +27,7 @@ export interface Actor {
   clientAddress: string;
 }
 
-/** JSON with object keys sorted at every level: equal specifications hash equally. */
-export function canonicalJson(value: unknown): string {
-  if (Array.isArray(value)) return `[${value.map(canonicalJson).join(',')}]`;
-  if (value && typeof value === 'object') {
-    const entries = Object.entries(value as Record<string, unknown>)
-      .filter(([, v]) => v !== undefined)
-      .sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0));
-    return `{${entries.map(([k, v]) => `${JSON.stringify(k)}:${canonicalJson(v)}`).join(',')}}`;
-  }
-  return JSON.stringify(value);
-}
-
-export function specHash(spec: Spec): string {
-  return createHash('sha256').update(canonicalJson(spec)).digest('hex');
-}
+export { canonicalJson, specHash } from './canonical';
 
 /**
  * Creates a queued run and puts it on the queue. A run is exploratory unless the
@@ -87,6 +74,67 @@ export async function startRun(transaction: Transaction, actor: Actor, analysisI
   };
 }
 
+/**
+ * Queues a re-run that verifies a finished run: the same specification snapshot, extract
+ * version and seed, started by the auditor. When it ends, the worker compares the two
+ * (runVerification.ts) and stores the comparison on the re-run.
+ */
+export async function startVerification(transaction: Transaction, actor: Actor, runId: string): Promise<{ runId: string; enqueue: () => Promise<void> }> {
+  const [original] = await sequelize.query<{
+    id: string; analysis_id: string; initiative_id: string; extract_version_id: string; status: RunStatus; spec: Spec; spec_hash: string;
+    extract_sha256: string; exploratory: boolean; seed: string | null; engine_version: string | null; sha256: string;
+  }>(
+    `SELECT r.id, r.analysis_id, r.initiative_id, r.extract_version_id, r.status, r.spec, r.spec_hash, r.extract_sha256, r.exploratory,
+            r.seed, r.engine_version, v.sha256
+       FROM runs r JOIN extract_versions v ON v.id = r.extract_version_id WHERE r.id = :id`,
+    { replacements: { id: runId }, type: QueryTypes.SELECT, transaction },
+  );
+  if (!original) throw notFound('That run');
+  if (original.status !== 'succeeded') throw conflict('Only a run that finished with results can be re-run to verify it.');
+  const caution = cautionText();
+  const [rerun] = await sequelize.query<{ id: string }>(
+    `INSERT INTO runs (analysis_id, initiative_id, extract_version_id, status, spec, spec_hash, extract_sha256, exploratory,
+                       caution_text, caution_version, started_by, seed, verifies_run_id)
+     VALUES (:analysisId, :initiativeId, :versionId, 'queued', CAST(:spec AS jsonb), :specHash, :sha256, :exploratory, :caution,
+             :cautionVersion, :actor, :seed, :verifies)
+     RETURNING id`,
+    {
+      replacements: {
+        analysisId: original.analysis_id, initiativeId: original.initiative_id, versionId: original.extract_version_id,
+        spec: JSON.stringify(original.spec), specHash: specHash(original.spec), sha256: original.sha256, exploratory: original.exploratory,
+        caution, cautionVersion: CAUTION_VERSION, actor: actor.id, seed: original.seed, verifies: original.id,
+      },
+      type: QueryTypes.SELECT,
+      transaction,
+    },
+  );
+  await recordAudit(transaction, {
+    action: 'run.verification-started', actorId: actor.id, subjectType: 'run', subjectId: rerun.id, initiativeId: original.initiative_id,
+    clientAddress: actor.clientAddress,
+    details: {
+      verifiesRunId: original.id, extractVersionId: original.extract_version_id, extractSha256: original.sha256, specHash: original.spec_hash,
+      engineVersion: ENGINE_VERSION, originalEngineVersion: original.engine_version, seed: original.seed === null ? null : Number(original.seed),
+      cautionText: caution, cautionVersion: CAUTION_VERSION,
+    },
+  });
+  return {
+    runId: rerun.id,
+    enqueue: async () => {
+      await enqueueRun({ runId: rerun.id, startedBy: actor.id });
+    },
+  };
+}
+
+/** The re-runs that verified a run, newest first. */
+export async function listVerifications(transaction: Transaction, runId: string): Promise<RunView[]> {
+  const rows = await sequelize.query<RunRow>(
+    `SELECT ${RUN_COLUMNS}, NULL AS result, u.display_name AS starter
+       FROM runs r JOIN users u ON u.id = r.started_by WHERE r.verifies_run_id = :id ORDER BY r.queued_at DESC`,
+    { replacements: { id: runId }, type: QueryTypes.SELECT, transaction },
+  );
+  return rows.map(toRunView);
+}
+
 export interface RunView {
   id: string;
   analysisId: string;
@@ -108,6 +156,9 @@ export interface RunView {
   startedAt: string | null;
   finishedAt: string | null;
   cancelRequested: boolean;
+  /** Set on a re-run that verifies an earlier run: that run's id, and once finished, the comparison. */
+  verifiesRunId: string | null;
+  verification: Verification | null;
 }
 
 interface RunRow {
@@ -115,7 +166,7 @@ interface RunRow {
   progress: RunView['progress']; spec: Spec; spec_hash: string; extract_sha256: string; engine_version: string | null;
   seed: string | null; exploratory: boolean; caution_text: string; result: unknown; error: RunView['error'];
   started_by: string; starter: string; queued_at: Date; started_at: Date | null; finished_at: Date | null; cancel_requested: boolean;
-  heartbeat_at: Date | null;
+  heartbeat_at: Date | null; verifies_run_id: string | null; verification: Verification | null;
 }
 
 const iso = (d: Date | null) => (d ? new Date(d).toISOString() : null);
@@ -126,14 +177,14 @@ function toRunView(r: RunRow): RunView {
     progress: r.progress, spec: r.spec, specHash: r.spec_hash, extractSha256: r.extract_sha256, engineVersion: r.engine_version,
     seed: r.seed === null ? null : Number(r.seed), exploratory: r.exploratory, cautionText: r.caution_text, result: r.result,
     error: r.error, startedBy: { id: r.started_by, name: r.starter }, queuedAt: iso(r.queued_at) ?? '', startedAt: iso(r.started_at),
-    finishedAt: iso(r.finished_at), cancelRequested: r.cancel_requested,
+    finishedAt: iso(r.finished_at), cancelRequested: r.cancel_requested, verifiesRunId: r.verifies_run_id, verification: r.verification,
   };
 }
 
 /** Every column but the result, for listings and progress polling. */
 const RUN_COLUMNS = `r.id, r.analysis_id, r.initiative_id, r.extract_version_id, r.status, r.progress, r.spec, r.spec_hash,
   r.extract_sha256, r.engine_version, r.seed, r.exploratory, r.caution_text, r.error, r.started_by, r.queued_at, r.started_at,
-  r.finished_at, r.cancel_requested, r.heartbeat_at`;
+  r.finished_at, r.cancel_requested, r.heartbeat_at, r.verifies_run_id, r.verification`;
 
 /**
  * One run, or null when not visible. A run that reads as running but whose worker has
@@ -207,6 +258,31 @@ export function columnRoles(spec: Spec): Record<string, 'categorical' | 'continu
   return roles;
 }
 
+/** Compares a finished verification re-run with the run it verifies, and records the outcome. */
+async function storeVerification(transaction: Transaction, rerunId: string, originalId: string, actorId: string, rerun: RunFacts): Promise<void> {
+  const [original] = await sequelize.query<{ initiative_id: string; extract_sha256: string; spec_hash: string; engine_version: string | null; seed: string | null; result: unknown }>(
+    'SELECT initiative_id, extract_sha256, spec_hash, engine_version, seed, result FROM runs WHERE id = :id',
+    { replacements: { id: originalId }, type: QueryTypes.SELECT, transaction },
+  );
+  if (!original) return;
+  const verification = compareRuns(
+    { extractSha256: original.extract_sha256, specHash: original.spec_hash, engineVersion: original.engine_version, seed: original.seed === null ? null : Number(original.seed), result: original.result },
+    rerun,
+  );
+  await sequelize.query('UPDATE runs SET verification = CAST(:verification AS jsonb) WHERE id = :id', {
+    replacements: { id: rerunId, verification: JSON.stringify(verification) }, transaction,
+  });
+  await recordAudit(transaction, {
+    action: 'run.verified', actorId, subjectType: 'run', subjectId: originalId, initiativeId: original.initiative_id,
+    details: {
+      rerunId, reproduced: verification.reproduced, summary: verificationSentence(verification),
+      resultSha256: verification.checks.find((check) => check.name === 'result')?.original,
+      rerunResultSha256: verification.checks.find((check) => check.name === 'result')?.rerun,
+      differenceCount: verification.differenceCount,
+    },
+  });
+}
+
 const HEARTBEAT_MS = 2_000;
 const PROGRESS_WRITE_MS = 400;
 
@@ -218,9 +294,16 @@ export async function executeRun(runId: string, startedBy: string, options: { wo
   const worker = options.workerName ?? `${hostname()}:${process.pid}`;
   const claimed = await withIdentity(startedBy, async (t) => {
     // Read under the starter's identity: row-level security confirms they may still run it.
-    const [run] = await sequelize.query<{ status: RunStatus; initiative_id: string; spec: Spec; extract_version_id: string; spec_hash: string; extract_sha256: string; caution_text: string }>(
-      `SELECT status, initiative_id, spec, extract_version_id, spec_hash, extract_sha256, caution_text FROM runs
-        WHERE id = :id AND started_by = :startedBy AND initiative_id IN (SELECT app_analyst_initiative_ids()) FOR UPDATE`,
+    // Analysts execute their runs; auditors only the re-runs that verify a past run.
+    const [run] = await sequelize.query<{
+      status: RunStatus; initiative_id: string; spec: Spec; extract_version_id: string; spec_hash: string; extract_sha256: string;
+      caution_text: string; seed: string | null; verifies_run_id: string | null;
+    }>(
+      `SELECT status, initiative_id, spec, extract_version_id, spec_hash, extract_sha256, caution_text, seed, verifies_run_id FROM runs
+        WHERE id = :id AND started_by = :startedBy
+          AND (initiative_id IN (SELECT app_analyst_initiative_ids())
+               OR (verifies_run_id IS NOT NULL AND initiative_id IN (SELECT app_auditor_initiative_ids())))
+        FOR UPDATE`,
       { replacements: { id: runId, startedBy }, type: QueryTypes.SELECT, transaction: t },
     );
     if (!run || run.status !== 'queued') return null;
@@ -286,6 +369,14 @@ export async function executeRun(runId: string, startedBy: string, options: { wo
           cautionText: claimed.caution_text, seed: fields.seed ?? null, error: fields.error ?? null,
         },
       });
+      if (status === 'succeeded' && claimed.verifies_run_id) {
+        await storeVerification(t, runId, claimed.verifies_run_id, startedBy, {
+          extractSha256: claimed.extract_sha256, specHash: claimed.spec_hash, engineVersion: ENGINE_VERSION,
+          seed: fields.seed ?? (claimed.seed === null ? null : Number(claimed.seed)),
+          // Compared as stored: the same JSON round trip the original's result went through.
+          result: JSON.parse(JSON.stringify(fields.result)),
+        });
+      }
     });
     return status;
   };
