@@ -85,6 +85,18 @@ export function noContent(headers: Record<string, string> = {}): Response {
   return new Response(null, { status: 204, headers: { 'Cache-Control': 'no-store', ...headers } });
 }
 
+/** A file to save: CSV or JSON text with its name, never cached. */
+export function attachment(body: string, format: 'csv' | 'json', filename: string): Response {
+  return new Response(body, {
+    status: 200,
+    headers: {
+      'Content-Type': format === 'csv' ? 'text/csv; charset=utf-8' : 'application/json; charset=utf-8',
+      'Content-Disposition': `attachment; filename="${filename}"`,
+      'Cache-Control': 'no-store',
+    },
+  });
+}
+
 /** Parses a path parameter that must be a uuid; anything else is a 404 (ids are opaque). */
 export function uuidParam(value: string | undefined, what = 'That record'): string {
   const parsed = z.uuid().safeParse(value);

@@ -6,7 +6,7 @@ import type { Result } from '../../../../engine/boundary/schemas';
 import { authorize } from '../../../../lib/server/authorize';
 import { cautionText } from '../../../../lib/cautions';
 import { conflict, notFound } from '../../../../lib/server/errors';
-import { clientAddress, endpoint, parseQuery, requireUser, uuidParam } from '../../../../lib/server/http';
+import { attachment, clientAddress, endpoint, parseQuery, requireUser, uuidParam } from '../../../../lib/server/http';
 
 /**
  * GET /api/runs/{runId}/download?format=json|csv: the result as JSON (with its provenance
@@ -33,13 +33,5 @@ export const GET = endpoint(async (context) => {
       seed: run.seed, startedBy: run.startedBy.name, queuedAt: run.queuedAt, finishedAt: run.finishedAt, spec: run.spec, result: run.result,
     }, null, 2);
   });
-  const name = `crossgrain-run-${runId.slice(0, 8)}.${format}`;
-  return new Response(body, {
-    status: 200,
-    headers: {
-      'Content-Type': format === 'csv' ? 'text/csv; charset=utf-8' : 'application/json; charset=utf-8',
-      'Content-Disposition': `attachment; filename="${name}"`,
-      'Cache-Control': 'no-store',
-    },
-  });
+  return attachment(body, format, `crossgrain-run-${runId.slice(0, 8)}.${format}`);
 });

@@ -4,7 +4,7 @@ import { auditCsv, auditJson } from '../../../../../features/audit/auditExport';
 import { getInitiative } from '../../../../../features/initiatives/initiatives.server';
 import { authorize, requireMember } from '../../../../../lib/server/authorize';
 import { notFound } from '../../../../../lib/server/errors';
-import { clientAddress, endpoint, parseQuery, requireUser, uuidParam } from '../../../../../lib/server/http';
+import { attachment, clientAddress, endpoint, parseQuery, requireUser, uuidParam } from '../../../../../lib/server/http';
 
 /**
  * GET /api/initiatives/{initiativeId}/audit-events/export?format=csv|json (and the list's
@@ -29,12 +29,5 @@ export const GET = endpoint(async (context) => {
     return format === 'csv' ? auditCsv(meta, events) : auditJson(meta, events);
   });
   const stamp = new Date().toISOString().slice(0, 10);
-  return new Response(body, {
-    status: 200,
-    headers: {
-      'Content-Type': format === 'csv' ? 'text/csv; charset=utf-8' : 'application/json; charset=utf-8',
-      'Content-Disposition': `attachment; filename="crossgrain-audit-${initiativeId.slice(0, 8)}-${stamp}.${format}"`,
-      'Cache-Control': 'no-store',
-    },
-  });
+  return attachment(body, format, `crossgrain-audit-${initiativeId.slice(0, 8)}-${stamp}.${format}`);
 });
