@@ -55,7 +55,14 @@ try {
   await sequelize.close();
   await closeOwnerDb();
 
-  server = spawn(process.execPath, [path.join(root, 'dist/server/entry.mjs')], { cwd: root, env: { ...env, HOST: '127.0.0.1', PORT: String(appPort) }, stdio: 'ignore' });
+  // CROSSGRAIN_BENCH_CPU_PROF=DIR writes the server's CPU profile there (open it in Chrome's DevTools).
+  // The profile is written at a normal exit, so SIGTERM is turned into one.
+  const entry = path.join(root, 'dist/server/entry.mjs');
+  const profiled = process.env.CROSSGRAIN_BENCH_CPU_PROF
+    ? ['--cpu-prof', `--cpu-prof-dir=${process.env.CROSSGRAIN_BENCH_CPU_PROF}`, '--input-type=module', '-e',
+       `process.on('SIGTERM', () => process.exit(0)); await import(${JSON.stringify(entry)});`]
+    : [entry];
+  server = spawn(process.execPath, profiled, { cwd: root, env: { ...env, HOST: '127.0.0.1', PORT: String(appPort) }, stdio: 'ignore' });
   const base = `http://127.0.0.1:${appPort}`;
   for (let i = 0; i < 100; i += 1) {
     try {
@@ -93,6 +100,10 @@ try {
   console.log(`${'p95'.padEnd(8)} ${at(0.95).toFixed(1).padStart(7)} ms   target < 200 ms   ${at(0.95) < 200 ? 'met' : 'NOT MET'}`);
   console.log(`${'max'.padEnd(8)} ${latencies[latencies.length - 1].toFixed(1).padStart(7)} ms`);
 } finally {
-  server?.kill('SIGTERM');
+  if (server) {
+    const exited = new Promise((resolve) => server?.once('exit', resolve));
+    server.kill('SIGTERM');
+    await exited;
+  }
   destroyCluster(cluster);
 }

@@ -114,3 +114,34 @@ describe('initiatives under row-level security', () => {
     expect(await visibleIds(carol.id)).toEqual([]);
   });
 });
+
+describe('the one-round-trip membership read of every request', () => {
+  it('reads only the user’s memberships, and leaves no identity on the connection, even when it fails', async () => {
+    const { default: pg } = await import('pg');
+    const { loadMemberships, membershipsQuery } = await import('../../src/lib/server/session');
+    const user = await makeUser();
+    const mine = await makeInitiative();
+    await makeInitiative();
+    await addMember(mine.id, user.id, 'clinician');
+    expect((await loadMemberships(user.id)).map((m) => [m.initiativeId, m.role])).toEqual([[mine.id, 'clinician']]);
+
+    // One connection, used three times in a row as the pool would reuse it.
+    const client = new pg.Client({
+      host: env.CROSSGRAIN_DB_HOST, port: env.CROSSGRAIN_DB_PORT, database: env.CROSSGRAIN_DB_NAME,
+      user: env.CROSSGRAIN_DB_APP_USER, password: env.CROSSGRAIN_DB_APP_PASSWORD,
+    });
+    await client.connect();
+    try {
+      await client.query(membershipsQuery(user.id));
+      const after = await client.query("SELECT coalesce(current_setting('app.user_id', true), '') AS id, (SELECT count(*) FROM memberships) AS visible");
+      expect(after.rows[0]).toEqual({ id: '', visible: '0' });
+      // A failing second statement rolls the first back and leaves the connection usable.
+      await expect(client.query(membershipsQuery(user.id).replace("ORDER BY i.name", "ORDER BY i.name, 1/0"))).rejects.toMatchObject({ code: '22012' });
+      const clean = await client.query("SELECT coalesce(current_setting('app.user_id', true), '') AS id");
+      expect(clean.rows[0].id).toBe('');
+    } finally {
+      await client.end();
+    }
+    expect(() => membershipsQuery("x'; DROP TABLE users; --")).toThrow(/user id/);
+  });
+});

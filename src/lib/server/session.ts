@@ -14,10 +14,8 @@ import type { AstroCookies } from 'astro';
 import { Lucia, TimeSpan } from 'lucia';
 import { NodePostgresAdapter } from '@lucia-auth/adapter-postgresql';
 import pg from 'pg';
-import { QueryTypes } from 'sequelize';
 import type { Role } from '../../../db/models';
 import { env, isProduction } from './env';
-import { sequelize, withIdentity } from './db';
 
 export interface MembershipInfo {
   initiativeId: string;
@@ -112,17 +110,29 @@ export function newToken(bytes = 20): string {
   return randomBytes(bytes).toString('base64url');
 }
 
-/** The memberships (with initiative names) of one user, read under their own identity. */
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/;
+
+/**
+ * The memberships (with initiative names) of one user, read under their own identity.
+ * Every request needs them, so they take one round trip: a simple-protocol query with two
+ * statements, which PostgreSQL runs as one implicit transaction. The transaction-local
+ * identity set by the first statement therefore holds for the second and ends with it
+ * (an error rolls both back and leaves the pooled connection clean). The id is a uuid
+ * read from the session row, checked again here before it is written into the text.
+ */
 export async function loadMemberships(userId: string): Promise<MembershipInfo[]> {
-  return withIdentity(userId, (transaction) =>
-    sequelize.query<MembershipInfo>(
-      `SELECT m.initiative_id AS "initiativeId", i.name AS "initiativeName", i.slug AS "initiativeSlug", m.role
-         FROM memberships m JOIN initiatives i ON i.id = m.initiative_id
-        WHERE m.user_id = :userId AND i.archived_at IS NULL
-        ORDER BY i.name`,
-      { replacements: { userId }, type: QueryTypes.SELECT, transaction },
-    ),
-  );
+  const results = (await pool.query(membershipsQuery(userId))) as unknown as pg.QueryResult<MembershipInfo>[];
+  return results[1].rows;
+}
+
+/** The two-statement text of loadMemberships (exported for its connection-hygiene test). */
+export function membershipsQuery(userId: string): string {
+  if (!UUID.test(userId)) throw new Error('loadMemberships needs a user id');
+  return `SELECT set_config('app.user_id', '${userId}', true);
+     SELECT m.initiative_id AS "initiativeId", i.name AS "initiativeName", i.slug AS "initiativeSlug", m.role
+       FROM memberships m JOIN initiatives i ON i.id = m.initiative_id
+      WHERE m.user_id = '${userId}' AND i.archived_at IS NULL
+      ORDER BY i.name`;
 }
 
 /**
