@@ -198,8 +198,8 @@ export async function listAuditEvents(
   });
   const rows = await sequelize.query<AuditRow>(
     `SELECT ${EVENT_COLUMNS} FROM audit_events e LEFT JOIN users u ON u.id = e.actor_id
-     WHERE ${where} ORDER BY e.chain_position DESC LIMIT ${paging.pageSize} OFFSET ${(paging.page - 1) * paging.pageSize}`,
-    { bind, type: QueryTypes.SELECT, transaction },
+     WHERE ${where} ORDER BY e.chain_position DESC LIMIT $${bind.length + 1} OFFSET $${bind.length + 2}`,
+    { bind: [...bind, paging.pageSize, (paging.page - 1) * paging.pageSize], type: QueryTypes.SELECT, transaction },
   );
   return { events: rows.map(toView), total: Number(counted.total) };
 }
