@@ -15,7 +15,8 @@ export function PlotFrame({ figure, testId }: { figure: PlotFigure; testId: stri
   return (
     <figure className="card px-4 pt-4 pb-3 m-0 break-inside-avoid" data-testid={testId} aria-describedby={captionId}>
       <h3 className="text-base font-semibold px-1 mb-1">{figure.title}</h3>
-      <div role="img" aria-label={figure.title} aria-describedby={captionId}>
+      {/* Not role="img": the chart holds plotly's own buttons, and an image may not hold controls. The caption is the text alternative. */}
+      <div>
         <Plot
           data={figure.data}
           layout={{ ...figure.layout, autosize: true }}
