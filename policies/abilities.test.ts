@@ -71,6 +71,14 @@ describe('rules with conditions', () => {
     expect(ability.can('decide', subject('Run', { initiativeId: OWN, startedBy: 'someone-else' }))).toBe(true);
   });
 
+  it('lets an auditor cancel only their own verification re-runs', () => {
+    const ability = defineAbilityFor({ id: USER_ID, isAdmin: false, memberships: [{ initiativeId: OWN, role: 'auditor' }] });
+    expect(ability.can('cancel', subject('Run', { initiativeId: OWN, startedBy: USER_ID, verification: true }))).toBe(true);
+    expect(ability.can('cancel', subject('Run', { initiativeId: OWN, startedBy: 'someone-else', verification: true }))).toBe(false);
+    expect(ability.can('cancel', subject('Run', { initiativeId: OWN, startedBy: USER_ID, verification: false }))).toBe(false);
+    expect(ability.can('cancel', subject('Run', { initiativeId: OTHER, startedBy: USER_ID, verification: true }))).toBe(false);
+  });
+
   it('keeps different roles in different initiatives apart', () => {
     const ability = defineAbilityFor({
       id: USER_ID,

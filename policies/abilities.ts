@@ -30,6 +30,8 @@ export interface SubjectFields {
   readersSeeRows?: boolean;
   /** Who started a run (nobody signs off their own work). */
   startedBy?: string;
+  /** The run is a re-run that verifies an earlier run. */
+  verification?: boolean;
 }
 
 type TaggedSubject = { __caslSubjectType__: SubjectName } & SubjectFields;
@@ -71,13 +73,16 @@ function clinicianRules(can: Can, cannot: Cannot, initiativeId: string, userId: 
 }
 
 /** What an auditor may do within one initiative: read everything, verify, re-run. */
-function auditorRules(can: Can, initiativeId: string): void {
+function auditorRules(can: Can, initiativeId: string, userId: string): void {
   const scope = { initiativeId };
   can('read', ['Initiative', 'Extract', 'Analysis', 'Run', 'Comment', 'Brief', 'AuditTrail'], scope);
   const rowsAllowed: MongoQuery = { initiativeId, readersSeeRows: true };
   can('read', 'ExtractRows', rowsAllowed);
   can(['verify', 'export'], 'AuditTrail', scope);
   can(['rerun', 'export'], 'Run', scope);
+  // Their own verification re-runs are the only runs they may stop.
+  const ownVerification: MongoQuery = { initiativeId, startedBy: userId, verification: true };
+  can('cancel', 'Run', ownVerification);
   can('export', 'Brief', scope);
 }
 
@@ -88,7 +93,7 @@ export function defineAbilityFor(user: AbilityUser | null): AppAbility {
   for (const membership of user.memberships) {
     if (membership.role === 'analyst') analystRules(can, membership.initiativeId);
     else if (membership.role === 'clinician') clinicianRules(can, cannot, membership.initiativeId, user.id);
-    else if (membership.role === 'auditor') auditorRules(can, membership.initiativeId);
+    else if (membership.role === 'auditor') auditorRules(can, membership.initiativeId, user.id);
   }
   if (user.isAdmin) {
     // Administrators run the organisation's accounts; cohort data stay out of reach

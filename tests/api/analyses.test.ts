@@ -158,6 +158,17 @@ describe('runs', () => {
     expect(events[1].details).toMatchObject({ rerunId, reproduced: true });
   });
 
+  it('lets the auditor cancel their own queued re-run, and nobody else’s run', async () => {
+    const rerunId = (await (await clients.auditor.request('POST', `/api/runs/${runId}/verify`, {})).json()).runId;
+    expect((await clients.clinician.request('POST', `/api/runs/${rerunId}/cancel`, {})).status).toBe(403);
+    const cancelled = await clients.auditor.request('POST', `/api/runs/${rerunId}/cancel`, {});
+    expect(cancelled.status).toBe(200);
+    expect((await cancelled.json()).status).toBe('cancelled');
+    const queued = (await (await clients.analyst.request('POST', `/api/analyses/${analysisId}/runs`, {})).json()).runId;
+    expect((await clients.auditor.request('POST', `/api/runs/${queued}/cancel`, {})).status).toBe(403);
+    expect((await clients.analyst.request('POST', `/api/runs/${queued}/cancel`, {})).status).toBe(200);
+  });
+
   it('reports a stored result that no longer matches what the engine computes', async () => {
     const auditorId = (await (await clients.auditor.request('GET', '/api/me')).json()).id;
     // Alter one stored estimate behind the application's back, as a database owner could.

@@ -11,7 +11,7 @@ export const POST = endpoint(async (context) => {
     const run = await getRun(t, runId, { withResult: false });
     if (!run) throw notFound('That run');
     authorize(user, 'read', 'Run', { initiativeId: run.initiativeId }, { hide: true });
-    authorize(user, 'cancel', 'Run', { initiativeId: run.initiativeId });
+    authorize(user, 'cancel', 'Run', { initiativeId: run.initiativeId, startedBy: run.startedBy.id, verification: run.verifiesRunId !== null });
     return requestCancel(t, { id: user.id, clientAddress: clientAddress(context) }, runId);
   });
   return json({ status });
