@@ -30,6 +30,10 @@ export const AUDIT_ACTIONS = [
   'audit.verified',
   'audit.checkpoint-exported',
   'audit.exported',
+  'review.submitted',
+  'review.signed-off',
+  'review.sent-back',
+  'review.commented',
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number] | `${string}.${string}`;
 

@@ -12,6 +12,7 @@ import { ApiTokenView, CreateApiTokenBody, CreatedApiToken, ForgotPasswordBody, 
 import { ArchiveBody, ConfirmVersionBody, NewExtractQuery, NewVersionQuery, RowsQuery, UploadAccepted } from '../../features/extracts/extracts.schema';
 import { AnalysisBody, Created, DownloadQuery, RunAccepted } from '../../features/analyses/analysisApi.schema';
 import { AuditCheckpoint, AuditEventPage, AuditEventsQuery, AuditExportQuery, ChainReport, CheckpointQuery, VerifyBody } from '../../features/audit/audit.schema';
+import { BoardView, CommentBody, DecisionBody, ReviewView, SubmitBody } from '../../features/review/review.schema';
 import { OutboxQuery } from './outbox';
 
 export type Auth = 'none' | 'session' | 'admin';
@@ -100,6 +101,16 @@ export const OPERATIONS: Operation[] = [
     description: 'Auditors of the initiative. The re-run uses the run\'s own specification snapshot, extract version and seed; once it ends, `GET /api/runs/{runId}` of the re-run carries `verification` (each input compared, the result digests, the first differing values). Audited as `run.verification-started` and `run.verified`.' },
   { method: 'POST', path: '/api/runs/{runId}/cancel', tag: 'Analyses and runs', summary: 'Cancel a queued or running run', auth: 'session', status: 200 },
   { method: 'GET', path: '/api/runs/{runId}/download', tag: 'Analyses and runs', summary: 'The result as JSON or the tables as CSV (audited)', auth: 'session', query: DownloadQuery, status: 200 },
+
+  { method: 'GET', path: '/api/runs/{runId}/review', tag: 'Review', summary: "A run's review: its state, steps and comments", auth: 'session', response: ReviewView, status: 200,
+    description: 'Every member of the initiative. `state` is `draft`, `submitted`, `sent-back` or `signed-off` (the latest step).' },
+  { method: 'POST', path: '/api/runs/{runId}/review/submit', tag: 'Review', summary: 'Submit a finished run for review (analysts)', auth: 'session', body: SubmitBody, response: ReviewView, status: 200,
+    description: 'From `draft` or `sent-back` only (409 otherwise). Audited as `review.submitted`.' },
+  { method: 'POST', path: '/api/runs/{runId}/review/decision', tag: 'Review', summary: 'Sign a submitted run off or send it back (clinicians)', auth: 'session', body: DecisionBody, response: ReviewView, status: 200,
+    description: 'Never on a run the clinician started (403). Sending back needs a note. Audited as `review.signed-off` or `review.sent-back`.' },
+  { method: 'POST', path: '/api/runs/{runId}/comments', tag: 'Review', summary: 'Comment on a run, or reply to a comment', auth: 'session', body: CommentBody, response: Created, status: 201,
+    description: 'Analysts and clinicians of the initiative; auditors read only. Audited as `review.commented` (ids and length, not the text).' },
+  { method: 'GET', path: '/api/initiatives/{initiativeId}/board', tag: 'Review', summary: 'Every analysis under the state of its review', auth: 'session', response: BoardView, status: 200 },
 
   { method: 'POST', path: '/api/audit/verify', tag: 'Audit', summary: 'Recompute the hash chain and report the first broken link', auth: 'session', body: VerifyBody, response: ChainReport, status: 200,
     description: 'Auditors and administrators. Send `{}` to check the chain alone, or `{ "checkpoint": … }` with a file from `GET /api/audit/checkpoint` to check also that the chain still holds that head unchanged (removed newest events show only this way). The check itself is an audit event.' },

@@ -1,0 +1,71 @@
+/**
+ * The review of runs: request bodies and the shapes the API answers with. A run's review
+ * state is its latest step: `draft` (never submitted), `submitted`, `sent-back` or
+ * `signed-off`.
+ */
+import { z } from 'zod';
+
+export const REVIEW_STATES = ['draft', 'submitted', 'sent-back', 'signed-off'] as const;
+export type ReviewState = (typeof REVIEW_STATES)[number];
+
+export const REVIEW_STATE_LABEL: Record<ReviewState, string> = {
+  draft: 'Draft',
+  submitted: 'Submitted for review',
+  'sent-back': 'Sent back',
+  'signed-off': 'Signed off',
+};
+
+const note = z.string().max(4000, 'Keep the note under 4,000 characters.');
+
+export const SubmitBody = z
+  .object({ note: note.optional() })
+  .meta({ id: 'ReviewSubmitRequest' });
+
+export const DecisionBody = z
+  .object({
+    decision: z.enum(['sign-off', 'send-back'], { message: 'Choose sign-off or send-back.' }),
+    note: note.default(''),
+  })
+  .refine((body) => body.decision !== 'send-back' || body.note.trim().length > 0, {
+    path: ['note'],
+    message: 'Say what needs to change before the run can be signed off.',
+  })
+  .meta({ id: 'ReviewDecisionRequest' });
+
+export const CommentBody = z
+  .object({
+    body: z.string().trim().min(1, 'Write the comment first.').max(4000, 'Keep the comment under 4,000 characters.'),
+    /** The comment this one answers; replies to a reply join the same thread. */
+    parentId: z.uuid().optional(),
+  })
+  .meta({ id: 'RunCommentRequest' });
+
+const Person = z.object({ id: z.uuid(), name: z.string() });
+
+export const ReviewView = z
+  .object({
+    runId: z.uuid(),
+    state: z.enum(REVIEW_STATES),
+    steps: z.array(z.object({ kind: z.enum(['submitted', 'signed-off', 'sent-back']), actor: Person, note: z.string(), at: z.string() })),
+    comments: z.array(z.object({ id: z.uuid(), parentId: z.uuid().nullable(), author: Person, body: z.string(), at: z.string() })),
+  })
+  .meta({ id: 'RunReview' });
+export type ReviewView = z.infer<typeof ReviewView>;
+
+export const BoardView = z
+  .object({
+    columns: z.array(
+      z.object({
+        state: z.enum(REVIEW_STATES),
+        analyses: z.array(
+          z.object({
+            analysisId: z.uuid(), title: z.string(), question: z.string(),
+            run: z.object({ id: z.uuid(), status: z.string(), startedBy: Person, queuedAt: z.string() }).nullable(),
+            lastStep: z.object({ kind: z.string(), actor: Person, at: z.string(), note: z.string() }).nullable(),
+          }),
+        ),
+      }),
+    ),
+  })
+  .meta({ id: 'ReviewBoard' });
+export type BoardView = z.infer<typeof BoardView>;

@@ -1,0 +1,173 @@
+/**
+ * The review of runs (product brief, review step): an analyst submits a finished run, the
+ * initiative's clinicians comment on it and sign it off or send it back with a note, and
+ * the board shows every analysis by the state of its review. The steps and comments are
+ * append-only; the state machine is enforced here and, for who may record what, by the
+ * row-level security policies in policies/rls/007_review.sql.
+ */
+import { QueryTypes, type Transaction } from 'sequelize';
+import { sequelize } from '../../lib/server/db';
+import { conflict, notFound } from '../../lib/server/errors';
+import { recordAudit } from '../audit/audit.server';
+import { REVIEW_STATES, type BoardView, type ReviewState, type ReviewView } from './review.schema';
+
+export interface Reviewer {
+  id: string;
+  clientAddress: string;
+}
+
+/** The facts about a run that review needs; read under the caller's identity. */
+export interface ReviewedRun {
+  id: string;
+  initiativeId: string;
+  status: string;
+  startedBy: string;
+  verifiesRunId: string | null;
+}
+
+const iso = (value: Date) => new Date(value).toISOString();
+
+/** The review facts of a run from its view (getRun). */
+export function reviewedRun(run: { id: string; initiativeId: string; status: string; startedBy: { id: string }; verifiesRunId: string | null }): ReviewedRun {
+  return { id: run.id, initiativeId: run.initiativeId, status: run.status, startedBy: run.startedBy.id, verifiesRunId: run.verifiesRunId };
+}
+
+/** What may happen next from a state. */
+const NEXT: Record<ReviewState, readonly ('submitted' | 'signed-off' | 'sent-back')[]> = {
+  draft: ['submitted'],
+  'sent-back': ['submitted'],
+  submitted: ['signed-off', 'sent-back'],
+  'signed-off': [],
+};
+
+async function stateOf(transaction: Transaction, runId: string): Promise<ReviewState> {
+  const [latest] = await sequelize.query<{ kind: ReviewState }>(
+    'SELECT kind FROM review_steps WHERE run_id = :runId ORDER BY id DESC LIMIT 1',
+    { replacements: { runId }, type: QueryTypes.SELECT, transaction },
+  );
+  return latest?.kind ?? 'draft';
+}
+
+/** A run's review: its state, every step and every comment, oldest first. */
+export async function reviewOf(transaction: Transaction, runId: string): Promise<ReviewView> {
+  const steps = await sequelize.query<{ kind: 'submitted' | 'signed-off' | 'sent-back'; actor_id: string; actor_name: string; note: string; created_at: Date }>(
+    `SELECT s.kind, s.actor_id, u.display_name AS actor_name, s.note, s.created_at
+       FROM review_steps s JOIN users u ON u.id = s.actor_id WHERE s.run_id = :runId ORDER BY s.id`,
+    { replacements: { runId }, type: QueryTypes.SELECT, transaction },
+  );
+  const comments = await sequelize.query<{ id: string; parent_id: string | null; author_id: string; author_name: string; body: string; created_at: Date }>(
+    `SELECT c.id, c.parent_id, c.author_id, u.display_name AS author_name, c.body, c.created_at
+       FROM run_comments c JOIN users u ON u.id = c.author_id WHERE c.run_id = :runId ORDER BY c.created_at, c.id`,
+    { replacements: { runId }, type: QueryTypes.SELECT, transaction },
+  );
+  return {
+    runId,
+    state: steps.at(-1)?.kind ?? 'draft',
+    steps: steps.map((s) => ({ kind: s.kind, actor: { id: s.actor_id, name: s.actor_name }, note: s.note, at: iso(s.created_at) })),
+    comments: comments.map((c) => ({ id: c.id, parentId: c.parent_id, author: { id: c.author_id, name: c.author_name }, body: c.body, at: iso(c.created_at) })),
+  };
+}
+
+async function addStep(
+  transaction: Transaction, reviewer: Reviewer, run: ReviewedRun, kind: 'submitted' | 'signed-off' | 'sent-back', note: string,
+): Promise<ReviewState> {
+  if (run.status !== 'succeeded') throw conflict('Only a run that finished with results can be reviewed.');
+  if (run.verifiesRunId) throw conflict('A re-run that verifies another run is not reviewed itself; review the run it verifies.');
+  // Serialise steps on one run, so two reviewers cannot both act on the same state.
+  await sequelize.query('SELECT pg_advisory_xact_lock(hashtext(:key))', { replacements: { key: `review:${run.id}` }, transaction });
+  const state = await stateOf(transaction, run.id);
+  if (!NEXT[state].includes(kind)) {
+    const said = { submitted: 'submitted', 'signed-off': 'signed off', 'sent-back': 'sent back' }[kind];
+    throw conflict(`This run is ${state === 'draft' ? 'not submitted yet' : state === 'sent-back' ? 'sent back' : state === 'submitted' ? 'waiting for a decision' : 'signed off'}, so it cannot be ${said} now.`);
+  }
+  await sequelize.query(
+    'INSERT INTO review_steps (run_id, initiative_id, kind, actor_id, note) VALUES (:runId, :initiativeId, :kind, :actor, :note)',
+    { replacements: { runId: run.id, initiativeId: run.initiativeId, kind, actor: reviewer.id, note: note.trim() }, transaction },
+  );
+  await recordAudit(transaction, {
+    action: `review.${kind}`, actorId: reviewer.id, subjectType: 'run', subjectId: run.id, initiativeId: run.initiativeId,
+    clientAddress: reviewer.clientAddress, details: { from: state, to: kind, noteLength: note.trim().length },
+  });
+  return kind;
+}
+
+/** An analyst submits a finished run for review (first time, or again after it was sent back). */
+export function submitForReview(transaction: Transaction, reviewer: Reviewer, run: ReviewedRun, note = ''): Promise<ReviewState> {
+  return addStep(transaction, reviewer, run, 'submitted', note);
+}
+
+/** A clinician signs a submitted run off, or sends it back with a note saying why. */
+export function decideReview(
+  transaction: Transaction, reviewer: Reviewer, run: ReviewedRun, decision: 'sign-off' | 'send-back', note: string,
+): Promise<ReviewState> {
+  return addStep(transaction, reviewer, run, decision === 'sign-off' ? 'signed-off' : 'sent-back', note);
+}
+
+/** Adds a comment to a run; a reply to a reply joins its thread (threads are one level deep). */
+export async function addComment(transaction: Transaction, author: Reviewer, run: ReviewedRun, body: string, parentId?: string): Promise<string> {
+  let threadId: string | null = null;
+  if (parentId) {
+    const [parent] = await sequelize.query<{ id: string; parent_id: string | null }>(
+      'SELECT id, parent_id FROM run_comments WHERE id = :id AND run_id = :runId',
+      { replacements: { id: parentId, runId: run.id }, type: QueryTypes.SELECT, transaction },
+    );
+    if (!parent) throw notFound('That comment');
+    threadId = parent.parent_id ?? parent.id;
+  }
+  const [created] = await sequelize.query<{ id: string }>(
+    `INSERT INTO run_comments (run_id, initiative_id, parent_id, author_id, body)
+     VALUES (:runId, :initiativeId, :parentId, :author, :body) RETURNING id`,
+    { replacements: { runId: run.id, initiativeId: run.initiativeId, parentId: threadId, author: author.id, body: body.trim() }, type: QueryTypes.SELECT, transaction },
+  );
+  await recordAudit(transaction, {
+    action: 'review.commented', actorId: author.id, subjectType: 'run', subjectId: run.id, initiativeId: run.initiativeId,
+    clientAddress: author.clientAddress, details: { commentId: created.id, inReplyTo: threadId, length: body.trim().length },
+  });
+  return created.id;
+}
+
+/**
+ * The initiative's board: every analysis under the state of its review. An analysis is
+ * placed by its most recently reviewed run; one with no reviewed run is a draft, shown
+ * with its latest finished run (or none yet).
+ */
+export async function boardOf(transaction: Transaction, initiativeId: string): Promise<BoardView> {
+  const rows = await sequelize.query<{
+    id: string; title: string; question: string; run_id: string | null; kind: ReviewState | null; actor_id: string | null;
+    actor_name: string | null; note: string | null; step_at: Date | null; status: string | null; started_by: string | null;
+    starter: string | null; queued_at: Date | null;
+  }>(
+    `WITH latest_step AS (
+       SELECT DISTINCT ON (s.run_id) s.run_id, s.id, s.kind, s.actor_id, s.note, s.created_at
+         FROM review_steps s WHERE s.initiative_id = :initiativeId ORDER BY s.run_id, s.id DESC
+     ), reviewed AS (
+       SELECT DISTINCT ON (r.analysis_id) r.analysis_id, r.id AS run_id, ls.kind, ls.actor_id, ls.note, ls.created_at
+         FROM runs r JOIN latest_step ls ON ls.run_id = r.id ORDER BY r.analysis_id, ls.id DESC
+     ), latest_run AS (
+       SELECT DISTINCT ON (r.analysis_id) r.analysis_id, r.id AS run_id
+         FROM runs r WHERE r.initiative_id = :initiativeId AND r.verifies_run_id IS NULL AND r.status = 'succeeded'
+        ORDER BY r.analysis_id, r.queued_at DESC
+     )
+     SELECT a.id, a.title, a.question, coalesce(rv.run_id, lr.run_id) AS run_id, rv.kind, rv.actor_id, au.display_name AS actor_name,
+            rv.note, rv.created_at AS step_at, r.status, r.started_by, su.display_name AS starter, r.queued_at
+       FROM analyses a
+       LEFT JOIN reviewed rv ON rv.analysis_id = a.id
+       LEFT JOIN latest_run lr ON lr.analysis_id = a.id
+       LEFT JOIN runs r ON r.id = coalesce(rv.run_id, lr.run_id)
+       LEFT JOIN users su ON su.id = r.started_by
+       LEFT JOIN users au ON au.id = rv.actor_id
+      WHERE a.initiative_id = :initiativeId
+      ORDER BY coalesce(rv.created_at, r.queued_at, a.updated_at) DESC`,
+    { replacements: { initiativeId }, type: QueryTypes.SELECT, transaction },
+  );
+  const columns = REVIEW_STATES.map((state) => ({ state, analyses: [] as BoardView['columns'][number]['analyses'] }));
+  for (const row of rows) {
+    const state = row.kind ?? 'draft';
+    columns.find((column) => column.state === state)!.analyses.push({
+      analysisId: row.id, title: row.title, question: row.question,
+      run: row.run_id && row.started_by ? { id: row.run_id, status: row.status ?? '', startedBy: { id: row.started_by, name: row.starter ?? '' }, queuedAt: iso(row.queued_at!) } : null,
+      lastStep: row.kind && row.actor_id && row.step_at ? { kind: row.kind, actor: { id: row.actor_id, name: row.actor_name ?? '' }, at: iso(row.step_at), note: row.note ?? '' } : null,
+    });
+  }
+  return { columns };
+}
