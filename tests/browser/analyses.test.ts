@@ -122,6 +122,47 @@ describe('an analysis by age band', () => {
   });
 });
 
+describe('the review of the age-band run', () => {
+  it('is submitted by the analyst, commented on and signed off by the clinician, and shown on the board', async () => {
+    expect(runUrl).not.toBe('');
+    const analyst = await harness.newPage();
+    await signInThroughPage(analyst.page, demoEmail('analyst'), DEMO_PASSWORD);
+    await analyst.page.goto(runUrl);
+    await analyst.page.locator('#review-heading').scrollIntoViewIfNeeded();
+    await waitForHydrated(analyst.page, 'review-panel');
+    await analyst.page.getByLabel('Note for the reviewers (optional)').fill('Ready for a clinical read.');
+    await analyst.page.getByRole('button', { name: 'Submit for review' }).click();
+    await analyst.page.locator('[data-testid="review-panel"][data-state="submitted"]').waitFor();
+    expect(analyst.consoleErrors).toEqual([]);
+    await analyst.context.close();
+
+    const clinician = await harness.newPage();
+    await signInThroughPage(clinician.page, demoEmail('clinician'), DEMO_PASSWORD);
+    await clinician.page.getByRole('navigation', { name: 'Initiatives' }).getByRole('link', { name: /Call-back within 72 hours/ }).click();
+    await clinician.page.getByRole('navigation', { name: 'Initiative sections' }).getByRole('link', { name: 'Review board' }).click();
+    await clinician.page.getByTestId('board-submitted').getByRole('link', { name: 'Call-back effect by age band' }).click();
+    await clinician.page.locator('#review-heading').scrollIntoViewIfNeeded();
+    await waitForHydrated(clinician.page, 'review-panel');
+    await clinician.page.getByLabel('Add a comment').fill('The 80+ estimate is the one the ward will ask about.');
+    await clinician.page.getByRole('button', { name: 'Add comment' }).click();
+    await clinician.page.getByTestId('comment-threads').getByText('The 80+ estimate is the one the ward will ask about.').waitFor();
+    // Sending back without a note is refused next to the field, and nothing is recorded.
+    await clinician.page.getByRole('button', { name: 'Send back' }).click();
+    await clinician.page.locator('#review-note-error').getByText('Say what needs to change').waitFor();
+    await expect(clinician.page.getByTestId('review-panel').getAttribute('data-state')).resolves.toBe('submitted');
+    await clinician.page.getByRole('button', { name: 'Sign off' }).click();
+    await clinician.page.locator('[data-testid="review-panel"][data-state="signed-off"]').waitFor();
+    await saveScreenshot(clinician.page, 'run-review');
+    await clinician.page.goto(clinician.page.url().replace(/\/runs\/.*$/, '/'));
+    await clinician.page.getByRole('navigation', { name: 'Initiatives' }).getByRole('link', { name: /Call-back within 72 hours/ }).click();
+    await clinician.page.getByRole('navigation', { name: 'Initiative sections' }).getByRole('link', { name: 'Review board' }).click();
+    await expect(clinician.page.getByTestId('board-signed-off').textContent()).resolves.toContain('Call-back effect by age band');
+    await saveScreenshot(clinician.page, 'review-board');
+    expect(clinician.consoleErrors).toEqual([]);
+    await clinician.context.close();
+  });
+});
+
 describe('an analysis with a continuous modifier', () => {
   it('shows the significance band plot with its boundaries', async () => {
     const { page, context, consoleErrors } = await harness.newPage();
