@@ -107,7 +107,13 @@ describe('the review of a run', () => {
     expect((await clients.outsider.request('GET', `/api/initiatives/${initiativeId}/board`)).status).toBe(404);
     const page = await clients.clinician.request('GET', `/initiatives/${initiativeId}/board`);
     expect(page.status).toBe(200);
-    expect(await page.text()).toContain('Call-back by age band');
+    const html = await page.text();
+    expect(html).toContain('Call-back by age band');
+    expect(html).not.toContain('No analyses yet.');
+    // An initiative without analyses says so instead of showing four empty columns' worth of nothing.
+    const me = await (await clients.outsider.request('GET', '/api/me')).json();
+    const empty = await clients.outsider.request('GET', `/initiatives/${me.memberships[0].initiativeId}/board`);
+    expect(await empty.text()).toContain('No analyses yet.');
   });
 });
 
