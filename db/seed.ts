@@ -5,6 +5,7 @@ import { env } from '../src/lib/server/env';
 import { hashPassword } from '../src/lib/server/passwords';
 import { createSequelize } from './connection';
 import { sequelize as appSequelize } from '../src/lib/server/db';
+import { seedDemoAnalyses } from './seeds/demoAnalyses';
 import { seedDemoExtracts } from './seeds/demoExtracts';
 import { DEMO_INITIATIVES, DEMO_ORGANISATION, DEMO_PASSWORD, DEMO_USERS, demoEmail } from './seeds/demo';
 
@@ -62,7 +63,12 @@ if (process.argv[1] && fileURLToPath(import.meta.url) === path.resolve(process.a
   seedDemo(sequelize)
     .then(async ({ created }) => {
       const extracts = await seedDemoExtracts();
-      console.log(created || extracts ? `Demo data loaded (${extracts} synthetic extracts).` : 'Demo data already present.');
+      const analyses = await seedDemoAnalyses();
+      console.log(
+        created || extracts || analyses
+          ? `Demo data loaded (${extracts} synthetic extracts, ${analyses} demo analyses run).`
+          : 'Demo data already present.',
+      );
     })
     .catch((error: unknown) => {
       console.error(error instanceof Error ? error.message : error);
