@@ -4,7 +4,7 @@
  * the job worker uses, and the call-back run submitted for review, so the demo clinician
  * finds it waiting on the review board. Everything is done as the demo analyst, through
  * the product's own functions (row-level security and the audit trail apply). Idempotent:
- * an initiative that already has analyses is left alone. `npm start` calls it; the test
+ * a demo analysis that exists (by its title, in its initiative) is left alone. `npm start` calls it; the test
  * suite does not (its tests create their own analyses).
  */
 import { QueryTypes } from 'sequelize';
@@ -74,10 +74,10 @@ export async function seedDemoAnalyses(): Promise<number> {
   for (const demo of DEMO_ANALYSES) {
     const queued = await withIdentity(user.id, async (t) => {
       const [initiative] = await sequelize.query<{ id: string; analyses: string; version_id: string | null }>(
-        `SELECT i.id, (SELECT count(*) FROM analyses a WHERE a.initiative_id = i.id) AS analyses,
+        `SELECT i.id, (SELECT count(*) FROM analyses a WHERE a.initiative_id = i.id AND a.title = :title) AS analyses,
                 (SELECT v.id FROM extract_versions v WHERE v.initiative_id = i.id AND v.status = 'ready' ORDER BY v.confirmed_at LIMIT 1) AS version_id
            FROM initiatives i WHERE i.slug = :slug`,
-        { replacements: { slug: demo.initiativeSlug }, type: QueryTypes.SELECT, transaction: t },
+        { replacements: { slug: demo.initiativeSlug, title: demo.title }, type: QueryTypes.SELECT, transaction: t },
       );
       if (!initiative || Number(initiative.analyses) > 0 || !initiative.version_id) return null;
       const { id } = await createAnalysis(t, actor, {
