@@ -99,6 +99,12 @@ describe('the review of a run', () => {
     ]);
   });
 
+  it('shows the state with the run, in its history and on its page', async () => {
+    expect((await (await clients.clinician.request('GET', `/api/runs/${runId}?fields=status`)).json()).reviewState).toBe('signed-off');
+    expect(await (await clients.auditor.request('GET', `/analyses/${analysisId}`)).text()).toContain('Signed off');
+    expect(await (await clients.auditor.request('GET', `/runs/${runId}`)).text()).toMatch(/data-testid="review-state-top"[^>]*>Signed off</);
+  });
+
   it('places the analysis on the board by its review', async () => {
     const board = await (await clients.clinician.request('GET', `/api/initiatives/${initiativeId}/board`)).json();
     const column = (state: string) => board.columns.find((c: { state: string }) => c.state === state).analyses.map((a: { analysisId: string }) => a.analysisId);

@@ -128,6 +128,7 @@ describe('the review of the age-band run', () => {
     const analyst = await harness.newPage();
     await signInThroughPage(analyst.page, demoEmail('analyst'), DEMO_PASSWORD);
     await analyst.page.goto(runUrl);
+    await analyst.page.getByTestId('plot-profile').locator('.main-svg').first().waitFor();
     await analyst.page.locator('#review-heading').scrollIntoViewIfNeeded();
     await waitForHydrated(analyst.page, 'review-panel');
     await analyst.page.getByLabel('Note for the reviewers (optional)').fill('Ready for a clinical read.');
@@ -141,6 +142,7 @@ describe('the review of the age-band run', () => {
     await clinician.page.getByRole('navigation', { name: 'Initiatives' }).getByRole('link', { name: /Call-back within 72 hours/ }).click();
     await clinician.page.getByRole('navigation', { name: 'Initiative sections' }).getByRole('link', { name: 'Review board' }).click();
     await clinician.page.getByTestId('board-submitted').getByRole('link', { name: 'Call-back effect by age band' }).click();
+    await clinician.page.getByTestId('plot-profile').locator('.main-svg').first().waitFor();
     await clinician.page.locator('#review-heading').scrollIntoViewIfNeeded();
     await waitForHydrated(clinician.page, 'review-panel');
     await clinician.page.getByLabel('Add a comment').fill('The 80+ estimate is the one the ward will ask about.');

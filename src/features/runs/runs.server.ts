@@ -18,6 +18,7 @@ import { enqueueRun } from '../../lib/server/queue';
 import { recordAudit } from '../audit/audit.server';
 import { loadColumns, toEngineData } from '../extracts/extracts.server';
 import { specHash } from './canonical';
+import type { ReviewState } from '../review/review.schema';
 import { compareRuns, verificationSentence, type RunFacts, type Verification } from './runVerification';
 
 export type RunStatus = 'queued' | 'running' | 'succeeded' | 'failed' | 'cancelled';
@@ -159,6 +160,8 @@ export interface RunView {
   /** Set on a re-run that verifies an earlier run: that run's id, and once finished, the comparison. */
   verifiesRunId: string | null;
   verification: Verification | null;
+  /** draft, submitted, sent-back or signed-off (its latest review step). */
+  reviewState: ReviewState;
 }
 
 interface RunRow {
@@ -166,7 +169,7 @@ interface RunRow {
   progress: RunView['progress']; spec: Spec; spec_hash: string; extract_sha256: string; engine_version: string | null;
   seed: string | null; exploratory: boolean; caution_text: string; result: unknown; error: RunView['error'];
   started_by: string; starter: string; queued_at: Date; started_at: Date | null; finished_at: Date | null; cancel_requested: boolean;
-  heartbeat_at: Date | null; verifies_run_id: string | null; verification: Verification | null;
+  heartbeat_at: Date | null; verifies_run_id: string | null; verification: Verification | null; review_state: ReviewState;
 }
 
 const iso = (d: Date | null) => (d ? new Date(d).toISOString() : null);
@@ -178,20 +181,24 @@ function toRunView(r: RunRow): RunView {
     seed: r.seed === null ? null : Number(r.seed), exploratory: r.exploratory, cautionText: r.caution_text, result: r.result,
     error: r.error, startedBy: { id: r.started_by, name: r.starter }, queuedAt: iso(r.queued_at) ?? '', startedAt: iso(r.started_at),
     finishedAt: iso(r.finished_at), cancelRequested: r.cancel_requested, verifiesRunId: r.verifies_run_id, verification: r.verification,
+    reviewState: r.review_state,
   };
 }
+
+/** The run's review state: its latest review step, or draft (src/features/review). */
+const REVIEW_STATE_COLUMN = `coalesce((SELECT s.kind FROM review_steps s WHERE s.run_id = r.id ORDER BY s.id DESC LIMIT 1), 'draft') AS review_state`;
 
 /** Every column but the result, for listings and progress polling. */
 const RUN_COLUMNS = `r.id, r.analysis_id, r.initiative_id, r.extract_version_id, r.status, r.progress, r.spec, r.spec_hash,
   r.extract_sha256, r.engine_version, r.seed, r.exploratory, r.caution_text, r.error, r.started_by, r.queued_at, r.started_at,
-  r.finished_at, r.cancel_requested, r.heartbeat_at, r.verifies_run_id, r.verification`;
+  r.finished_at, r.cancel_requested, r.heartbeat_at, r.verifies_run_id, r.verification, ${REVIEW_STATE_COLUMN}`;
 
 /**
  * One run, or null when not visible. A run that reads as running but whose worker has
  * stopped reporting is swept (marked failed) first, so none reads as running forever.
  */
 export async function getRun(transaction: Transaction, runId: string, options: { withResult?: boolean } = {}): Promise<RunView | null> {
-  const columns = options.withResult === false ? `${RUN_COLUMNS}, NULL AS result` : 'r.*';
+  const columns = options.withResult === false ? `${RUN_COLUMNS}, NULL AS result` : `r.*, ${REVIEW_STATE_COLUMN}`;
   const select = `SELECT ${columns}, u.display_name AS starter FROM runs r JOIN users u ON u.id = r.started_by`;
   const read = async () =>
     (await sequelize.query<RunRow>(`${select} WHERE r.id = :id`, { replacements: { id: runId }, type: QueryTypes.SELECT, transaction }))[0];
