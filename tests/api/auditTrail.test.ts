@@ -138,3 +138,34 @@ describe('exporting the trail', () => {
     expect(body.events.every((e: { hash: string; prevHash: string }) => /^[0-9a-f]{64}$/.test(e.hash) && /^[0-9a-f]{64}$/.test(e.prevHash))).toBe(true);
   });
 });
+
+describe('the trail outside initiatives (administrators)', () => {
+  it('lists and exports sign-ins and account events for administrators only', async () => {
+    const admin = await makeUser({ passwordHash: await hashPassword(password), isAdmin: true });
+    const client = new ApiClient();
+    expect((await client.signIn(admin.email, password)).status).toBe(204);
+    const mine = await (await client.request('GET', `/api/admin/audit-events?action=auth.sign-in&actor=${admin.id}`)).json();
+    expect(mine.total).toBe(1);
+    expect(mine.events[0]).toMatchObject({ action: 'auth.sign-in', actor: { id: admin.id } });
+    const auth = await (await client.request('GET', '/api/admin/audit-events?action=auth&pageSize=200')).json();
+    expect(auth.events.length).toBeGreaterThan(0);
+    expect(auth.events.every((e: { action: string }) => e.action.startsWith('auth.'))).toBe(true);
+    // Nothing from inside an initiative appears here.
+    expect((await (await client.request('GET', '/api/admin/audit-events?action=run')).json()).total).toBe(0);
+
+    expect((await clients.auditor.request('GET', '/api/admin/audit-events')).status).toBe(403);
+    expect((await clients.auditor.request('GET', '/admin/audit')).status).toBe(404);
+    const page = await client.request('GET', '/admin/audit?action=auth');
+    expect(page.status).toBe(200);
+    expect(await page.text()).toContain('Account events');
+
+    const csv = parse(await (await client.request('GET', `/api/admin/audit-events/export?format=csv&actor=${admin.id}`)).text(), { relax_column_count: false }) as string[][];
+    expect(csv[0]).toEqual(['Caution', STANDING_CAUTION, ...Array(10).fill('')]);
+    const header = csv.findIndex((r) => r[0] === 'position');
+    expect(csv.slice(header + 1).map((r) => r[5])).toContain('auth.sign-in');
+    const [exported] = await ownerDb().query<{ details: Record<string, unknown> }>(
+      "SELECT details FROM audit_events WHERE action = 'audit.exported' AND actor_id = :id", { replacements: { id: admin.id }, type: QueryTypes.SELECT },
+    );
+    expect(exported.details).toMatchObject({ scope: 'outside initiatives', format: 'csv' });
+  });
+});

@@ -122,7 +122,7 @@ describe('WCAG 2.1 A and AA (axe-core), serious and critical rules', () => {
     await admin.page.goto('/admin/users');
     await admin.page.getByRole('table').first().waitFor();
     expect(await seriousViolations(admin.page), 'people').toEqual([]);
-    for (const path of ['/admin/initiatives', '/admin/outbox']) {
+    for (const path of ['/admin/initiatives', '/admin/outbox', '/admin/audit']) {
       await admin.page.goto(path);
       expect(await seriousViolations(admin.page), path).toEqual([]);
     }

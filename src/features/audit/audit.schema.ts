@@ -77,6 +77,9 @@ export type ChainReport = z.infer<typeof ChainReport>;
 /** The areas an auditor filters the trail by (the part of the action before the dot). */
 export const AUDIT_AREAS = ['extract', 'analysis', 'run', 'review', 'membership', 'audit'] as const;
 
+/** The areas of the events outside any initiative, which administrators read. */
+export const ACCOUNT_AUDIT_AREAS = ['auth', 'user', 'token', 'audit'] as const;
+
 const dateOnly = z.iso.date({ message: 'Use a date as YYYY-MM-DD.' });
 const isoDay = /^\d{4}-\d{2}-\d{2}$/;
 

@@ -146,10 +146,22 @@ interface AuditRow {
   details: Record<string, unknown>; prev_hash: string; hash: string;
 }
 
-/** The WHERE clause and bind values for one initiative's events under a filter. */
-function filterSql(initiativeId: string, filter: AuditEventsFilter): { where: string; bind: unknown[] } {
-  const bind: unknown[] = [initiativeId];
-  const clauses = ['e.initiative_id = $1'];
+/**
+ * Whose events: one initiative's (its auditors read them), or those outside any initiative
+ * (sign-ins, invitations, account changes; administrators read them).
+ */
+export type AuditScope = { initiativeId: string } | { outsideInitiatives: true };
+
+/** The WHERE clause and bind values for a scope's events under a filter. */
+function filterSql(scope: AuditScope, filter: AuditEventsFilter): { where: string; bind: unknown[] } {
+  const bind: unknown[] = [];
+  const clauses: string[] = [];
+  if ('initiativeId' in scope) {
+    bind.push(scope.initiativeId);
+    clauses.push('e.initiative_id = $1');
+  } else {
+    clauses.push('e.initiative_id IS NULL');
+  }
   if (filter.action) {
     bind.push(filter.action, `${filter.action}.%`);
     clauses.push(`(e.action = $${bind.length - 1} OR e.action LIKE $${bind.length})`);
@@ -192,11 +204,11 @@ function toView(row: AuditRow): AuditEventView {
   };
 }
 
-/** One page of an initiative's events, newest first, and how many match in all. */
+/** One page of a scope's events, newest first, and how many match in all. */
 export async function listAuditEvents(
-  transaction: Transaction, initiativeId: string, filter: AuditEventsFilter, paging: { page: number; pageSize: number },
+  transaction: Transaction, scope: AuditScope, filter: AuditEventsFilter, paging: { page: number; pageSize: number },
 ): Promise<{ events: AuditEventView[]; total: number }> {
-  const { where, bind } = filterSql(initiativeId, filter);
+  const { where, bind } = filterSql(scope, filter);
   const [counted] = await sequelize.query<{ total: string }>(`SELECT count(*) AS total FROM audit_events e WHERE ${where}`, {
     bind, type: QueryTypes.SELECT, transaction,
   });
@@ -209,8 +221,8 @@ export async function listAuditEvents(
 }
 
 /** Every matching event, oldest first (chain order), for an export. */
-export async function exportAuditEvents(transaction: Transaction, initiativeId: string, filter: AuditEventsFilter): Promise<AuditEventView[]> {
-  const { where, bind } = filterSql(initiativeId, filter);
+export async function exportAuditEvents(transaction: Transaction, scope: AuditScope, filter: AuditEventsFilter): Promise<AuditEventView[]> {
+  const { where, bind } = filterSql(scope, filter);
   const rows = await sequelize.query<AuditRow>(
     `SELECT ${EVENT_COLUMNS} FROM audit_events e LEFT JOIN users u ON u.id = e.actor_id WHERE ${where} ORDER BY e.chain_position`,
     { bind, type: QueryTypes.SELECT, transaction },
@@ -218,11 +230,11 @@ export async function exportAuditEvents(transaction: Transaction, initiativeId: 
   return rows.map(toView);
 }
 
-/** The people who appear in an initiative's trail, for the actor filter. */
-export async function auditActors(transaction: Transaction, initiativeId: string): Promise<{ id: string; name: string }[]> {
+/** The people who appear in a scope's trail, for the actor filter. */
+export async function auditActors(transaction: Transaction, scope: AuditScope): Promise<{ id: string; name: string }[]> {
+  const { where, bind } = filterSql(scope, {});
   return sequelize.query<{ id: string; name: string }>(
-    `SELECT DISTINCT u.id, u.display_name AS name FROM audit_events e JOIN users u ON u.id = e.actor_id
-     WHERE e.initiative_id = $1 ORDER BY name`,
-    { bind: [initiativeId], type: QueryTypes.SELECT, transaction },
+    `SELECT DISTINCT u.id, u.display_name AS name FROM audit_events e JOIN users u ON u.id = e.actor_id WHERE ${where} ORDER BY name`,
+    { bind, type: QueryTypes.SELECT, transaction },
   );
 }

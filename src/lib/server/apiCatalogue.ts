@@ -114,6 +114,8 @@ export const OPERATIONS: Operation[] = [
 
   { method: 'POST', path: '/api/audit/verify', tag: 'Audit', summary: 'Recompute the hash chain and report the first broken link', auth: 'session', body: VerifyBody, response: ChainReport, status: 200,
     description: 'Auditors and administrators. Send `{}` to check the chain alone, or `{ "checkpoint": … }` with a file from `GET /api/audit/checkpoint` to check also that the chain still holds that head unchanged (removed newest events show only this way). The check itself is an audit event.' },
+  { method: 'GET', path: '/api/admin/audit-events', tag: 'Audit', summary: 'One page of the events outside any initiative (sign-ins, accounts, tokens)', auth: 'admin', query: AuditEventsQuery, response: AuditEventPage, status: 200 },
+  { method: 'GET', path: '/api/admin/audit-events/export', tag: 'Audit', summary: 'Those events as CSV or JSON, caution first (audited)', auth: 'admin', query: AuditExportQuery, status: 200 },
   { method: 'GET', path: '/api/initiatives/{initiativeId}/audit-events', tag: 'Audit', summary: "One page of the initiative's audit trail, newest first", auth: 'session', query: AuditEventsQuery, response: AuditEventPage, status: 200,
     description: 'Auditors of the initiative. `action` takes an area (`run`) or one action (`run.finished`); `from` and `to` are UTC dates, both included.' },
   { method: 'GET', path: '/api/initiatives/{initiativeId}/audit-events/export', tag: 'Audit', summary: 'Every matching event as CSV or JSON, caution first (audited)', auth: 'session', query: AuditExportQuery, status: 200,

@@ -13,6 +13,6 @@ export const GET = endpoint(async ({ locals, params, url }) => {
   requireMember(locals.user, initiativeId);
   authorize(locals.user, 'read', 'AuditTrail', { initiativeId });
   const { page, pageSize, ...filter } = parseQuery(url, AuditEventsQuery);
-  const { events, total } = await locals.db((t) => listAuditEvents(t, initiativeId, filter, { page, pageSize }));
+  const { events, total } = await locals.db((t) => listAuditEvents(t, { initiativeId }, filter, { page, pageSize }));
   return json({ events, total, page, pageSize });
 });

@@ -20,7 +20,7 @@ export const GET = endpoint(async (context) => {
   const body = await context.locals.db(async (t) => {
     const initiative = await getInitiative(t, initiativeId);
     if (!initiative) throw notFound('That initiative');
-    const events = await exportAuditEvents(t, initiativeId, filter);
+    const events = await exportAuditEvents(t, { initiativeId }, filter);
     await recordAudit(t, {
       action: 'audit.exported', actorId: user.id, subjectType: 'initiative', subjectId: initiativeId, initiativeId,
       clientAddress: clientAddress(context), details: { format, filter, count: events.length, lastPosition: events.at(-1)?.position ?? null },
