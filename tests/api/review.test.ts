@@ -69,6 +69,9 @@ describe('the review of a run', () => {
     const submitted = await clients.analyst.request('POST', `/api/runs/${runId}/review/submit`, { note: 'Adjusted for nothing yet: first look.' });
     expect(submitted.status).toBe(200);
     expect((await submitted.json()).state).toBe('submitted');
+    // The clinician's home page shows the queue; the analyst's does not.
+    expect(await (await clients.clinician.request('GET', '/')).text()).toContain('1 run waiting for your review');
+    expect(await (await clients.analyst.request('GET', '/')).text()).not.toContain('waiting for your review');
     expect((await clients.analyst.request('POST', `/api/runs/${runId}/review/submit`, {})).status).toBe(409);
   });
 
@@ -83,6 +86,7 @@ describe('the review of a run', () => {
     expect((await clients.analyst.request('POST', `/api/runs/${runId}/review/submit`, {})).status).toBe(200);
     const signed = await decide(clients.clinician, { decision: 'sign-off', note: 'Plausible: the gradient by age matches ward experience.' });
     expect((await signed.json()).state).toBe('signed-off');
+    expect(await (await clients.clinician.request('GET', '/')).text()).not.toContain('waiting for your review');
     expect((await clients.analyst.request('POST', `/api/runs/${runId}/review/submit`, {})).status).toBe(409);
     expect((await decide(clients.clinician, { decision: 'send-back', note: 'again' })).status).toBe(409);
 

@@ -171,3 +171,20 @@ export async function boardOf(transaction: Transaction, initiativeId: string): P
   }
   return { columns };
 }
+
+/**
+ * How many runs wait for a decision in each of the given initiatives (latest step
+ * "submitted"), leaving out runs the reader started, on which they may not decide.
+ */
+export async function waitingForReview(transaction: Transaction, initiativeIds: readonly string[], readerId: string): Promise<Map<string, number>> {
+  if (initiativeIds.length === 0) return new Map();
+  const rows = await sequelize.query<{ initiative_id: string; waiting: string }>(
+    `SELECT r.initiative_id, count(*) AS waiting
+       FROM runs r
+      WHERE r.initiative_id = ANY($1::uuid[]) AND r.started_by <> $2
+        AND (SELECT s.kind FROM review_steps s WHERE s.run_id = r.id ORDER BY s.id DESC LIMIT 1) = 'submitted'
+      GROUP BY r.initiative_id`,
+    { bind: [initiativeIds, readerId], type: QueryTypes.SELECT, transaction },
+  );
+  return new Map(rows.map((row) => [row.initiative_id, Number(row.waiting)]));
+}
