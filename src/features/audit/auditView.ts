@@ -3,7 +3,20 @@
  * for it, and its details as short "name: value" pairs (hashes cut to 12 digits, ids to 8, the
  * caution text named rather than repeated). The export carries everything in full.
  */
-import type { AuditEventView } from './audit.schema';
+import { flattenIssues } from '../../lib/server/http';
+import { AuditEventsQuery, type AuditEventView, type AuditEventsFilter } from './audit.schema';
+
+/**
+ * A trail page's query string as filter and page. The page's form sends empty fields for
+ * filters left blank, which mean "any"; bad values come back as field problems.
+ */
+export function trailQuery(url: URL): { ok: boolean; filter: AuditEventsFilter; page: number; pageSize: number; problems: { path: string; message: string }[] } {
+  const given = Object.fromEntries([...url.searchParams].filter(([, value]) => value.trim() !== ''));
+  const query = AuditEventsQuery.safeParse(given);
+  if (!query.success) return { ok: false, filter: {}, page: 1, pageSize: 50, problems: flattenIssues(query.error) };
+  const { page, pageSize, ...filter } = query.data;
+  return { ok: true, filter, page, pageSize, problems: [] };
+}
 
 const SUBJECT_PAGES: Record<string, (id: string) => string> = {
   run: (id) => `/runs/${id}`,

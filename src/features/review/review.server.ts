@@ -40,6 +40,11 @@ const NEXT: Record<ReviewState, readonly ('submitted' | 'signed-off' | 'sent-bac
   'signed-off': [],
 };
 
+const STATE_WORDS: Record<ReviewState, string> = {
+  draft: 'not submitted yet', submitted: 'waiting for a decision', 'sent-back': 'sent back', 'signed-off': 'signed off',
+};
+const STEP_WORDS = { submitted: 'submitted', 'signed-off': 'signed off', 'sent-back': 'sent back' } as const;
+
 async function stateOf(transaction: Transaction, runId: string): Promise<ReviewState> {
   const [latest] = await sequelize.query<{ kind: ReviewState }>(
     'SELECT kind FROM review_steps WHERE run_id = :runId ORDER BY id DESC LIMIT 1',
@@ -76,10 +81,7 @@ async function addStep(
   // Serialise steps on one run, so two reviewers cannot both act on the same state.
   await sequelize.query('SELECT pg_advisory_xact_lock(hashtext(:key))', { replacements: { key: `review:${run.id}` }, transaction });
   const state = await stateOf(transaction, run.id);
-  if (!NEXT[state].includes(kind)) {
-    const said = { submitted: 'submitted', 'signed-off': 'signed off', 'sent-back': 'sent back' }[kind];
-    throw conflict(`This run is ${state === 'draft' ? 'not submitted yet' : state === 'sent-back' ? 'sent back' : state === 'submitted' ? 'waiting for a decision' : 'signed off'}, so it cannot be ${said} now.`);
-  }
+  if (!NEXT[state].includes(kind)) throw conflict(`This run is ${STATE_WORDS[state]}, so it cannot be ${STEP_WORDS[kind]} now.`);
   await sequelize.query(
     'INSERT INTO review_steps (run_id, initiative_id, kind, actor_id, note) VALUES (:runId, :initiativeId, :kind, :actor, :note)',
     { replacements: { runId: run.id, initiativeId: run.initiativeId, kind, actor: reviewer.id, note: note.trim() }, transaction },

@@ -15,7 +15,7 @@ import { env } from '../../lib/server/env';
 import { conflict, notFound } from '../../lib/server/errors';
 import { logger } from '../../lib/server/logger';
 import { enqueueRun } from '../../lib/server/queue';
-import { recordAudit } from '../audit/audit.server';
+import { recordAudit, type AuditAction } from '../audit/audit.server';
 import { loadColumns, toEngineData } from '../extracts/extracts.server';
 import { specHash } from './canonical';
 import type { ReviewState } from '../review/review.schema';
@@ -34,7 +34,7 @@ export { canonicalJson, specHash } from './canonical';
  * Creates a queued run and puts it on the queue. A run is exploratory unless the
  * analysis was prespecified before the pinned extract version was uploaded.
  */
-export async function startRun(transaction: Transaction, actor: Actor, analysisId: string): Promise<{ runId: string; enqueue: () => Promise<void> }> {
+export async function startRun(transaction: Transaction, actor: Actor, analysisId: string): Promise<QueuedRun> {
   const [analysis] = await sequelize.query<{
     initiative_id: string; extract_version_id: string; spec: Spec; prespecified_at: Date | null; sha256: string; uploaded_at: Date; status: string;
   }>(
@@ -45,34 +45,10 @@ export async function startRun(transaction: Transaction, actor: Actor, analysisI
   if (!analysis) throw notFound('That analysis');
   if (analysis.status !== 'ready') throw conflict('The pinned extract version is not confirmed.');
   const exploratory = !analysis.prespecified_at || new Date(analysis.uploaded_at) > new Date(analysis.prespecified_at);
-  const hash = specHash(analysis.spec);
-  const caution = cautionText();
-  const [run] = await sequelize.query<{ id: string }>(
-    `INSERT INTO runs (analysis_id, initiative_id, extract_version_id, status, spec, spec_hash, extract_sha256, exploratory,
-                       caution_text, caution_version, started_by, seed)
-     VALUES (:analysisId, :initiativeId, :versionId, 'queued', CAST(:spec AS jsonb), :hash, :sha256, :exploratory, :caution, :cautionVersion, :actor, :seed)
-     RETURNING id`,
-    {
-      replacements: {
-        analysisId, initiativeId: analysis.initiative_id, versionId: analysis.extract_version_id, spec: JSON.stringify(analysis.spec),
-        hash, sha256: analysis.sha256, exploratory, caution, cautionVersion: CAUTION_VERSION, actor: actor.id,
-        seed: analysis.spec.ci.seed ?? (analysis.spec.ci.method === 'bootstrap' ? 1 : null),
-      },
-      type: QueryTypes.SELECT,
-      transaction,
-    },
-  );
-  await recordAudit(transaction, {
-    action: 'run.started', actorId: actor.id, subjectType: 'run', subjectId: run.id, initiativeId: analysis.initiative_id,
-    clientAddress: actor.clientAddress,
-    details: { analysisId, extractVersionId: analysis.extract_version_id, extractSha256: analysis.sha256, specHash: hash, engineVersion: ENGINE_VERSION, exploratory, cautionText: caution, cautionVersion: CAUTION_VERSION },
-  });
-  return {
-    runId: run.id,
-    enqueue: async () => {
-      await enqueueRun({ runId: run.id, startedBy: actor.id });
-    },
-  };
+  return queueRun(transaction, actor, {
+    analysisId, initiativeId: analysis.initiative_id, extractVersionId: analysis.extract_version_id, extractSha256: analysis.sha256,
+    spec: analysis.spec, exploratory, seed: analysis.spec.ci.seed ?? (analysis.spec.ci.method === 'bootstrap' ? 1 : null), verifiesRunId: null,
+  }, 'run.started', { analysisId });
 }
 
 /**
@@ -80,51 +56,67 @@ export async function startRun(transaction: Transaction, actor: Actor, analysisI
  * version and seed, started by the auditor. When it ends, the worker compares the two
  * (runVerification.ts) and stores the comparison on the re-run.
  */
-export async function startVerification(transaction: Transaction, actor: Actor, runId: string): Promise<{ runId: string; enqueue: () => Promise<void> }> {
+export async function startVerification(transaction: Transaction, actor: Actor, runId: string): Promise<QueuedRun> {
   const [original] = await sequelize.query<{
-    id: string; analysis_id: string; initiative_id: string; extract_version_id: string; status: RunStatus; spec: Spec; spec_hash: string;
-    extract_sha256: string; exploratory: boolean; seed: string | null; engine_version: string | null; sha256: string;
+    id: string; analysis_id: string; initiative_id: string; extract_version_id: string; status: RunStatus; spec: Spec;
+    exploratory: boolean; seed: string | null; engine_version: string | null; sha256: string;
   }>(
-    `SELECT r.id, r.analysis_id, r.initiative_id, r.extract_version_id, r.status, r.spec, r.spec_hash, r.extract_sha256, r.exploratory,
-            r.seed, r.engine_version, v.sha256
+    `SELECT r.id, r.analysis_id, r.initiative_id, r.extract_version_id, r.status, r.spec, r.exploratory, r.seed, r.engine_version, v.sha256
        FROM runs r JOIN extract_versions v ON v.id = r.extract_version_id WHERE r.id = :id`,
     { replacements: { id: runId }, type: QueryTypes.SELECT, transaction },
   );
   if (!original) throw notFound('That run');
   if (original.status !== 'succeeded') throw conflict('Only a run that finished with results can be re-run to verify it.');
+  return queueRun(transaction, actor, {
+    analysisId: original.analysis_id, initiativeId: original.initiative_id, extractVersionId: original.extract_version_id,
+    extractSha256: original.sha256, spec: original.spec, exploratory: original.exploratory, seed: seedOf(original.seed), verifiesRunId: original.id,
+  }, 'run.verification-started', { verifiesRunId: original.id, originalEngineVersion: original.engine_version, seed: seedOf(original.seed) });
+}
+
+export interface QueuedRun {
+  runId: string;
+  /** Puts the run on the job queue; call it after the transaction that created it commits. */
+  enqueue: () => Promise<void>;
+}
+
+interface NewRun {
+  analysisId: string; initiativeId: string; extractVersionId: string; extractSha256: string; spec: Spec; exploratory: boolean;
+  seed: number | null; verifiesRunId: string | null;
+}
+
+/** Inserts a queued run with its snapshot, hashes and caution, and records it as started. */
+async function queueRun(transaction: Transaction, actor: Actor, run: NewRun, action: AuditAction, extra: Record<string, unknown>): Promise<QueuedRun> {
+  const hash = specHash(run.spec);
   const caution = cautionText();
-  const [rerun] = await sequelize.query<{ id: string }>(
+  const [row] = await sequelize.query<{ id: string }>(
     `INSERT INTO runs (analysis_id, initiative_id, extract_version_id, status, spec, spec_hash, extract_sha256, exploratory,
                        caution_text, caution_version, started_by, seed, verifies_run_id)
-     VALUES (:analysisId, :initiativeId, :versionId, 'queued', CAST(:spec AS jsonb), :specHash, :sha256, :exploratory, :caution,
-             :cautionVersion, :actor, :seed, :verifies)
+     VALUES (:analysisId, :initiativeId, :extractVersionId, 'queued', CAST(:spec AS jsonb), :hash, :extractSha256, :exploratory,
+             :caution, :cautionVersion, :actor, :seed, :verifiesRunId)
      RETURNING id`,
     {
-      replacements: {
-        analysisId: original.analysis_id, initiativeId: original.initiative_id, versionId: original.extract_version_id,
-        spec: JSON.stringify(original.spec), specHash: specHash(original.spec), sha256: original.sha256, exploratory: original.exploratory,
-        caution, cautionVersion: CAUTION_VERSION, actor: actor.id, seed: original.seed, verifies: original.id,
-      },
+      replacements: { ...run, spec: JSON.stringify(run.spec), hash, caution, cautionVersion: CAUTION_VERSION, actor: actor.id },
       type: QueryTypes.SELECT,
       transaction,
     },
   );
   await recordAudit(transaction, {
-    action: 'run.verification-started', actorId: actor.id, subjectType: 'run', subjectId: rerun.id, initiativeId: original.initiative_id,
-    clientAddress: actor.clientAddress,
+    action, actorId: actor.id, subjectType: 'run', subjectId: row.id, initiativeId: run.initiativeId, clientAddress: actor.clientAddress,
     details: {
-      verifiesRunId: original.id, extractVersionId: original.extract_version_id, extractSha256: original.sha256, specHash: original.spec_hash,
-      engineVersion: ENGINE_VERSION, originalEngineVersion: original.engine_version, seed: original.seed === null ? null : Number(original.seed),
-      cautionText: caution, cautionVersion: CAUTION_VERSION,
+      ...extra, extractVersionId: run.extractVersionId, extractSha256: run.extractSha256, specHash: hash, engineVersion: ENGINE_VERSION,
+      exploratory: run.exploratory, cautionText: caution, cautionVersion: CAUTION_VERSION,
     },
   });
   return {
-    runId: rerun.id,
+    runId: row.id,
     enqueue: async () => {
-      await enqueueRun({ runId: rerun.id, startedBy: actor.id });
+      await enqueueRun({ runId: row.id, startedBy: actor.id });
     },
   };
 }
+
+/** A bigint seed column as a number (seeds are 32-bit). */
+const seedOf = (seed: string | null): number | null => (seed === null ? null : Number(seed));
 
 /** The re-runs that verified a run, newest first. */
 export async function listVerifications(transaction: Transaction, runId: string): Promise<RunView[]> {
@@ -178,7 +170,7 @@ function toRunView(r: RunRow): RunView {
   return {
     id: r.id, analysisId: r.analysis_id, initiativeId: r.initiative_id, extractVersionId: r.extract_version_id, status: r.status,
     progress: r.progress, spec: r.spec, specHash: r.spec_hash, extractSha256: r.extract_sha256, engineVersion: r.engine_version,
-    seed: r.seed === null ? null : Number(r.seed), exploratory: r.exploratory, cautionText: r.caution_text, result: r.result,
+    seed: seedOf(r.seed), exploratory: r.exploratory, cautionText: r.caution_text, result: r.result,
     error: r.error, startedBy: { id: r.started_by, name: r.starter }, queuedAt: iso(r.queued_at) ?? '', startedAt: iso(r.started_at),
     finishedAt: iso(r.finished_at), cancelRequested: r.cancel_requested, verifiesRunId: r.verifies_run_id, verification: r.verification,
     reviewState: r.review_state,
@@ -273,9 +265,10 @@ async function storeVerification(transaction: Transaction, rerunId: string, orig
   );
   if (!original) return;
   const verification = compareRuns(
-    { extractSha256: original.extract_sha256, specHash: original.spec_hash, engineVersion: original.engine_version, seed: original.seed === null ? null : Number(original.seed), result: original.result },
+    { extractSha256: original.extract_sha256, specHash: original.spec_hash, engineVersion: original.engine_version, seed: seedOf(original.seed), result: original.result },
     rerun,
   );
+  const resultCheck = verification.checks.find((check) => check.name === 'result');
   await sequelize.query('UPDATE runs SET verification = CAST(:verification AS jsonb) WHERE id = :id', {
     replacements: { id: rerunId, verification: JSON.stringify(verification) }, transaction,
   });
@@ -283,8 +276,7 @@ async function storeVerification(transaction: Transaction, rerunId: string, orig
     action: 'run.verified', actorId, subjectType: 'run', subjectId: originalId, initiativeId: original.initiative_id,
     details: {
       rerunId, reproduced: verification.reproduced, summary: verificationSentence(verification),
-      resultSha256: verification.checks.find((check) => check.name === 'result')?.original,
-      rerunResultSha256: verification.checks.find((check) => check.name === 'result')?.rerun,
+      resultSha256: resultCheck?.original, rerunResultSha256: resultCheck?.rerun,
       differenceCount: verification.differenceCount,
     },
   });
@@ -379,7 +371,7 @@ export async function executeRun(runId: string, startedBy: string, options: { wo
       if (status === 'succeeded' && claimed.verifies_run_id) {
         await storeVerification(t, runId, claimed.verifies_run_id, startedBy, {
           extractSha256: claimed.extract_sha256, specHash: claimed.spec_hash, engineVersion: ENGINE_VERSION,
-          seed: fields.seed ?? (claimed.seed === null ? null : Number(claimed.seed)),
+          seed: fields.seed ?? seedOf(claimed.seed),
           // Compared as stored: the same JSON round trip the original's result went through.
           result: JSON.parse(JSON.stringify(fields.result)),
         });

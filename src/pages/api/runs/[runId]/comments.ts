@@ -1,8 +1,7 @@
 import { addComment, reviewedRun } from '../../../../features/review/review.server';
 import { CommentBody } from '../../../../features/review/review.schema';
-import { getRun } from '../../../../features/runs/runs.server';
+import { readableRun } from '../../../../features/runs/runAccess';
 import { authorize } from '../../../../lib/server/authorize';
-import { notFound } from '../../../../lib/server/errors';
 import { clientAddress, endpoint, json, parseBody, requireUser, uuidParam } from '../../../../lib/server/http';
 
 /**
@@ -14,9 +13,7 @@ export const POST = endpoint(async (context) => {
   const runId = uuidParam(context.params.runId, 'That run');
   const { body, parentId } = await parseBody(context.request, CommentBody);
   const id = await context.locals.db(async (t) => {
-    const run = await getRun(t, runId, { withResult: false });
-    if (!run) throw notFound('That run');
-    authorize(user, 'read', 'Run', { initiativeId: run.initiativeId }, { hide: true });
+    const run = await readableRun(t, user, runId);
     authorize(user, 'comment', 'Run', { initiativeId: run.initiativeId });
     return addComment(t, { id: user.id, clientAddress: clientAddress(context) }, reviewedRun(run), body, parentId);
   });

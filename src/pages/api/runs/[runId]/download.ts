@@ -1,11 +1,11 @@
 import { recordAudit } from '../../../../features/audit/audit.server';
 import { resultCsv } from '../../../../features/runs/resultTables';
-import { getRun } from '../../../../features/runs/runs.server';
 import { DownloadQuery } from '../../../../features/analyses/analysisApi.schema';
 import type { Result } from '../../../../engine/boundary/schemas';
+import { readableRun } from '../../../../features/runs/runAccess';
 import { authorize } from '../../../../lib/server/authorize';
 import { cautionText } from '../../../../lib/cautions';
-import { conflict, notFound } from '../../../../lib/server/errors';
+import { conflict } from '../../../../lib/server/errors';
 import { attachment, clientAddress, endpoint, parseQuery, requireUser, uuidParam } from '../../../../lib/server/http';
 
 /**
@@ -17,9 +17,7 @@ export const GET = endpoint(async (context) => {
   const runId = uuidParam(context.params.runId, 'That run');
   const { format } = parseQuery(context.url, DownloadQuery);
   const body = await context.locals.db(async (t) => {
-    const run = await getRun(t, runId);
-    if (!run) throw notFound('That run');
-    authorize(user, 'read', 'Run', { initiativeId: run.initiativeId }, { hide: true });
+    const run = await readableRun(t, user, runId, { withResult: true });
     authorize(user, 'export', 'Run', { initiativeId: run.initiativeId });
     if (run.status !== 'succeeded') throw conflict('Only a finished run has results to download.');
     await recordAudit(t, {

@@ -1,6 +1,4 @@
-import { getRun } from '../../../../features/runs/runs.server';
-import { authorize } from '../../../../lib/server/authorize';
-import { notFound } from '../../../../lib/server/errors';
+import { readableRun } from '../../../../features/runs/runAccess';
 import { endpoint, json, requireUser, uuidParam } from '../../../../lib/server/http';
 
 /**
@@ -11,8 +9,5 @@ export const GET = endpoint(async ({ locals, params, url }) => {
   const user = requireUser(locals);
   const runId = uuidParam(params.runId, 'That run');
   // `?fields=status` leaves the (large) result out, for progress polling.
-  const run = await locals.db((t) => getRun(t, runId, { withResult: url.searchParams.get('fields') !== 'status' }));
-  if (!run) throw notFound('That run');
-  authorize(user, 'read', 'Run', { initiativeId: run.initiativeId }, { hide: true });
-  return json(run);
+  return json(await locals.db((t) => readableRun(t, user, runId, { withResult: url.searchParams.get('fields') !== 'status' })));
 });

@@ -1,6 +1,6 @@
-import { getRun, startVerification } from '../../../../features/runs/runs.server';
+import { startVerification } from '../../../../features/runs/runs.server';
+import { readableRun } from '../../../../features/runs/runAccess';
 import { authorize } from '../../../../lib/server/authorize';
-import { notFound } from '../../../../lib/server/errors';
 import { clientAddress, endpoint, json, requireUser, uuidParam } from '../../../../lib/server/http';
 
 /**
@@ -13,9 +13,7 @@ export const POST = endpoint(async (context) => {
   const user = requireUser(context.locals);
   const runId = uuidParam(context.params.runId, 'That run');
   const started = await context.locals.db(async (t) => {
-    const run = await getRun(t, runId, { withResult: false });
-    if (!run) throw notFound('That run');
-    authorize(user, 'read', 'Run', { initiativeId: run.initiativeId }, { hide: true });
+    const run = await readableRun(t, user, runId);
     authorize(user, 'rerun', 'Run', { initiativeId: run.initiativeId });
     return startVerification(t, { id: user.id, clientAddress: clientAddress(context) }, runId);
   });

@@ -1,8 +1,7 @@
 import { decideReview, reviewedRun, reviewOf } from '../../../../../features/review/review.server';
 import { DecisionBody } from '../../../../../features/review/review.schema';
-import { getRun } from '../../../../../features/runs/runs.server';
+import { readableRun } from '../../../../../features/runs/runAccess';
 import { authorize } from '../../../../../lib/server/authorize';
-import { notFound } from '../../../../../lib/server/errors';
 import { clientAddress, endpoint, json, parseBody, requireUser, uuidParam } from '../../../../../lib/server/http';
 
 /**
@@ -15,9 +14,7 @@ export const POST = endpoint(async (context) => {
   const { decision, note } = await parseBody(context.request, DecisionBody);
   return json(
     await context.locals.db(async (t) => {
-      const run = await getRun(t, runId, { withResult: false });
-      if (!run) throw notFound('That run');
-      authorize(user, 'read', 'Run', { initiativeId: run.initiativeId }, { hide: true });
+      const run = await readableRun(t, user, runId);
       authorize(user, 'decide', 'Run', { initiativeId: run.initiativeId, startedBy: run.startedBy.id });
       await decideReview(t, { id: user.id, clientAddress: clientAddress(context) }, reviewedRun(run), decision, note);
       return reviewOf(t, runId);

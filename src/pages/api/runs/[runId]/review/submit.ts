@@ -1,8 +1,7 @@
 import { reviewedRun, reviewOf, submitForReview } from '../../../../../features/review/review.server';
 import { SubmitBody } from '../../../../../features/review/review.schema';
-import { getRun } from '../../../../../features/runs/runs.server';
+import { readableRun } from '../../../../../features/runs/runAccess';
 import { authorize } from '../../../../../lib/server/authorize';
-import { notFound } from '../../../../../lib/server/errors';
 import { clientAddress, endpoint, json, parseBody, requireUser, uuidParam } from '../../../../../lib/server/http';
 
 /**
@@ -15,9 +14,7 @@ export const POST = endpoint(async (context) => {
   const { note } = await parseBody(context.request, SubmitBody);
   return json(
     await context.locals.db(async (t) => {
-      const run = await getRun(t, runId, { withResult: false });
-      if (!run) throw notFound('That run');
-      authorize(user, 'read', 'Run', { initiativeId: run.initiativeId }, { hide: true });
+      const run = await readableRun(t, user, runId);
       authorize(user, 'submit', 'Run', { initiativeId: run.initiativeId });
       await submitForReview(t, { id: user.id, clientAddress: clientAddress(context) }, reviewedRun(run), note ?? '');
       return reviewOf(t, runId);

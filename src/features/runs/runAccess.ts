@@ -1,0 +1,17 @@
+/**
+ * The first step of every endpoint about one run: load it under the caller's identity and
+ * check they may read it, answering 404 (not 403) otherwise, so a run of another
+ * initiative looks the same as no run at all.
+ */
+import type { Transaction } from 'sequelize';
+import { authorize } from '../../lib/server/authorize';
+import { notFound } from '../../lib/server/errors';
+import type { SessionUser } from '../../lib/server/session';
+import { getRun, type RunView } from './runs.server';
+
+export async function readableRun(transaction: Transaction, user: SessionUser, runId: string, options: { withResult?: boolean } = {}): Promise<RunView> {
+  const run = await getRun(transaction, runId, { withResult: options.withResult ?? false });
+  if (!run) throw notFound('That run');
+  authorize(user, 'read', 'Run', { initiativeId: run.initiativeId }, { hide: true });
+  return run;
+}
