@@ -98,6 +98,31 @@ function Field({
   );
 }
 
+/** A select of a column's levels (a reference level, the event level), with an optional first "choose" entry. */
+function LevelSelect({
+  id, value, levels, placeholder, disabled, describedBy, invalid, onChange,
+}: {
+  id: string;
+  value: string;
+  levels: readonly string[];
+  placeholder?: string;
+  disabled?: boolean;
+  describedBy: string | undefined;
+  invalid: boolean;
+  onChange: (value: string) => void;
+}) {
+  return (
+    <select id={id} className="field-input" value={value} disabled={disabled} aria-describedby={describedBy} aria-invalid={invalid} onChange={(e) => onChange(e.target.value)}>
+      {placeholder !== undefined && <option value="">{placeholder}</option>}
+      {levels.map((level) => (
+        <option key={level} value={level}>
+          {level}
+        </option>
+      ))}
+    </select>
+  );
+}
+
 function ColumnOptions({ choices, placeholder }: { choices: ColumnChoice[]; placeholder: string }) {
   return (
     <>
@@ -282,14 +307,7 @@ function Form({ initiativeId, extractVersionId, columns, existing, onSavedHref =
             {choices.eventLevels.length > 0 && (
               <Field id={fieldId('outcome.event')} label="Level that counts as the event" error={shownError('outcome.event')}>
                 {(describedBy, invalid) => (
-                  <select id={fieldId('outcome.event')} className="field-input" value={spec.outcome.event} aria-describedby={describedBy} aria-invalid={invalid} onChange={(e) => changeSpec({ outcome: { ...spec.outcome, event: e.target.value } }, 'outcome.event')}>
-                    <option value="">Choose a level</option>
-                    {choices.eventLevels.map((level) => (
-                      <option key={level} value={level}>
-                        {level}
-                      </option>
-                    ))}
-                  </select>
+                  <LevelSelect id={fieldId('outcome.event')} value={spec.outcome.event} levels={choices.eventLevels} placeholder="Choose a level" describedBy={describedBy} invalid={invalid} onChange={(value) => changeSpec({ outcome: { ...spec.outcome, event: value } }, 'outcome.event')} />
                 )}
               </Field>
             )}
@@ -304,14 +322,7 @@ function Form({ initiativeId, extractVersionId, columns, existing, onSavedHref =
             </Field>
             <Field id={fieldId('exposure.reference')} label="Reference level of the intervention" error={shownError('exposure.reference')} hint="Usually the level without the intervention.">
               {(describedBy, invalid) => (
-                <select id={fieldId('exposure.reference')} className="field-input" value={spec.exposure.reference} disabled={choices.exposureReferences.length === 0} aria-describedby={describedBy} aria-invalid={invalid} onChange={(e) => changeSpec({ exposure: { ...spec.exposure, reference: e.target.value } }, 'exposure.reference')}>
-                  <option value="">{choices.exposureReferences.length === 0 ? 'Choose the intervention first' : 'Choose a level'}</option>
-                  {choices.exposureReferences.map((level) => (
-                    <option key={level} value={level}>
-                      {level}
-                    </option>
-                  ))}
-                </select>
+                <LevelSelect id={fieldId('exposure.reference')} value={spec.exposure.reference} levels={choices.exposureReferences} placeholder={choices.exposureReferences.length === 0 ? 'Choose the intervention first' : 'Choose a level'} disabled={choices.exposureReferences.length === 0} describedBy={describedBy} invalid={invalid} onChange={(value) => changeSpec({ exposure: { ...spec.exposure, reference: value } }, 'exposure.reference')} />
               )}
             </Field>
           </div>
@@ -329,14 +340,7 @@ function Form({ initiativeId, extractVersionId, columns, existing, onSavedHref =
             {choices.modifierType === 'categorical' && (
               <Field id={fieldId('modifier.reference')} label="Reference level of the modifier" error={shownError('modifier.reference')} hint="Every other level is compared with this one.">
                 {(describedBy, invalid) => (
-                  <select id={fieldId('modifier.reference')} className="field-input" value={spec.modifier.reference} aria-describedby={describedBy} aria-invalid={invalid} onChange={(e) => changeSpec({ modifier: { ...spec.modifier, reference: e.target.value } }, 'modifier.reference')}>
-                    <option value="">Choose a level</option>
-                    {choices.modifierReferences.map((level) => (
-                      <option key={level} value={level}>
-                        {level}
-                      </option>
-                    ))}
-                  </select>
+                  <LevelSelect id={fieldId('modifier.reference')} value={spec.modifier.reference} levels={choices.modifierReferences} placeholder="Choose a level" describedBy={describedBy} invalid={invalid} onChange={(value) => changeSpec({ modifier: { ...spec.modifier, reference: value } }, 'modifier.reference')} />
                 )}
               </Field>
             )}
@@ -429,13 +433,7 @@ function Form({ initiativeId, extractVersionId, columns, existing, onSavedHref =
                 return (
                   <Field key={name} id={fieldId(path)} label={`Reference of ${name}`} error={shownError(path)}>
                     {(describedBy, invalid) => (
-                      <select id={fieldId(path)} className="field-input" value={spec.covariateReferences[name] ?? ''} aria-describedby={describedBy} aria-invalid={invalid} onChange={(e) => changeSpec({ covariateReferences: { [name]: e.target.value } }, path)}>
-                        {(covariate.levels ?? []).map((level) => (
-                          <option key={level} value={level}>
-                            {level}
-                          </option>
-                        ))}
-                      </select>
+                      <LevelSelect id={fieldId(path)} value={spec.covariateReferences[name] ?? ''} levels={covariate.levels ?? []} describedBy={describedBy} invalid={invalid} onChange={(value) => changeSpec({ covariateReferences: { [name]: value } }, path)} />
                     )}
                   </Field>
                 );
