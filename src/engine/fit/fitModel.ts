@@ -93,7 +93,9 @@ function meanOf(values: Float64Array): number {
 /**
  * Fits the specification's model to a design: linear (OLS with classical or HC3 errors),
  * logistic (IRLS), modified Poisson (IRLS with the HC0 sandwich), or log-binomial (IRLS
- * from the start b0 = log ȳ, other coefficients 0) with the documented fallback: when the
+ * from the start b0 = log ȳ, other coefficients 0); every IRLS fit is run to the maximum
+ * and its variances use the weights at the final coefficients (see
+ * iterativelyReweightedLeastSquares.ts), with the documented fallback: when the
  * log-binomial fit cannot find valid fitted risks, does not converge in 25 iterations, or
  * ends on the boundary (a fitted risk above 1 − 1e-6), the model is refitted as modified
  * Poisson and a LOG_BINOMIAL_FALLBACK warning says so (also when its working weights become

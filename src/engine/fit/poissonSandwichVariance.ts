@@ -6,10 +6,12 @@ import { accumulateWeighted, assembleCrossProducts, createAccumulator, linearPre
  * Robust (sandwich) covariance of a Poisson log-linear fit to a 0/1 outcome, the
  * "modified Poisson" approach to risk ratios (Zou, Am J Epidemiol 2004;159:702-706).
  *
- * Formula: V = B M B with bread B = (XᵀWX)⁻¹ (the model's unscaled covariance, W = μ̂
- * from the last IRLS step) and meat M = Σ (yᵢ − μ̂ᵢ)² xᵢxᵢᵀ at the final fitted means.
+ * Formula: V = B M B with bread B = (XᵀWX)⁻¹ (the model's unscaled covariance, W = μ̂ at
+ * the final coefficients, not the previous IRLS step's) and meat M = Σ (yᵢ − μ̂ᵢ)² xᵢxᵢᵀ at
+ * the same fitted means.
  * Variant: HC0, with no finite-sample factor (neither n/(n − p) nor leverage terms); in
- * R: `B <- summary(fit)$cov.unscaled; U <- model.matrix(fit) * (y - fitted(fit));
+ * R, on a fit run to the maximum (glm.control(epsilon = 1e-14, maxit = 100)):
+ * `B <- summary(fit)$cov.unscaled; U <- model.matrix(fit) * (y - fitted(fit));
  * B %*% crossprod(U) %*% B`.
  *
  * @example poissonSandwichVariance(design, y, fit.coefficients, fit.covarianceUnscaled)

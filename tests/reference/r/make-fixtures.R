@@ -11,6 +11,13 @@
 # MOVER limits, Johnson-Neyman boundaries, sandwich and HC3 variances) are computed here
 # from coef() and vcov() with the published formulas, written out independently of the
 # engine (Hosmer-Lemeshow gradients over (b1, b2, b3), Zou's MOVER, Bauer-Curran).
+# Every glm() is fully converged (fit_ml below): glm.control(epsilon = 1e-14, maxit = 100),
+# then refitted from its own estimate until coef() stops changing, so that the reference is
+# the maximum-likelihood estimate itself and not where R's default rule stops (up to ~1e-4
+# away in the standard errors). Each fixture also records glm()$iter under R's default
+# glm.control() (iterationsDefault); infert-logistic records the default fit's numbers too.
+# A seeded synthetic cohort (set.seed below) is generated here, needing 6 or more IRLS
+# iterations under R's default rule, and fitted with every model family.
 # Note: esoph's control counts changed in R 4.1.0; these fixtures record R.version.string.
 
 args <- commandArgs(trailingOnly = TRUE)
@@ -89,6 +96,26 @@ mtcars_csv <- export_csv(data.frame(mpg = mtcars$mpg, am = mtcars$am, wt = mtcar
 tooth_csv <- export_csv(data.frame(len = ToothGrowth$len, supp = as.character(ToothGrowth$supp), dose = ToothGrowth$dose), "toothgrowth")
 
 # ---- helpers -----------------------------------------------------------------------------
+# glm() to the maximum: tight control, then restarts from the estimate while coef() moves
+# (under a non-canonical link Fisher scoring converges linearly, and a deviance rule of
+# 1e-14 can still stop ~1e-8 short of the maximum). fit$iter stays the first fit's count;
+# fit$iterDefault is glm()$iter under glm.control() defaults (epsilon = 1e-8, maxit = 25).
+tight <- glm.control(epsilon = 1e-14, maxit = 100)
+fit_ml <- function(formula, family, data, start = NULL) {
+  fit <- glm(formula, family = family, data = data, start = start, control = tight)
+  stopifnot(fit$converged)
+  iter <- fit$iter
+  for (k in 1:20) {
+    again <- glm(formula, family = family, data = data, start = coef(fit), control = tight)
+    change <- max(abs(coef(again) - coef(fit)) / (abs(coef(fit)) + 1e-3))
+    fit <- again
+    if (change < 1e-13) break
+  }
+  fit$iter <- iter
+  fit$iterDefault <- glm(formula, family = family, data = data, start = start)$iter
+  fit
+}
+
 # Reorder R's coefficients to the engine's term order: intercept, exposure, modifier terms,
 # exposure × modifier products, covariates.
 engine_order <- function(names, exposure, modifier) {
@@ -193,6 +220,7 @@ categorical_case <- function(name, spec, frame, fit, reduced, V, ratio, omnibus,
     aic = AIC(fit),
     deviance = deviance(fit),
     iterations = if (is.null(fit$iter)) 0 else fit$iter,
+    iterationsDefault = if (is.null(fit$iterDefault)) 0 else fit$iterDefault,
     residualDf = df.residual(fit),
     omnibus = omnibus,
     strata = arr(strata),
@@ -225,14 +253,14 @@ spec_infert <- function(model, method = "delta") list(
 d <- infert_csv
 d$education <- relevel(factor(d$education), ref = "6-11yrs")
 d$spontaneous <- factor(d$spontaneous)
-f_full <- glm(case ~ induced_any * spontaneous + age + parity + education, family = binomial, data = d)
-f_red <- glm(case ~ induced_any + spontaneous + age + parity + education, family = binomial, data = d)
+f_full <- fit_ml(case ~ induced_any * spontaneous + age + parity + education, binomial, d)
+f_red <- fit_ml(case ~ induced_any + spontaneous + age + parity + education, binomial, d)
 lrt <- anova(f_red, f_full, test = "LRT")
 write_json(categorical_case("infert-logistic", spec_infert("logistic"), d, f_full, f_red, vcov(f_full), TRUE,
   list(statistic = lrt$Deviance[2], df = lrt$Df[2], p = lrt[["Pr(>Chi)"]][2]), z95), "infert-logistic")
 
 # ---- case: infert, modified Poisson (HC0 sandwich, no finite-sample factor) -------------------
-f_pois <- glm(case ~ induced_any * spontaneous + age + parity + education, family = poisson, data = d)
+f_pois <- fit_ml(case ~ induced_any * spontaneous + age + parity + education, poisson, d)
 X <- model.matrix(f_pois)
 B <- summary(f_pois)$cov.unscaled
 U <- X * (d$case - fitted(f_pois))
@@ -254,8 +282,8 @@ spec_esoph <- list(
   model = "logistic",
   ci = list(level = 0.95, method = "delta")
 )
-g_full <- glm(case ~ alcohol_high * tobacco + agegp, family = binomial, data = e)
-g_red <- glm(case ~ alcohol_high + tobacco + agegp, family = binomial, data = e)
+g_full <- fit_ml(case ~ alcohol_high * tobacco + agegp, binomial, e)
+g_red <- fit_ml(case ~ alcohol_high + tobacco + agegp, binomial, e)
 lrt_e <- anova(g_red, g_full, test = "LRT")
 # Stratified tables by tobacco: rows exposure (1 first), columns outcome (1 first).
 tab_e <- table(factor(e$alcohol_high, levels = c(1, 0)), factor(e$case, levels = c(1, 0)), e$tobacco)
@@ -287,8 +315,8 @@ spec_ucb <- list(
   model = "logistic",
   ci = list(level = 0.95, method = "mover")
 )
-h_full <- glm(admitted ~ female * dept, family = binomial, data = u)
-h_red <- glm(admitted ~ female + dept, family = binomial, data = u)
+h_full <- fit_ml(admitted ~ female * dept, binomial, u)
+h_red <- fit_ml(admitted ~ female + dept, binomial, u)
 lrt_u <- anova(h_red, h_full, test = "LRT")
 tab_u <- table(factor(u$female, levels = c(1, 0)), factor(u$admitted, levels = c(1, 0)), u$dept)
 mh_u <- mantelhaen.test(tab_u)
@@ -354,7 +382,8 @@ continuous_case <- function(name, spec, fit, V, crit, jn_crit, modifier, ratio, 
     name = name, r = R.version.string, spec = spec,
     coefficients = list(term = arr(nm[ord]), estimate = arr(unname(b)), se = arr(unname(sqrt(diag(V))))),
     logLik = as.numeric(logLik(fit)), aic = AIC(fit), deviance = deviance(fit),
-    iterations = if (is.null(fit$iter)) 0 else fit$iter, residualDf = df.residual(fit),
+    iterations = if (is.null(fit$iter)) 0 else fit$iter,
+    iterationsDefault = if (is.null(fit$iterDefault)) 0 else fit$iterDefault, residualDf = df.residual(fit),
     omnibus = omnibus,
     mean = m, sd = s, observed = arr(range(x)),
     multiplicative = if (ratio) contrast_effect(b, V, c(0, 0, 0, 1, rep(0, p - 4)), crit, TRUE, df) else NULL,
@@ -391,20 +420,81 @@ spec_infert_age <- list(
   model = "logistic",
   ci = list(level = 0.95, method = "delta")
 )
-k_full <- glm(case ~ spontaneous_any * age + parity, family = binomial, data = d)
-k_red <- glm(case ~ spontaneous_any + age + parity, family = binomial, data = d)
+k_full <- fit_ml(case ~ spontaneous_any * age + parity, binomial, d)
+k_red <- fit_ml(case ~ spontaneous_any + age + parity, binomial, d)
 lk <- anova(k_red, k_full, test = "LRT")
-write_json(continuous_case("infert-logistic-continuous", spec_infert_age, k_full, vcov(k_full), z95, z95, "age", TRUE, Inf,
-  list(statistic = lk$Deviance[2], df = lk$Df[2], p = lk[["Pr(>Chi)"]][2])), "infert-logistic-continuous")
+# What an analyst's own glm() call with R's default glm.control() gives (engine compared at 1e-5).
+k_default <- glm(case ~ spontaneous_any * age + parity, family = binomial, data = d)
+write_json(c(continuous_case("infert-logistic-continuous", spec_infert_age, k_full, vcov(k_full), z95, z95, "age", TRUE, Inf,
+  list(statistic = lk$Deviance[2], df = lk$Df[2], p = lk[["Pr(>Chi)"]][2])),
+  list(defaultGlm = list(control = "glm.control() defaults: epsilon = 1e-8, maxit = 25", term = arr(names(coef(k_default))),
+    estimate = arr(unname(coef(k_default))), se = arr(unname(sqrt(diag(vcov(k_default)))))))), "infert-logistic-continuous")
 # ---- case: UCBAdmissions, log-binomial from the start (log mean(y), 0, ...) ---------------------
 spec_ucb_lb <- spec_ucb
 spec_ucb_lb$model <- "log-binomial"
 spec_ucb_lb$ci$method <- "delta"
 p_full <- length(coef(h_full)); p_red <- length(coef(h_red))
-lb_full <- glm(admitted ~ female * dept, family = binomial(link = "log"), data = u, start = c(log(mean(u$admitted)), rep(0, p_full - 1)))
-lb_red <- glm(admitted ~ female + dept, family = binomial(link = "log"), data = u, start = c(log(mean(u$admitted)), rep(0, p_red - 1)))
+lb_full <- fit_ml(admitted ~ female * dept, binomial(link = "log"), u, start = c(log(mean(u$admitted)), rep(0, p_full - 1)))
+lb_red <- fit_ml(admitted ~ female + dept, binomial(link = "log"), u, start = c(log(mean(u$admitted)), rep(0, p_red - 1)))
 stopifnot(lb_full$converged, lb_red$converged, max(fitted(lb_full)) < 1 - 1e-6)
 lrt_lb <- anova(lb_red, lb_full, test = "LRT")
 write_json(categorical_case("ucbadmissions-log-binomial", spec_ucb_lb, u, lb_full, lb_red, vcov(lb_full), TRUE,
   list(statistic = lrt_lb$Deviance[2], df = lrt_lb$Df[2], p = lrt_lb[["Pr(>Chi)"]][2]), z95), "ucbadmissions-log-binomial")
+
+# ---- case: seeded synthetic cohort (invented data; the generator below sets the truth) ----------
+# R's Mersenne-Twister, set.seed(20240609, kind = "Mersenne-Twister", normal.kind = "Inversion",
+# sample.kind = "Rejection"). 3,000 synthetic patients: treated (0/1), frailty (low, mid, high),
+# age (years) and creatinine (µmol/L, deliberately on a large scale); readmitted drawn from a
+# log-linear risk (baseline 1 %, risk ratios 0.5 for treatment, 4 and 12 for frailty, 1.5 for
+# treatment × high frailty); a continuous length of stay for the linear models. Under R's
+# default rule the logistic fit needs 8 IRLS iterations, the Poisson fit 7, the log-binomial 6.
+set.seed(20240609, kind = "Mersenne-Twister", normal.kind = "Inversion", sample.kind = "Rejection")
+n_seeded <- 3000
+treated <- rbinom(n_seeded, 1, 0.4)
+frailty <- sample(c("low", "mid", "high"), n_seeded, replace = TRUE, prob = c(0.5, 0.3, 0.2))
+age <- round(rnorm(n_seeded, 68, 12))
+creatinine <- round(exp(rnorm(n_seeded, log(90), 0.35)))
+risk_lp <- log(0.01) + log(0.5) * treated + c(low = 0, mid = log(4), high = log(12))[frailty] +
+  log(1.5) * treated * (frailty == "high") + 0.02 * (age - 68) + 0.004 * (creatinine - 90)
+readmitted <- rbinom(n_seeded, 1, pmin(exp(risk_lp), 0.95))
+stay <- round(3 + 1.5 * treated + c(low = 0, mid = 2, high = 5)[frailty] - treated * (frailty == "high") +
+  0.05 * (age - 68) + 0.01 * creatinine + rnorm(n_seeded, 0, 2), 2)
+s_csv <- export_csv(data.frame(readmitted, stay, treated, frailty, age, creatinine), "seeded")
+s_csv$frailty <- relevel(factor(s_csv$frailty), ref = "low")
+spec_seeded <- function(model, outcome = "readmitted", se = NULL) {
+  spec <- list(
+    outcome = list(column = outcome, type = if (outcome == "readmitted") "binary" else "continuous"),
+    exposure = list(column = "treated", reference = "0"),
+    modifier = list(column = "frailty", type = "categorical", reference = "low"),
+    covariates = arr(list(list(column = "age", type = "continuous"), list(column = "creatinine", type = "continuous"))),
+    model = model,
+    ci = list(level = 0.95, method = "delta")
+  )
+  if (!is.null(se)) spec$standardErrors <- se
+  spec
+}
+s_full_f <- readmitted ~ treated * frailty + age + creatinine
+s_red_f <- readmitted ~ treated + frailty + age + creatinine
+lrt_of <- function(red, full) { a <- anova(red, full, test = "LRT"); list(statistic = a$Deviance[2], df = a$Df[2], p = a[["Pr(>Chi)"]][2]) }
+s_logit <- fit_ml(s_full_f, binomial, s_csv)
+write_json(categorical_case("seeded-logistic", spec_seeded("logistic"), s_csv, s_logit, NULL, vcov(s_logit), TRUE,
+  lrt_of(fit_ml(s_red_f, binomial, s_csv), s_logit), z95), "seeded-logistic")
+s_pois <- fit_ml(s_full_f, poisson, s_csv)
+X_s <- model.matrix(s_pois)
+V_s <- summary(s_pois)$cov.unscaled %*% crossprod(X_s * (s_csv$readmitted - fitted(s_pois))) %*% summary(s_pois)$cov.unscaled
+prod_s <- which(grepl(":", colnames(X_s), fixed = TRUE))
+wald_s <- drop(t(coef(s_pois)[prod_s]) %*% solve(V_s[prod_s, prod_s]) %*% coef(s_pois)[prod_s])
+write_json(categorical_case("seeded-modified-poisson", spec_seeded("modified-poisson"), s_csv, s_pois, NULL, V_s, TRUE,
+  list(statistic = wald_s, df = length(prod_s), p = pchisq(wald_s, length(prod_s), lower.tail = FALSE)), z95), "seeded-modified-poisson")
+s_lb <- fit_ml(s_full_f, binomial(link = "log"), s_csv, start = c(log(mean(s_csv$readmitted)), rep(0, 7)))
+s_lb_red <- fit_ml(s_red_f, binomial(link = "log"), s_csv, start = c(log(mean(s_csv$readmitted)), rep(0, 5)))
+stopifnot(max(fitted(s_lb)) < 1 - 1e-6, max(fitted(s_lb_red)) < 1 - 1e-6)
+write_json(categorical_case("seeded-log-binomial", spec_seeded("log-binomial"), s_csv, s_lb, NULL, vcov(s_lb), TRUE,
+  lrt_of(s_lb_red, s_lb), z95), "seeded-log-binomial")
+s_lm <- lm(stay ~ treated * frailty + age + creatinine, data = s_csv)
+f_s <- anova(lm(stay ~ treated + frailty + age + creatinine, data = s_csv), s_lm)
+omni_s <- list(statistic = f_s$F[2], df = f_s$Df[2], df2 = f_s$Res.Df[2], p = f_s[["Pr(>F)"]][2])
+t_s <- qt(0.975, df.residual(s_lm))
+write_json(categorical_case("seeded-linear", spec_seeded("linear", "stay", "model"), s_csv, s_lm, NULL, vcov(s_lm), FALSE, omni_s, t_s, df.residual(s_lm)), "seeded-linear")
+write_json(categorical_case("seeded-linear-hc3", spec_seeded("linear", "stay", "hc3"), s_csv, s_lm, NULL, hc3(s_lm), FALSE, omni_s, t_s, df.residual(s_lm)), "seeded-linear-hc3")
 cat("fixtures written to", out, "\n")

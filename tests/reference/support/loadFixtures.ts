@@ -48,7 +48,12 @@ export interface Fixture {
   logLik: number;
   aic: number;
   deviance: number;
+  /** glm()$iter with glm.control(epsilon = 1e-14, maxit = 100). */
   iterations: number;
+  /** glm()$iter with R's default glm.control() (epsilon = 1e-8, maxit = 25). */
+  iterationsDefault: number;
+  /** The same glm() with R's default glm.control() (infert-logistic-continuous). */
+  defaultGlm?: { control: string; term: string[]; estimate: number[]; se: number[] };
   residualDf: number;
   omnibus: RTest;
   strata?: RInterval[];
