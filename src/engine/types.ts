@@ -326,7 +326,19 @@ export interface AnalysisResult {
   johnsonNeyman?: JohnsonNeymanResult;
   band?: BandPoint[];
   stratifiedTables: StratifiedTables | null;
-  bootstrap: { replicates: number; successful: number; failed: number; seed: number } | null;
+  /**
+   * Percentile bootstrap accounting: replicates left out of the intervals (`failed`), by
+   * reason, the rule applied, and whether the intervals are flagged (more than 1 % left out).
+   */
+  bootstrap: {
+    replicates: number;
+    successful: number;
+    failed: number;
+    failures: { notConverged: number; separated: number; fitFailed: number; undefinedMeasure: number };
+    flagged: boolean;
+    rule: string;
+    seed: number;
+  } | null;
   planning: PlanningBlock;
   warnings: EngineWarning[];
 }

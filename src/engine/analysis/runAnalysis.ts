@@ -1,5 +1,5 @@
-import { bootstrapCoefficients, defaultThreadCount } from '../bootstrap/percentileBootstrap.js';
-import { percentileInterval } from '../bootstrap/percentileInterval.js';
+import { bootstrapIntervals } from '../bootstrap/bootstrapIntervals.js';
+import { defaultThreadCount } from '../bootstrap/percentileBootstrap.js';
 import { normalQuantile } from '../distributions/normal.js';
 import { studentTQuantile } from '../distributions/studentT.js';
 import { buildAnalysisFrame, type AnalysisFrame } from '../design/analysisFrame.js';
@@ -149,18 +149,6 @@ function additiveFromJoint(joint: JointLogRatios, critical: number, method: Chec
     apStar: measureInterval(attributableProportionOfJointEffect(joint, critical), 'delta'),
     s: measureInterval(synergyIndex(joint, critical), 'delta'),
   };
-}
-
-/** Point estimates of the additive measures from one replicate's coefficients. */
-function additivePoints(coefficients: ArrayLike<number>, contrasts: Float64Array): [number, number, number, number] {
-  const p = coefficients.length;
-  const l = [0, 0, 0];
-  for (let row = 0; row < 3; row++) for (let j = 0; j < p; j++) l[row] += contrasts[row * p + j] * coefficients[j];
-  const [e10, e01, e11] = l.map(Math.exp);
-  const reri = e11 - e10 - e01 + 1;
-  const denominator = e10 + e01 - 2;
-  const s = denominator > 0 && e11 > 1 ? (e11 - 1) / denominator : Number.NaN;
-  return [reri, reri / e11, e11 !== 1 ? reri / (e11 - 1) : Number.NaN, s];
 }
 
 function omnibusTest(
@@ -438,49 +426,21 @@ export async function runAnalysis(data: EngineData, spec: AnalysisSpec, options:
   if (checked.method === 'bootstrap') {
     progress('bootstrap', 0);
     const family = fit.family === 'linear' ? 'linear' : fit.family === 'logistic' ? 'binomial-logit' : fit.family === 'log-binomial' ? 'binomial-log' : 'poisson-log';
-    const replicateCoefficients = await bootstrapCoefficients(
-      { design, y: frame.outcome, family, start: fit.coefficients, replicates: checked.replicates, seed: checked.seed },
+    // Joint cells (2 × modifier level + exposure) let a replicate recognise a separated resample.
+    let jointCellOfRow: Int32Array | null = null;
+    if (frame.outcomeBinary && frame.modifier.kind === 'categorical') {
+      jointCellOfRow = new Int32Array(frame.n);
+      for (let i = 0; i < frame.n; i++) jointCellOfRow[i] = 2 * frame.modifier.codes[i] + frame.exposure[i];
+    }
+    bootstrap = await bootstrapIntervals(
+      {
+        job: { design, y: frame.outcome, family, start: fit.coefficients, jointCellOfRow, jointCells: 2 * Math.max(levelCount, 1) },
+        design, replicates: checked.replicates, seed: checked.seed, level: checked.level, ratio, contrasts: recodedContrasts,
+      },
+      additive,
+      warnings,
       { threads: useThreads, signal, onProgress: (fraction) => progress('bootstrap', fraction) },
     );
-    let failed = 0;
-    for (let r = 0; r < checked.replicates; r++) if (Number.isNaN(replicateCoefficients[r * p])) failed++;
-    bootstrap = { replicates: checked.replicates, successful: checked.replicates - failed, failed, seed: checked.seed };
-    if (failed > 0) {
-      warnings.push({
-        code: 'BOOTSTRAP_FAILED_REPLICATES',
-        message: `${failed} of ${checked.replicates} bootstrap refits failed (no convergence or a resample without some level) and were left out of the percentile intervals.`,
-      });
-    }
-    additive.forEach((entry, index) => {
-      const contrasts = recodedContrasts[index];
-      const series = [0, 1, 2, 3].map(() => new Float64Array(checked.replicates));
-      const differences = new Float64Array(checked.replicates);
-      for (let r = 0; r < checked.replicates; r++) {
-        const replicate = replicateCoefficients.subarray(r * p, (r + 1) * p);
-        if (ratio) {
-          const points = additivePoints(replicate, contrasts);
-          for (let m = 0; m < 4; m++) series[m][r] = points[m];
-        } else {
-          let value = 0;
-          for (let j = 0; j < p; j++) value += contrasts[j] * replicate[j];
-          differences[r] = value;
-        }
-      }
-      const apply = (measure: MeasureInterval | null, values: Float64Array): MeasureInterval | null => {
-        if (measure === null) return null;
-        const interval = percentileInterval(values, checked.level);
-        return interval === null ? { ...measure, lower: null, upper: null, method: 'bootstrap' } : { ...measure, ...interval, method: 'bootstrap' };
-      };
-      if (ratio) {
-        entry.reri = apply(entry.reri, series[0]);
-        entry.ap = apply(entry.ap, series[1]);
-        entry.apStar = apply(entry.apStar, series[2]);
-        entry.s = apply(entry.s, series[3]);
-      } else if (entry.differenceInDifferences !== null) {
-        const interval = percentileInterval(differences, checked.level);
-        if (interval !== null) entry.differenceInDifferences = { ...entry.differenceInDifferences, ...interval };
-      }
-    });
   }
   checkCancelled(signal);
 

@@ -15,6 +15,8 @@ const job: BootstrapJob = {
   start: data.start,
   replicates: data.replicates,
   seed: data.seed,
+  jointCellOfRow: data.jointCellOfRow,
+  jointCells: data.jointCells,
 };
 const counts = new Float64Array(data.design.rows);
 const p = data.design.columns;
@@ -23,7 +25,7 @@ for (;;) {
   if (Atomics.load(data.control, CONTROL_CANCEL) === 1) break;
   const index = Atomics.add(data.control, CONTROL_NEXT, 1);
   if (index >= data.replicates) break;
-  bootstrapReplicate(job, index, counts, data.results, index * p);
+  data.status[index] = bootstrapReplicate(job, index, counts, data.results, index * p);
   Atomics.add(data.control, CONTROL_DONE, 1);
   if (++sinceReport >= data.progressEvery) {
     sinceReport = 0;

@@ -52,16 +52,23 @@ function workerLaunch(): WorkerLaunch {
   return launchFor(new URL('./bootstrapWorker.js', import.meta.url), import.meta.url);
 }
 
+/** Replicates' coefficients (row-major replicates × p, NaN rows when left out) and how each ended. */
+export interface BootstrapReplicates {
+  readonly coefficients: Float64Array;
+  readonly status: Int32Array;
+}
+
 /**
  * Runs the replicates of a percentile bootstrap (Efron and Tibshirani 1993, ch. 13;
  * Assmann, Hosmer, Lemeshow and Mundt, Epidemiology 1996;7:90-92) and returns their
- * coefficients as a row-major `replicates × p` matrix (NaN rows for failed refits).
+ * coefficients as a row-major `replicates × p` matrix (NaN rows for failed refits) with
+ * each replicate's status (bootstrapReplicate.ts).
  * Replicate r always uses random stream r of the seed, so the matrix is identical bit for
  * bit whether it is computed in-process or by any number of worker threads.
  *
  * @throws AnalysisCancelledError when the signal aborts.
  */
-export async function bootstrapCoefficients(job: BootstrapJob, options: BootstrapRunOptions): Promise<Float64Array> {
+export async function bootstrapCoefficients(job: BootstrapJob, options: BootstrapRunOptions): Promise<BootstrapReplicates> {
   const p = job.design.columns;
   const { signal, onProgress } = options;
   if (signal?.aborted) throw new AnalysisCancelledError();
@@ -69,20 +76,22 @@ export async function bootstrapCoefficients(job: BootstrapJob, options: Bootstra
 
   if (options.threads <= 1) {
     const results = new Float64Array(job.replicates * p);
+    const status = new Int32Array(job.replicates);
     const counts = new Float64Array(job.design.rows);
     for (let index = 0; index < job.replicates; index++) {
       if (signal?.aborted) throw new AnalysisCancelledError();
-      bootstrapReplicate(job, index, counts, results, index * p);
+      status[index] = bootstrapReplicate(job, index, counts, results, index * p);
       if ((index + 1) % progressEvery === 0) {
         onProgress?.((index + 1) / job.replicates);
         // Yield so that an abort can be delivered.
         if (signal !== undefined) await new Promise((resolve) => setImmediate(resolve));
       }
     }
-    return results;
+    return { coefficients: results, status };
   }
 
   const results = new Float64Array(new SharedArrayBuffer(job.replicates * p * 8));
+  const status = new Int32Array(new SharedArrayBuffer(job.replicates * 4));
   const control = new Int32Array(new SharedArrayBuffer(3 * 4));
   const workerData: BootstrapWorkerData = {
     design: shareDesign(job.design),
@@ -92,6 +101,9 @@ export async function bootstrapCoefficients(job: BootstrapJob, options: Bootstra
     replicates: job.replicates,
     seed: job.seed,
     results,
+    status,
+    jointCellOfRow: job.jointCellOfRow === null ? null : sharedCopy(job.jointCellOfRow),
+    jointCells: job.jointCells,
     control,
     progressEvery,
   };
@@ -142,5 +154,5 @@ export async function bootstrapCoefficients(job: BootstrapJob, options: Bootstra
     }
   });
   onProgress?.(1);
-  return results;
+  return { coefficients: results, status };
 }

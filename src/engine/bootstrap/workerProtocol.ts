@@ -14,6 +14,10 @@ export interface BootstrapWorkerData {
   readonly replicates: number;
   readonly seed: number;
   readonly results: Float64Array;
+  /** One status per replicate (REPLICATE_OK, ... in bootstrapReplicate.ts). */
+  readonly status: Int32Array;
+  readonly jointCellOfRow: Int32Array | null;
+  readonly jointCells: number;
   readonly control: Int32Array;
   /** Post a progress message every this many replicates. */
   readonly progressEvery: number;

@@ -223,7 +223,20 @@ export const ResultSchema = z
       })
       .nullable(),
     bootstrap: z
-      .strictObject({ replicates: z.number().int(), successful: z.number().int(), failed: z.number().int(), seed: z.number().int() })
+      .strictObject({
+        replicates: z.number().int(),
+        successful: z.number().int(),
+        failed: z.number().int().describe('Replicates left out of the percentile intervals (sum of failures).'),
+        failures: z.strictObject({
+          notConverged: z.number().int(),
+          separated: z.number().int(),
+          fitFailed: z.number().int(),
+          undefinedMeasure: z.number().int(),
+        }),
+        flagged: z.boolean().describe('More than 1% of replicates were left out.'),
+        rule: z.string().describe('The rule by which replicates are left out and intervals flagged.'),
+        seed: z.number().int(),
+      })
       .nullable(),
     planning: z.strictObject({
       method: z.literal('normal-approximation'),
