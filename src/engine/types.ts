@@ -253,7 +253,10 @@ export interface StratifiedTables {
   mantelHaenszel: {
     oddsRatio: Interval | null;
     riskRatio: Interval | null;
+    /** Pooled risk difference with limits from Sato's (1989) variance. */
     riskDifference: Interval | null;
+    /** The pooled risk difference's limits under both published variances, each labelled: Sato (1989), Greenland-Robins (1985). */
+    riskDifferenceVariances: { variance: 'sato' | 'greenland-robins'; label: string; se: number; lower: number; upper: number }[] | null;
     chiSquare: TestResult & { continuityCorrection: boolean };
   };
   homogeneity: { breslowDay: TestResult | null; breslowDayTarone: TestResult | null; woolf: TestResult | null };

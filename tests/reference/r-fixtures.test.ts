@@ -196,6 +196,21 @@ describe('reference fixtures from base R', () => {
         expectClose(tables.mantelHaenszel.oddsRatio!.upper, expected.oddsRatio.upper, 'MH OR upper');
         expectClose(tables.mantelHaenszel.chiSquare.statistic, expected.chiSquare.statistic, 'CMH statistic');
         expectClose(tables.mantelHaenszel.chiSquare.p, expected.chiSquare.p, 'CMH p', 1e-7);
+        // MH risk difference and both published variances, written out in the R script
+        // (mh_risk_difference: Sato 1989, Greenland-Robins 1985).
+        const rd = tables.mantelHaenszel;
+        expectClose(rd.riskDifference!.estimate, expected.riskDifference.estimate, 'MH RD');
+        expectClose(rd.riskDifference!.lower, expected.riskDifference.sato.lower, 'MH RD lower (Sato)');
+        expectClose(rd.riskDifference!.upper, expected.riskDifference.sato.upper, 'MH RD upper (Sato)');
+        const [sato, greenlandRobins] = rd.riskDifferenceVariances!;
+        expect([sato.variance, greenlandRobins.variance]).toEqual(['sato', 'greenland-robins']);
+        expect(sato.label).toMatch(/Sato \(1989\)/);
+        expect(greenlandRobins.label).toMatch(/Greenland-Robins \(1985\)/);
+        for (const [entry, reference, name] of [[sato, expected.riskDifference.sato, 'Sato'], [greenlandRobins, expected.riskDifference.greenlandRobins, 'Greenland-Robins']] as const) {
+          expectClose(entry.se, reference.se, `MH RD se (${name})`);
+          expectClose(entry.lower, reference.lower, `MH RD lower (${name})`);
+          expectClose(entry.upper, reference.upper, `MH RD upper (${name})`);
+        }
         // Woolf's statistic computed in the R script from the same tables.
         expectClose(tables.homogeneity.woolf!.statistic, expected.woolf.statistic, 'Woolf statistic');
         expectClose(tables.homogeneity.woolf!.p, expected.woolf.p, 'Woolf p', 1e-7);

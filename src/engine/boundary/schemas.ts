@@ -216,7 +216,11 @@ export const ResultSchema = z
         mantelHaenszel: z.strictObject({
           oddsRatio: interval.nullable(),
           riskRatio: interval.nullable(),
-          riskDifference: interval.nullable(),
+          riskDifference: interval.nullable().describe('Pooled risk difference, limits from Sato (1989) variance.'),
+          riskDifferenceVariances: z
+            .array(z.strictObject({ variance: z.enum(['sato', 'greenland-robins']), label: z.string(), se: num, lower: num, upper: num }))
+            .nullable()
+            .describe('The pooled risk difference under both published variances, Sato (1989) and Greenland-Robins (1985), each labelled.'),
           chiSquare: test.extend({ continuityCorrection: z.boolean() }),
         }),
         homogeneity: z.strictObject({ breslowDay: test.nullable(), breslowDayTarone: test.nullable(), woolf: test.nullable() }),

@@ -57,6 +57,7 @@ export function stratifiedTables(frame: AnalysisFrame, critical: number, warning
       oddsRatio: pooledOddsRatio && { estimate: pooledOddsRatio.estimate, lower: pooledOddsRatio.lower, upper: pooledOddsRatio.upper },
       riskRatio: pooledRiskRatio && { estimate: pooledRiskRatio.estimate, lower: pooledRiskRatio.lower, upper: pooledRiskRatio.upper },
       riskDifference: pooledRiskDifference && { estimate: pooledRiskDifference.estimate, lower: pooledRiskDifference.lower, upper: pooledRiskDifference.upper },
+      riskDifferenceVariances: pooledRiskDifference && pooledRiskDifference.variances.map((entry) => ({ ...entry })),
       chiSquare: { ...cochranMantelHaenszelTest(tables, true), continuityCorrection: true },
     },
     homogeneity: {

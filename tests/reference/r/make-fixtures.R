@@ -294,8 +294,24 @@ woolf <- function(tab) {
   stat <- sum(w * (y - sum(w * y) / sum(w))^2)
   list(statistic = stat, df = dim(tab)[3] - 1, p = pchisq(stat, dim(tab)[3] - 1, lower.tail = FALSE))
 }
+# Mantel-Haenszel risk difference (Greenland and Robins 1985) with Sato's (1989) variance and
+# Greenland and Robins' (1985) variance, written out from the published formulas.
+mh_risk_difference <- function(tab, z) {
+  a <- tab[1, 1, ]; b <- tab[1, 2, ]; c <- tab[2, 1, ]; d <- tab[2, 2, ]
+  n1 <- a + b; n0 <- c + d; N <- n1 + n0
+  W <- n1 * n0 / N
+  rd <- sum((a * n0 - c * n1) / N) / sum(W)
+  P <- (n1^2 * c - n0^2 * a + n1 * n0 * (n0 - n1) / 2) / N^2
+  Q <- (a * (n0 - c) + c * (n1 - a)) / (2 * N)
+  se_sato <- sqrt((rd * sum(P) + sum(Q)) / sum(W)^2)
+  se_gr <- sqrt(sum(W^2 * (a * b / n1^3 + c * d / n0^3)) / sum(W)^2)
+  list(estimate = rd,
+    sato = list(se = se_sato, lower = rd - z * se_sato, upper = rd + z * se_sato),
+    greenlandRobins = list(se = se_gr, lower = rd - z * se_gr, upper = rd + z * se_gr))
+}
 mh_block <- function(mh, tab) list(
   oddsRatio = list(estimate = unname(mh$estimate), lower = mh$conf.int[1], upper = mh$conf.int[2]),
+  riskDifference = mh_risk_difference(tab, qnorm(0.975)),
   chiSquare = list(statistic = unname(mh$statistic), df = unname(mh$parameter), p = mh$p.value),
   woolf = woolf(tab),
   counts = arr(lapply(seq_len(dim(tab)[3]), function(k) list(level = dimnames(tab)[[3]][k], a = tab[1, 1, k], b = tab[1, 2, k], c = tab[2, 1, k], d = tab[2, 2, k])))

@@ -21,6 +21,12 @@ export interface RMeasure {
   se: number;
 }
 
+export interface RLimits {
+  se: number;
+  lower: number;
+  upper: number;
+}
+
 export interface RAdditive {
   level?: string;
   reri: RMeasure;
@@ -67,6 +73,7 @@ export interface Fixture {
   productSe?: number[];
   mantelHaenszel?: {
     oddsRatio: { estimate: number; lower: number; upper: number };
+    riskDifference: { estimate: number; sato: RLimits; greenlandRobins: RLimits };
     chiSquare: RTest;
     woolf: RTest;
     counts: { level: string; a: number; b: number; c: number; d: number }[];
