@@ -117,6 +117,20 @@ describe('tables of a categorical modifier (Call-back, logistic, real engine res
     }
   });
 
+  it('shows the pooled risk difference under both published variances, each labelled', () => {
+    const mh = result.stratifiedTables!.mantelHaenszel;
+    const [sato, greenlandRobins] = mh.riskDifferenceVariances!;
+    const rd = buildResultTables({ ...result, effectMeasure: 'RD' }, CALL_BACK_SPEC).mantelHaenszel!;
+    expect(rd.label).toContain('limits from the Sato (1989) variance');
+    expect([rd.pooled.estimate, rd.pooled.lower, rd.pooled.upper]).toEqual([mh.riskDifference!.estimate, sato.lower, sato.upper]);
+    expect(rd.alternative!.label).toBe('With the Greenland-Robins (1985) variance');
+    expect([rd.alternative!.pooled.estimate, rd.alternative!.pooled.lower, rd.alternative!.pooled.upper]).toEqual([mh.riskDifference!.estimate, greenlandRobins.lower, greenlandRobins.upper]);
+    const records = parse(resultCsv(result, CALL_BACK_SPEC)) as string[][];
+    const header = records.find((record) => record[0] === 'section')!;
+    const labels = records.map((record) => record[header.indexOf('measure')]).filter((label) => label?.startsWith('Mantel-Haenszel RD'));
+    expect(labels).toEqual(['Mantel-Haenszel RD (crude), Sato (1989) variance', 'Mantel-Haenszel RD (crude), Greenland-Robins (1985) variance']);
+  });
+
   it('reports the omnibus test, the pooled estimate, the covariates and the model', () => {
     const tables = buildResultTables(result, CALL_BACK_SPEC);
     const omnibus = result.interaction.omnibus;
@@ -127,6 +141,7 @@ describe('tables of a categorical modifier (Call-back, logistic, real engine res
     // Three product terms for four age bands.
     expect(tables.omnibus.df).toBe('3 df');
     expectInterval(tables.mantelHaenszel?.pooled, result.stratifiedTables!.mantelHaenszel.oddsRatio);
+    expect(tables.mantelHaenszel?.alternative).toBeNull();
     expect(tables.covariates.map((covariate) => covariate.text)).toEqual(['sex (reference F)', 'comorbidity_score', 'site (reference Tern Valley General)']);
     expect(tables.modelLine).toContain(`${result.n.toLocaleString('en-GB')} rows analysed`);
     expect(tables.modifierWithinArms.flatMap((row) => row.cells)).toHaveLength(result.modifierEffects.length);

@@ -224,7 +224,8 @@ export interface ResultTables {
   modifierWithinArms: { level: string; cells: { exposure: string; effect: IntervalCell }[] }[];
   interaction: InteractionRowView[];
   omnibus: { label: string; statistic: NumberCell; df: string; p: NumberCell };
-  mantelHaenszel: { label: string; pooled: IntervalCell; homogeneity: string | null } | null;
+  /** `alternative`: the pooled RD's limits under the Greenland-Robins (1985) variance (the main limits use Sato's). */
+  mantelHaenszel: { label: string; pooled: IntervalCell; homogeneity: string | null; alternative: { label: string; pooled: IntervalCell } | null } | null;
   continuous: {
     slopes: SlopeRowView[];
     johnsonNeyman: string | null;
@@ -485,11 +486,15 @@ export function buildResultTables(result: Result, spec: Spec): ResultTables {
   if (tables) {
     const pooled = measure.code === 'OR' ? tables.mantelHaenszel.oddsRatio : measure.code === 'RR' ? tables.mantelHaenszel.riskRatio : measure.code === 'RD' ? tables.mantelHaenszel.riskDifference : null;
     if (pooled) {
+      const variances = tables.mantelHaenszel.riskDifferenceVariances ?? [];
       const homogeneity = measure.code === 'OR' ? (tables.homogeneity.breslowDayTarone ?? tables.homogeneity.breslowDay) : tables.homogeneity.woolf;
       const homogeneityName = measure.code === 'OR' ? (tables.homogeneity.breslowDayTarone ? 'Breslow-Day test with Tarone\'s correction' : 'Breslow-Day test') : 'Woolf test';
       mantelHaenszel = {
-        label: `Mantel-Haenszel pooled ${measure.name} (crude: not adjusted for the covariates)`,
+        label: `Mantel-Haenszel pooled ${measure.name} (crude: not adjusted for the covariates)${measure.code === 'RD' ? `, limits from the ${variances[0]?.label ?? 'Sato (1989) variance'}` : ''}`,
         pooled: intervalCell(pooled, measure.kind, 'mh-pooled'),
+        alternative: measure.code === 'RD' && variances[1]
+          ? { label: `With the ${variances[1].label}`, pooled: intervalCell({ estimate: pooled.estimate, lower: variances[1].lower, upper: variances[1].upper }, measure.kind, 'mh-pooled-greenland-robins') }
+          : null,
         homogeneity:
           homogeneity && measure.code !== 'RD'
             ? `${homogeneityName} of homogeneity: χ² = ${formatNumber(homogeneity.statistic, 'statistic')} on ${homogeneity.df} df, p ${formatP(homogeneity.p).startsWith('<') ? formatP(homogeneity.p) : `= ${formatP(homogeneity.p)}`}`
@@ -680,8 +685,10 @@ export function resultCsv(result: Result, spec: Spec): string {
     const pooled: [string, { estimate: number | null; lower: number | null; upper: number | null } | null][] = [
       ['Mantel-Haenszel OR (crude)', tables.mantelHaenszel.oddsRatio],
       ['Mantel-Haenszel RR (crude)', tables.mantelHaenszel.riskRatio],
-      ['Mantel-Haenszel RD (crude)', tables.mantelHaenszel.riskDifference],
     ];
+    // The pooled RD once per published variance, each labelled (Sato 1989, Greenland-Robins 1985).
+    const rd = tables.mantelHaenszel.riskDifference;
+    if (rd) for (const entry of tables.mantelHaenszel.riskDifferenceVariances ?? []) pooled.push([`Mantel-Haenszel RD (crude), ${entry.label}`, { estimate: rd.estimate, lower: entry.lower, upper: entry.upper }]);
     for (const [name, value] of pooled) if (value) rows.push({ section: 'stratified', measure: name, estimate: value.estimate, lower: value.lower, upper: value.upper });
   }
   (result.slopes ?? []).forEach((slope) => {
