@@ -32,7 +32,8 @@ try {
   const { ownerDb, closeOwnerDb } = await import('../tests/support/factories');
   const { sequelize, withIdentity } = await import('../src/lib/server/db');
   const { createAnalysis, analysableVersions } = await import('../src/features/analyses/analyses.server');
-  const { executeRun, startRun } = await import('../src/features/runs/runs.server');
+  const { startRun } = await import('../src/features/runs/runs.server');
+  const { executeRun } = await import('../src/features/runs/executeRun');
   await seedDemo(ownerDb());
   await seedDemoExtracts();
   const [analyst] = await ownerDb().query<{ id: string }>("SELECT id FROM users WHERE email = 'analyst@tern-valley.example'", { type: 'SELECT' as never });

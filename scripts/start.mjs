@@ -88,7 +88,7 @@ async function shutdown(code = 0) {
 process.on('SIGINT', () => shutdown(0));
 process.on('SIGTERM', () => shutdown(0));
 
-for (const [name, script] of [['mail', 'src/lib/server/mailServer.ts'], ['worker', 'src/lib/server/worker.ts']]) {
+for (const [name, script] of [['mail', 'src/lib/server/mailServer.ts'], ['worker', 'src/features/runs/runWorker.ts']]) {
   if (existsSync(path.join(root, script))) launch(name, 'npx', ['tsx', script]);
 }
 if (dev) launch('app', 'npx', ['astro', 'dev', '--host', host, '--port', String(port)]);

@@ -6,6 +6,7 @@ import { AppError } from './lib/server/errors';
 import { logger } from './lib/server/logger';
 import { addNonceToScripts, securityHeaders } from './lib/server/securityHeaders';
 import { resolveSession } from './lib/server/session';
+import { resolveApiToken } from './features/auth/apiTokens.server';
 
 /** Gives each request an id and a CSP nonce, and logs its outcome (no bodies, no cookies). */
 const requestContext = defineMiddleware(async (context, next) => {
@@ -33,7 +34,7 @@ const session = defineMiddleware(async (context, next) => {
     request: context.request,
     url: context.url,
     clientAddress: clientAddress(context),
-  });
+  }, { verifyBearer: resolveApiToken });
   context.locals.user = resolved.user;
   context.locals.session = resolved.session;
   context.locals.db = scopedTo(resolved.user?.id ?? null);

@@ -1,7 +1,10 @@
 import PgBoss from 'pg-boss';
 import { env } from '../../src/lib/server/env';
-import { QUEUE_SCHEMA, RUN_QUEUE } from '../../src/lib/server/queue';
 import type { Migration } from '../migrate';
+
+// Frozen as this migration created them: a migration never follows live constants.
+const QUEUE_SCHEMA = 'pgboss';
+const RUN_QUEUE = 'analysis-run';
 
 /**
  * Analyses (a question and its specification, pinned to one extract version), runs (one

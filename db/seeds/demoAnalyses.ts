@@ -10,7 +10,8 @@
 import { QueryTypes } from 'sequelize';
 import { createAnalysis } from '../../src/features/analyses/analyses.server';
 import { reviewedRun, submitForReview } from '../../src/features/review/review.server';
-import { executeRun, getRun, startRun } from '../../src/features/runs/runs.server';
+import { executeRun } from '../../src/features/runs/executeRun';
+import { getRun, startRun } from '../../src/features/runs/runs.server';
 import { sequelize, withIdentity } from '../../src/lib/server/db';
 import type { Spec } from '../../src/engine/boundary/schemas';
 import { DEMO_USERS, demoEmail } from './demo';

@@ -6,7 +6,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
 import { generateCallBackCohort } from '../../src/features/extracts/demoCohorts';
-import { executeRun } from '../../src/features/runs/runs.server';
+import { executeRun } from '../../src/features/runs/executeRun';
 import { hashPassword } from '../../src/lib/server/passwords';
 import { startServer, type ServerHandle } from '../browser/harness';
 import { makeReadyExtract } from '../support/extractFactory';

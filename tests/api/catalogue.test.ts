@@ -6,8 +6,8 @@
 import { readdirSync, readFileSync, statSync } from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { OPERATIONS } from '../../src/lib/server/apiCatalogue';
-import { openApiDocument } from '../../src/lib/server/openapi';
+import { OPERATIONS } from '../../src/features/api-docs/apiCatalogue';
+import { openApiDocument } from '../../src/features/api-docs/openapi';
 
 const apiRoot = path.resolve(import.meta.dirname, '../../src/pages/api');
 

@@ -8,7 +8,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
 import { generateCallBackCohort } from '../../src/features/extracts/demoCohorts';
-import { executeRun } from '../../src/features/runs/runs.server';
+import { executeRun } from '../../src/features/runs/executeRun';
 import { sequelize, withIdentity } from '../../src/lib/server/db';
 import { hashPassword } from '../../src/lib/server/passwords';
 import { startServer, type ServerHandle } from '../browser/harness';

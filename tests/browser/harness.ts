@@ -46,7 +46,7 @@ export interface ServerHandle {
 
 /** Starts a job worker process (npm run worker); kill it with `stop`. */
 export function startWorker(): { child: ChildProcess; stop: () => Promise<void> } {
-  const child = spawn('npx', ['tsx', path.join(root, 'src/lib/server/worker.ts')], {
+  const child = spawn('npx', ['tsx', path.join(root, 'src/features/runs/runWorker.ts')], {
     cwd: root,
     env: process.env,
     stdio: 'ignore',

@@ -11,7 +11,8 @@ import { runAnalysis } from '../../src/engine';
 import { createAnalysis } from '../../src/features/analyses/analyses.server';
 import { generateCallBackCohort } from '../../src/features/extracts/demoCohorts';
 import { loadColumns, toEngineData } from '../../src/features/extracts/extracts.server';
-import { columnRoles, executeRun, getRun, specHash, startRun, startVerification } from '../../src/features/runs/runs.server';
+import { executeRun } from '../../src/features/runs/executeRun';
+import { columnRoles, getRun, specHash, startRun, startVerification } from '../../src/features/runs/runs.server';
 import { cautionText } from '../../src/lib/cautions';
 import { sequelize, withIdentity } from '../../src/lib/server/db';
 import { makeReadyExtract } from '../support/extractFactory';
@@ -96,7 +97,7 @@ describe('a run', () => {
 describe('a worker that dies mid-run', () => {
   let worker: ChildProcess | null = null;
   const startWorker = () => {
-    const child = spawn('npx', ['tsx', path.join(root, 'src/lib/server/worker.ts')], { cwd: root, env: process.env, stdio: 'ignore', detached: true });
+    const child = spawn('npx', ['tsx', path.join(root, 'src/features/runs/runWorker.ts')], { cwd: root, env: process.env, stdio: 'ignore', detached: true });
     worker = child;
     return child;
   };
@@ -108,7 +109,6 @@ describe('a worker that dies mid-run', () => {
     const long = { ...spec, ci: { level: 0.95, method: 'bootstrap' as const, replicates: 20_000, seed: 7 } };
     const { id } = await newAnalysis(long);
     const first = await queue(id);
-    await first.enqueue();
     const child = startWorker();
     // Wait until the worker reports bootstrap progress.
     let run = await withIdentity(analystId, (t) => getRun(t, first.runId, { withResult: false }));
@@ -129,7 +129,6 @@ describe('a worker that dies mid-run', () => {
     // A retry is a new run; a fresh worker takes it.
     await ownerDb().query(`UPDATE analyses SET spec = CAST(:spec AS jsonb) WHERE id = :id`, { replacements: { id, spec: JSON.stringify(spec) } });
     const second = await queue(id);
-    await second.enqueue();
     startWorker();
     let retry = await withIdentity(analystId, (t) => getRun(t, second.runId, { withResult: false }));
     for (let i = 0; i < 300 && retry && (retry.status === 'queued' || retry.status === 'running'); i += 1) {

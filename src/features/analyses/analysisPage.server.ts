@@ -1,14 +1,15 @@
-/** What the analysis pages need in one read: the analysis, its runs, and its form columns. */
+/**
+ * What the analysis pages need in one read: the analysis and its form columns. The runs
+ * belong to the runs area, which depends on analyses; the page adds them (listRuns).
+ */
 import { QueryTypes, type Transaction } from 'sequelize';
 import { sequelize } from '../../lib/server/db';
 import type { ColumnProfile, DictionaryEntry } from '../extracts/extracts.schema';
-import { listRuns, type RunView } from '../runs/runs.server';
 import { getAnalysis, type AnalysisView } from './analyses.server';
 import { formColumns, type FormColumn } from './specForm';
 
 export interface AnalysisPage {
   analysis: AnalysisView;
-  runs: RunView[];
   columns: FormColumn[];
 }
 
@@ -21,7 +22,6 @@ export async function loadAnalysisPage(transaction: Transaction, analysisId: str
   );
   return {
     analysis,
-    runs: await listRuns(transaction, analysisId),
     columns: formColumns(version?.dictionary ?? [], version?.profile ?? []),
   };
 }

@@ -4,7 +4,7 @@ import { useState, type SyntheticEvent } from 'react';
 import { ApiError, apiFetch } from '../../lib/client/api';
 import { QueryRoot } from '../../components/ui/QueryRoot';
 import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
-import type { ApiTokenItem } from '../../lib/server/apiTokens';
+import type { ApiTokenItem } from './apiTokens.server';
 
 function Tokens() {
   const client = useQueryClient();

@@ -637,6 +637,19 @@ export function toEngineData(
   return { rowCount, columns: out };
 }
 
+/**
+ * The columns an analysis uses, engine-ready: the one way another area (runs) reads an
+ * extract version's data. The version must be visible to the transaction's identity.
+ */
+export async function loadAnalysisData(
+  transaction: Transaction,
+  versionId: string,
+  roles: Record<string, 'categorical' | 'continuous'>,
+): Promise<EngineData> {
+  const loaded = await loadColumns(transaction, versionId, Object.keys(roles));
+  return toEngineData(loaded.rowCount, loaded.columns, roles);
+}
+
 const previewCache = new Map<string, { rowCount: number; columns: StoredColumn[]; order: Map<string, Uint32Array> }>();
 const PREVIEW_CACHE_SIZE = 4;
 

@@ -1,25 +1,25 @@
 /**
  * Runs: one execution of the engine on an analysis's pinned extract version. Starting a
  * run snapshots the specification (with its hash), the extract's content hash and the
- * caution shown, and queues a job; a worker executes it as the analyst who started it,
- * reports progress, and stores the full result, or a failure with its reason. A worker
- * that dies leaves its run marked failed by the stale-run sweep, never stuck as running.
+ * caution shown, and queues its job in the same transaction, so a run never exists
+ * without its job. A worker (runWorker.ts → executeRun.ts) executes it as the analyst who
+ * started it, reports progress, and stores the full result, or a failure with its reason.
+ * A run whose worker died, or whose job is gone, is marked failed by the stale-run sweep,
+ * never left running or queued forever.
  */
-import { hostname } from 'node:os';
 import { QueryTypes, type Transaction } from 'sequelize';
-import { AnalysisCancelledError, ENGINE_VERSION, runAnalysis } from '../../engine';
+import { ENGINE_VERSION } from '../../engine';
 import type { Spec } from '../../engine/boundary/schemas';
 import { CAUTION_VERSION, cautionText } from '../../lib/cautions';
-import { sequelize, withIdentity } from '../../lib/server/db';
+import { sequelize } from '../../lib/server/db';
 import { env } from '../../lib/server/env';
-import { conflict, notFound } from '../../lib/server/errors';
+import { AppError, conflict, notFound } from '../../lib/server/errors';
 import { logger } from '../../lib/server/logger';
-import { enqueueRun } from '../../lib/server/queue';
 import { recordAudit, type AuditAction } from '../audit/audit.server';
-import { loadColumns, toEngineData } from '../extracts/extracts.server';
 import { specHash } from './canonical';
 import type { ReviewState } from '../review/review.schema';
-import { compareRuns, verificationSentence, type RunFacts, type Verification } from './runVerification';
+import { enqueueRun, type RunEnqueuer } from './runQueue';
+import type { Verification } from './runVerification';
 
 export type RunStatus = 'queued' | 'running' | 'succeeded' | 'failed' | 'cancelled';
 
@@ -29,12 +29,18 @@ export interface Actor {
 }
 
 export { canonicalJson, specHash } from './canonical';
+export { columnRoles } from './runInputs';
+
+/** How a start puts its run's job on the queue (tests pass one that fails). */
+export interface StartOptions {
+  enqueue?: RunEnqueuer;
+}
 
 /**
  * Creates a queued run and puts it on the queue. A run is exploratory unless the
  * analysis was prespecified before the pinned extract version was uploaded.
  */
-export async function startRun(transaction: Transaction, actor: Actor, analysisId: string): Promise<QueuedRun> {
+export async function startRun(transaction: Transaction, actor: Actor, analysisId: string, options: StartOptions = {}): Promise<QueuedRun> {
   const [analysis] = await sequelize.query<{
     initiative_id: string; extract_version_id: string; spec: Spec; prespecified_at: Date | null; sha256: string; uploaded_at: Date; status: string;
   }>(
@@ -48,7 +54,7 @@ export async function startRun(transaction: Transaction, actor: Actor, analysisI
   return queueRun(transaction, actor, {
     analysisId, initiativeId: analysis.initiative_id, extractVersionId: analysis.extract_version_id, extractSha256: analysis.sha256,
     spec: analysis.spec, exploratory, seed: analysis.spec.ci.seed ?? (analysis.spec.ci.method === 'bootstrap' ? 1 : null), verifiesRunId: null,
-  }, 'run.started', { analysisId });
+  }, 'run.started', { analysisId }, options);
 }
 
 /**
@@ -56,7 +62,7 @@ export async function startRun(transaction: Transaction, actor: Actor, analysisI
  * version and seed, started by the auditor. When it ends, the worker compares the two
  * (runVerification.ts) and stores the comparison on the re-run.
  */
-export async function startVerification(transaction: Transaction, actor: Actor, runId: string): Promise<QueuedRun> {
+export async function startVerification(transaction: Transaction, actor: Actor, runId: string, options: StartOptions = {}): Promise<QueuedRun> {
   const [original] = await sequelize.query<{
     id: string; analysis_id: string; initiative_id: string; extract_version_id: string; status: RunStatus; spec: Spec;
     exploratory: boolean; seed: string | null; engine_version: string | null; sha256: string;
@@ -70,13 +76,11 @@ export async function startVerification(transaction: Transaction, actor: Actor, 
   return queueRun(transaction, actor, {
     analysisId: original.analysis_id, initiativeId: original.initiative_id, extractVersionId: original.extract_version_id,
     extractSha256: original.sha256, spec: original.spec, exploratory: original.exploratory, seed: seedOf(original.seed), verifiesRunId: original.id,
-  }, 'run.verification-started', { verifiesRunId: original.id, originalEngineVersion: original.engine_version, seed: seedOf(original.seed) });
+  }, 'run.verification-started', { verifiesRunId: original.id, originalEngineVersion: original.engine_version, seed: seedOf(original.seed) }, options);
 }
 
 export interface QueuedRun {
   runId: string;
-  /** Puts the run on the job queue; call it after the transaction that created it commits. */
-  enqueue: () => Promise<void>;
 }
 
 interface NewRun {
@@ -84,8 +88,14 @@ interface NewRun {
   seed: number | null; verifiesRunId: string | null;
 }
 
-/** Inserts a queued run with its snapshot, hashes and caution, and records it as started. */
-async function queueRun(transaction: Transaction, actor: Actor, run: NewRun, action: AuditAction, extra: Record<string, unknown>): Promise<QueuedRun> {
+/**
+ * Inserts a queued run with its snapshot, hashes and caution, records it as started, and
+ * queues its job, all in the caller's transaction. When the queue refuses, the start
+ * fails as a whole (the transaction rolls back): no run is left without a job.
+ */
+async function queueRun(
+  transaction: Transaction, actor: Actor, run: NewRun, action: AuditAction, extra: Record<string, unknown>, options: StartOptions,
+): Promise<QueuedRun> {
   const hash = specHash(run.spec);
   const caution = cautionText();
   const [row] = await sequelize.query<{ id: string }>(
@@ -107,16 +117,17 @@ async function queueRun(transaction: Transaction, actor: Actor, run: NewRun, act
       exploratory: run.exploratory, cautionText: caution, cautionVersion: CAUTION_VERSION,
     },
   });
-  return {
-    runId: row.id,
-    enqueue: async () => {
-      await enqueueRun({ runId: row.id, startedBy: actor.id });
-    },
-  };
+  try {
+    await (options.enqueue ?? enqueueRun)(transaction, { runId: row.id, startedBy: actor.id });
+  } catch (error) {
+    logger.error({ err: error, runId: row.id }, 'run job could not be queued; the start is rolled back');
+    throw new AppError(503, 'queue-unavailable', 'The run could not be queued, so it was not started and nothing was saved. Try again in a moment.');
+  }
+  return { runId: row.id };
 }
 
 /** A bigint seed column as a number (seeds are 32-bit). */
-const seedOf = (seed: string | null): number | null => (seed === null ? null : Number(seed));
+export const seedOf = (seed: string | null): number | null => (seed === null ? null : Number(seed));
 
 /** The re-runs that verified a run, newest first. */
 export async function listVerifications(transaction: Transaction, runId: string): Promise<RunView[]> {
@@ -187,7 +198,8 @@ const RUN_COLUMNS = `r.id, r.analysis_id, r.initiative_id, r.extract_version_id,
 
 /**
  * One run, or null when not visible. A run that reads as running but whose worker has
- * stopped reporting is swept (marked failed) first, so none reads as running forever.
+ * stopped reporting, or as queued for longer than the stale timeout, is swept first (marked
+ * failed when its worker or its job is gone), so none reads as running or queued forever.
  */
 export async function getRun(transaction: Transaction, runId: string, options: { withResult?: boolean } = {}): Promise<RunView | null> {
   const columns = options.withResult === false ? `${RUN_COLUMNS}, NULL AS result` : `r.*, ${REVIEW_STATE_COLUMN}`;
@@ -195,7 +207,7 @@ export async function getRun(transaction: Transaction, runId: string, options: {
   const read = async () =>
     (await sequelize.query<RunRow>(`${select} WHERE r.id = :id`, { replacements: { id: runId }, type: QueryTypes.SELECT, transaction }))[0];
   let row = await read();
-  if (row?.status === 'running' && isStale(row.heartbeat_at)) {
+  if ((row?.status === 'running' && isStale(row.heartbeat_at)) || (row?.status === 'queued' && isStale(row.queued_at))) {
     await sweepStaleRuns(transaction);
     row = await read();
   }
@@ -238,171 +250,13 @@ export async function requestCancel(transaction: Transaction, actor: Actor, runI
   return 'running';
 }
 
-/** Marks runs whose worker stopped reporting as failed (any initiative); returns their ids. */
+/**
+ * Marks as failed the runs whose worker stopped reporting, and the queued runs whose job
+ * is gone from the queue (any initiative; policies/rls/008_run_sweep.sql); returns their ids.
+ */
 export async function sweepStaleRuns(transaction?: Transaction): Promise<string[]> {
   const rows = await sequelize.query<{ app_fail_stale_runs: string }>('SELECT app_fail_stale_runs(:seconds)', {
     replacements: { seconds: env.CROSSGRAIN_RUN_STALE_SECONDS }, type: QueryTypes.SELECT, transaction,
   });
   return rows.map((r) => r.app_fail_stale_runs);
-}
-
-/** The roles the engine needs for each column a specification uses. */
-export function columnRoles(spec: Spec): Record<string, 'categorical' | 'continuous'> {
-  const roles: Record<string, 'categorical' | 'continuous'> = {
-    [spec.outcome.column]: spec.outcome.event !== undefined ? 'categorical' : 'continuous',
-    [spec.exposure.column]: 'categorical',
-    [spec.modifier.column]: spec.modifier.type,
-  };
-  for (const covariate of spec.covariates) roles[covariate.column] = covariate.type;
-  return roles;
-}
-
-/** Compares a finished verification re-run with the run it verifies, and records the outcome. */
-async function storeVerification(transaction: Transaction, rerunId: string, originalId: string, actorId: string, rerun: RunFacts): Promise<void> {
-  const [original] = await sequelize.query<{ initiative_id: string; extract_sha256: string; spec_hash: string; engine_version: string | null; seed: string | null; result: unknown }>(
-    'SELECT initiative_id, extract_sha256, spec_hash, engine_version, seed, result FROM runs WHERE id = :id',
-    { replacements: { id: originalId }, type: QueryTypes.SELECT, transaction },
-  );
-  if (!original) return;
-  const verification = compareRuns(
-    { extractSha256: original.extract_sha256, specHash: original.spec_hash, engineVersion: original.engine_version, seed: seedOf(original.seed), result: original.result },
-    rerun,
-  );
-  const resultCheck = verification.checks.find((check) => check.name === 'result');
-  await sequelize.query('UPDATE runs SET verification = CAST(:verification AS jsonb) WHERE id = :id', {
-    replacements: { id: rerunId, verification: JSON.stringify(verification) }, transaction,
-  });
-  await recordAudit(transaction, {
-    action: 'run.verified', actorId, subjectType: 'run', subjectId: originalId, initiativeId: original.initiative_id,
-    details: {
-      rerunId, reproduced: verification.reproduced, summary: verificationSentence(verification),
-      resultSha256: resultCheck?.original, rerunResultSha256: resultCheck?.rerun,
-      differenceCount: verification.differenceCount,
-    },
-  });
-}
-
-const HEARTBEAT_MS = 2_000;
-const PROGRESS_WRITE_MS = 400;
-
-/**
- * Executes one run, as the worker does for each job: claim it, load its columns, run the
- * engine with progress and cancellation, and store the outcome with its audit event.
- */
-export async function executeRun(runId: string, startedBy: string, options: { workerName?: string; threads?: number } = {}): Promise<RunStatus> {
-  const worker = options.workerName ?? `${hostname()}:${process.pid}`;
-  const claimed = await withIdentity(startedBy, async (t) => {
-    // Read under the starter's identity: row-level security confirms they may still run it.
-    // Analysts execute their runs; auditors only the re-runs that verify a past run.
-    const [run] = await sequelize.query<{
-      status: RunStatus; initiative_id: string; spec: Spec; extract_version_id: string; spec_hash: string; extract_sha256: string;
-      caution_text: string; seed: string | null; verifies_run_id: string | null;
-    }>(
-      `SELECT status, initiative_id, spec, extract_version_id, spec_hash, extract_sha256, caution_text, seed, verifies_run_id FROM runs
-        WHERE id = :id AND started_by = :startedBy
-          AND (initiative_id IN (SELECT app_analyst_initiative_ids())
-               OR (verifies_run_id IS NOT NULL AND initiative_id IN (SELECT app_auditor_initiative_ids())))
-        FOR UPDATE`,
-      { replacements: { id: runId, startedBy }, type: QueryTypes.SELECT, transaction: t },
-    );
-    if (!run || run.status !== 'queued') return null;
-    await sequelize.query(
-      `UPDATE runs SET status = 'running', started_at = now(), heartbeat_at = now(), worker = :worker,
-              progress = '{"stage": "loading", "fraction": 0}'::jsonb WHERE id = :id`,
-      { replacements: { id: runId, worker }, transaction: t },
-    );
-    return run;
-  });
-  if (!claimed) return 'cancelled';
-
-  const controller = new AbortController();
-  let lastProgress = { stage: 'loading', fraction: 0 };
-  let writing = false;
-  const report = async () => {
-    if (writing) return;
-    writing = true;
-    try {
-      const [state] = await withIdentity(startedBy, (t) =>
-        sequelize.query<{ cancel_requested: boolean; status: string }>(
-          `UPDATE runs SET heartbeat_at = now(), progress = CAST(:progress AS jsonb) WHERE id = :id AND status = 'running'
-           RETURNING cancel_requested, status`,
-          { replacements: { id: runId, progress: JSON.stringify(lastProgress) }, type: QueryTypes.SELECT, transaction: t },
-        ),
-      );
-      if (!state || state.cancel_requested) controller.abort();
-    } catch (error) {
-      logger.warn({ err: error, runId }, 'progress report failed');
-    } finally {
-      writing = false;
-    }
-  };
-  const heartbeat = setInterval(() => void report(), HEARTBEAT_MS);
-  let lastWrite = 0;
-
-  const finish = async (status: RunStatus, fields: { result?: unknown; error?: { code: string; message: string }; seed?: number | null }) => {
-    clearInterval(heartbeat);
-    await withIdentity(startedBy, async (t) => {
-      const [updated] = await sequelize.query<{ id: string }>(
-        `UPDATE runs SET status = :status, finished_at = now(), heartbeat_at = now(), engine_version = :engineVersion,
-                result = CAST(:result AS jsonb), error = CAST(:error AS jsonb), seed = coalesce(:seed, seed),
-                progress = CAST(:progress AS jsonb)
-          WHERE id = :id AND status = 'running' RETURNING id`,
-        {
-          replacements: {
-            id: runId, status, engineVersion: ENGINE_VERSION,
-            result: fields.result === undefined ? null : JSON.stringify(fields.result),
-            error: fields.error ? JSON.stringify(fields.error) : null, seed: fields.seed ?? null,
-            progress: JSON.stringify({ stage: status === 'succeeded' ? 'done' : status, fraction: status === 'succeeded' ? 1 : lastProgress.fraction }),
-          },
-          type: QueryTypes.SELECT,
-          transaction: t,
-        },
-      );
-      // Already swept as failed (the worker was presumed dead): leave that record as it is.
-      if (!updated) return;
-      await recordAudit(t, {
-        action: status === 'succeeded' ? 'run.finished' : status === 'cancelled' ? 'run.cancelled' : 'run.failed',
-        actorId: startedBy, subjectType: 'run', subjectId: runId, initiativeId: claimed.initiative_id,
-        details: {
-          extractSha256: claimed.extract_sha256, specHash: claimed.spec_hash, engineVersion: ENGINE_VERSION, worker,
-          cautionText: claimed.caution_text, seed: fields.seed ?? null, error: fields.error ?? null,
-        },
-      });
-      if (status === 'succeeded' && claimed.verifies_run_id) {
-        await storeVerification(t, runId, claimed.verifies_run_id, startedBy, {
-          extractSha256: claimed.extract_sha256, specHash: claimed.spec_hash, engineVersion: ENGINE_VERSION,
-          seed: fields.seed ?? seedOf(claimed.seed),
-          // Compared as stored: the same JSON round trip the original's result went through.
-          result: JSON.parse(JSON.stringify(fields.result)),
-        });
-      }
-    });
-    return status;
-  };
-
-  try {
-    const roles = columnRoles(claimed.spec);
-    const loaded = await withIdentity(startedBy, (t) => loadColumns(t, claimed.extract_version_id, Object.keys(roles)));
-    const data = toEngineData(loaded.rowCount, loaded.columns, roles);
-    const result = await runAnalysis(data, claimed.spec as never, {
-      signal: controller.signal,
-      threads: options.threads ?? env.CROSSGRAIN_ENGINE_THREADS,
-      onProgress: (event) => {
-        lastProgress = { stage: event.stage, fraction: event.fraction };
-        if (Date.now() - lastWrite > PROGRESS_WRITE_MS) {
-          lastWrite = Date.now();
-          void report();
-        }
-      },
-    });
-    return await finish('succeeded', { result, seed: (result as { seed?: number | null }).seed ?? null });
-  } catch (error) {
-    if (error instanceof AnalysisCancelledError || controller.signal.aborted) {
-      return finish('cancelled', { error: { code: 'cancelled', message: 'Cancelled while running. Nothing partial was kept.' } });
-    }
-    const code = (error as { code?: string }).code ?? 'engine-error';
-    const message = error instanceof Error ? error.message : 'The engine stopped with an unexpected error.';
-    logger.warn({ runId, code }, 'run failed');
-    return finish('failed', { error: { code, message } });
-  }
 }

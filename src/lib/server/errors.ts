@@ -1,8 +1,13 @@
 /**
  * The one error vocabulary. Every known failure is an AppError with an HTTP status and a
- * stable machine-readable code; endpoints turn it into
- * `{ "error": { "code", "message", "details"? } }`. Anything else becomes a logged 500.
+ * stable machine-readable code in kebab-case, and a message written for people; endpoints
+ * turn it into `{ "error": { "code", "message", "details"?, "requestId" } }`. Anything
+ * else becomes a logged 500 (stack in the log, a generic message with the request id).
+ * Other vocabularies are translated where they leave their area: an extract refusal in
+ * extracts.server.ts, an engine refusal stored on a failed run in runs/runFailure.ts.
  */
+export const ERROR_CODE = /^[a-z]+(-[a-z0-9]+)*$/;
+
 export class AppError extends Error {
   constructor(
     readonly status: number,

@@ -19,16 +19,19 @@ export function errorResponse(error: unknown, requestId?: string): Response {
     if (error.details !== undefined) body.error.details = error.details;
     return json(body, error.status, error.headers);
   }
+  // The stack goes to the log only; the client gets a generic message and the reference.
   logger.error({ err: error, requestId }, 'unhandled error');
+  const reference = requestId ? ` under reference ${requestId}` : '';
   return json(
-    { error: { code: 'internal-error', message: 'Something went wrong on our side. The error has been logged.', requestId } },
+    { error: { code: 'internal-error', message: `Something went wrong on our side. The error has been logged${reference}.`, requestId } },
     500,
   );
 }
 
 /**
- * Wraps an endpoint once: known errors become their status and code, anything else a
- * logged 500 without a stack trace in the body.
+ * Wraps an endpoint once: known errors (AppError, in the one kebab-case vocabulary)
+ * become their status and code; anything else, a database or engine error included, a
+ * logged 500 whose body holds neither its message nor its stack.
  */
 export function endpoint(handler: (context: APIContext) => Promise<Response> | Response): APIRoute {
   return async (context) => {

@@ -20,7 +20,7 @@ import { simpleParser } from 'mailparser';
 import { SMTPServer, type SMTPServerDataStream, type SMTPServerError, type SMTPServerSession } from 'smtp-server';
 import { env } from './env';
 import { logger } from './logger';
-import { addressText, mailStoreDir, messagePaths, newMessageId, type MessageSummary } from './outbox';
+import { addressText, mailStoreDir, messagePaths, newMessageId, type MessageSummary } from './mailStore';
 
 /** The largest message the server accepts: invitations and resets are a few kilobytes. */
 export const MAIL_SIZE_LIMIT_BYTES = 10 * 1024 * 1024;

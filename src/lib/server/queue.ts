@@ -1,22 +1,16 @@
 /**
  * The job queue: pg-boss on our own PostgreSQL, so several app servers and workers on
- * several machines share it without another service. Its schema and the run queue are
- * created by a migration as the owner; the application connects as the app role and
- * never migrates it.
+ * several machines share it without another service. Its schema and queues are created
+ * by migrations as the owner; the application connects as the app role and never
+ * migrates it. Which queues exist and what their jobs carry belongs to the product areas
+ * (the run queue: src/features/runs/runQueue.ts).
  */
 import PgBoss from 'pg-boss';
+import { QueryTypes, type Transaction } from 'sequelize';
+import { sequelize } from './db';
 import { env } from './env';
 
-export const RUN_QUEUE = 'analysis-run';
 export const QUEUE_SCHEMA = 'pgboss';
-
-export interface RunJob {
-  runId: string;
-  /** The analyst who started the run: the worker acts as them, and row-level security checks it. */
-  startedBy: string;
-}
-
-let sender: PgBoss | null = null;
 
 /** A pg-boss instance for the app role. Workers supervise (expire and archive jobs); senders do not. */
 export function createQueue(options: { supervise?: boolean } = {}): PgBoss {
@@ -39,11 +33,36 @@ export function createQueue(options: { supervise?: boolean } = {}): PgBoss {
   return boss;
 }
 
-/** Puts a run on the queue (one shared sender per process). */
-export async function enqueueRun(job: RunJob): Promise<string | null> {
-  if (!sender) {
-    sender = createQueue();
-    await sender.start();
-  }
-  return sender.send(RUN_QUEUE, { ...job }, { retryLimit: 0, expireInSeconds: 3600 });
+/**
+ * pg-boss's database interface on an open transaction: its SQL runs on the
+ * transaction's connection, so what it writes commits or rolls back with the rest.
+ */
+export function transactionDb(transaction: Transaction): PgBoss.Db {
+  return {
+    executeSql: async (text, values) => {
+      // pg reads undefined as null; sequelize's bind needs it said.
+      const bind = values.map((value: unknown) => (value === undefined ? null : value));
+      const rows = await sequelize.query<Record<string, unknown>>(text, { bind, type: QueryTypes.SELECT, transaction });
+      return { rows };
+    },
+  };
+}
+
+/** One sender per process; it never opens connections of its own (every send names a transaction). */
+let sender: PgBoss | null = null;
+
+/**
+ * Puts a job on a queue inside the caller's transaction: the job exists exactly when
+ * the rows written beside it do. Throws when the queue refused it (no such queue).
+ */
+export async function sendInTransaction(
+  transaction: Transaction,
+  queue: string,
+  data: object,
+  options: Omit<PgBoss.SendOptions, 'db'> = {},
+): Promise<string> {
+  sender ??= createQueue();
+  const id = await sender.send(queue, data, { ...options, db: transactionDb(transaction) });
+  if (!id) throw new Error(`The queue "${queue}" did not accept the job.`);
+  return id;
 }

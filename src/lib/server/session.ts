@@ -177,16 +177,27 @@ interface ResolveContext {
   clientAddress: string;
 }
 
+/** Who a bearer token stands for; null when unknown or revoked. */
+export type BearerVerifier = (
+  token: string,
+  use: { method: string; path: string; clientAddress: string },
+) => Promise<{ user: SessionUser; session: SessionInfo } | null>;
+
 /**
- * Works out who is asking: a session cookie, or a personal API token in the
- * Authorization header. Expired, idle or deactivated sessions are ended and give null.
+ * Works out who is asking: a session cookie, or a bearer token in the Authorization
+ * header checked by `verifyBearer` (the middleware passes the personal API tokens'
+ * verifier; without one a bearer token is anonymous). Expired, idle or deactivated
+ * sessions are ended and give null.
  */
-export async function resolveSession(context: ResolveContext): Promise<{ user: SessionUser | null; session: SessionInfo | null }> {
+export async function resolveSession(
+  context: ResolveContext,
+  options: { verifyBearer?: BearerVerifier } = {},
+): Promise<{ user: SessionUser | null; session: SessionInfo | null }> {
   const anonymous = { user: null, session: null };
   const authorization = context.request.headers.get('authorization');
   if (authorization?.startsWith('Bearer ')) {
-    const { resolveApiToken } = await import('./apiTokens');
-    const resolved = await resolveApiToken(authorization.slice('Bearer '.length).trim(), {
+    if (!options.verifyBearer) return anonymous;
+    const resolved = await options.verifyBearer(authorization.slice('Bearer '.length).trim(), {
       method: context.request.method,
       path: context.url.pathname,
       clientAddress: context.clientAddress,

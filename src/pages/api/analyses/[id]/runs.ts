@@ -29,6 +29,5 @@ export const POST = endpoint(async (context) => {
     authorize(user, 'run', 'Run', { initiativeId: analysis.initiativeId });
     return startRun(t, { id: user.id, clientAddress: clientAddress(context) }, id);
   });
-  await started.enqueue();
   return json({ runId: started.runId }, 202);
 });

@@ -1,4 +1,4 @@
-import { revokeApiToken } from '../../../../lib/server/apiTokens';
+import { revokeApiToken } from '../../../../features/auth/apiTokens.server';
 import { clientAddress, endpoint, noContent, requireUser, uuidParam } from '../../../../lib/server/http';
 
 /** DELETE /api/me/tokens/{id}: revokes one of the caller's tokens (204). */

@@ -1,5 +1,5 @@
 import { CreateApiTokenBody } from '../../../../features/auth/auth.schema';
-import { createApiToken, listApiTokens } from '../../../../lib/server/apiTokens';
+import { createApiToken, listApiTokens } from '../../../../features/auth/apiTokens.server';
 import { forbidden } from '../../../../lib/server/errors';
 import { clientAddress, endpoint, json, parseBody, requireUser } from '../../../../lib/server/http';
 

@@ -17,6 +17,5 @@ export const POST = endpoint(async (context) => {
     authorize(user, 'rerun', 'Run', { initiativeId: run.initiativeId });
     return startVerification(t, { id: user.id, clientAddress: clientAddress(context) }, runId);
   });
-  await started.enqueue();
   return json({ runId: started.runId }, 202);
 });

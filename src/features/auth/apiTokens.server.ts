@@ -4,10 +4,10 @@
  * is an audit event.
  */
 import { QueryTypes, type Transaction } from 'sequelize';
-import { recordAudit } from '../../features/audit/audit.server';
-import { sequelize, withIdentity } from './db';
-import { notFound } from './errors';
-import { hashToken, loadMemberships, newToken, type SessionInfo, type SessionUser } from './session';
+import { recordAudit } from '../audit/audit.server';
+import { sequelize, withIdentity } from '../../lib/server/db';
+import { notFound } from '../../lib/server/errors';
+import { hashToken, loadMemberships, newToken, type SessionInfo, type SessionUser } from '../../lib/server/session';
 
 export const API_TOKEN_PREFIX = 'cgt_';
 

@@ -1,56 +1,16 @@
 /**
- * The local mail store: the folder where the fake mail server (`mailServer.ts`) keeps
- * every message it receives, and the reader behind the local-only outbox pages.
- *
- * Each message is two files named by a server-chosen id:
- * - `<id>.eml`  the raw message as it arrived over SMTP;
- * - `<id>.json` a small summary (id, receivedAt, from, to, subject, size).
- * The server writes the .eml first and the .json last, each under a temporary name that
- * is then renamed, so a summary only ever points at a complete message.
- *
- * Ids start with the UTC arrival time, so sorting names sorts messages by arrival. They
- * are the only part of a path that comes from a request, so they are checked against a
- * strict pattern before any file is touched.
+ * The outbox: the local-only pages where administrators read the messages that the fake
+ * mail server kept (the store's format is in src/lib/server/mailStore.ts).
  */
-import { randomBytes } from 'node:crypto';
 import { readdir, readFile } from 'node:fs/promises';
-import path from 'node:path';
-import { simpleParser, type AddressObject, type EmailAddress } from 'mailparser';
+import { simpleParser } from 'mailparser';
 import { z } from 'zod';
-import { env } from './env';
-import { badRequest, notFound } from './errors';
-import { logger } from './logger';
+import { env } from '../../lib/server/env';
+import { badRequest, notFound } from '../../lib/server/errors';
+import { logger } from '../../lib/server/logger';
+import { addressText, isMessageId, mailStoreDir, MessageSummary, messagePaths, SUMMARY_FILE } from '../../lib/server/mailStore';
 
-/** `20260305T101112345Z-0f3a9c2b71de`: arrival time to the millisecond, then 48 random bits. */
-const MESSAGE_ID = /^\d{8}T\d{9}Z-[0-9a-f]{12}$/;
-const SUMMARY_FILE = /^(\d{8}T\d{9}Z-[0-9a-f]{12})\.json$/;
-
-/** The folder the fake mail server stores messages in: `${CROSSGRAIN_DATA_DIR}/mail`. */
-export function mailStoreDir(): string {
-  return path.resolve(env.CROSSGRAIN_DATA_DIR, 'mail');
-}
-
-/** True when `value` has the exact shape of an id the mail server hands out. */
-export function isMessageId(value: unknown): value is string {
-  return typeof value === 'string' && MESSAGE_ID.test(value);
-}
-
-/** A new message id for a message arriving at `now`. */
-export function newMessageId(now: Date = new Date()): string {
-  const stamp = now.toISOString().replace(/[-:.]/g, '');
-  return `${stamp}-${randomBytes(6).toString('hex')}`;
-}
-
-/** What the store keeps beside each raw message. */
-export const MessageSummary = z.object({
-  id: z.string().regex(MESSAGE_ID),
-  receivedAt: z.iso.datetime(),
-  from: z.string(),
-  to: z.array(z.string()),
-  subject: z.string(),
-  size: z.number().int().nonnegative(),
-});
-export type MessageSummary = z.infer<typeof MessageSummary>;
+export { isMessageId, mailStoreDir, MessageSummary, messagePaths, newMessageId } from '../../lib/server/mailStore';
 
 /** One message as the recipient would see it. */
 export interface OutboxMessage {
@@ -110,17 +70,6 @@ interface StoreOptions {
   dir?: string;
 }
 
-/** The paths of one message's files, after checking the id (400 when it is malformed). */
-export function messagePaths(id: string, dir: string = mailStoreDir()): { eml: string; summary: string } {
-  if (!isMessageId(id)) throw badRequest('That is not a valid message id.');
-  const root = path.resolve(dir);
-  const eml = path.resolve(root, `${id}.eml`);
-  const summary = path.resolve(root, `${id}.json`);
-  // The pattern already rules out separators and dots; this keeps it true if the pattern changes.
-  if (path.dirname(eml) !== root || path.dirname(summary) !== root) throw badRequest('That is not a valid message id.');
-  return { eml, summary };
-}
-
 async function storedIds(dir: string): Promise<string[]> {
   let names: string[];
   try {
@@ -173,18 +122,6 @@ export async function listMessages(
     pageSize,
     pageCount: Math.max(1, Math.ceil(ids.length / pageSize)),
   };
-}
-
-function addressEntry(entry: EmailAddress): string {
-  if (entry.group) return `${entry.name}: ${entry.group.map(addressEntry).join(', ')};`;
-  if (!entry.address) return entry.name;
-  return entry.name ? `${entry.name} <${entry.address}>` : entry.address;
-}
-
-/** A parsed address header as people write it: `Name <address>, other@address`. */
-export function addressText(value: AddressObject | AddressObject[] | undefined): string {
-  if (!value) return '';
-  return (Array.isArray(value) ? value : [value]).flatMap((header) => header.value.map(addressEntry)).join(', ');
 }
 
 /** Every http(s) link in the message, HTML hrefs first, then bare URLs in the text. */

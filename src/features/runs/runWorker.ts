@@ -1,13 +1,16 @@
 /**
- * The job worker: `npm run worker` (and `npm start`, beside the app). Takes analysis runs
- * from the PostgreSQL-backed queue, one at a time, executes them, and sweeps runs whose
- * worker died. Any number of workers on any number of machines can share the queue.
+ * The run worker: `npm run worker` (and `npm start`, beside the app). Takes analysis runs
+ * from the PostgreSQL-backed queue, one at a time, executes them (executeRun.ts), and
+ * sweeps runs whose worker died or whose job is gone. Any number of workers on any number
+ * of machines can share the queue.
  */
 import { hostname } from 'node:os';
-import { executeRun, sweepStaleRuns } from '../../features/runs/runs.server';
-import { sequelize } from './db';
-import { logger } from './logger';
-import { createQueue, RUN_QUEUE, type RunJob } from './queue';
+import { sequelize } from '../../lib/server/db';
+import { logger } from '../../lib/server/logger';
+import { createQueue } from '../../lib/server/queue';
+import { executeRun } from './executeRun';
+import { RUN_QUEUE, type RunJob } from './runQueue';
+import { sweepStaleRuns } from './runs.server';
 
 const SWEEP_MS = 15_000;
 const name = `${hostname()}:${process.pid}`;
@@ -22,7 +25,7 @@ export async function startWorker(): Promise<{ stop: () => Promise<void> }> {
   });
   const sweep = setInterval(() => {
     sweepStaleRuns().then((ids) => {
-      if (ids.length) logger.warn({ runs: ids }, 'runs whose worker stopped were marked failed');
+      if (ids.length) logger.warn({ runs: ids }, 'runs whose worker stopped or whose job was gone were marked failed');
     }).catch((error: unknown) => logger.warn({ err: error }, 'stale-run sweep failed'));
   }, SWEEP_MS);
   logger.info({ worker: name }, 'worker ready');

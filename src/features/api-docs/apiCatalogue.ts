@@ -7,13 +7,13 @@
 import { z, type ZodType } from 'zod';
 import {
   CreateInitiativeBody, InitiativeItem, InviteUserBody, SetMembershipBody, UpdateInitiativeBody, UpdateUserBody, UserListItem,
-} from '../../features/admin/admin.schema';
-import { ApiTokenView, CreateApiTokenBody, CreatedApiToken, ForgotPasswordBody, MeResponse, SetPasswordBody, SignInBody } from '../../features/auth/auth.schema';
-import { ArchiveBody, ConfirmVersionBody, NewExtractQuery, NewVersionQuery, RowsQuery, UploadAccepted } from '../../features/extracts/extracts.schema';
-import { AnalysisBody, Created, DownloadQuery, RunAccepted } from '../../features/analyses/analysisApi.schema';
-import { AuditCheckpoint, AuditEventPage, AuditEventsQuery, AuditExportQuery, ChainReport, CheckpointQuery, VerifyBody } from '../../features/audit/audit.schema';
-import { BoardView, CommentBody, DecisionBody, ReviewView, SubmitBody } from '../../features/review/review.schema';
-import { OutboxQuery } from './outbox';
+} from '../admin/admin.schema';
+import { ApiTokenView, CreateApiTokenBody, CreatedApiToken, ForgotPasswordBody, MeResponse, SetPasswordBody, SignInBody } from '../auth/auth.schema';
+import { ArchiveBody, ConfirmVersionBody, NewExtractQuery, NewVersionQuery, RowsQuery, UploadAccepted } from '../extracts/extracts.schema';
+import { AnalysisBody, Created, DownloadQuery, RunAccepted } from '../analyses/analysisApi.schema';
+import { AuditCheckpoint, AuditEventPage, AuditEventsQuery, AuditExportQuery, ChainReport, CheckpointQuery, VerifyBody } from '../audit/audit.schema';
+import { BoardView, CommentBody, DecisionBody, ReviewView, SubmitBody } from '../review/review.schema';
+import { OutboxQuery } from '../admin/outbox';
 
 export type Auth = 'none' | 'session' | 'admin';
 

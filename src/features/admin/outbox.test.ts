@@ -47,9 +47,9 @@ beforeAll(async () => {
   outbox = await import('./outbox');
   listEndpoint = await import('../../pages/api/admin/outbox/index');
   oneEndpoint = await import('../../pages/api/admin/outbox/[id]');
-  const { startMailServer } = await import('./mailServer');
-  const { createMailTransport, sendMail } = await import('./mail');
-  const { env } = await import('./env');
+  const { startMailServer } = await import('../../lib/server/mailServer');
+  const { createMailTransport, sendMail } = await import('../../lib/server/mail');
+  const { env } = await import('../../lib/server/env');
   const handle = await startMailServer({ port: 0, dir: outbox.mailStoreDir() });
   close = handle.close;
   const transport = createMailTransport({ ...env, CROSSGRAIN_SMTP_PORT: handle.port });
@@ -118,7 +118,7 @@ describe('the HTML preview', () => {
     '<script>document.title="taken"</script><a href="https://x.example/?q=<script>">x</a>';
 
   it('keeps the whole body inside a sandboxed srcdoc, even after the nonce middleware', async () => {
-    const { addNonceToScripts } = await import('./securityHeaders');
+    const { addNonceToScripts } = await import('../../lib/server/securityHeaders');
     const frame = outbox.previewFrame(hostile, { title: 'Preview "x" <b>', className: 'w-full', testId: 'message-html' });
     // The middleware stamps a nonce onto every <script it finds in a page; none may be found here.
     expect(addNonceToScripts(frame, '0123456789abcdef0123456789abcdef')).toBe(frame);
