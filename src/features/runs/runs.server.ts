@@ -18,8 +18,11 @@ import { enqueueRun } from '../../lib/server/queue';
 import { recordAudit, type AuditAction } from '../audit/audit.server';
 import { loadColumns, toEngineData } from '../extracts/extracts.server';
 import { specHash } from './canonical';
+import { columnRoles } from './columnRoles';
 import type { ReviewState } from '../review/review.schema';
 import { compareRuns, verificationSentence, type RunFacts, type Verification } from './runVerification';
+
+export { columnRoles };
 
 export type RunStatus = 'queued' | 'running' | 'succeeded' | 'failed' | 'cancelled';
 
@@ -244,17 +247,6 @@ export async function sweepStaleRuns(transaction?: Transaction): Promise<string[
     replacements: { seconds: env.CROSSGRAIN_RUN_STALE_SECONDS }, type: QueryTypes.SELECT, transaction,
   });
   return rows.map((r) => r.app_fail_stale_runs);
-}
-
-/** The roles the engine needs for each column a specification uses. */
-export function columnRoles(spec: Spec): Record<string, 'categorical' | 'continuous'> {
-  const roles: Record<string, 'categorical' | 'continuous'> = {
-    [spec.outcome.column]: spec.outcome.event !== undefined ? 'categorical' : 'continuous',
-    [spec.exposure.column]: 'categorical',
-    [spec.modifier.column]: spec.modifier.type,
-  };
-  for (const covariate of spec.covariates) roles[covariate.column] = covariate.type;
-  return roles;
 }
 
 /** Compares a finished verification re-run with the run it verifies, and records the outcome. */
