@@ -61,6 +61,9 @@ export async function buildEngineCommand() {
     format: 'esm',
     target: 'node20',
     metafile: true,
+    // Smaller to parse at start; names are kept for error messages.
+    minify: true,
+    keepNames: true,
     logLevel: 'warning',
     // CommonJS packages in the bundle (jstat) may call require for Node's modules.
     banner: { js: "import { createRequire as __engineRequire } from 'node:module'; const require = __engineRequire(import.meta.url);" },

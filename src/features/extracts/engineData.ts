@@ -41,12 +41,18 @@ export function toEngineData(
       continue;
     }
     // A numeric column used as a category: its distinct values, in numeric order, are the levels.
-    const distinct = [...new Set(Array.from(column.values).filter((v) => !Number.isNaN(v)))].sort((a, b) => a - b);
-    const index = new Map(distinct.map((v, i) => [v, i]));
+    const values = column.values;
+    const seen = new Map<number, number>();
+    for (let i = 0; i < rowCount; i += 1) {
+      const v = values[i];
+      if (v === v && !seen.has(v)) seen.set(v, 0);
+    }
+    const distinct = [...seen.keys()].sort((a, b) => a - b);
+    distinct.forEach((v, i) => seen.set(v, i));
     const codes = new Int32Array(rowCount);
     for (let i = 0; i < rowCount; i += 1) {
-      const v = column.values[i];
-      codes[i] = Number.isNaN(v) ? -1 : (index.get(v) ?? -1);
+      const v = values[i];
+      codes[i] = v === v ? seen.get(v)! : -1;
     }
     out[column.name] = { kind: 'categorical', codes, levels: distinct.map((v) => String(v)) };
   }

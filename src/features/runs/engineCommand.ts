@@ -8,12 +8,17 @@
  * module bundled ahead of time (scripts/engineCommand.mjs rebuilds the bundle when it is
  * missing or older than its sources), so nothing is compiled at start.
  */
-import { readFile } from 'node:fs/promises';
+import { readFile, stat } from 'node:fs/promises';
 import { EngineError, runAnalysis, type AnalysisSpec } from '../../engine';
+import { defaultThreadCount } from '../../engine/bootstrap/percentileBootstrap';
 import { SpecSchema } from '../../engine/boundary/schemas';
+import { passPool } from '../../engine/threads/passPool';
 import { ExtractRefusalError } from '../extracts/extractRefusal';
 import { columnRoles } from './columnRoles';
 import { EngineInputError, readEngineData } from './engineInput';
+
+/** Files from this size probably hold enough rows for the engine to fit on several threads. */
+const LARGE_FILE_BYTES = 4_000_000;
 
 class CommandFailure extends Error {
   constructor(
@@ -52,6 +57,11 @@ async function main(args: string[]): Promise<void> {
     const issue = parsed.error.issues[0];
     throw new CommandFailure('INVALID_SPEC', `The specification is not valid at "${issue.path.join('.') || '(root)'}": ${issue.message}`, 1);
   }
+  // The engine starts its helper threads for a large fit on first use; start them now, so
+  // that they boot while the file is read (the same process-wide pool is then reused).
+  const helpers = (threads ?? defaultThreadCount()) - 1;
+  const size = await stat(dataPath).then((info) => info.size, () => 0);
+  if (helpers > 0 && size >= LARGE_FILE_BYTES) passPool(helpers).catch(() => undefined);
   let data;
   try {
     data = await readEngineData(dataPath, columnRoles(parsed.data));

@@ -10,7 +10,7 @@ import { createReadStream } from 'node:fs';
 import { stat } from 'node:fs/promises';
 import type { EngineData } from '../../engine';
 import { ColumnSet } from '../extracts/columnAccumulator';
-import { readCsv, type CsvSink } from '../extracts/csvReader';
+import { CsvChunkReader, readCsv, type CsvSink } from '../extracts/csvReader';
 import { storedColumn, toEngineData, type StoredColumn } from '../extracts/engineData';
 
 /** The data file cannot be used: a refusal of the reader, or a column it cannot keep. */
@@ -65,4 +65,25 @@ export async function readEngineData(path: string, roles: Record<string, 'catego
     stored.push(kept);
   }
   return toEngineData(summary.recordCount, stored, roles);
+}
+
+/**
+ * The engine data of a whole CSV held in memory, read as an upload is, every column kept:
+ * number columns as numeric, text columns as categorical (the engine codes a numeric column
+ * used as a category itself). For reference data and tests; throws like readEngineData.
+ */
+export function engineDataOfCsv(text: string | Uint8Array): EngineData {
+  const columns = new ColumnSet();
+  const reader = new CsvChunkReader(columns);
+  reader.push(typeof text === 'string' ? Buffer.from(text, 'utf8') : text);
+  const { recordCount } = reader.finish();
+  const stored: StoredColumn[] = [];
+  const roles: Record<string, 'categorical' | 'continuous'> = {};
+  for (const column of columns.finish()) {
+    const kept = storedColumn(column);
+    if (kept === null) throw new EngineInputError(`The column "${column.name}" has too many distinct values to keep.`, column.name);
+    stored.push(kept);
+    roles[kept.name] = kept.storage === 'numeric' ? 'continuous' : 'categorical';
+  }
+  return toEngineData(recordCount, stored, roles);
 }
