@@ -7,7 +7,7 @@
 // `npm run -s engine -- --write-schemas` regenerates src/engine/boundary/spec.schema.json
 // and result.schema.json from the zod schemas (run from the TypeScript sources).
 import { spawnSync } from 'node:child_process';
-import { readFileSync, renameSync, statSync, writeFileSync } from 'node:fs';
+import { mkdirSync, readFileSync, renameSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 
@@ -48,14 +48,18 @@ export function stale() {
   });
 }
 
-/** Bundles the command and the worker entries into .build/engine/. */
+/**
+ * Bundles the command and the worker entries into .build/engine/. They are built in a
+ * folder of this process's own and then renamed into place one by one (the command last),
+ * so that a command started meanwhile, or a second build, never reads a half-written file.
+ */
 export async function buildEngineCommand() {
   const { build } = await import('esbuild');
+  const scratch = join(root, '.build', `engine.${process.pid}`);
   const result = await build({
     absWorkingDir: root,
     entryPoints,
-    outdir,
-    outExtension: { '.js': '.js' },
+    outdir: scratch,
     bundle: true,
     platform: 'node',
     format: 'esm',
@@ -68,8 +72,11 @@ export async function buildEngineCommand() {
     // CommonJS packages in the bundle (jstat) may call require for Node's modules.
     banner: { js: "import { createRequire as __engineRequire } from 'node:module'; const require = __engineRequire(import.meta.url);" },
   });
-  renameSync(join(outdir, 'engineCommand.js'), bundle);
-  writeFileSync(inputsFile, `${JSON.stringify(Object.keys(result.metafile.inputs).sort(), null, 1)}\n`);
+  writeFileSync(join(scratch, 'inputs.json'), `${JSON.stringify(Object.keys(result.metafile.inputs).sort(), null, 1)}\n`);
+  mkdirSync(outdir, { recursive: true });
+  for (const name of ['passWorker.js', 'bootstrapWorker.js', 'inputs.json']) renameSync(join(scratch, name), join(outdir, name));
+  renameSync(join(scratch, 'engineCommand.js'), bundle);
+  rmSync(scratch, { recursive: true, force: true });
 }
 
 // Run as a script (not imported): `--build-only` builds and stops; otherwise build when stale and run.

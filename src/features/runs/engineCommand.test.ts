@@ -116,6 +116,15 @@ describe('engine command', () => {
     }
   });
 
+  it('runs the bootstrap on the bundled worker threads, with the bits of a direct call in process', async () => {
+    const bootstrap: Spec = { ...spec, ci: { level: 0.95, method: 'bootstrap', replicates: 100, seed: 11 } };
+    const { code, stdout, stderr } = await command(['--data', infert, '--spec', file('bootstrap.json', JSON.stringify(bootstrap)), '--threads', '2']);
+    expect(stderr).toBe('');
+    expect(code).toBe(0);
+    const direct = await runAnalysis(handBuilt(readFileSync(infert, 'utf8'), columnRoles(bootstrap)), bootstrap, { threads: 0 });
+    expect(stdout).toBe(`${JSON.stringify(direct, null, 2)}\n`);
+  });
+
   it('reads a file into the same engine data as the upload path', async () => {
     const roles = columnRoles(spec);
     for (const path of [infert, holedPath]) {
