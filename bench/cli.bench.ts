@@ -8,8 +8,12 @@
  * counted), peak resident memory ≤ 400 MB (GNU time's maximum resident set size).
  *
  * It also times the CSV reading alone in this process: the upload reader (csvReader.ts +
- * columnAccumulator.ts, all 12 columns to typed columns) against csv-parse (records of
- * strings only, as the command read files before).
+ * columnAccumulator.ts, all 12 columns to typed columns) against the command's former
+ * reader (csv-parse, then typing; bench/support/formerCsvReader.ts) and csv-parse's
+ * parse alone (records of strings).
+ *
+ * The machine is shared: besides wall-clock times it prints CPU times (user + system, of
+ * npm and the command's process; R's own), which other load disturbs less.
  *
  * Run on its own with `npx tsx bench/cli.bench.ts [rows]`; `npm run bench -- cli`.
  */
@@ -22,6 +26,7 @@ import { fileURLToPath } from 'node:url';
 import { parse } from 'csv-parse/sync';
 import { ColumnSet } from '../src/features/extracts/columnAccumulator';
 import { readCsv } from '../src/features/extracts/csvReader';
+import { readCsvFile as readWithFormerReader } from './support/formerCsvReader';
 import { generateSyntheticExtract } from './support/syntheticExtract';
 
 const rows = Number(process.argv.slice(2).find((a) => /^\d+$/.test(a)) ?? 1_000_000);
@@ -59,17 +64,22 @@ function hasRscript(): boolean {
 }
 
 /** One run of the command through npm, timed from spawn to exit; peak RSS from GNU time when present. */
-function runCommand(data: string, specPath: string): { seconds: number; peakMb: number | null; stdout: string } {
+function runCommand(data: string, specPath: string): { seconds: number; cpuSeconds: number | null; peakMb: number | null; stdout: string } {
   const withTime = existsSync('/usr/bin/time');
   const npmArgs = ['run', '-s', 'engine', '--', '--data', data, '--spec', specPath];
   const start = performance.now();
   const result = withTime
-    ? spawnSync('/usr/bin/time', ['-f', 'PEAK_KB %M', 'npm', ...npmArgs], { cwd: repository, encoding: 'utf8', maxBuffer: 1 << 26 })
+    ? spawnSync('/usr/bin/time', ['-f', 'PEAK_KB %M CPU %U %S', 'npm', ...npmArgs], { cwd: repository, encoding: 'utf8', maxBuffer: 1 << 26 })
     : spawnSync('npm', npmArgs, { cwd: repository, encoding: 'utf8', maxBuffer: 1 << 26 });
   const seconds = (performance.now() - start) / 1000;
   if (result.status !== 0) throw new Error(`engine command failed: ${result.stderr}`);
-  const peak = /PEAK_KB (\d+)/.exec(result.stderr);
-  return { seconds, peakMb: peak ? Number(peak[1]) / 1024 : null, stdout: result.stdout };
+  const measured = /PEAK_KB (\d+) CPU ([\d.]+) ([\d.]+)/.exec(result.stderr);
+  return {
+    seconds,
+    cpuSeconds: measured ? Number(measured[2]) + Number(measured[3]) : null,
+    peakMb: measured ? Number(measured[1]) / 1024 : null,
+    stdout: result.stdout,
+  };
 }
 
 const dir = await mkdtemp(join(tmpdir(), 'crossgrain-cli-bench-'));
@@ -84,6 +94,7 @@ try {
   // ---- 1. reading alone: the upload reader against csv-parse ------------------------------
   const readerTimes: number[] = [];
   const csvParseTimes: number[] = [];
+  const formerTimes: number[] = [];
   for (let repeat = 0; repeat < repeats; repeat++) {
     let start = performance.now();
     const columns = new ColumnSet({ expectedBytes: size });
@@ -94,12 +105,19 @@ try {
     const records = parse(await readFile(data, 'utf8'), { bom: true, skip_empty_lines: true }) as string[][];
     if (records.length !== rows + 1) throw new Error('csv-parse read a different number of records');
     csvParseTimes.push((performance.now() - start) / 1000);
+    start = performance.now();
+    const former = await readWithFormerReader(data);
+    if (former.rowCount !== rows) throw new Error('the former reader read a different number of rows');
+    formerTimes.push((performance.now() - start) / 1000);
   }
   const reader = median(readerTimes);
   const csvParse = median(csvParseTimes);
+  const former = median(formerTimes);
+  const list = (times: number[]) => times.map((t) => t.toFixed(2)).join(', ');
   process.stdout.write(
-    `1. reading the file: upload reader to typed columns ${reader.toFixed(3)} s (${readerTimes.map((t) => t.toFixed(2)).join(', ')}), ` +
-      `csv-parse to string records ${csvParse.toFixed(3)} s (${csvParseTimes.map((t) => t.toFixed(2)).join(', ')}): ${(csvParse / reader).toFixed(1)} × faster\n`,
+    `1. reading the file into typed columns: upload reader ${reader.toFixed(3)} s (${list(readerTimes)}); ` +
+      `former reader (csv-parse + typing) ${former.toFixed(3)} s (${list(formerTimes)}): upload reader ${(former / reader).toFixed(1)} × faster; ` +
+      `csv-parse's parse alone ${csvParse.toFixed(3)} s (${list(csvParseTimes)}): ${(csvParse / reader).toFixed(1)} ×\n`,
   );
 
   // ---- 2. the whole command against R -----------------------------------------------------
@@ -111,22 +129,32 @@ try {
   const peaks = runs.map((r) => r.peakMb).filter((p): p is number => p !== null);
   let rSeconds: number | null = null;
   let rTimes: number[] = [];
+  let rCpuTimes: number[] = [];
   if (hasRscript()) {
     const script = `times <- replicate(${repeats}, system.time({
   d <- read.csv("${data}", colClasses = ${rClasses})
   fit <- glm(${rFormula}, family = binomial, data = d)
   v <- vcov(fit)
-})[["elapsed"]]); cat(times)`;
-    rTimes = execFileSync('Rscript', ['-e', script], { encoding: 'utf8' }).trim().split(/\s+/).map(Number);
+})[c("elapsed", "user.self", "sys.self")]); cat(times[1, ], times[2, ] + times[3, ], sep = "\\n")`;
+    const measured = execFileSync('Rscript', ['-e', script], { encoding: 'utf8' }).trim().split(/\s+/).map(Number);
+    rTimes = measured.slice(0, repeats);
+    rCpuTimes = measured.slice(repeats);
     rSeconds = median(rTimes);
   }
-  process.stdout.write(`2. npm run -s engine -- --data F --spec S: ${commandSeconds.toFixed(3)} s (${runs.map((r) => r.seconds.toFixed(2)).join(', ')})`);
+  process.stdout.write(`2. npm run -s engine -- --data F --spec S: ${commandSeconds.toFixed(3)} s (${list(runs.map((r) => r.seconds))})`);
   if (rSeconds === null) process.stdout.write(', R not installed: no ratio\n');
   else {
     const ratio = commandSeconds / rSeconds;
     process.stdout.write(
-      `; R read.csv(colClasses) + glm + vcov ${rSeconds.toFixed(3)} s (${rTimes.map((t) => t.toFixed(2)).join(', ')}): ` +
+      `; R read.csv(colClasses) + glm + vcov ${rSeconds.toFixed(3)} s (${list(rTimes)}): ` +
         `ratio ${ratio.toFixed(3)} (target ≤ 0.25): ${ratio <= 0.25 ? 'meets target' : 'MISSES target'}\n`,
+    );
+  }
+  const cpu = runs.map((r) => r.cpuSeconds).filter((c): c is number => c !== null);
+  if (cpu.length > 0 && rCpuTimes.length > 0) {
+    process.stdout.write(
+      `   CPU time: command ${median(cpu).toFixed(3)} s (${list(cpu)}), R ${median(rCpuTimes).toFixed(3)} s (${list(rCpuTimes)}): ` +
+        `ratio ${(median(cpu) / median(rCpuTimes)).toFixed(3)} (the command's two threads both count)\n`,
     );
   }
   if (peaks.length > 0) {
