@@ -56,6 +56,14 @@ export function stale() {
 export async function buildEngineCommand() {
   const { build } = await import('esbuild');
   const scratch = join(root, '.build', `engine.${process.pid}`);
+  try {
+    await buildInto(build, scratch);
+  } finally {
+    rmSync(scratch, { recursive: true, force: true });
+  }
+}
+
+async function buildInto(build, scratch) {
   const result = await build({
     absWorkingDir: root,
     entryPoints,
@@ -76,7 +84,6 @@ export async function buildEngineCommand() {
   mkdirSync(outdir, { recursive: true });
   for (const name of ['passWorker.js', 'bootstrapWorker.js', 'inputs.json']) renameSync(join(scratch, name), join(outdir, name));
   renameSync(join(scratch, 'engineCommand.js'), bundle);
-  rmSync(scratch, { recursive: true, force: true });
 }
 
 // Run as a script (not imported): `--build-only` builds and stops; otherwise build when stale and run.

@@ -9,6 +9,7 @@
  * missing or older than its sources), so nothing is compiled at start.
  */
 import { readFile, stat } from 'node:fs/promises';
+import { resolve } from 'node:path';
 import { EngineError, runAnalysis, type AnalysisSpec } from '../../engine';
 import { defaultThreadCount } from '../../engine/bootstrap/percentileBootstrap';
 import { SpecSchema } from '../../engine/boundary/schemas';
@@ -36,9 +37,15 @@ function argument(args: string[], name: string): string | undefined {
   return index >= 0 ? args[index + 1] : undefined;
 }
 
+/** A file argument, relative to the folder npm was started in (npm runs scripts from the project's). */
+function fileArgument(args: string[], name: string): string | undefined {
+  const path = argument(args, name);
+  return path === undefined ? undefined : resolve(process.env.INIT_CWD ?? process.cwd(), path);
+}
+
 async function main(args: string[]): Promise<void> {
-  const dataPath = argument(args, '--data');
-  const specPath = argument(args, '--spec');
+  const dataPath = fileArgument(args, '--data');
+  const specPath = fileArgument(args, '--spec');
   if (!dataPath || !specPath) throw new CommandFailure('USAGE', 'Usage: engine --data FILE.csv --spec SPEC.json [--threads N]', 2);
   const threadsText = argument(args, '--threads');
   const threads = threadsText === undefined ? undefined : Number(threadsText);

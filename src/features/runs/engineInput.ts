@@ -60,7 +60,7 @@ export async function readEngineData(path: string, roles: Record<string, 'catego
   for (const column of sink.columns!.finish()) {
     const kept = storedColumn(column);
     if (kept === null) {
-      throw new EngineInputError(`The column "${column.name}" has more than ${column.kind === 'text' ? column.levelCap : 0} distinct values, too many to use as a category.`, column.name);
+      throw new EngineInputError(`The column "${column.name}" has more distinct values than a column may keep, too many to use as a category.`, column.name);
     }
     stored.push(kept);
   }
