@@ -15,13 +15,14 @@ import path from 'node:path';
 import { Readable } from 'node:stream';
 import Busboy from 'busboy';
 import { QueryTypes, type Sequelize, type Transaction } from 'sequelize';
-import type { EngineColumn, EngineData } from '../../engine';
 import { sequelize as appSequelize, withIdentity } from '../../lib/server/db';
 import { env } from '../../lib/server/env';
 import { AppError, badRequest, conflict, notFound, unprocessable, unsupportedMediaType } from '../../lib/server/errors';
 import { logger } from '../../lib/server/logger';
 import { recordAudit } from '../audit/audit.server';
 import { decodeCodes, decodeNumericValues, encodeColumn } from './columnStore';
+import type { EngineData } from '../../engine';
+import { toEngineData, type StoredColumn } from './engineData';
 import { ExtractRefusalError } from './extractRefusal';
 import { readExtractColumns, reviewExtractColumns, type ReadExtract } from './extracts';
 import type { ColumnProfile, DictionaryEntry, ProcessingStage } from './extracts.schema';
@@ -582,9 +583,7 @@ export async function setArchived(transaction: Transaction, actor: Uploader, ext
 // Columns: preview and analysis
 // ---------------------------------------------------------------------------------------
 
-export type StoredColumn =
-  | { name: string; storage: 'numeric'; values: Float64Array }
-  | { name: string; storage: 'text'; codes: Int32Array; levels: string[] };
+export { toEngineData, type StoredColumn } from './engineData';
 
 /**
  * Loads columns of one version as typed arrays, in one query. The version must be visible
@@ -604,37 +603,6 @@ export async function loadColumns(transaction: Transaction, versionId: string, n
       : { name: r.name, storage: 'text', codes: decodeCodes(r.values, r.row_count, r.levels?.length ?? 0), levels: r.levels ?? [] },
   );
   return { rowCount, columns };
-}
-
-/** Engine-ready data for an analysis: categorical roles become codes, whatever the storage. */
-export function toEngineData(
-  rowCount: number,
-  columns: StoredColumn[],
-  roles: Record<string, 'categorical' | 'continuous'>,
-): EngineData {
-  const out: Record<string, EngineColumn> = {};
-  for (const column of columns) {
-    const role = roles[column.name];
-    if (!role) continue;
-    if (column.storage === 'text') {
-      out[column.name] = { kind: 'categorical', codes: column.codes, levels: column.levels };
-      continue;
-    }
-    if (role === 'continuous') {
-      out[column.name] = { kind: 'numeric', values: column.values };
-      continue;
-    }
-    // A numeric column used as a category: its distinct values, in numeric order, are the levels.
-    const distinct = [...new Set(Array.from(column.values).filter((v) => !Number.isNaN(v)))].sort((a, b) => a - b);
-    const index = new Map(distinct.map((v, i) => [v, i]));
-    const codes = new Int32Array(rowCount);
-    for (let i = 0; i < rowCount; i += 1) {
-      const v = column.values[i];
-      codes[i] = Number.isNaN(v) ? -1 : (index.get(v) ?? -1);
-    }
-    out[column.name] = { kind: 'categorical', codes, levels: distinct.map((v) => String(v)) };
-  }
-  return { rowCount, columns: out };
 }
 
 /**

@@ -29,7 +29,7 @@ export interface Actor {
 }
 
 export { canonicalJson, specHash } from './canonical';
-export { columnRoles } from './runInputs';
+export { columnRoles } from './columnRoles';
 
 /** How a start puts its run's job on the queue (tests pass one that fails). */
 export interface StartOptions {

@@ -1,24 +1,24 @@
 /**
  * Real engine results for the runs tests: the engine's runAnalysis on the SYNTHETIC demo
- * cohorts (src/features/extracts/demoCohorts.ts), read with the engine's own CSV reader.
+ * cohorts (src/features/extracts/demoCohorts.ts), read as an upload is (engineInput.ts).
  * Each result is computed once per test file. Not imported by product code.
  */
-import { parseCsv } from '../../engine/boundary/csv';
 import { ResultSchema, SpecSchema, type Result, type Spec } from '../../engine/boundary/schemas';
 import { runAnalysis } from '../../engine/index';
 import type { EngineData } from '../../engine/types';
 import { generateCallBackCohort, generateUpAndAboutCohort } from '../extracts/demoCohorts';
+import { engineDataOfCsv } from './engineInput';
 
 let callBackData: EngineData | null = null;
 let upAndAboutData: EngineData | null = null;
 
 function callBack(): EngineData {
-  callBackData ??= parseCsv(generateCallBackCohort().csv);
+  callBackData ??= engineDataOfCsv(generateCallBackCohort().csv);
   return callBackData;
 }
 
 function upAndAbout(): EngineData {
-  upAndAboutData ??= parseCsv(generateUpAndAboutCohort().csv);
+  upAndAboutData ??= engineDataOfCsv(generateUpAndAboutCohort().csv);
   return upAndAboutData;
 }
 

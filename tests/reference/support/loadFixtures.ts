@@ -1,6 +1,6 @@
 import { readFileSync, readdirSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
-import { parseCsv } from '../../../src/engine/boundary/csv.js';
+import { engineDataOfCsv } from '../../../src/features/runs/engineInput.js';
 import type { AnalysisSpec, EngineData } from '../../../src/engine/types.js';
 
 export const referenceRoot = fileURLToPath(new URL('..', import.meta.url));
@@ -95,7 +95,7 @@ export function loadFixture(name: string, root = referenceRoot): Fixture {
 }
 
 export function loadDataset(name: string, root = referenceRoot): EngineData {
-  return parseCsv(readFileSync(`${root}/data/${name}.csv`, 'utf8'));
+  return engineDataOfCsv(readFileSync(`${root}/data/${name}.csv`));
 }
 
 /** The CSV a fixture's analysis runs on (by dataset name prefix). */

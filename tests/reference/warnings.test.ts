@@ -1,12 +1,10 @@
 import { describe, expect, it } from 'vitest';
-import { readFileSync } from 'node:fs';
-import { fileURLToPath } from 'node:url';
-import { parseCsv } from '../boundary/csv.js';
-import { ResultSchema } from '../boundary/schemas.js';
-import { runAnalysis } from '../index.js';
-import type { AnalysisSpec } from '../types.js';
+import { ResultSchema } from '../../src/engine/boundary/schemas.js';
+import { runAnalysis } from '../../src/engine/index.js';
+import type { AnalysisSpec } from '../../src/engine/types.js';
+import { loadDataset } from './support/loadFixtures.js';
 
-const infert = parseCsv(readFileSync(fileURLToPath(new URL('../../../tests/reference/data/infert.csv', import.meta.url)), 'utf8'));
+const infert = loadDataset('infert');
 const spec: AnalysisSpec = {
   outcome: { column: 'case', type: 'binary' },
   exposure: { column: 'induced_any', reference: '0' },
