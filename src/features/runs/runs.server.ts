@@ -383,7 +383,7 @@ export async function executeRun(runId: string, startedBy: string, options: { wo
   try {
     const roles = columnRoles(claimed.spec);
     const loaded = await withIdentity(startedBy, (t) => loadColumns(t, claimed.extract_version_id, Object.keys(roles)));
-    const data = toEngineData(loaded.rowCount, loaded.columns, roles);
+    const data = toEngineData(loaded.rowCount, loaded.columns, roles, loaded.missingValues);
     const result = await runAnalysis(data, claimed.spec as never, {
       signal: controller.signal,
       threads: options.threads ?? env.CROSSGRAIN_ENGINE_THREADS,
