@@ -158,6 +158,37 @@ describe('columns', () => {
     expect([y.missingCount, y.levels]).toEqual([2, [{ value: 'a', count: 2 }, { value: 'b', count: 1 }]]);
   });
 
+  it('reads the shared tokens in any case as missing, never as levels or text, and counts each per column', async () => {
+    const csv = 'dose,site,arm\n1.5,north,0\nna,.,-\n.,south,1\nNaN,null,.\n-,N/a,0\n\n2,north,NA\n,south,1\n';
+    const result = await ingest(csv);
+    const [dose, site, arm] = result.profile;
+    // dose: 1.5, na, ".", NaN, "-", 2, empty -> numbers 1.5 and 2, five missing, still numeric.
+    expect([dose.storage, dose.missingCount, dose.numeric?.mean]).toEqual(['numeric', 5, 1.75]);
+    expect(dose.missingTokens).toEqual([{ token: '', count: 1 }, { token: 'NA', count: 1 }, { token: '.', count: 1 }, { token: '-', count: 1 }, { token: 'NaN', count: 1 }]);
+    // site: ".", null, N/a are missing; the levels are north and south only.
+    expect(site.levels).toEqual([{ value: 'north', count: 2 }, { value: 'south', count: 2 }]);
+    expect(site.missingTokens).toEqual([{ token: 'N/A', count: 1 }, { token: 'NULL', count: 1 }, { token: '.', count: 1 }]);
+    // arm: "-", ".", NA are missing; 0 and 1 make it binary.
+    expect([arm.storage, arm.inferredType, arm.missingCount]).toEqual(['numeric', 'binary', 3]);
+  });
+
+  it('flags levels that look like undeclared missing codes ("unknown", 999) in the profile', async () => {
+    const result = await ingest('stage,smoker,age\n1,yes,40\n2,unknown,51\n999,no,63\n3,yes,999\n2,no,48\n1,Unknown,999\n');
+    const [stage, smoker, age] = result.profile;
+    expect(stage.suspectMissing).toEqual(['999']);
+    expect(smoker.suspectMissing).toEqual(['Unknown', 'unknown']);
+    // 999 beside ages of 40 to 63 is flagged too: every other value is at most (999 + 1) / 2.
+    expect(age.suspectMissing).toEqual(['999']);
+  });
+
+  it('names the first text value of a column of numbers, with its line (blank lines and quoted breaks counted)', async () => {
+    const result = await ingest('id,note,score\n1,"two\nlines",3\n\n2,ok,4\n3,ok,see chart\n4,ok,n/a\n');
+    const score = result.profile[2];
+    expect(score.storage).toBe('text');
+    // Line 1 header, lines 2-3 the record with a quoted break, line 4 blank, line 5 "2", line 6 "see chart".
+    expect(score.notes[0]).toContain('the first text value is "see chart", on line 6');
+  });
+
   it('keeps a column with any text as text, and says how many values were numbers', async () => {
     const result = await ingest('score\n1\n2\nunknown\n2\n');
     const [score] = result.profile;
