@@ -1,5 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { ExtractRefusalError, ingestExtract } from './extracts';
+import { runAnalysis } from '../../engine';
+import { toEngineData } from './engineData';
+import { ExtractRefusalError, ingestExtract, readExtractColumns } from './extracts';
 import { chunked } from './testSupport';
 
 const ingest = (csv: string, options = {}) => ingestExtract(chunked(csv, 4096), options);
@@ -187,6 +189,22 @@ describe('columns', () => {
     expect(score.storage).toBe('text');
     // Line 1 header, lines 2-3 the record with a quoted break, line 4 blank, line 5 "2", line 6 "see chart".
     expect(score.notes[0]).toContain('the first text value is "see chart", on line 6');
+  });
+
+  it('an analysis of a numeric covariate holding text names the value, the column and its first line', async () => {
+    const rows = Array.from({ length: 30 }, (_, i) => `${i % 2},${i % 3 === 0 ? 1 : 0},${i % 4 < 2 ? 'a' : 'b'},${i === 20 ? 'see chart' : i === 3 ? 'NA' : (i * 0.7) % 5}`);
+    // One blank line after the fifth data row moves every later row one line down.
+    const csv = ['arm,event,site,dose', ...rows.slice(0, 5), '', ...rows.slice(5)].join('\n');
+    const read = await readExtractColumns([csv]);
+    const data = toEngineData(read.read.recordCount, read.columns.map((c) => (c.kind === 'numeric' ? { name: c.name, storage: 'numeric' as const, values: c.values } : { name: c.name, storage: 'text' as const, codes: c.codes, levels: c.levels })), { arm: 'categorical', event: 'categorical', site: 'categorical', dose: 'continuous' });
+    const spec = {
+      outcome: { column: 'event', type: 'binary' }, exposure: { column: 'arm', reference: '0' }, modifier: { column: 'site', type: 'categorical', reference: 'a' },
+      covariates: [{ column: 'dose', type: 'continuous' }], model: 'logistic', ci: { level: 0.95, method: 'delta' },
+    } as const;
+    // Data row 21 (i = 20) is on line 23: header line 1, rows from line 2, plus the blank line.
+    await expect(runAnalysis({ ...data, lineOfRow: read.lineOfRow }, spec, { threads: 0 })).rejects.toMatchObject({
+      code: 'COLUMN_TYPE_MISMATCH', column: 'dose', level: 'see chart', message: expect.stringContaining('"see chart" (first on line 23)'),
+    });
   });
 
   it('keeps a column with any text as text, and says how many values were numbers', async () => {
