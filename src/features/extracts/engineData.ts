@@ -16,6 +16,13 @@ export function missingCodeKey(value: string): string {
   return value.trim().toLowerCase();
 }
 
+/** A column's levels without the shared tokens and its declared missing-value codes. */
+export function levelsLeftIn(levels: readonly string[], declared: readonly string[] = []): string[] {
+  const keys = new Set(declared.map(missingCodeKey));
+  const numbers = declaredNumbers(declared);
+  return levels.filter((level) => !isMissingToken(level) && !keys.has(missingCodeKey(level)) && !(level.trim() !== '' && numbers.has(Number(level))));
+}
+
 /** The numbers among declared codes (for numeric storage), compared as numbers. */
 function declaredNumbers(codes: readonly string[]): Set<number> {
   const out = new Set<number>();

@@ -22,7 +22,7 @@ import { logger } from '../../lib/server/logger';
 import { recordAudit } from '../audit/audit.server';
 import { decodeCodes, decodeNumericValues, encodeColumn } from './columnStore';
 import { isMissingToken } from '../../engine/design/missingValues';
-import { missingCodeKey, type StoredColumn } from './engineData';
+import { levelsLeftIn, missingCodeKey, type StoredColumn } from './engineData';
 import { ExtractRefusalError } from './extractRefusal';
 import { readExtractColumns, reviewExtractColumns, type ReadExtract } from './extracts';
 import type { ColumnProfile, DictionaryEntry, ProcessingStage } from './extracts.schema';
@@ -558,10 +558,12 @@ export function buildDictionary(profile: ColumnProfile[], columns?: DictionaryEn
     if (!allowed.includes(entry.type)) {
       problems.push({ path: `columns.${index}.type`, message: `“${p.name}” was read as ${p.inferredType}; it can be recorded as ${allowed.join(' or ')}, not ${entry.type}.` });
     }
-    if (entry.type === 'binary' && (p.distinctCount > 2)) {
-      problems.push({ path: `columns.${index}.type`, message: `“${p.name}” has ${p.distinctCount} distinct values, so it cannot be binary.` });
-    }
     const missingValues = declaredMissingValues(p, entry.missingValues ?? [], `columns.${index}.missingValues`, problems);
+    // Declared codes are not values: "yes, no, unknown" with "unknown" declared is binary.
+    const distinct = p.levels && !p.levelsTruncated ? levelsLeftIn(p.levels.map((l) => l.value), missingValues).length : p.distinctCount;
+    if (entry.type === 'binary' && distinct > 2) {
+      problems.push({ path: `columns.${index}.type`, message: `“${p.name}” has ${distinct} distinct values, so it cannot be binary.` });
+    }
     return { name: p.name, type: entry.type, description: entry.description ?? '', missingValues };
   });
   if (problems.length) throw unprocessable('dictionary-invalid', problems[0].message, problems);
