@@ -67,8 +67,9 @@ export class ColumnNotFoundError extends EngineError {
 }
 
 export class ColumnTypeMismatchError extends EngineError {
-  constructor(column: string, expected: string) {
-    super('COLUMN_TYPE_MISMATCH', `The column "${column}" must be ${expected}.`, { column });
+  /** `value`: the offending text value, when one is named. */
+  constructor(column: string, expected: string, value?: string) {
+    super('COLUMN_TYPE_MISMATCH', `The column "${column}" must be ${expected}.`, value === undefined ? { column } : { column, level: value });
     this.name = 'ColumnTypeMismatchError';
   }
 }

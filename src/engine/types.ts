@@ -28,10 +28,15 @@ export interface CategoricalColumn {
 
 export type EngineColumn = NumericColumn | CategoricalColumn;
 
-/** Columns of equal length, addressed by name. */
+/**
+ * Columns of equal length, addressed by name. Categorical levels that are missing-value
+ * tokens (see design/missingValues.ts) are read as missing, never as levels.
+ */
 export interface EngineData {
   readonly rowCount: number;
   readonly columns: Readonly<Record<string, EngineColumn>>;
+  /** Extra: the line of the source file that holds data row `row` (0-based), for messages. */
+  readonly lineOfRow?: (row: number) => number;
 }
 
 // ---------------------------------------------------------------------------------------
@@ -296,6 +301,8 @@ export interface EngineWarning {
 export interface AnalysisResult {
   n: number;
   dropped: number;
+  /** Rows missing in each used column that has any; a left-out row may count under several columns. */
+  missingByColumn: { column: string; rows: number }[];
   engineVersion: string;
   seed: number | null;
   effectMeasure: EffectMeasure;

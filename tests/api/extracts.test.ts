@@ -121,6 +121,70 @@ describe('a good upload', () => {
   });
 });
 
+describe('missing values (issue 9)', () => {
+  // stage: numbers 1-3 and 999; smoker: yes/no, "unknown", and the tokens NA and "."; dose: numbers with "-" and "null".
+  const tokensCsv = [
+    'stage,smoker,dose',
+    ...Array.from({ length: 40 }, (_, i) =>
+      [i % 10 === 9 ? 999 : 1 + (i % 3), i % 8 === 7 ? 'unknown' : i % 11 === 5 ? 'NA' : i % 13 === 6 ? '.' : i % 2 ? 'yes' : 'no', i % 9 === 4 ? '-' : i % 17 === 2 ? 'null' : (i % 7) + 0.5].join(','),
+    ),
+  ].join('\n');
+
+  it('counts tokens per column, flags suspect codes, and stores and audits declared codes; a bad declaration changes nothing', async () => {
+    const response = await upload(analyst, 'Tokens extract', tokensCsv);
+    expect(response.status).toBe(202);
+    const { extractId, versionId } = JSON.parse(response.body);
+    const version = (await settled(analyst, extractId)).versions[0];
+    const column = (name: string) => version.profile.find((p: { name: string }) => p.name === name);
+    // Rows 5, 16, 27, 38 hold NA unless another rule came first (i % 8 === 7 never, i % 13 === 6 never for these): 4 NA.
+    expect(column('smoker').missingTokens).toEqual([{ token: 'NA', count: 4 }, { token: '.', count: 3 }]);
+    expect(column('smoker').levels.map((l: { value: string }) => l.value)).toEqual(['no', 'unknown', 'yes']);
+    expect(column('smoker').suspectMissing).toEqual(['unknown']);
+    expect(column('stage').suspectMissing).toEqual(['999']);
+    // dose: "-" at i = 4, 13, 22, 31; "null" at i = 2, 19, 36.
+    expect(column('dose')).toMatchObject({ storage: 'numeric', missingCount: 7, missingTokens: [{ token: 'NULL', count: 3 }, { token: '-', count: 4 }] });
+
+    const path = `/api/extracts/${extractId}/versions/${versionId}/confirm`;
+    const eventCount = async () =>
+      (await ownerDb().query<{ n: string }>("SELECT count(*) AS n FROM audit_events WHERE action = 'extract.confirmed' AND subject_id = :id", {
+        replacements: { id: extractId }, type: QueryTypes.SELECT,
+      }))[0].n;
+    // A word declared for a column that holds only numbers is refused, naming the column and the code.
+    const bad = await analyst.request('POST', path, {
+      attestation: { signedName: 'Test Analyst' },
+      columns: [{ name: 'stage', type: 'count', missingValues: ['unknown'] }],
+    });
+    expect(bad.status).toBe(422);
+    const problem = await bad.json();
+    expect(problem.error.message).toMatch(/“stage” holds only numbers, so “unknown” cannot occur in it/);
+    const tooMany = await analyst.request('POST', path, {
+      attestation: { signedName: 'Test Analyst' },
+      columns: [{ name: 'smoker', type: 'categorical', missingValues: Array.from({ length: 21 }, (_, i) => `code ${i}`) }],
+    });
+    expect(tooMany.status).toBe(400);
+    const unchanged = (await (await analyst.request('GET', `/api/extracts/${extractId}`)).json()).versions[0];
+    expect([unchanged.status, unchanged.dictionary]).toEqual(['needs-review', null]);
+    expect(await eventCount()).toBe('0');
+
+    const good = await analyst.request('POST', path, {
+      attestation: { signedName: 'Test Analyst' },
+      columns: [
+        { name: 'stage', type: 'categorical', missingValues: ['999', ' 999 '] },
+        { name: 'smoker', type: 'categorical', missingValues: ['unknown', 'NA'] },
+      ],
+    });
+    expect(good.status).toBe(204);
+    const ready = (await (await analyst.request('GET', `/api/extracts/${extractId}`)).json()).versions[0];
+    const entry = (name: string) => ready.dictionary.find((d: { name: string }) => d.name === name);
+    // Repeats and shared tokens (NA) are not stored again.
+    expect([entry('stage').missingValues, entry('smoker').missingValues, entry('dose').missingValues]).toEqual([['999'], ['unknown'], []]);
+    const [event] = await ownerDb().query<{ details: { missingValues: Record<string, string[]> } }>(
+      "SELECT details FROM audit_events WHERE action = 'extract.confirmed' AND subject_id = :id", { replacements: { id: extractId }, type: QueryTypes.SELECT },
+    );
+    expect(event.details.missingValues).toEqual({ stage: ['999'], smoker: ['unknown'] });
+  });
+});
+
 describe('bad input gets a clear message and changes nothing', () => {
   const immediate: [string, string | Buffer, number, RegExp][] = [
     ['an empty file', '', 422, /empty/i],

@@ -43,7 +43,11 @@ describe('extracts in the browser', () => {
 
     const file = path.join(os.tmpdir(), `ward-audit-${Date.now()}.csv`);
     const lines = ['call_back,readmitted_30d,age_band,los_days'];
-    for (let i = 0; i < 400; i += 1) lines.push(`${i % 2},${i % 6 === 0 ? 1 : 0},${['18-44', '45-64', '65-79', '80+'][i % 4]},${(2 + (i % 9) * 0.5).toFixed(1)}`);
+    // Missing values as warehouses write them: NA and "." in los_days (10 rows each), and
+    // "unknown" in age_band (8 rows), which the analyst declares missing.
+    const band = (i: number) => (i % 50 === 49 ? 'unknown' : ['18-44', '45-64', '65-79', '80+'][i % 4]);
+    const los = (i: number) => (i % 40 === 7 ? 'NA' : i % 40 === 13 ? '.' : (2 + (i % 9) * 0.5).toFixed(1));
+    for (let i = 0; i < 400; i += 1) lines.push(`${i % 2},${i % 6 === 0 ? 1 : 0},${band(i)},${los(i)}`);
     writeFileSync(file, `${lines.join('\n')}\n`);
     await waitForHydrated(page, 'upload-panel');
     await page.getByTestId('upload-file').setInputFiles(file);
@@ -55,6 +59,10 @@ describe('extracts in the browser', () => {
     await saveScreenshot(page, 'extract-uploaded');
     await page.getByRole('link', { name: 'Review version 1' }).click();
 
+    await expect(page.getByTestId('tokens-los_days').textContent()).resolves.toBe('Read as missing: NA 10, . 10');
+    await expect(page.getByTestId('suspect-age_band').textContent()).resolves.toContain('“unknown” may stand for a missing value');
+    await page.getByTestId('suspect-age_band').getByRole('button', { name: 'Declare it missing' }).click();
+    await expect(page.getByLabel('Further missing-value codes of age_band').inputValue()).resolves.toBe('unknown');
     await page.getByLabel('Type of los_days').selectOption('continuous');
     await page.getByLabel('Description of los_days').fill('Length of stay, days');
     await page.getByLabel('I have checked the extract and make this statement.').check();
@@ -62,6 +70,8 @@ describe('extracts in the browser', () => {
     await page.getByRole('button', { name: 'Sign and confirm this version' }).click();
     await page.getByTestId('attestation').waitFor();
     await expect(page.getByTestId('attestation').textContent()).resolves.toContain('Ada Marsh');
+    await expect(page.getByTestId('declared-missing-age_band').textContent()).resolves.toBe('declared missing: unknown');
+    await expect(page.getByTestId('missing-tokens-los_days').textContent()).resolves.toBe('NA 10, . 10');
 
     await page.getByRole('button', { name: 'Show rows' }).click();
     await page.getByTestId('rows-preview').locator('tbody tr').first().waitFor();

@@ -471,6 +471,7 @@ export async function runAnalysis(data: EngineData, spec: AnalysisSpec, options:
   const result: AnalysisResult = {
     n: frame.n,
     dropped: frame.dropped,
+    missingByColumn: frame.missingByColumn,
     engineVersion: ENGINE_VERSION,
     seed: checked.method === 'bootstrap' ? checked.seed : null,
     effectMeasure: checked.effectMeasure,

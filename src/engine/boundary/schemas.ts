@@ -80,6 +80,9 @@ export const ResultSchema = z
   .strictObject({
     n: z.number().int(),
     dropped: z.number().int(),
+    missingByColumn: z
+      .array(z.strictObject({ column: z.string(), rows: z.number().int() }))
+      .describe('Rows missing in each used column that has any; a left-out row may count under several columns.'),
     engineVersion: z.string(),
     seed: z.number().int().nullable().describe('Seed of the bootstrap stream, null when no bootstrap was run.'),
     effectMeasure: z.enum(['OR', 'RR', 'RD', 'MD']),

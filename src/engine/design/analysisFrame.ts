@@ -11,6 +11,7 @@ import {
   ReferenceLevelNotFoundError,
 } from '../errors.js';
 import type { AnalysisSpec, EngineColumn, EngineData, EngineWarning } from '../types.js';
+import { refuseText, rowPlace, warnSuspectLevels, withoutMissingTokens } from './frameChecks.js';
 
 /** A categorical variable recoded so that code 0 is the reference level. */
 export interface CodedFactor {
@@ -39,6 +40,8 @@ export type FrameVariable = CodedFactor | NumericVariable;
 export interface AnalysisFrame {
   readonly n: number;
   readonly dropped: number;
+  /** Rows missing in each used column that has any (a row may count under several columns). */
+  readonly missingByColumn: { column: string; rows: number }[];
   /** Original row index of each analysed row. */
   readonly rowIndex: Int32Array;
   readonly outcome: Float64Array;
@@ -64,7 +67,7 @@ function getColumn(data: EngineData, name: string): EngineColumn {
   if (column.missing !== undefined && column.missing.length !== data.rowCount) {
     throw new InvalidDataError(`The missing-value mask of "${name}" has the wrong length.`, { column: name });
   }
-  return column;
+  return column.kind === 'categorical' ? withoutMissingTokens(column) : column;
 }
 
 /**
@@ -97,23 +100,33 @@ function scanColumn(column: EngineColumn, rowCount: number): { missing: boolean;
   return { missing: false, finite: false };
 }
 
-/** Sets `missingRow[row]` to 1 for every row missing in the column (see scanColumn). */
-function markMissingRows(column: EngineColumn, rowCount: number, missingRow: Uint8Array): void {
-  if (column.missing !== undefined) {
-    const mask = column.missing;
-    for (let row = 0; row < rowCount; row++) missingRow[row] |= mask[row] === 1 ? 1 : 0;
-  }
+/**
+ * Sets `missingRow[row]` to 1 for every row missing in the column (see scanColumn) and
+ * returns how many rows are missing in this column.
+ */
+function markMissingRows(column: EngineColumn, rowCount: number, missingRow: Uint8Array): number {
+  const mask = column.missing;
+  let count = 0;
   if (column.kind === 'numeric') {
     const values = column.values;
-    for (let row = 0; row < rowCount; row++) if (values[row] !== values[row]) missingRow[row] = 1;
+    for (let row = 0; row < rowCount; row++) {
+      if (values[row] !== values[row] || (mask !== undefined && mask[row] === 1)) {
+        missingRow[row] = 1;
+        count++;
+      }
+    }
   } else {
     const codes = column.codes;
     const levelCount = column.levels.length;
     for (let row = 0; row < rowCount; row++) {
       const code = codes[row];
-      if (code < 0 || code >= levelCount) missingRow[row] = 1;
+      if (code < 0 || code >= levelCount || (mask !== undefined && mask[row] === 1)) {
+        missingRow[row] = 1;
+        count++;
+      }
     }
   }
+  return count;
 }
 
 /** Shortest round-trip text of a number, used as a level name for numeric columns. */
@@ -227,6 +240,7 @@ function codeFactor(
     }
   }
   if (present.length < 2) throw new ConstantColumnError(name);
+  warnSuspectLevels(name, present, warnings);
   const levels = [referenceLevel, ...present.filter((level) => level !== referenceLevel)];
   const lookup = new Map(levels.map((level, code) => [level, code]));
   const counts = new Int32Array(levels.length);
@@ -261,8 +275,15 @@ function codeFactor(
   return { kind: 'categorical', column: name, levels, codes, counts };
 }
 
-function numericVariable(column: EngineColumn, name: string, rows: Int32Array, allRows: boolean, knownFinite: boolean): NumericVariable {
-  if (column.kind !== 'numeric') throw new ColumnTypeMismatchError(name, 'numeric to be used as a continuous variable');
+function numericVariable(
+  data: EngineData,
+  column: EngineColumn,
+  name: string,
+  rows: Int32Array,
+  allRows: boolean,
+  knownFinite: boolean,
+): NumericVariable {
+  if (column.kind !== 'numeric') refuseText(data, column, name, 'to be used as a continuous variable');
   // With no row dropped the column is used as is (read only), saving a copy per column;
   // when its values are known to be finite, only constancy is left to check.
   const source = column.values;
@@ -277,7 +298,7 @@ function numericVariable(column: EngineColumn, name: string, rows: Int32Array, a
   for (let i = 0; i < rows.length; i++) {
     const value = allRows ? source[i] : source[rows[i]];
     if (value - value !== 0) {
-      throw new InvalidDataError(`The column "${name}" holds a non-finite value in row ${rows[i] + 1}.`, { column: name });
+      throw new InvalidDataError(`The column "${name}" holds a non-finite value on ${rowPlace(data, rows[i])}.`, { column: name });
     }
     if (!allRows) values[i] = value;
     if (constant && value !== first) constant = false;
@@ -316,9 +337,13 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
   }
   let kept = data.rowCount;
   let rowIndex: Int32Array;
+  const missingByColumn: { column: string; rows: number }[] = [];
   if (anyMissing) {
     const missingRow = new Uint8Array(data.rowCount);
-    for (const column of columns) markMissingRows(column, data.rowCount, missingRow);
+    columns.forEach((column, index) => {
+      const rows = markMissingRows(column, data.rowCount, missingRow);
+      if (rows > 0) missingByColumn.push({ column: used[index], rows });
+    });
     kept = 0;
     const keep = new Int32Array(data.rowCount);
     for (let row = 0; row < data.rowCount; row++) if (missingRow[row] === 0) keep[kept++] = row;
@@ -372,6 +397,7 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
     } else {
       const present = presentLevels(outcomeColumn, rowIndex);
       if (present.length > 2) throw new OutcomeNotBinaryError(outcomeName, present[2]);
+      warnSuspectLevels(outcomeName, present, warnings);
       const declared = outcomeColumn.levels;
       let event = spec.outcome.event;
       if (event === undefined) {
@@ -385,10 +411,10 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
       eventLevel = event;
     }
   } else {
-    if (outcomeColumn.kind !== 'numeric') throw new ColumnTypeMismatchError(outcomeName, 'numeric for a continuous outcome');
+    if (outcomeColumn.kind !== 'numeric') refuseText(data, outcomeColumn, outcomeName, 'for a continuous outcome');
     for (let i = 0; i < kept; i++) {
       const value = outcomeColumn.values[rowIndex[i]];
-      if (!Number.isFinite(value)) throw new InvalidDataError(`The outcome "${outcomeName}" holds a non-finite value in row ${rowIndex[i] + 1}.`, { column: outcomeName });
+      if (!Number.isFinite(value)) throw new InvalidDataError(`The outcome "${outcomeName}" holds a non-finite value on ${rowPlace(data, rowIndex[i])}.`, { column: outcomeName });
       if (!outcomeInPlace) outcome[i] = value;
     }
   }
@@ -419,31 +445,36 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
   if (exposurePresent.length !== 2) throw new ExposureNotBinaryError(exposureName, exposurePresent.length);
   if (!exposurePresent.includes(spec.exposure.reference)) throw new EmptyStratumError(exposureName, spec.exposure.reference);
   const exposureOther = exposurePresent.find((level) => level !== spec.exposure.reference) as string;
+  warnSuspectLevels(exposureName, exposurePresent, warnings);
 
   // Modifier.
   const modifierColumn = columns[2];
   const modifier: FrameVariable =
     spec.modifier.type === 'categorical'
       ? codeFactor(modifierColumn, spec.modifier.column, rowIndex, spec.modifier.reference, 'modifier', warnings, allRows)
-      : numericVariable(modifierColumn, spec.modifier.column, rowIndex, allRows, finite[2]);
+      : numericVariable(data, modifierColumn, spec.modifier.column, rowIndex, allRows, finite[2]);
 
   const covariates = spec.covariates.map((covariate, index) => {
     const column = columns[3 + index];
     return covariate.type === 'categorical'
       ? codeFactor(column, covariate.column, rowIndex, covariate.reference, 'covariate', warnings, allRows)
-      : numericVariable(column, covariate.column, rowIndex, allRows, finite[3 + index]);
+      : numericVariable(data, column, covariate.column, rowIndex, allRows, finite[3 + index]);
   });
 
   if (kept < data.rowCount) {
+    const byColumn = missingByColumn.map((entry) => `"${entry.column}" ${entry.rows}`).join(', ');
     warnings.push({
       code: 'ROWS_DROPPED',
-      message: `${data.rowCount - kept} of ${data.rowCount} rows have a missing value in a column the analysis uses and were left out.`,
+      message:
+        `${data.rowCount - kept} of ${data.rowCount} rows have a missing value in a column the analysis uses and were left out ` +
+        `(rows missing per column: ${byColumn}; a row can be missing in more than one).`,
     });
   }
 
   return {
     n: kept,
     dropped: data.rowCount - kept,
+    missingByColumn,
     rowIndex,
     outcome,
     outcomeColumn: outcomeName,

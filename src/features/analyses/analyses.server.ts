@@ -7,6 +7,7 @@ import type { Spec } from '../../engine/boundary/schemas';
 import { sequelize } from '../../lib/server/db';
 import { conflict, notFound, unprocessable } from '../../lib/server/errors';
 import { recordAudit } from '../audit/audit.server';
+import { levelsLeftIn } from '../extracts/engineData';
 import type { ColumnProfile, DictionaryEntry } from '../extracts/extracts.schema';
 import type { AnalysisBody } from './analysisApi.schema';
 
@@ -66,7 +67,10 @@ async function usableVersion(transaction: Transaction, initiativeId: string, ver
 export function checkSpecAgainstDictionary(spec: Spec, dictionary: readonly DictionaryEntry[], profile: readonly ColumnProfile[]): void {
   const problems: { path: string; message: string }[] = [];
   const entry = (name: string) => dictionary.find((d) => d.name === name);
-  const levels = (name: string) => profile.find((p) => p.name === name)?.levels?.map((l) => l.value) ?? null;
+  const levels = (name: string) => {
+    const found = profile.find((p) => p.name === name)?.levels;
+    return found ? levelsLeftIn(found.map((l) => l.value), entry(name)?.missingValues) : null;
+  };
   const need = (path: string, name: string, allowed: DictionaryEntry['type'][], role: string) => {
     const found = entry(name);
     if (!found) problems.push({ path, message: `There is no column “${name}” in this extract version.` });

@@ -6,6 +6,7 @@
  * English, and the list of what a run will compute.
  */
 import { SpecSchema, type Spec } from '../../engine/boundary/schemas';
+import { levelsLeftIn } from '../extracts/engineData';
 import type { ColumnProfile, DictionaryEntry } from '../extracts/extracts.schema';
 
 // ---------------------------------------------------------------------------------------
@@ -36,7 +37,7 @@ export function formColumns(dictionary: readonly DictionaryEntry[], profile: rea
       name: entry.name,
       type: entry.type,
       description: entry.description ?? '',
-      levels: column?.levels ? column.levels.map((level) => level.value) : null,
+      levels: column?.levels ? levelsLeftIn(column.levels.map((level) => level.value), entry.missingValues) : null,
       levelsTruncated: column?.levelsTruncated ?? false,
       numeric: column?.numeric
         ? { min: column.numeric.min, max: column.numeric.max, mean: column.numeric.mean, sd: column.numeric.sd, median: column.numeric.median }

@@ -14,6 +14,10 @@ interface ColumnChoice {
   inferredType: AnalysableColumnType;
   allowed: AnalysableColumnType[];
   summary: string;
+  /** Tokens read as missing, in words (`NA 12, "." 3`); '' when none. */
+  tokens: string;
+  /** Levels that look like undeclared missing-value codes. */
+  suspects: string[];
 }
 
 interface Props {
@@ -32,11 +36,18 @@ const TYPE_LABEL: Record<AnalysableColumnType, string> = {
 };
 
 function Confirm({ extractId, versionId, columns, statement, signerName }: Props) {
-  const [entries, setEntries] = useState(() => columns.map((c) => ({ name: c.name, type: c.inferredType, description: '' })));
+  const [entries, setEntries] = useState(() => columns.map((c) => ({ name: c.name, type: c.inferredType, description: '', missing: '' })));
   const [signedName, setSignedName] = useState('');
   const [agreed, setAgreed] = useState(false);
   const confirm = useMutation({
-    mutationFn: () => apiFetch(`/api/extracts/${extractId}/versions/${versionId}/confirm`, { method: 'POST', body: { attestation: { signedName }, columns: entries } }),
+    mutationFn: () =>
+      apiFetch(`/api/extracts/${extractId}/versions/${versionId}/confirm`, {
+        method: 'POST',
+        body: {
+          attestation: { signedName },
+          columns: entries.map(({ missing, ...entry }) => ({ ...entry, missingValues: splitCodes(missing) })),
+        },
+      }),
     onSuccess: () => window.location.reload(),
   });
   const error = confirm.error instanceof ApiError ? confirm.error : null;
@@ -49,13 +60,26 @@ function Confirm({ extractId, versionId, columns, statement, signerName }: Props
       <HydratedFieldset>
       <h2 id="confirm-heading" className="text-lg">Confirm the data dictionary</h2>
       <p className="text-sm text-ink-700 mt-1">Check the type Crossgrain inferred for each column, correct it where it is wrong, and describe what the column holds. Analyses offer columns by these types.</p>
+      <p className="text-sm text-ink-700 mt-1">Empty fields and NA, N/A, NULL, “.”, “-” and NaN (in any letter case) are always read as missing. Under “Also missing”, list further codes that mean “not known” in a column, separated by commas (such as 999 or unknown); analyses of this version leave those rows out.</p>
       <table className="data-table w-full text-sm mt-4">
-        <thead><tr><th>Column</th><th>What we saw</th><th>Type</th><th>Description</th></tr></thead>
+        <thead><tr><th>Column</th><th>What we saw</th><th>Type</th><th>Description</th><th>Also missing</th></tr></thead>
         <tbody>
           {entries.map((entry, index) => (
             <tr key={entry.name}>
               <td className="font-semibold font-mono">{entry.name}</td>
-              <td className="text-ink-500">{columns[index].summary}</td>
+              <td className="text-ink-500">
+                {columns[index].summary}
+                {columns[index].tokens && <p className="text-xs mt-1" data-testid={`tokens-${entry.name}`}>Read as missing: {columns[index].tokens}</p>}
+                {columns[index].suspects.length > 0 && (
+                  <p className="text-xs mt-1 text-ochre-700" role="note" data-testid={`suspect-${entry.name}`}>
+                    {columns[index].suspects.map((level) => `“${level}”`).join(', ')} may stand for a missing value.{' '}
+                    <button type="button" className="underline"
+                      onClick={() => setEntries((all) => all.map((x, i) => (i === index ? { ...x, missing: joinCodes([...splitCodes(x.missing), ...columns[index].suspects]) } : x)))}>
+                      Declare {columns[index].suspects.length === 1 ? 'it' : 'them'} missing
+                    </button>
+                  </p>
+                )}
+              </td>
               <td>
                 <select aria-label={`Type of ${entry.name}`} className="field-input" value={entry.type}
                   onChange={(e) => setEntries((all) => all.map((x, i) => (i === index ? { ...x, type: e.target.value as AnalysableColumnType } : x)))}>
@@ -66,6 +90,11 @@ function Confirm({ extractId, versionId, columns, statement, signerName }: Props
               <td>
                 <input aria-label={`Description of ${entry.name}`} className="field-input" value={entry.description} maxLength={2000}
                   onChange={(e) => setEntries((all) => all.map((x, i) => (i === index ? { ...x, description: e.target.value } : x)))} />
+              </td>
+              <td>
+                <input aria-label={`Further missing-value codes of ${entry.name}`} className="field-input" value={entry.missing} placeholder="e.g. 999, unknown"
+                  onChange={(e) => setEntries((all) => all.map((x, i) => (i === index ? { ...x, missing: e.target.value } : x)))} />
+                {error?.fieldMessage(`columns.${index}.missingValues`) && <p className="field-error">{error.fieldMessage(`columns.${index}.missingValues`)}</p>}
               </td>
             </tr>
           ))}
@@ -91,6 +120,15 @@ function Confirm({ extractId, versionId, columns, statement, signerName }: Props
     </HydratedFieldset>
     </form>
   );
+}
+
+/** Codes typed as a comma-separated list, trimmed, empty ones dropped. */
+function splitCodes(text: string): string[] {
+  return text.split(',').map((code) => code.trim()).filter((code) => code !== '');
+}
+
+function joinCodes(codes: string[]): string {
+  return [...new Set(codes)].join(', ');
 }
 
 export default function ConfirmVersion(props: Props) {

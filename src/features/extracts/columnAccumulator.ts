@@ -10,13 +10,16 @@
  * - missing rows are a bitmap (bit `i & 7` of byte `i >> 3`);
  * - identifier-pattern counts for the screen (see identifierScreen.ts).
  *
- * A field is missing when it is empty after trimming spaces and tabs, or equals one of the
- * missing-value tokens (`NA`, `N/A`, `NULL` by default). A field is a number when it is
+ * A field is missing when it is empty after trimming spaces and tabs, or is one of the
+ * shared missing-value tokens (NA, N/A, NULL, ".", "-", NaN in any letter case; see
+ * src/engine/design/missingValues.ts) or an extra token of the caller's; each column counts
+ * how often it met each token. A token is never a number or a level. A field is a number when it is
  * `[+-]digits[.digits][e[+-]digits]` (the decimal separator may be set to a comma for
  * semicolon files); anything else is text. A column with any text value is a text column
  * at the end; its numeric values then become levels in JavaScript's shortest round-trip
  * form (`007` -> `7`), while the raw digits were already screened as they passed.
  */
+import { MISSING_TOKENS } from '../../engine/design/missingValues';
 import { ExtractRefusalError } from './extractRefusal';
 import { addPatternMask, classifyTextValue, emptyPatternCounts, isCompactDate, type PatternCounts } from './identifierScreen';
 
@@ -26,7 +29,7 @@ export interface ColumnSetOptions {
   dropColumns?: readonly string[];
   /** Distinct text values kept per column before it stops learning levels. Default 50,000. */
   maxLevels?: number;
-  /** Field values that mean "missing" besides the empty field. Default NA, N/A, NULL. */
+  /** Field values that mean "missing" besides the shared tokens (compared ignoring letter case). */
   missingTokens?: readonly string[];
   /** Decimal separator of numbers. Default ".". A comma is only possible with a non-comma delimiter. */
   decimalSeparator?: '.' | ',';
@@ -78,7 +81,15 @@ export interface NumericColumnData {
   missingCount: number;
   /** Largest number of decimal places written, or -1 when some value used an exponent or had over 15 digits. */
   maxDecimals: number;
+  /** How often each missing-value token occurred (only tokens met), in the tokens' order. */
+  missingTokens: TokenCount[];
   patterns: PatternCounts;
+}
+
+/** A missing-value token (as the shared list spells it) and its count in a column. */
+export interface TokenCount {
+  token: string;
+  count: number;
 }
 
 /** A finished dictionary-encoded text column. */
@@ -103,6 +114,9 @@ export interface TextColumnData {
   numericValueCount: number;
   /** The numbers of the column, NaN elsewhere (kept for the age rule); null when there were none. */
   numericValues: Float64Array | null;
+  /** Per level, the file line where it first occurred (0 where unknown, e.g. numbers of a mixed column). */
+  levelFirstLines: Int32Array;
+  missingTokens: TokenCount[];
   patterns: PatternCounts;
 }
 
@@ -296,7 +310,12 @@ class ColumnBuilder {
   readonly index: number;
   private readonly decimalByte: number;
   private readonly maxLevels: number;
+  /** Tokens in upper case; a field matches ignoring the case of ASCII letters. */
   private readonly missingTokens: readonly Uint8Array[];
+  private readonly tokenNames: readonly string[];
+  private readonly tokenCounts: Int32Array;
+  private readonly longestToken: number;
+  private levelFirstRows = new Int32Array(16);
   private capacity: number;
   private readonly plan: CapacityPlan;
   rowCount = 0;
@@ -319,7 +338,7 @@ class ColumnBuilder {
     index: number,
     plan: CapacityPlan,
     capacity: number,
-    options: Required<Pick<ColumnSetOptions, 'maxLevels'>> & { decimalByte: number; missingTokens: readonly Uint8Array[] },
+    options: Required<Pick<ColumnSetOptions, 'maxLevels'>> & { decimalByte: number; missingTokens: readonly Uint8Array[]; tokenNames: readonly string[] },
   ) {
     this.name = name;
     this.index = index;
@@ -328,6 +347,9 @@ class ColumnBuilder {
     this.decimalByte = options.decimalByte;
     this.maxLevels = options.maxLevels;
     this.missingTokens = options.missingTokens;
+    this.tokenNames = options.tokenNames;
+    this.tokenCounts = new Int32Array(options.tokenNames.length);
+    this.longestToken = Math.max(...options.missingTokens.map((t) => t.length));
     this.missing = new Uint8Array((capacity + 7) >> 3);
   }
 
@@ -340,20 +362,24 @@ class ColumnBuilder {
     if (this.codes !== null) this.codes = growCodes(this.codes, used, capacity);
   }
 
-  private isMissingToken(bytes: Uint8Array, start: number, end: number): boolean {
+  /** Index of the token the field is (ASCII letters compared in upper case), or -1. */
+  private tokenIndex(bytes: Uint8Array, start: number, end: number): number {
     const length = end - start;
-    for (const token of this.missingTokens) {
+    const tokens = this.missingTokens;
+    for (let t = 0; t < tokens.length; t++) {
+      const token = tokens[t];
       if (token.length !== length) continue;
       let same = true;
       for (let k = 0; k < length; k++) {
-        if (token[k] !== bytes[start + k]) {
+        const b = bytes[start + k];
+        if (token[k] !== (b >= 97 && b <= 122 ? b - 32 : b)) {
           same = false;
           break;
         }
       }
-      if (same) return true;
+      if (same) return t;
     }
-    return false;
+    return -1;
   }
 
   accept(bytes: Uint8Array, start: number, end: number): void {
@@ -361,7 +387,9 @@ class ColumnBuilder {
     while (end > start && (bytes[end - 1] === 32 || bytes[end - 1] === 9)) end--;
     const row = this.rowCount++;
     if (row === this.capacity) this.grow();
-    if (start === end || (end - start <= 4 && this.isMissingToken(bytes, start, end))) {
+    const token = start === end ? 0 : end - start <= this.longestToken ? this.tokenIndex(bytes, start, end) : -1;
+    if (token >= 0) {
+      this.tokenCounts[token]++;
       this.missing[row >> 3] |= 1 << (row & 7);
       this.missingCount++;
       if (this.values !== null) this.values[row] = NaN;
@@ -409,14 +437,26 @@ class ColumnBuilder {
       if (code === this.levelCounts.length) {
         this.levelCounts = growInt32(this.levelCounts, code * 2, 0);
         this.levelMasks = growInt32(this.levelMasks, code * 2, 0);
+        this.levelFirstRows = growInt32(this.levelFirstRows, code * 2, -1);
       }
+      this.levelFirstRows[code] = row;
       this.levelMasks[code] = classifyTextValue(decode(bytes, start, end));
     }
     this.codes[row] = code;
     this.levelCounts[code]++;
   }
 
-  finish(): ColumnData {
+  /** The tokens met, with their counts. */
+  private tokensMet(): TokenCount[] {
+    const out: TokenCount[] = [];
+    this.tokenNames.forEach((token, index) => {
+      if (this.tokenCounts[index] > 0) out.push({ token, count: this.tokenCounts[index] });
+    });
+    return out;
+  }
+
+  /** `lineOfRow` maps a 0-based data row to its file line (see ColumnSet). */
+  finish(lineOfRow: (row: number) => number): ColumnData {
     const n = this.rowCount;
     const missing = this.missing.subarray(0, (n + 7) >> 3);
     const patterns = { ...this.patterns };
@@ -430,6 +470,7 @@ class ColumnBuilder {
         missing,
         missingCount: this.missingCount,
         maxDecimals: this.maxDecimals,
+        missingTokens: this.tokensMet(),
         patterns,
       };
     }
@@ -460,7 +501,9 @@ class ColumnBuilder {
           if (code >= this.levelCounts.length) {
             this.levelCounts = growInt32(this.levelCounts, Math.max(code + 1, this.levelCounts.length * 2), 0);
             this.levelMasks = growInt32(this.levelMasks, this.levelCounts.length, 0);
+            this.levelFirstRows = growInt32(this.levelFirstRows, this.levelCounts.length, -1);
           }
+          this.levelFirstRows[code] = -1;
         }
         codes[row] = code;
         this.levelCounts[code]++;
@@ -483,10 +526,13 @@ class ColumnBuilder {
     const newCode = new Int32Array(order.length);
     const levels = new Array<string>(order.length);
     const levelCounts = new Int32Array(order.length);
+    const levelFirstLines = new Int32Array(order.length);
     for (let k = 0; k < order.length; k++) {
       newCode[order[k]] = k;
       levels[k] = unsorted[order[k]];
       levelCounts[k] = this.levelCounts[order[k]];
+      const firstRow = this.levelFirstRows[order[k]];
+      levelFirstLines[k] = firstRow >= 0 ? lineOfRow(firstRow) : 0;
     }
     for (let row = 0; row < n; row++) {
       const code = codes[row];
@@ -506,6 +552,8 @@ class ColumnBuilder {
       levelCap: this.maxLevels,
       numericValueCount: this.numericCount,
       numericValues: values,
+      levelFirstLines,
+      missingTokens: this.tokensMet(),
       patterns,
     };
   }
@@ -525,6 +573,15 @@ export class ColumnSet {
   private readonly plan: CapacityPlan;
   /** Names of the columns dropped while reading, in file order. */
   readonly droppedColumns: string[] = [];
+  /**
+   * Where rows start: (row, line) pairs wherever a record does not begin on the line after
+   * the previous one (blank lines, quoted line breaks); in between lines follow rows.
+   */
+  private markRows = new Int32Array(16);
+  private markLines = new Int32Array(16);
+  private marks = 0;
+  private records = 0;
+  private nextLine = -1;
 
   /**
    * @param options see {@link ColumnSetOptions}
@@ -543,7 +600,12 @@ export class ColumnSet {
   /** Creates one builder per kept column; refuses a drop list naming a column the header lacks. */
   header(names: readonly string[]): void {
     const decimalByte = (this.options.decimalSeparator ?? '.') === ',' ? 44 : 46;
-    const missingTokens = (this.options.missingTokens ?? ['NA', 'N/A', 'NULL']).map((t) => Buffer.from(t.trim()));
+    const tokenNames: string[] = [...MISSING_TOKENS];
+    for (const extra of this.options.missingTokens ?? []) {
+      const trimmed = extra.trim();
+      if (trimmed !== '' && !tokenNames.some((t) => t.toUpperCase() === trimmed.toUpperCase())) tokenNames.push(trimmed);
+    }
+    const missingTokens = tokenNames.map((t) => Buffer.from(t.toUpperCase()));
     const capacity = this.plan.initial(names.length);
     const maxLevels = this.options.maxLevels ?? DEFAULT_MAX_LEVELS;
     const matched = new Set<string>();
@@ -554,7 +616,7 @@ export class ColumnSet {
         this.droppedColumns.push(name);
         return null;
       }
-      return new ColumnBuilder(name, index, this.plan, capacity, { decimalByte, missingTokens, maxLevels });
+      return new ColumnBuilder(name, index, this.plan, capacity, { decimalByte, missingTokens, tokenNames, maxLevels });
     });
     const unmatched = (this.options.dropColumns ?? []).filter((name) => !matched.has(name.trim().toLowerCase()));
     if (unmatched.length > 0) {
@@ -569,13 +631,44 @@ export class ColumnSet {
     if (builder !== null) builder.accept(bytes, start, end);
   }
 
-  /** Nothing to do per record: every builder counts its own rows. */
-  endRecord(): void {}
+  /** Notes the line where the record began (every builder counts its own rows). */
+  endRecord(line?: number): void {
+    const row = this.records++;
+    if (line === undefined || line === this.nextLine) {
+      this.nextLine++;
+      return;
+    }
+    if (this.marks === this.markRows.length) {
+      this.markRows = growInt32(this.markRows, this.marks * 2, 0);
+      this.markLines = growInt32(this.markLines, this.marks * 2, 0);
+    }
+    this.markRows[this.marks] = row;
+    this.markLines[this.marks] = line;
+    this.marks++;
+    this.nextLine = line + 1;
+  }
+
+  /**
+   * The file line (1-based, header on line 1) where data row `row` (0-based) began, when
+   * the reader reported lines; else the line it would have in a file without blank lines.
+   */
+  lineOfRow(row: number): number {
+    let low = 0;
+    let high = this.marks - 1;
+    if (high < 0 || this.markRows[0] > row) return row + 2;
+    while (low < high) {
+      const mid = (low + high + 1) >> 1;
+      if (this.markRows[mid] <= row) low = mid;
+      else high = mid - 1;
+    }
+    return this.markLines[low] + (row - this.markRows[low]);
+  }
 
   /** The finished kept columns, in file order. */
   finish(): ColumnData[] {
     const out: ColumnData[] = [];
-    for (const builder of this.builders) if (builder !== null) out.push(builder.finish());
+    const lineOfRow = (row: number): number => this.lineOfRow(row);
+    for (const builder of this.builders) if (builder !== null) out.push(builder.finish(lineOfRow));
     return out;
   }
 }

@@ -13,6 +13,7 @@
  * with a known number of places, over a range of at most 2^24 steps (that is how a
  * million-row column is profiled in milliseconds); otherwise from a sorted copy.
  */
+import { suspectMissingLevels } from '../../engine/design/missingValues';
 import type { ColumnData, NumericColumnData, TextColumnData } from './columnAccumulator';
 import type { Finding } from './identifierScreen';
 import type { ColumnProfile, ColumnType, LevelCount, NumericSummary } from './extracts.schema';
@@ -253,7 +254,8 @@ function summarizeText(column: TextColumnData): ColumnSummary {
   if (column.numericValueCount > 0) {
     const textValues = nonMissing - column.numericValueCount;
     notes.push(
-      `${column.numericValueCount.toLocaleString('en-US')} values are numbers and ${textValues.toLocaleString('en-US')} are text; if the column is numeric, correct or blank out the text values.`,
+      `${column.numericValueCount.toLocaleString('en-US')} values are numbers and ${textValues.toLocaleString('en-US')} are text` +
+        `${firstTextValue(column)}; if the column is numeric, correct or blank out the text values, or declare them missing-value codes.`,
     );
   }
   let baseType: ColumnSummary['baseType'];
@@ -275,6 +277,16 @@ function summarizeText(column: TextColumnData): ColumnSummary {
   };
 }
 
+/** ` (the first text value is "x", on line n)` for a column of numbers and text; '' when unknown. */
+function firstTextValue(column: TextColumnData): string {
+  let best = -1;
+  column.levels.forEach((level, code) => {
+    const line = column.levelFirstLines[code];
+    if (line > 0 && column.levelCounts[code] > 0 && (best < 0 || line < column.levelFirstLines[best])) best = code;
+  });
+  return best < 0 ? '' : ` (the first text value is "${column.levels[best]}", on line ${column.levelFirstLines[best]})`;
+}
+
 /** Statistics of one finished column (no screen involved yet). */
 export function summarizeColumn(column: ColumnData): ColumnSummary {
   return column.kind === 'numeric' ? summarizeNumeric(column) : summarizeText(column);
@@ -288,6 +300,15 @@ export function inferColumnType(summary: ColumnSummary, findings: readonly Findi
   if (findings.some((f) => f.category === 'dates')) return 'date-like';
   if (findings.length > 0) return 'identifier-like';
   return summary.baseType;
+}
+
+/**
+ * Levels that look like undeclared missing-value codes, for columns that list their levels
+ * (text columns, and numeric ones with few distinct values).
+ */
+function suspectLevels(summary: ColumnSummary): string[] {
+  if (summary.levels === null || summary.levelsTruncated) return [];
+  return suspectMissingLevels(summary.levels.map((level) => level.value));
 }
 
 /** The full profile of a column, given its summary and the screen's findings for it. */
@@ -307,6 +328,8 @@ export function buildColumnProfile(column: ColumnData, summary: ColumnSummary, f
     numeric: summary.numeric,
     numericValueCount,
     textValueCount: summary.nonMissing - numericValueCount,
+    missingTokens: column.missingTokens,
+    suspectMissing: suspectLevels(summary),
     notes: summary.notes,
   };
 }

@@ -38,8 +38,11 @@ export interface CsvSink {
   header(names: readonly string[]): void;
   /** One field of the current data record; `column` counts from 0. */
   field(column: number, bytes: Uint8Array, start: number, end: number): void;
-  /** The current data record is complete (it had exactly as many fields as the header). */
-  endRecord(): void;
+  /**
+   * The current data record is complete (it had exactly as many fields as the header);
+   * `line` is the physical line (1-based, header on line 1) where it began.
+   */
+  endRecord(line?: number): void;
 }
 
 /** Options of {@link CsvChunkReader}. */
@@ -458,7 +461,7 @@ export class CsvChunkReader {
     } else {
       if (this.fieldIndex + 1 !== this.columnCount) this.ragged(this.fieldIndex + 1);
       this.recordCount++;
-      this.sink.endRecord();
+      this.sink.endRecord(this.recordLine);
     }
     this.fieldIndex = 0;
   }

@@ -109,6 +109,10 @@ export const ColumnProfile = z.object({
   /** Non-missing values that were numbers and text, for mixed columns. */
   numericValueCount: z.number().int().nonnegative(),
   textValueCount: z.number().int().nonnegative(),
+  /** (Versions stored before the shared tokens lack the next two.) How often each missing-value token (empty, NA, N/A, NULL, ".", "-", NaN in any case) occurred; only tokens met. */
+  missingTokens: z.array(z.object({ token: z.string(), count: z.number().int().nonnegative() })).optional(),
+  /** Levels that look like undeclared missing-value codes ("unknown", 999 ...); declare them at confirmation. */
+  suspectMissing: z.array(z.string()).optional(),
   notes: z.array(z.string()),
 });
 export type ColumnProfile = z.infer<typeof ColumnProfile>;
@@ -118,6 +122,14 @@ export const DictionaryEntry = z.object({
   name: z.string().min(1),
   type: AnalysableColumnType,
   description: z.string().max(2000).default(''),
+  /**
+   * Further values the analyst declares missing for this column (such as 999 or "unknown"),
+   * besides the shared tokens; compared ignoring surrounding spaces and letter case.
+   */
+  missingValues: z
+    .array(z.string().trim().min(1, 'A missing-value code cannot be empty.').max(100, 'Keep a missing-value code under 100 characters.'))
+    .max(20, 'Declare at most 20 missing-value codes per column.')
+    .optional(),
 });
 export type DictionaryEntry = z.infer<typeof DictionaryEntry>;
 

@@ -22,10 +22,13 @@ import { logger } from '../../lib/server/logger';
 import { recordAudit } from '../audit/audit.server';
 import { decodeCodes, decodeNumericValues, encodeColumn } from './columnStore';
 import type { EngineData } from '../../engine';
-import { toEngineData, type StoredColumn } from './engineData';
+import { isMissingToken } from '../../engine/design/missingValues';
+import { levelsLeftIn, missingCodeKey, toEngineData, type StoredColumn } from './engineData';
 import { ExtractRefusalError } from './extractRefusal';
 import { readExtractColumns, reviewExtractColumns, type ReadExtract } from './extracts';
 import type { ColumnProfile, DictionaryEntry, ProcessingStage } from './extracts.schema';
+
+export { toEngineData, type StoredColumn } from './engineData';
 
 /** The statement an analyst signs before a version becomes ready. */
 export const ATTESTATION_STATEMENT =
@@ -523,7 +526,10 @@ export async function confirmVersion(
   await recordAudit(transaction, {
     action: 'extract.confirmed', actorId: actor.id, subjectType: 'extract', subjectId: extractId, initiativeId: version.initiative_id,
     clientAddress: actor.clientAddress,
-    details: { versionId, version: version.version_number, sha256: version.sha256, signedName: body.attestation.signedName, corrected: Boolean(body.columns) },
+    details: {
+      versionId, version: version.version_number, sha256: version.sha256, signedName: body.attestation.signedName, corrected: Boolean(body.columns),
+      missingValues: Object.fromEntries(dictionary.filter((d) => (d.missingValues ?? []).length > 0).map((d) => [d.name, d.missingValues])),
+    },
   });
 }
 
@@ -539,7 +545,7 @@ const ALLOWED_TYPES: Record<string, readonly DictionaryEntry['type'][]> = {
 export function buildDictionary(profile: ColumnProfile[], columns?: DictionaryEntry[]): DictionaryEntry[] {
   const analysable = profile.filter((p) => p.inferredType in ALLOWED_TYPES);
   if (!columns) {
-    return analysable.map((p) => ({ name: p.name, type: p.inferredType as DictionaryEntry['type'], description: '' }));
+    return analysable.map((p) => ({ name: p.name, type: p.inferredType as DictionaryEntry['type'], description: '', missingValues: [] }));
   }
   const byName = new Map(columns.map((c) => [c.name, c]));
   const problems: { path: string; message: string }[] = [];
@@ -548,18 +554,40 @@ export function buildDictionary(profile: ColumnProfile[], columns?: DictionaryEn
   }
   const dictionary = analysable.map((p, index) => {
     const entry = byName.get(p.name);
-    if (!entry) return { name: p.name, type: p.inferredType as DictionaryEntry['type'], description: '' };
+    if (!entry) return { name: p.name, type: p.inferredType as DictionaryEntry['type'], description: '', missingValues: [] };
     const allowed = ALLOWED_TYPES[p.inferredType];
     if (!allowed.includes(entry.type)) {
       problems.push({ path: `columns.${index}.type`, message: `“${p.name}” was read as ${p.inferredType}; it can be recorded as ${allowed.join(' or ')}, not ${entry.type}.` });
     }
-    if (entry.type === 'binary' && (p.distinctCount > 2)) {
-      problems.push({ path: `columns.${index}.type`, message: `“${p.name}” has ${p.distinctCount} distinct values, so it cannot be binary.` });
+    const missingValues = declaredMissingValues(p, entry.missingValues ?? [], `columns.${index}.missingValues`, problems);
+    // Declared codes are not values: "yes, no, unknown" with "unknown" declared is binary.
+    const distinct = p.levels && !p.levelsTruncated ? levelsLeftIn(p.levels.map((l) => l.value), missingValues).length : p.distinctCount;
+    if (entry.type === 'binary' && distinct > 2) {
+      problems.push({ path: `columns.${index}.type`, message: `“${p.name}” has ${distinct} distinct values, so it cannot be binary.` });
     }
-    return { name: p.name, type: entry.type, description: entry.description ?? '' };
+    return { name: p.name, type: entry.type, description: entry.description ?? '', missingValues };
   });
   if (problems.length) throw unprocessable('dictionary-invalid', problems[0].message, problems);
   return dictionary;
+}
+
+/**
+ * The analyst's extra missing-value codes for one column, trimmed and without repeats
+ * (ignoring case) or shared tokens (those are missing anyway). A column stored as numbers
+ * only takes numbers: a word could never occur in it.
+ */
+function declaredMissingValues(profile: ColumnProfile, codes: readonly string[], path: string, problems: { path: string; message: string }[]): string[] {
+  const out: string[] = [];
+  for (const raw of codes) {
+    const code = raw.trim();
+    if (isMissingToken(code) || out.some((kept) => missingCodeKey(kept) === missingCodeKey(code))) continue;
+    if (profile.storage === 'numeric' && !Number.isFinite(Number(code))) {
+      problems.push({ path, message: `“${profile.name}” holds only numbers, so “${code}” cannot occur in it; declare numeric codes such as 999.` });
+      continue;
+    }
+    out.push(code);
+  }
+  return out;
 }
 
 /** Archives (hides from new analyses) or restores an extract. Versions are never deleted. */
@@ -583,14 +611,18 @@ export async function setArchived(transaction: Transaction, actor: Uploader, ext
 // Columns: preview and analysis
 // ---------------------------------------------------------------------------------------
 
-export { toEngineData, type StoredColumn } from './engineData';
 
 /**
- * Loads columns of one version as typed arrays, in one query. The version must be visible
- * to the transaction's identity (row-level security). Versions are immutable, so decoded
- * columns are cached per version after this check.
+ * Loads columns of one version as typed arrays. The version must be visible to the
+ * transaction's identity (row-level security). `missingValues` are the codes the analyst
+ * declared missing per column at confirmation (pass them to toEngineData). Versions are
+ * immutable, so decoded columns are cached per version after this check.
  */
-export async function loadColumns(transaction: Transaction, versionId: string, names?: readonly string[]): Promise<{ rowCount: number; columns: StoredColumn[] }> {
+export async function loadColumns(
+  transaction: Transaction,
+  versionId: string,
+  names?: readonly string[],
+): Promise<{ rowCount: number; columns: StoredColumn[]; missingValues: Record<string, string[]> }> {
   const rows = await appSequelize.query<{ name: string; storage: 'numeric' | 'text'; row_count: number; values: Buffer; levels: string[] | null }>(
     `SELECT name, storage, row_count, values, levels FROM extract_columns
       WHERE version_id = :versionId ${names ? 'AND name IN (:names)' : ''} ORDER BY position`,
@@ -602,12 +634,21 @@ export async function loadColumns(transaction: Transaction, versionId: string, n
       ? { name: r.name, storage: 'numeric', values: decodeNumericValues(r.values, r.row_count) }
       : { name: r.name, storage: 'text', codes: decodeCodes(r.values, r.row_count, r.levels?.length ?? 0), levels: r.levels ?? [] },
   );
-  return { rowCount, columns };
+  const [version] = await appSequelize.query<{ dictionary: DictionaryEntry[] | null }>(
+    'SELECT dictionary FROM extract_versions WHERE id = :versionId',
+    { replacements: { versionId }, type: QueryTypes.SELECT, transaction },
+  );
+  const missingValues: Record<string, string[]> = {};
+  for (const entry of version?.dictionary ?? []) {
+    if (entry.missingValues && entry.missingValues.length > 0) missingValues[entry.name] = entry.missingValues;
+  }
+  return { rowCount, columns, missingValues };
 }
 
 /**
  * The columns an analysis uses, engine-ready: the one way another area (runs) reads an
- * extract version's data. The version must be visible to the transaction's identity.
+ * extract version's data, with the analyst's declared missing-value codes applied. The
+ * version must be visible to the transaction's identity.
  */
 export async function loadAnalysisData(
   transaction: Transaction,
@@ -615,7 +656,7 @@ export async function loadAnalysisData(
   roles: Record<string, 'categorical' | 'continuous'>,
 ): Promise<EngineData> {
   const loaded = await loadColumns(transaction, versionId, Object.keys(roles));
-  return toEngineData(loaded.rowCount, loaded.columns, roles);
+  return toEngineData(loaded.rowCount, loaded.columns, roles, loaded.missingValues);
 }
 
 const previewCache = new Map<string, { rowCount: number; columns: StoredColumn[]; order: Map<string, Uint32Array> }>();

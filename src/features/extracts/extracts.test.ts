@@ -1,5 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { ExtractRefusalError, ingestExtract } from './extracts';
+import { runAnalysis } from '../../engine';
+import { toEngineData } from './engineData';
+import { ExtractRefusalError, ingestExtract, readExtractColumns } from './extracts';
 import { chunked } from './testSupport';
 
 const ingest = (csv: string, options = {}) => ingestExtract(chunked(csv, 4096), options);
@@ -156,6 +158,53 @@ describe('columns', () => {
     expect([x.missingCount, x.distinctCount, x.numeric?.mean]).toEqual([3, 2, 2.5]);
     // y: " a ", NA, a, empty, b -> two missing, a twice, b once.
     expect([y.missingCount, y.levels]).toEqual([2, [{ value: 'a', count: 2 }, { value: 'b', count: 1 }]]);
+  });
+
+  it('reads the shared tokens in any case as missing, never as levels or text, and counts each per column', async () => {
+    const csv = 'dose,site,arm\n1.5,north,0\nna,.,-\n.,south,1\nNaN,null,.\n-,N/a,0\n\n2,north,NA\n,south,1\n';
+    const result = await ingest(csv);
+    const [dose, site, arm] = result.profile;
+    // dose: 1.5, na, ".", NaN, "-", 2, empty -> numbers 1.5 and 2, five missing, still numeric.
+    expect([dose.storage, dose.missingCount, dose.numeric?.mean]).toEqual(['numeric', 5, 1.75]);
+    expect(dose.missingTokens).toEqual([{ token: '', count: 1 }, { token: 'NA', count: 1 }, { token: '.', count: 1 }, { token: '-', count: 1 }, { token: 'NaN', count: 1 }]);
+    // site: ".", null, N/a are missing; the levels are north and south only.
+    expect(site.levels).toEqual([{ value: 'north', count: 2 }, { value: 'south', count: 2 }]);
+    expect(site.missingTokens).toEqual([{ token: 'N/A', count: 1 }, { token: 'NULL', count: 1 }, { token: '.', count: 1 }]);
+    // arm: "-", ".", NA are missing; 0 and 1 make it binary.
+    expect([arm.storage, arm.inferredType, arm.missingCount]).toEqual(['numeric', 'binary', 3]);
+  });
+
+  it('flags levels that look like undeclared missing codes ("unknown", 999) in the profile', async () => {
+    const result = await ingest('stage,smoker,age\n1,yes,40\n2,unknown,51\n999,no,63\n3,yes,999\n2,no,48\n1,Unknown,999\n');
+    const [stage, smoker, age] = result.profile;
+    expect(stage.suspectMissing).toEqual(['999']);
+    expect(smoker.suspectMissing).toEqual(['Unknown', 'unknown']);
+    // 999 beside ages of 40 to 63 is flagged too: every other value is at most (999 + 1) / 2.
+    expect(age.suspectMissing).toEqual(['999']);
+  });
+
+  it('names the first text value of a column of numbers, with its line (blank lines and quoted breaks counted)', async () => {
+    const result = await ingest('id,note,score\n1,"two\nlines",3\n\n2,ok,4\n3,ok,see chart\n4,ok,n/a\n');
+    const score = result.profile[2];
+    expect(score.storage).toBe('text');
+    // Line 1 header, lines 2-3 the record with a quoted break, line 4 blank, line 5 "2", line 6 "see chart".
+    expect(score.notes[0]).toContain('the first text value is "see chart", on line 6');
+  });
+
+  it('an analysis of a numeric covariate holding text names the value, the column and its first line', async () => {
+    const rows = Array.from({ length: 30 }, (_, i) => `${i % 2},${i % 3 === 0 ? 1 : 0},${i % 4 < 2 ? 'a' : 'b'},${i === 20 ? 'see chart' : i === 3 ? 'NA' : (i * 0.7) % 5}`);
+    // One blank line after the fifth data row moves every later row one line down.
+    const csv = ['arm,event,site,dose', ...rows.slice(0, 5), '', ...rows.slice(5)].join('\n');
+    const read = await readExtractColumns([csv]);
+    const data = toEngineData(read.read.recordCount, read.columns.map((c) => (c.kind === 'numeric' ? { name: c.name, storage: 'numeric' as const, values: c.values } : { name: c.name, storage: 'text' as const, codes: c.codes, levels: c.levels })), { arm: 'categorical', event: 'categorical', site: 'categorical', dose: 'continuous' });
+    const spec = {
+      outcome: { column: 'event', type: 'binary' }, exposure: { column: 'arm', reference: '0' }, modifier: { column: 'site', type: 'categorical', reference: 'a' },
+      covariates: [{ column: 'dose', type: 'continuous' }], model: 'logistic', ci: { level: 0.95, method: 'delta' },
+    } as const;
+    // Data row 21 (i = 20) is on line 23: header line 1, rows from line 2, plus the blank line.
+    await expect(runAnalysis({ ...data, lineOfRow: read.lineOfRow }, spec, { threads: 0 })).rejects.toMatchObject({
+      code: 'COLUMN_TYPE_MISMATCH', column: 'dose', level: 'see chart', message: expect.stringContaining('"see chart" (first on line 23)'),
+    });
   });
 
   it('keeps a column with any text as text, and says how many values were numbers', async () => {

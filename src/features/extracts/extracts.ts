@@ -46,6 +46,8 @@ export interface ReadExtract {
   read: CsvReadSummary;
   columns: ColumnData[];
   droppedColumns: string[];
+  /** The file line (header on line 1) of data row `row` (0-based); give it to the engine as `lineOfRow`. */
+  lineOfRow: (row: number) => number;
 }
 
 /** What the screen and the profile say about the columns. */
@@ -77,7 +79,7 @@ export async function readExtractColumns(source: ChunkSource, options: IngestOpt
       onProgress({ stage: 'reading', percent, bytesRead, rows: recordsRead });
     },
   });
-  return { read, columns: sink.finish(), droppedColumns: sink.droppedColumns.slice() };
+  return { read, columns: sink.finish(), droppedColumns: sink.droppedColumns.slice(), lineOfRow: (row) => sink.lineOfRow(row) };
 }
 
 /** Stage 2: the identifier screen and the profile of every column (synchronous, no I/O). */

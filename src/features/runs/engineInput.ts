@@ -42,7 +42,9 @@ class KeptColumns implements CsvSink {
     this.columns!.field(column, bytes, start, end);
   }
 
-  endRecord(): void {}
+  endRecord(line?: number): void {
+    this.columns!.endRecord(line);
+  }
 }
 
 /**
@@ -64,7 +66,9 @@ export async function readEngineData(path: string, roles: Record<string, 'catego
     }
     stored.push(kept);
   }
-  return toEngineData(summary.recordCount, stored, roles);
+  // Errors about a value then name its line in the file, as an upload's do.
+  const columns = sink.columns!;
+  return { ...toEngineData(summary.recordCount, stored, roles), lineOfRow: (row) => columns.lineOfRow(row) };
 }
 
 /**

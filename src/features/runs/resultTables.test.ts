@@ -131,6 +131,20 @@ describe('tables of a categorical modifier (Call-back, logistic, real engine res
     expect(labels).toEqual(['Mantel-Haenszel RD (crude), Sato (1989) variance', 'Mantel-Haenszel RD (crude), Greenland-Robins (1985) variance']);
   });
 
+  it('says how many rows were left out and in which columns, on the page and in the CSV', () => {
+    // The counts are set here (the demo cohort has no missing value); only their wording is checked.
+    const withMissing: Result = { ...result, dropped: 12, missingByColumn: [{ column: 'sex', rows: 5 }, { column: 'site', rows: 9 }] };
+    expect(buildResultTables(withMissing, CALL_BACK_SPEC).modelLine).toContain('12 left out for missing values (missing in sex 5, site 9)');
+    const records = parse(resultCsv(withMissing, CALL_BACK_SPEC), { relax_column_count: true }) as string[][];
+    const rows = records.filter((record) => record[0] === 'rows').map((record) => [record[1], record[3], record[10]]);
+    expect(rows).toEqual([
+      ['', 'analysed', String(result.n)],
+      ['', 'left out for missing values', '12'],
+      ['sex', 'missing in this column', '5'],
+      ['site', 'missing in this column', '9'],
+    ]);
+  });
+
   it('reports the omnibus test, the pooled estimate, the covariates and the model', () => {
     const tables = buildResultTables(result, CALL_BACK_SPEC);
     const omnibus = result.interaction.omnibus;

@@ -272,7 +272,16 @@ const WARNING_TITLE: Record<string, string> = {
   NEAR_SINGULAR_DESIGN: 'Nearly redundant terms',
   FITTED_RISK_ABOVE_ONE: 'Fitted risks above one',
   ROWS_DROPPED: 'Rows left out for missing values',
+  POSSIBLE_MISSING_CODE: 'A level that may stand for a missing value',
 };
+
+/**
+ * Which columns the left-out rows were missing in, as words: `age 7, arm 3`. A row can be
+ * missing in more than one column. Results made before the per-column counts give ''.
+ */
+export function missingInWords(result: Pick<Result, 'missingByColumn'>): string {
+  return (result.missingByColumn ?? []).map((entry) => `${entry.column} ${formatCount(entry.rows)}`).join(', ');
+}
 
 /** Engine warnings with a short title each; the engine's message is already plain words. */
 export function warningsInWords(result: Pick<Result, 'warnings'>): WarningView[] {
@@ -527,9 +536,10 @@ export function buildResultTables(result: Result, spec: Spec): ResultTables {
 
   const model = result.model;
   const fallback = model.family !== model.requestedFamily ? ` (${MODEL_LABEL[model.requestedFamily].toLowerCase()} was asked for; see the warnings)` : '';
+  const missing = missingInWords(result);
   const modelLine =
     `${MODEL_LABEL[model.family]}${fallback}; ${formatCount(result.n)} rows analysed` +
-    `${result.dropped > 0 ? `, ${formatCount(result.dropped)} left out for missing values` : ''}; ` +
+    `${result.dropped > 0 ? `, ${formatCount(result.dropped)} left out for missing values${missing ? ` (missing in ${missing})` : ''}` : ''}; ` +
     `${model.converged ? (model.iterations > 0 ? `converged in ${model.iterations} iterations` : 'fitted directly') : 'did not converge'}; ` +
     `${model.standardErrors === 'model' ? 'model-based' : model.standardErrors} standard errors.`;
 
@@ -703,6 +713,11 @@ export function resultCsv(result: Result, spec: Spec): string {
   }
   for (const covariate of result.covariates) {
     rows.push({ section: 'covariate', level: covariate.column, note: covariate.type === 'categorical' ? `categorical, reference ${covariate.reference}` : 'continuous' });
+  }
+  rows.push({ section: 'rows', measure: 'analysed', n: result.n });
+  rows.push({ section: 'rows', measure: 'left out for missing values', n: result.dropped });
+  for (const entry of result.missingByColumn ?? []) {
+    rows.push({ section: 'rows', level: entry.column, measure: 'missing in this column', n: entry.rows, note: 'a left-out row can be missing in more than one column' });
   }
   rows.push({ section: 'multiplicity', note: multiplicityNote(result) });
   for (const warning of result.warnings) rows.push({ section: 'warning', measure: warning.code, note: warning.message });
