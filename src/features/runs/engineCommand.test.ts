@@ -128,8 +128,23 @@ describe('engine command', () => {
   it('reads a file into the same engine data as the upload path', async () => {
     const roles = columnRoles(spec);
     for (const path of [infert, holedPath]) {
-      expect(await readEngineData(path, roles)).toEqual(await uploadPath(path, roles));
+      const { lineOfRow, ...read } = await readEngineData(path, roles);
+      expect(read).toEqual(await uploadPath(path, roles));
+      expect(lineOfRow?.(0)).toBe(2); // the first data row is line 2, under the header
     }
+  });
+
+  it('names the value, the column and the file line of text in a numeric column', async () => {
+    // Line 41 of the file (index 40: the header is line 1) gets a text age.
+    const texted = lines.map((line, index) => {
+      if (index !== 40) return line;
+      const fields = line.split(',');
+      fields[5] = 'see chart';
+      return fields.join(',');
+    }).join('\n');
+    const { code, stderr } = await command(['--data', file('infert-text.csv', `${texted}\n`), '--spec', specPath]);
+    expect(code).toBe(1);
+    expect(ErrorSchema.parse(JSON.parse(stderr)).error.message).toMatch(/"see chart".*line 41/);
   });
 
   it('reports a file that does not exist', async () => {
