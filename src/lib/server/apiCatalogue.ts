@@ -14,6 +14,8 @@ import { AnalysisBody, Created, DownloadQuery, RunAccepted } from '../../feature
 import { AuditCheckpoint, AuditEventPage, AuditEventsQuery, AuditExportQuery, ChainReport, CheckpointQuery, VerifyBody } from '../../features/audit/audit.schema';
 import { BoardView, CommentBody, DecisionBody, ReviewView, SubmitBody } from '../../features/review/review.schema';
 import { OutboxQuery } from './outbox';
+// Briefs: their entries live with the feature.
+import { BRIEF_OPERATIONS } from '../../features/briefs/briefs.api';
 
 export type Auth = 'none' | 'session' | 'admin';
 
@@ -122,4 +124,7 @@ export const OPERATIONS: Operation[] = [
     description: 'Auditors of the initiative. Same filters as the list; events in chain order with their positions and hashes.' },
   { method: 'GET', path: '/api/audit/checkpoint', tag: 'Audit', summary: 'Export a checkpoint of the chain head, to keep outside the database', auth: 'session', query: CheckpointQuery, response: AuditCheckpoint, status: 200,
     description: 'Auditors and administrators. `download=1` answers as a file. The export is an audit event written after the head was read.' },
+
+  // Briefs
+  ...BRIEF_OPERATIONS,
 ];
