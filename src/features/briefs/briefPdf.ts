@@ -1,6 +1,6 @@
 /**
  * A brief as a PDF, drawn on the server with pdfkit: Noto Sans embedded (subset) from the
- * WOFF files @fontsource/noto-sans ships (pdfkit's font reader accepts WOFF), the plot as
+ * WOFF files @fontsource/noto-sans ships (unpacked once per process, woffFont.ts), the plot as
  * vector paths, the caution in every page's footer with the page number, document
  * metadata (title, author, subject, dates), A4 or US Letter, and real text that can be
  * selected and read aloud. The same BriefContent as the page, so the same suppressed counts.
@@ -10,6 +10,7 @@ import PDFDocument from 'pdfkit';
 import { STANDING_CAUTION } from '../../lib/cautions';
 import type { BriefContent } from './briefContent';
 import { plotLayout } from './briefPlot';
+import { fontFromWoff } from './woffFont';
 
 const require = createRequire(import.meta.url);
 const FONT = {
@@ -28,8 +29,8 @@ export interface PdfMeta {
 }
 
 /** Characters outside the font's Latin set, spelled in ones it has. */
-const SPELLED: Record<string, string> = { 'χ': 'chi', '≥': '>=', '≤': '<=', '→': '->', '±': '+/-' };
-const COVERED = /[\u0000-\u00ff\u0131\u0152\u0153\u02bb\u02bc\u02c6\u02da\u02dc\u2000-\u206f\u20ac\u2122\u2191\u2193\u2212\u2215]/;
+const SPELLED: Record<string, string> = { 'χ': 'chi', '≥': '>=', '≤': '<=', '→': '->', '±': '+/-', '†': '*' };
+const COVERED = /[\u0000-\u00ff\u0131\u0152\u0153\u02bb\u02bc\u02c6\u02da\u02dc\u2000-\u201f\u2022\u2026\u2030-\u206f\u20ac\u2122\u2191\u2193\u2212\u2215]/;
 
 /** The text with every character the embedded font cannot draw replaced. */
 export function pdfText(text: string): string {
@@ -58,8 +59,8 @@ export function renderBriefPdf(content: BriefContent, pageSize: PageSize, meta: 
     doc.on('end', () => resolve(Buffer.concat(chunks)));
     doc.on('error', reject);
   });
-  doc.registerFont('Noto', FONT.regular);
-  doc.registerFont('Noto-Bold', FONT.bold);
+  doc.registerFont('Noto', fontFromWoff(FONT.regular));
+  doc.registerFont('Noto-Bold', fontFromWoff(FONT.bold));
   const width = doc.page.width - margin * 2;
   const text = (value: string, options: { size?: number; bold?: boolean; color?: string; gap?: number } = {}) => {
     doc.font(options.bold ? 'Noto-Bold' : 'Noto').fontSize(options.size ?? 10).fillColor(options.color ?? INK).text(pdfText(value), { width });
@@ -89,6 +90,8 @@ export function renderBriefPdf(content: BriefContent, pageSize: PageSize, meta: 
   text(content.smallCellNote, { size: 8.5, color: MUTED });
 
   if (content.plot && content.plot.points.length > 0) {
+    // Keep the heading with its figure.
+    if (doc.y + plotLayout(content.plot, width).height + 40 > doc.page.height - doc.page.margins.bottom) doc.addPage();
     heading('Plot');
     drawPlot(doc, content, width, margin);
     text(`${content.plot.title}. ${content.plot.caption}`, { size: 8.5, color: MUTED });
