@@ -9,6 +9,7 @@ import { useState, type FormEvent } from 'react';
 import { QueryRoot } from '../../components/ui/QueryRoot';
 import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
 import { apiFetch } from '../../lib/client/api';
+import { errorText } from './errorText';
 
 interface Props {
   briefId: string;
@@ -63,7 +64,7 @@ function DraftForm(props: Props) {
           </button>
         </div>
       </HydratedFieldset>
-      {error && <p role="alert" className="field-error" data-testid="brief-error">{error.message}</p>}
+      {error && <p role="alert" className="field-error" data-testid="brief-error">{errorText(error)}</p>}
     </form>
   );
 }
@@ -93,7 +94,7 @@ function PublishedActions(props: Props) {
           <input id="brief-extra" className="field-input" value={extra} onChange={(e) => setExtra(e.target.value)} />
           <button type="button" className="btn btn-primary mt-2" disabled={send.isPending} onClick={() => send.mutate()} data-testid="brief-send-button">Send the brief</button>
           {send.isSuccess && <p role="status" className="text-sm mt-1" data-testid="brief-sent">Sent to {send.data.recipients} {send.data.recipients === 1 ? 'recipient' : 'recipients'}.</p>}
-          {send.error && <p role="alert" className="field-error">{send.error.message}</p>}
+          {send.error && <p role="alert" className="field-error">{errorText(send.error)}</p>}
         </section>
         <section aria-labelledby="correct-heading">
           <h3 id="correct-heading" className="font-semibold">Publish a correction</h3>
@@ -102,14 +103,14 @@ function PublishedActions(props: Props) {
           <label className="field-label mt-2" htmlFor="correction-note">What changed (required)</label>
           <input id="correction-note" className="field-input" value={note} onChange={(e) => setNote(e.target.value)} />
           <button type="button" className="btn btn-secondary mt-2" disabled={correct.isPending} onClick={() => correct.mutate()} data-testid="brief-correct">Publish the correction</button>
-          {correct.error && <p role="alert" className="field-error">{correct.error.message}</p>}
+          {correct.error && <p role="alert" className="field-error">{errorText(correct.error)}</p>}
         </section>
         <section aria-labelledby="retract-heading">
           <h3 id="retract-heading" className="font-semibold">Retract</h3>
           <label className="field-label mt-2" htmlFor="retraction-reason">Reason (shown on every copy)</label>
           <input id="retraction-reason" className="field-input" value={reason} onChange={(e) => setReason(e.target.value)} />
           <button type="button" className="btn btn-secondary mt-2" disabled={retract.isPending} onClick={() => retract.mutate()} data-testid="brief-retract">Retract the brief</button>
-          {retract.error && <p role="alert" className="field-error">{retract.error.message}</p>}
+          {retract.error && <p role="alert" className="field-error">{errorText(retract.error)}</p>}
         </section>
       </HydratedFieldset>
     </div>

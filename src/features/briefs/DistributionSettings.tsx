@@ -7,6 +7,7 @@ import { useState, type FormEvent } from 'react';
 import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
 import { QueryRoot } from '../../components/ui/QueryRoot';
 import { apiFetch } from '../../lib/client/api';
+import { errorText } from './errorText';
 
 interface Props {
   initiativeId: string;
@@ -40,7 +41,7 @@ function Settings(props: Props) {
           </select>
           <div><button type="submit" className="btn btn-secondary" disabled={save.isPending}>Save the settings</button></div>
         </HydratedFieldset>
-        {save.error && <p role="alert" className="field-error">{save.error.message}</p>}
+        {save.error && <p role="alert" className="field-error">{errorText(save.error)}</p>}
       </form>
       <div className="grid gap-2 content-start">
         <h3 className="font-semibold">Distribution list</h3>
@@ -62,7 +63,7 @@ function Settings(props: Props) {
             <input id="recipient-email" type="email" className="field-input" value={email} onChange={(e) => setEmail(e.target.value)} />
             <div><button type="submit" className="btn btn-secondary" disabled={add.isPending}>Add to the list</button></div>
           </HydratedFieldset>
-          {(add.error ?? remove.error) && <p role="alert" className="field-error">{(add.error ?? remove.error)?.message}</p>}
+          {(add.error ?? remove.error) && <p role="alert" className="field-error">{errorText(add.error ?? remove.error ?? new Error(''))}</p>}
         </form>
       </div>
     </div>

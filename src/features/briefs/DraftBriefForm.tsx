@@ -4,6 +4,7 @@ import { useState, type FormEvent } from 'react';
 import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
 import { QueryRoot } from '../../components/ui/QueryRoot';
 import { apiFetch } from '../../lib/client/api';
+import { errorText } from './errorText';
 
 function Form({ runId }: { runId: string }) {
   const [title, setTitle] = useState('');
@@ -25,7 +26,7 @@ function Form({ runId }: { runId: string }) {
         <textarea id="new-brief-summary" className="field-input" rows={3} value={summary} onChange={(e) => setSummary(e.target.value)} maxLength={4000} />
         <div><button type="submit" className="btn btn-primary" disabled={draft.isPending || draft.isSuccess} data-testid="draft-brief">Draft the brief</button></div>
       </HydratedFieldset>
-      {draft.error && <p role="alert" className="field-error" data-testid="draft-brief-error">{draft.error.message}</p>}
+      {draft.error && <p role="alert" className="field-error" data-testid="draft-brief-error">{errorText(draft.error)}</p>}
     </form>
   );
 }
