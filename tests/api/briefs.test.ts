@@ -142,7 +142,10 @@ describe('publishing and reading', () => {
     for (const role of ['clinician', 'auditor'] as const) {
       const view = await client(role).request('GET', `/api/briefs/${briefId}`);
       expect(view.status, role).toBe(200);
-      expect((await view.json()).versions).toHaveLength(1);
+      const body = await view.json();
+      expect(body.versions).toHaveLength(1);
+      // The analysis was run again after the signed-off run: the brief says so and stays as it was.
+      expect(body.newerWork).toEqual(["The analysis has been run once since this brief's run."]);
       expect((await client(role).request('GET', `/briefs/${briefId}`)).status, role).toBe(200);
     }
     expect((await client('outsider').request('GET', `/api/briefs/${briefId}`)).status).toBe(404);

@@ -5,7 +5,7 @@
  * reason, and sending it by e-mail.
  */
 import { useMutation } from '@tanstack/react-query';
-import { useState, type FormEvent } from 'react';
+import { useState, type SubmitEvent } from 'react';
 import { QueryRoot } from '../../components/ui/QueryRoot';
 import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
 import { apiFetch } from '../../lib/client/api';
@@ -38,7 +38,7 @@ function DraftForm(props: Props) {
     },
     onSuccess: reload,
   });
-  const onSubmit = (event: FormEvent) => {
+  const onSubmit = (event: SubmitEvent<HTMLFormElement>) => {
     event.preventDefault();
     save.mutate();
   };

@@ -3,7 +3,7 @@
  * the paper size, and the distribution list (add and remove people).
  */
 import { useMutation } from '@tanstack/react-query';
-import { useState, type FormEvent } from 'react';
+import { useState, type SubmitEvent } from 'react';
 import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
 import { QueryRoot } from '../../components/ui/QueryRoot';
 import { apiFetch } from '../../lib/client/api';
@@ -26,8 +26,8 @@ function Settings(props: Props) {
   const save = useMutation({ mutationFn: () => apiFetch(`${base}/brief-settings`, { method: 'PUT', body: { cellThreshold: Number(threshold), pageSize } }), onSuccess: reload });
   const add = useMutation({ mutationFn: () => apiFetch(`${base}/brief-recipients`, { method: 'POST', body: { name, email } }), onSuccess: reload });
   const remove = useMutation({ mutationFn: (id: string) => apiFetch(`${base}/brief-recipients/${id}`, { method: 'DELETE' }), onSuccess: reload });
-  const onSave = (event: FormEvent) => { event.preventDefault(); save.mutate(); };
-  const onAdd = (event: FormEvent) => { event.preventDefault(); add.mutate(); };
+  const onSave = (event: SubmitEvent<HTMLFormElement>) => { event.preventDefault(); save.mutate(); };
+  const onAdd = (event: SubmitEvent<HTMLFormElement>) => { event.preventDefault(); add.mutate(); };
   return (
     <div className="grid gap-6 md:grid-cols-2">
       <form onSubmit={onSave} className="grid gap-2 content-start" aria-labelledby="settings-heading">

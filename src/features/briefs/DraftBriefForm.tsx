@@ -1,6 +1,6 @@
 /** "Draft a brief" on a signed-off run's results page (analysts): title and summary, then the brief's page. */
 import { useMutation } from '@tanstack/react-query';
-import { useState, type FormEvent } from 'react';
+import { useState, type SubmitEvent } from 'react';
 import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
 import { QueryRoot } from '../../components/ui/QueryRoot';
 import { apiFetch } from '../../lib/client/api';
@@ -13,7 +13,7 @@ function Form({ runId }: { runId: string }) {
     mutationFn: () => apiFetch<{ id: string }>(`/api/runs/${encodeURIComponent(runId)}/briefs`, { method: 'POST', body: { title, summary } }),
     onSuccess: ({ id }) => window.location.assign(`/briefs/${encodeURIComponent(id)}`),
   });
-  const onSubmit = (event: FormEvent) => {
+  const onSubmit = (event: SubmitEvent<HTMLFormElement>) => {
     event.preventDefault();
     draft.mutate();
   };
