@@ -54,11 +54,12 @@ async function briefRows(): Promise<{ briefs: number; versions: number; deliveri
   return { briefs: Number(row.briefs), versions: Number(row.versions), deliveries: Number(row.deliveries) };
 }
 
-function pdfTools(pdf: Buffer): { text: string; fonts: string } {
+function pdfTools(pdf: Buffer): { text: string; fonts: string; info: string } {
   const dir = mkdtempSync(path.join(tmpdir(), 'brief-'));
   const file = path.join(dir, 'brief.pdf');
   writeFileSync(file, pdf);
-  return { text: execFileSync('pdftotext', ['-layout', file, '-'], { encoding: 'utf8' }), fonts: execFileSync('pdffonts', [file], { encoding: 'utf8' }) };
+  const run = (tool: string, args: string[]) => execFileSync(tool, [...args, file, ...(tool === 'pdftotext' ? ['-'] : [])], { encoding: 'utf8' });
+  return { text: run('pdftotext', ['-layout']), fonts: run('pdffonts', []), info: run('pdfinfo', []) };
 }
 
 beforeAll(async () => {
@@ -157,7 +158,12 @@ describe('publishing and reading', () => {
     const response = await client('clinician').request('GET', `/api/briefs/${briefId}/pdf`);
     expect(response.status).toBe(200);
     expect(response.headers.get('content-type')).toBe('application/pdf');
-    const { text, fonts } = pdfTools(Buffer.from(await response.arrayBuffer()));
+    const { text, fonts, info } = pdfTools(Buffer.from(await response.arrayBuffer()));
+    // Document metadata and the initiative's default paper size (A4 is 595.28 x 841.89 pt).
+    expect(info).toMatch(/^Title:\s+Call-back and age$/m);
+    expect(info).toMatch(/^Author:\s+\S/m);
+    expect(info).toMatch(/^CreationDate:\s+\S/m);
+    expect(info).toMatch(/^Page size:\s+595\.28 x 841\.89 pts \(A4\)/m);
     const pages = text.split('\f').filter((page) => page.trim().length > 0);
     expect(pages.length).toBeGreaterThan(0);
     for (const page of pages) expect(page.replace(/\s+/g, ' ')).toContain(STANDING_CAUTION.slice(0, 60));
@@ -189,12 +195,25 @@ describe('corrections, distribution and retraction', () => {
     expect(await briefRows()).toEqual(before);
   });
 
-  it('publishes a correction as version 2 and keeps version 1', async () => {
+  it('refuses a bad setting and changes nothing', async () => {
+    const response = await client('analyst').request('PUT', `/api/initiatives/${initiativeId}/brief-settings`, { cellThreshold: 1, pageSize: 'A4' });
+    expect(response.status).toBe(400);
+    expect(JSON.stringify(await response.json())).toContain('The threshold is at least 2.');
+    expect(await (await client('auditor').request('GET', `/api/initiatives/${initiativeId}/brief-settings`)).json()).toEqual({ cellThreshold: 11, pageSize: 'A4' });
+    expect((await client('clinician').request('PUT', `/api/initiatives/${initiativeId}/brief-settings`, { cellThreshold: 11, pageSize: 'LETTER' })).status).toBe(403);
+  });
+
+  it('publishes a correction as version 2 (on US Letter, the new setting) and keeps version 1', async () => {
+    expect((await client('analyst').request('PUT', `/api/initiatives/${initiativeId}/brief-settings`, { cellThreshold: 11, pageSize: 'LETTER' })).status).toBe(200);
     const response = await client('analyst').request('POST', `/api/briefs/${briefId}/corrections`, { note: 'Summary reworded.', summary: 'The call-back may help older patients more.' });
     expect(response.status).toBe(201);
     expect(await response.json()).toEqual({ version: 2 });
     const first = pdfTools(Buffer.from(await (await client('auditor').request('GET', `/api/briefs/${briefId}/pdf?version=1`)).arrayBuffer()));
     expect(first.text).toContain('seems to help');
+    expect(first.info).toMatch(/\(A4\)/);
+    const second = pdfTools(Buffer.from(await (await client('auditor').request('GET', `/api/briefs/${briefId}/pdf`)).arrayBuffer()));
+    expect(second.text).toContain('may help');
+    expect(second.info).toMatch(/^Page size:\s+612 x 792 pts \(letter\)/m);
     const page = await (await client('auditor').request('GET', `/briefs/${briefId}`)).text();
     expect(page).toContain('Summary reworded.');
   });

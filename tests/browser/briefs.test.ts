@@ -1,6 +1,6 @@
 /**
- * Briefs in a real browser, on the synthetic demo data: the demo clinician signs off the
- * demo run waiting for review, the demo analyst drafts a brief from it on its results
+ * Briefs in a real browser, on the synthetic demo data: the demo clinician signs off a
+ * run of the demo analyst on the demo extract; the analyst drafts a brief from it on its results
  * page, previews it, and publishes it; the demo clinician and auditor read it; the PDF
  * downloads; the analyst sends it and the e-mail, PDF attached, reaches the fake mail
  * server, where the administrator's outbox shows the attachment.
@@ -10,8 +10,11 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
 import { seedDemo } from '../../db/seed';
 import { seedDemoExtracts } from '../../db/seeds/demoExtracts';
-import { seedDemoAnalyses } from '../../db/seeds/demoAnalyses';
 import { DEMO_PASSWORD, demoEmail } from '../../db/seeds/demo';
+import { SpecSchema } from '../../src/engine/boundary/schemas';
+import { createAnalysis } from '../../src/features/analyses/analyses.server';
+import { executeRun, startRun } from '../../src/features/runs/runs.server';
+import { withIdentity } from '../../src/lib/server/db';
 import { listMessages, readMessage } from '../../src/lib/server/outbox';
 import { mailDir, saveScreenshot, signInThroughPage, startHarness, type Harness } from './harness';
 import { closeOwnerDb, ownerDb } from '../support/factories';
@@ -25,22 +28,36 @@ const briefTitle = `Call-back and age, brief ${Date.now().toString(36)}`;
 beforeAll(async () => {
   await seedDemo(ownerDb());
   await seedDemoExtracts();
-  await seedDemoAnalyses();
   harness = await startHarness();
-  const [run] = await ownerDb().query<{ id: string }>(
-    `SELECT r.id FROM runs r JOIN analyses a ON a.id = r.analysis_id
-      WHERE a.title = 'Readmissions by age band (demo)' AND r.verifies_run_id IS NULL AND r.status = 'succeeded' ORDER BY r.queued_at LIMIT 1`,
-    { type: QueryTypes.SELECT },
+  // A run of the demo analyst on the demo extract (the seeded demo analyses are left as
+  // they are for the other files), submitted and signed off by the demo clinician.
+  const [demo] = await ownerDb().query<{ initiative_id: string; version_id: string; analyst_id: string }>(
+    `SELECT i.id AS initiative_id, v.id AS version_id, u.id AS analyst_id
+       FROM initiatives i JOIN extract_versions v ON v.initiative_id = i.id AND v.status = 'ready' JOIN users u ON u.email = :email
+      WHERE i.slug = 'call-back-72h' ORDER BY v.version_number LIMIT 1`,
+    { replacements: { email: demoEmail('analyst') }, type: QueryTypes.SELECT },
   );
-  runId = run.id;
-  // The seeded run waits for review; the demo clinician signs it off (unless another file already did).
+  const actor = { id: demo.analyst_id, clientAddress: 'test' };
+  const { id: analysisId } = await withIdentity(actor.id, (t) =>
+    createAnalysis(t, actor, {
+      initiativeId: demo.initiative_id, extractVersionId: demo.version_id, title: 'Call-back by age band, for a brief',
+      question: 'Does the 72-hour call-back prevent more readmissions in older patients?', prespecified: true,
+      spec: SpecSchema.parse({
+        outcome: { column: 'readmitted_30d', type: 'binary' }, exposure: { column: 'call_back', reference: '0' },
+        modifier: { column: 'age_band', type: 'categorical', reference: '18-44' }, covariates: [{ column: 'sex', type: 'categorical', reference: 'F' }],
+        model: 'logistic', ci: { level: 0.95, method: 'delta' },
+      }),
+    }),
+  );
+  ({ runId } = await withIdentity(actor.id, (t) => startRun(t, actor, analysisId)));
+  expect(await executeRun(runId, actor.id, { threads: 0 })).toBe('succeeded');
+  const analyst = new ApiClient();
+  expect((await analyst.signIn(demoEmail('analyst'), DEMO_PASSWORD)).status).toBe(204);
+  expect((await analyst.request('POST', `/api/runs/${runId}/review/submit`, {})).status).toBe(200);
   const clinician = new ApiClient();
   expect((await clinician.signIn(demoEmail('clinician'), DEMO_PASSWORD)).status).toBe(204);
-  const review = await (await clinician.request('GET', `/api/runs/${runId}/review`)).json();
-  if (review.state === 'submitted') {
-    const decided = await clinician.request('POST', `/api/runs/${runId}/review/decision`, { decision: 'sign-off', note: 'Checked the table against the protocol; fit for an internal brief.' });
-    expect(decided.status).toBe(200);
-  }
+  const decided = await clinician.request('POST', `/api/runs/${runId}/review/decision`, { decision: 'sign-off', note: 'Checked the table against the protocol; fit for an internal brief.' });
+  expect(decided.status).toBe(200);
 }, 180_000);
 
 afterAll(async () => {
