@@ -79,6 +79,33 @@ describe('planSuppression', () => {
     expectProtected(cells, relations, plan.suppressed, 20);
   });
 
+  it('protects a brief-shaped table of 12 strata × 2 arms with events, stratum totals and a grand total', () => {
+    // The shape briefCounts builds: n = e + f per cell (f never printed), stratum totals of
+    // people and events, and the overall totals; invented counts with several small ones.
+    const cells: CountCell[] = [];
+    const relations: Relation[] = [];
+    let people = 0;
+    let events = 0;
+    for (let s = 0; s < 12; s += 1) {
+      const n = [s % 4 === 0 ? 6 : 100 + s * 7, 90 + s * 3];
+      const e = [Math.min(s % 3 === 0 ? 4 : 20 + s, n[0] - 2), s === 7 ? 105 : 15 + s];
+      for (let a = 0; a < 2; a += 1) {
+        cells.push({ id: `n${s}.${a}`, value: n[a], shown: true }, { id: `e${s}.${a}`, value: e[a], shown: true }, { id: `f${s}.${a}`, value: n[a] - e[a], shown: false });
+        relations.push({ total: `n${s}.${a}`, parts: [`e${s}.${a}`, `f${s}.${a}`] });
+      }
+      cells.push({ id: `n${s}`, value: n[0] + n[1], shown: true }, { id: `e${s}`, value: e[0] + e[1], shown: true });
+      relations.push({ total: `n${s}`, parts: [`n${s}.0`, `n${s}.1`] }, { total: `e${s}`, parts: [`e${s}.0`, `e${s}.1`] });
+      people += n[0] + n[1];
+      events += e[0] + e[1];
+    }
+    cells.push({ id: 'n', value: people, shown: true }, { id: 'e', value: events, shown: true }, { id: 'f', value: people - events, shown: false });
+    relations.push({ total: 'n', parts: Array.from({ length: 12 }, (_, s) => `n${s}`) }, { total: 'e', parts: Array.from({ length: 12 }, (_, s) => `e${s}`) }, { total: 'n', parts: ['e', 'f'] });
+    const plan = planSuppression(cells, relations, 11);
+    expectProtected(cells, relations, plan.suppressed, 11);
+    // The grand total stays published: the plan prefers hiding small counts.
+    expect(plan.suppressed.has('n')).toBe(false);
+  });
+
   it('can be shown to fail: the check catches a table with one suppressed cell per row', () => {
     const { cells, relations } = twoWay([[5, 50], [60, 70]]);
     expect(() => expectProtected(cells, relations, new Set(['c00']), 11)).toThrow();

@@ -11,9 +11,9 @@
  * 1. Primary suppression: every printed count in 1..threshold − 1.
  * 2. Complementary suppression, repeated until nothing changes: solve the linear system of
  *    the relations for the unpublished cells; while some small count (printed or not) is
- *    determined by what is published, withhold the published cell or pair of cells that
- *    leaves the fewest small counts determined, and of those the one hiding the least
- *    (the smallest sum of counts).
+ *    determined by what is published, withhold the published cell, or pair of published
+ *    cells of one relation, that leaves the fewest small counts determined, and of those
+ *    the one hiding the least (the smallest sum of counts).
  *
  * The determination test is exact linear algebra: an unknown is determined exactly when
  * every solution of the homogeneous system is zero at it (Gauss-Jordan elimination to
@@ -121,10 +121,11 @@ export function planSuppression(cells: readonly CountCell[], relations: readonly
   const published = () => new Set(cells.filter((cell) => cell.shown && !suppressed.has(cell.id)).map((cell) => cell.id));
   const small = cells.filter((cell) => isSmallCount(cell.value, threshold)).map((cell) => cell.id);
 
-  const exposedCount = (open: ReadonlySet<string>) => {
+  const exposedOf = (open: ReadonlySet<string>) => {
     const determined = determinedCells(cells, relations, open);
-    return small.filter((id) => determined.has(id)).length;
+    return small.filter((id) => determined.has(id));
   };
+  const exposedCount = (open: ReadonlySet<string>) => exposedOf(open).length;
   const valueOf = (id: string) => byId.get(id)?.value ?? 0;
   for (;;) {
     const open = published();
@@ -141,9 +142,20 @@ export function planSuppression(cells: readonly CountCell[], relations: readonly
       const cost = ids.reduce((sum, id) => sum + valueOf(id), 0);
       if (left < best || (left === best && choice !== null && cost < bestCost)) { best = left; bestCost = cost; choice = ids; }
     };
-    for (let i = 0; i < candidates.length; i += 1) {
-      consider([candidates[i]]);
-      for (let j = i + 1; j < candidates.length; j += 1) consider([candidates[i], candidates[j]]);
+    for (const id of candidates) consider([id]);
+    // Pairs of published cells in one relation: hiding a cell that its siblings give back
+    // is useless alone, so those pairs are where one more cell helps.
+    const seen = new Set<string>();
+    for (const relation of relations) {
+      const members = [relation.total, ...relation.parts].filter((id) => open.has(id));
+      for (let i = 0; i < members.length; i += 1) {
+        for (let j = i + 1; j < members.length; j += 1) {
+          const key = [members[i], members[j]].sort().join('|');
+          if (seen.has(key)) continue;
+          seen.add(key);
+          consider([members[i], members[j]]);
+        }
+      }
     }
     const next = choice ?? candidates.slice(0, 1);
     if (next.length === 0) throw new Error('Suppression cannot protect a small count.');
