@@ -19,7 +19,7 @@ const GRANTS: Record<Role, Partial<Record<SubjectName, Action[]>>> = {
     Analysis: ['read', 'create', 'update'],
     Run: ['read', 'run', 'cancel', 'submit', 'export', 'comment'],
     Comment: ['read'],
-    Brief: ['read', 'create', 'publish', 'export'],
+    Brief: ['read', 'create', 'update', 'publish', 'export'],
   },
   clinician: {
     Initiative: ['read'],

@@ -57,7 +57,7 @@ function analystRules(can: Can, initiativeId: string): void {
   can(['create', 'update'], 'Analysis', scope);
   can(['run', 'cancel', 'submit', 'export'], 'Run', scope);
   can('comment', 'Run', scope);
-  can(['create', 'publish', 'export'], 'Brief', scope);
+  can(['create', 'update', 'publish', 'export'], 'Brief', scope);
 }
 
 /** What a clinician may do within one initiative: read, comment, decide. */

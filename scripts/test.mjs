@@ -16,6 +16,8 @@ ensureDebianPackages({
   chromium: '/usr/bin/chromium',
   'r-base-core': '/usr/bin/Rscript',
   'python3-statsmodels': '/usr/lib/python3/dist-packages/statsmodels',
+  // pdftotext and pdffonts read the briefs' PDFs in tests/api/briefs.test.ts.
+  'poppler-utils': '/usr/bin/pdftotext',
 });
 
 const { startCluster, destroyCluster } = await import('../db/scripts/postgres.mjs');

@@ -1,3 +1,4 @@
+import { initBriefModels } from './briefs';
 import { DataTypes, Model, type InferAttributes, type InferCreationAttributes, type CreationOptional, type Sequelize } from 'sequelize';
 
 export type Role = 'analyst' | 'clinician' | 'auditor';
@@ -84,5 +85,5 @@ export function initModels(sequelize: Sequelize) {
   Membership.belongsTo(User, { foreignKey: 'userId', as: 'user' });
   Initiative.hasMany(Membership, { foreignKey: 'initiativeId', as: 'memberships' });
   User.hasMany(Membership, { foreignKey: 'userId', as: 'memberships' });
-  return { User, Initiative, Membership };
+  return { User, Initiative, Membership, ...initBriefModels(sequelize) };
 }

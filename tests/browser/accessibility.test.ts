@@ -97,7 +97,7 @@ describe('WCAG 2.1 A and AA (axe-core), serious and critical rules', () => {
     await signInThroughPage(page, demoEmail('analyst'), DEMO_PASSWORD);
     for (const path of [
       '/', `/initiatives/${initiativeId}`, `/initiatives/${initiativeId}/extracts`, `/extracts/${extractId}`,
-      `/initiatives/${initiativeId}/analyses`, `/initiatives/${initiativeId}/board`, `/analyses/${analysisId}`, `/runs/${runId}`, `/runs/compare?a=${runId}&b=${runId}`, '/profile',
+      `/initiatives/${initiativeId}/analyses`, `/initiatives/${initiativeId}/board`, `/initiatives/${initiativeId}/briefs`, '/briefs', `/analyses/${analysisId}`, `/runs/${runId}`, `/runs/compare?a=${runId}&b=${runId}`, '/profile',
     ]) {
       await page.goto(path);
       if (path === `/runs/${runId}`) await page.getByTestId('plot-stratum-forest').locator('.main-svg').first().waitFor();

@@ -26,6 +26,8 @@ export interface OutboxMessage {
   html: string | null;
   /** The http(s) links the message carries, in order of first appearance, without repeats. */
   links: string[];
+  /** The files attached (a brief's PDF): name, type and size, never the content. */
+  attachments: { filename: string; contentType: string; size: number }[];
 }
 
 export interface OutboxListing {
@@ -174,6 +176,7 @@ export async function readMessage(id: string, options: StoreOptions = {}): Promi
     text,
     html,
     links: linksIn(html, text),
+    attachments: parsed.attachments.map((file) => ({ filename: file.filename ?? 'unnamed', contentType: file.contentType, size: file.size })),
   };
 }
 

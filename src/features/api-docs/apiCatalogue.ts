@@ -14,24 +14,10 @@ import { AnalysisBody, Created, DownloadQuery, RunAccepted } from '../analyses/a
 import { AuditCheckpoint, AuditEventPage, AuditEventsQuery, AuditExportQuery, ChainReport, CheckpointQuery, VerifyBody } from '../audit/audit.schema';
 import { BoardView, CommentBody, DecisionBody, ReviewView, SubmitBody } from '../review/review.schema';
 import { OutboxQuery } from '../admin/outbox';
+import { BRIEF_OPERATIONS } from './briefOperations';
+import type { Operation } from './operation';
 
-export type Auth = 'none' | 'session' | 'admin';
-
-export interface Operation {
-  method: 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
-  /** OpenAPI path with {params}. */
-  path: string;
-  tag: string;
-  summary: string;
-  description?: string;
-  auth: Auth;
-  query?: ZodType;
-  body?: ZodType;
-  /** The body content type when it is not JSON (uploads). */
-  bodyType?: string;
-  response?: ZodType;
-  status: number;
-}
+export type { Auth, Operation } from './operation';
 
 const HealthResponse = z
   .object({ status: z.enum(['ok', 'degraded']), version: z.string(), database: z.enum(['up', 'down']) })
@@ -122,4 +108,7 @@ export const OPERATIONS: Operation[] = [
     description: 'Auditors of the initiative. Same filters as the list; events in chain order with their positions and hashes.' },
   { method: 'GET', path: '/api/audit/checkpoint', tag: 'Audit', summary: 'Export a checkpoint of the chain head, to keep outside the database', auth: 'session', query: CheckpointQuery, response: AuditCheckpoint, status: 200,
     description: 'Auditors and administrators. `download=1` answers as a file. The export is an audit event written after the head was read.' },
+
+  // Briefs
+  ...BRIEF_OPERATIONS,
 ];

@@ -75,7 +75,7 @@ export const ChainReport = z
 export type ChainReport = z.infer<typeof ChainReport>;
 
 /** The areas an auditor filters the trail by (the part of the action before the dot). */
-export const AUDIT_AREAS = ['extract', 'analysis', 'run', 'review', 'membership', 'audit'] as const;
+export const AUDIT_AREAS = ['extract', 'analysis', 'run', 'review', 'brief', 'membership', 'audit'] as const;
 
 /** The areas of the events outside any initiative, which administrators read. */
 export const ACCOUNT_AUDIT_AREAS = ['auth', 'user', 'token', 'audit'] as const;

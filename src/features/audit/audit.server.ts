@@ -34,6 +34,15 @@ export const AUDIT_ACTIONS = [
   'review.signed-off',
   'review.sent-back',
   'review.commented',
+  'brief.drafted',
+  'brief.published',
+  'brief.corrected',
+  'brief.retracted',
+  'brief.downloaded',
+  'brief.distributed',
+  'brief.settings-changed',
+  'brief.recipient-added',
+  'brief.recipient-removed',
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number] | `${string}.${string}`;
 

@@ -22,6 +22,7 @@ const SUBJECT_PAGES: Record<string, (id: string) => string> = {
   run: (id) => `/runs/${id}`,
   analysis: (id) => `/analyses/${id}`,
   extract: (id) => `/extracts/${id}`,
+  brief: (id) => `/briefs/${id}`,
 };
 
 export function subjectHref(event: Pick<AuditEventView, 'subjectType' | 'subjectId'>): string | undefined {

@@ -74,6 +74,11 @@ const OutgoingMail = z.object({
     .refine((v) => !/[\r\n]/.test(v), 'The subject must be one line.'),
   text: z.string().min(1, 'The plain-text body is empty.'),
   html: z.string().min(1).optional(),
+  /** Files attached to the message (a brief's PDF). */
+  attachments: z
+    .array(z.object({ filename: z.string().min(1).max(200), content: z.instanceof(Buffer), contentType: z.string().min(1) }))
+    .max(5)
+    .optional(),
 });
 export type OutgoingMail = z.infer<typeof OutgoingMail>;
 
@@ -95,11 +100,11 @@ export function recipientDomain(address: string): string {
 export async function sendMail(message: OutgoingMail, options: { transport?: MailTransport } = {}): Promise<SentMail> {
   const parsed = OutgoingMail.safeParse(message);
   if (!parsed.success) throw badRequest(parsed.error.issues[0]?.message ?? 'The message is invalid.');
-  const { to, subject, text, html } = parsed.data;
+  const { to, subject, text, html, attachments } = parsed.data;
   const transport = options.transport ?? defaultTransport();
   const domain = recipientDomain(to);
   try {
-    const info = await transport.sendMail({ from: env.CROSSGRAIN_MAIL_FROM, to, subject, text, html });
+    const info = await transport.sendMail({ from: env.CROSSGRAIN_MAIL_FROM, to, subject, text, html, ...(attachments ? { attachments } : {}) });
     logger.info({ messageId: info.messageId, recipientDomain: domain, mailMode: env.CROSSGRAIN_MAIL_MODE }, 'mail sent');
     return { messageId: info.messageId };
   } catch (error) {
