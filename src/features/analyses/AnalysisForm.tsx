@@ -11,27 +11,12 @@ import { ApiError, apiFetch } from '../../lib/client/api';
 import { useHydrated } from '../../lib/client/useHydrated';
 import { QueryRoot } from '../../components/ui/QueryRoot';
 import { ModelEquationView } from './ModelEquationView';
-import {
-  CI_METHOD_LABEL,
-  computationSummary,
-  defaultDraft,
-  draftToSpec,
-  fieldForServerPath,
-  formChoices,
-  MEASURE_LABEL,
-  MODEL_LABEL,
-  modelEquation,
-  MULTIPLICITY_LABEL,
-  reviseDraft,
-  specInWords,
-  specToDraft,
-  validateAnalysis,
-  type AnalysisDraft,
-  type ColumnChoice,
-  type FieldErrors,
-  type FormColumn,
-  type SpecDraft,
-} from './specForm';
+import type { FormColumn } from './formColumns';
+import { modelEquation } from './modelEquation';
+import { defaultDraft, formChoices, reviseDraft, specToDraft, type AnalysisDraft, type ColumnChoice, type SpecDraft } from './specForm';
+import { CI_METHOD_LABEL, MEASURE_LABEL, MODEL_LABEL, MULTIPLICITY_LABEL } from './specRules';
+import { draftToSpec, fieldForServerPath, validateAnalysis, type FieldErrors } from './specValidation';
+import { computationSummary, specInWords } from './specWords';
 
 export interface ExistingAnalysis {
   id: string;

@@ -14,7 +14,9 @@
  */
 import type { Result, Spec } from '../../engine/boundary/schemas';
 import { CAUTION_VERSION, RESULT_CAUTIONS } from '../../lib/cautions';
-import { MEASURE_LABEL, MODEL_LABEL, MULTIPLICITY_LABEL, naturalOrder, percentText, specInWords } from '../analyses/specForm';
+import { naturalOrder } from '../analyses/formColumns';
+import { MEASURE_LABEL, MODEL_LABEL, MULTIPLICITY_LABEL } from '../analyses/specRules';
+import { percentText, specInWords } from '../analyses/specWords';
 import { csvField, csvRecord } from '../../lib/csv';
 
 // ---------------------------------------------------------------------------------------

@@ -5,7 +5,7 @@
  * fill "tonexty" for bands, layout shapes for the null line, boundaries and ranges.
  */
 import type { Result } from '../../../engine/boundary/schemas';
-import { percentText } from '../../analyses/specForm';
+import { percentText } from '../../analyses/specWords';
 import { displayLevels, fixed, formatInterval, formatNumber, johnsonNeymanSentence, measureInfo, modifierDecimals } from '../resultTables';
 
 /** Our palette (src/styles/global.css), as plotly needs literal colours. */
