@@ -4,7 +4,7 @@
  * formula language. Renders on the server too (no client directive needed on a page).
  */
 import { Fragment } from 'react';
-import { equationText, type EquationFactor, type EquationTerm, type ModelEquation } from './specForm';
+import { equationText, type EquationFactor, type EquationTerm, type ModelEquation } from './modelEquation';
 
 function Var({ children }: { children: string }) {
   return <var className="font-serif italic text-ink-900">{children}</var>;

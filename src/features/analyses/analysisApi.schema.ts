@@ -14,9 +14,6 @@ export const AnalysisBody = z
   .meta({ id: 'AnalysisBody' });
 export type AnalysisBody = z.infer<typeof AnalysisBody>;
 
-export const RunStatus = z.enum(['queued', 'running', 'succeeded', 'failed', 'cancelled']);
-export type RunStatus = z.infer<typeof RunStatus>;
-
 export const Created = z.object({ id: z.uuid() }).meta({ id: 'Created' });
 export const RunAccepted = z.object({ runId: z.uuid() }).meta({ id: 'RunAccepted' });
 

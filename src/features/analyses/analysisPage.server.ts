@@ -6,7 +6,7 @@ import { QueryTypes, type Transaction } from 'sequelize';
 import { sequelize } from '../../lib/server/db';
 import type { ColumnProfile, DictionaryEntry } from '../extracts/extracts.schema';
 import { getAnalysis, type AnalysisView } from './analyses.server';
-import { formColumns, type FormColumn } from './specForm';
+import { formColumns, type FormColumn } from './formColumns';
 
 export interface AnalysisPage {
   analysis: AnalysisView;

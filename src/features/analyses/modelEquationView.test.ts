@@ -2,7 +2,8 @@ import { createElement } from 'react';
 import { renderToStaticMarkup } from 'react-dom/server';
 import { describe, expect, it } from 'vitest';
 import { ModelEquationView } from './ModelEquationView';
-import { modelEquation, type FormColumn } from './specForm';
+import type { FormColumn } from './formColumns';
+import { modelEquation } from './modelEquation';
 
 const columns: FormColumn[] = [
   { name: 'readmitted_30d', type: 'binary', description: '', levels: ['0', '1'], levelsTruncated: false, numeric: null },

@@ -21,7 +21,7 @@
  */
 import { MISSING_TOKENS } from '../../engine/design/missingValues';
 import { ExtractRefusalError } from './extractRefusal';
-import { addPatternMask, classifyTextValue, emptyPatternCounts, isCompactDate, type PatternCounts } from './identifierScreen';
+import { addPatternMask, classifyTextValue, emptyPatternCounts, isCompactDate, type PatternCounts } from './valuePatterns';
 
 /** Options of {@link ColumnSet}. */
 export interface ColumnSetOptions {

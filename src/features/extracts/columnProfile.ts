@@ -15,7 +15,7 @@
  */
 import { suspectMissingLevels } from '../../engine/design/missingValues';
 import type { ColumnData, NumericColumnData, TextColumnData } from './columnAccumulator';
-import type { Finding } from './identifierScreen';
+import type { Finding } from './identifierFindings';
 import type { ColumnProfile, ColumnType, LevelCount, NumericSummary } from './extracts.schema';
 
 /** Levels listed in a profile before it shows only the most frequent ones. */

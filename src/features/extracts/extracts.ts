@@ -8,7 +8,8 @@ import { readCsv, type CsvReadSummary, type ReadCsvOptions } from './csvReader';
 import { ColumnSet, type ColumnData, type ColumnSetOptions } from './columnAccumulator';
 import { buildColumnProfile, summarizeColumn } from './columnProfile';
 import { encodeColumn, type EncodedColumn } from './columnStore';
-import { DEFAULT_SCREEN_OPTIONS, refusalsByColumn, screenColumn, type ColumnRefusal, type Finding, type ScreenOptions } from './identifierScreen';
+import { refusalsByColumn, type ColumnRefusal, type Finding } from './identifierFindings';
+import { DEFAULT_SCREEN_OPTIONS, screenColumn, type ScreenOptions } from './identifierScreen';
 import type { ColumnProfile, ProcessingStage } from './extracts.schema';
 
 export { ExtractRefusalError } from './extractRefusal';

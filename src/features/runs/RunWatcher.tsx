@@ -7,10 +7,11 @@ import { useMutation, useQuery } from '@tanstack/react-query';
 import { useState } from 'react';
 import { apiFetch } from '../../lib/client/api';
 import { QueryRoot } from '../../components/ui/QueryRoot';
+import type { RunStatus } from './runs.schema';
 
 interface RunStatusView {
   id: string;
-  status: 'queued' | 'running' | 'succeeded' | 'failed' | 'cancelled';
+  status: RunStatus;
   progress: { stage: string; fraction: number };
   error: { code: string; message: string } | null;
   cancelRequested: boolean;

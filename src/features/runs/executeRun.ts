@@ -14,7 +14,8 @@ import { logger } from '../../lib/server/logger';
 import { recordAudit } from '../audit/audit.server';
 import { loadRunData } from './runInputs';
 import { isRefusal, runFailure } from './runFailure';
-import { seedOf, type RunStatus } from './runs.server';
+import type { RunStatus } from './runs.schema';
+import { seedOf } from './runs.server';
 import { compareRuns, verificationSentence, type RunFacts } from './runVerification';
 
 /** Compares a finished verification re-run with the run it verifies, and records the outcome. */

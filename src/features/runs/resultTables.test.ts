@@ -2,21 +2,11 @@ import { parse } from 'csv-parse/sync';
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { Result } from '../../engine/boundary/schemas';
 import { CAUTION_VERSION, RESULT_CAUTIONS } from '../../lib/cautions';
-import {
-  buildResultTables,
-  CSV_COLUMNS,
-  csvField,
-  csvRecord,
-  fixed,
-  formatInterval,
-  formatP,
-  formatRatio,
-  johnsonNeymanSentence,
-  MINUS,
-  multiplicityNote,
-  resultCsv,
-  type IntervalCell,
-} from './resultTables';
+import { csvField, csvRecord } from '../../lib/csv';
+import { CSV_COLUMNS, resultCsv } from './resultCsv';
+import { fixed, formatInterval, formatP, formatRatio, MINUS, type IntervalCell } from './resultFormat';
+import { buildResultTables } from './resultTables';
+import { johnsonNeymanSentence, multiplicityNote } from './resultWords';
 import { CALL_BACK_SPEC, engineResult, UP_AND_ABOUT_SPEC } from './testSupport';
 
 /**

@@ -4,7 +4,7 @@
  * multiplicative interaction, the omnibus p-value), all taken from the two results.
  */
 import type { Result, Spec } from '../../engine/boundary/schemas';
-import { formatInterval, formatP, measureInfo, type NumberKind } from './resultTables';
+import { formatInterval, formatP, measureInfo, type NumberKind } from './resultFormat';
 
 export interface SpecChange {
   /** Dotted path of the changed field, e.g. "modifier.reference" or "covariates". */

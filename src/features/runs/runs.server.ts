@@ -19,9 +19,8 @@ import { recordAudit, type AuditAction } from '../audit/audit.server';
 import { specHash } from './canonical';
 import type { ReviewState } from '../review/review.schema';
 import { enqueueRun, type RunEnqueuer } from './runQueue';
+import type { RunStatus } from './runs.schema';
 import type { Verification } from './runVerification';
-
-export type RunStatus = 'queued' | 'running' | 'succeeded' | 'failed' | 'cancelled';
 
 export interface Actor {
   id: string;

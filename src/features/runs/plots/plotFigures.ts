@@ -5,8 +5,9 @@
  * fill "tonexty" for bands, layout shapes for the null line, boundaries and ranges.
  */
 import type { Result } from '../../../engine/boundary/schemas';
-import { percentText } from '../../analyses/specForm';
-import { displayLevels, fixed, formatInterval, formatNumber, johnsonNeymanSentence, measureInfo, modifierDecimals } from '../resultTables';
+import { percentText } from '../../analyses/specWords';
+import { displayLevels, fixed, formatInterval, formatNumber, measureInfo, modifierDecimals } from '../resultFormat';
+import { johnsonNeymanSentence } from '../resultWords';
 
 /** Our palette (src/styles/global.css), as plotly needs literal colours. */
 export const PLOT_COLOURS = {

@@ -1,5 +1,5 @@
 import { recordAudit } from '../../../../features/audit/audit.server';
-import { resultCsv } from '../../../../features/runs/resultTables';
+import { resultCsv } from '../../../../features/runs/resultCsv';
 import { DownloadQuery } from '../../../../features/analyses/analysisApi.schema';
 import type { Result } from '../../../../engine/boundary/schemas';
 import { readableRun } from '../../../../features/runs/runAccess';

@@ -1,0 +1,68 @@
+/**
+ * The analysis form's modifier: its column and reference level, or, for a continuous
+ * modifier, the centring and where the effect is reported.
+ */
+import type { FormColumn } from './formColumns';
+import { ColumnOptions, Field, LevelSelect, Section, type SectionProps } from './formFields';
+import type { SpecDraft } from './specForm';
+
+export function ModifierSection({ spec, choices, fieldId, shownError, changeSpec, modifierRange }: SectionProps & { modifierRange: FormColumn['numeric'] | undefined }) {
+  return (
+    <Section title="Modifier" description="The patient characteristic across which the intervention's effect may differ.">
+      <div className="grid gap-4 md:grid-cols-2">
+        <Field id={fieldId('modifier.column')} label="Modifier" error={shownError('modifier.column')} hint={choices.modifierType ? (choices.modifierType === 'categorical' ? 'Compared level by level against a reference.' : 'Used as a continuous modifier.') : undefined}>
+          {(describedBy, invalid) => (
+            <select id={fieldId('modifier.column')} className="field-input" value={spec.modifier.column} aria-describedby={describedBy} aria-invalid={invalid} onChange={(e) => changeSpec({ modifier: { ...spec.modifier, column: e.target.value } }, 'modifier.column')}>
+              <ColumnOptions choices={choices.modifiers} placeholder="Choose a column" />
+            </select>
+          )}
+        </Field>
+        {choices.modifierType === 'categorical' && (
+          <Field id={fieldId('modifier.reference')} label="Reference level of the modifier" error={shownError('modifier.reference')} hint="Every other level is compared with this one.">
+            {(describedBy, invalid) => (
+              <LevelSelect id={fieldId('modifier.reference')} value={spec.modifier.reference} levels={choices.modifierReferences} placeholder="Choose a level" describedBy={describedBy} invalid={invalid} onChange={(value) => changeSpec({ modifier: { ...spec.modifier, reference: value } }, 'modifier.reference')} />
+            )}
+          </Field>
+        )}
+      </div>
+      {choices.modifierType === 'continuous' && (
+        <div className="grid gap-4 md:grid-cols-2">
+          <Field
+            id={fieldId('modifier.centre')}
+            label="Centring"
+            error={shownError('modifier.centre')}
+            hint={modifierRange ? `Observed from ${modifierRange.min} to ${modifierRange.max}, mean ${modifierRange.mean.toFixed(2)}.` : 'Centring changes what the intervention coefficient means, not the fit.'}
+          >
+            {(describedBy, invalid) => (
+              <div className="flex gap-2">
+                <select id={fieldId('modifier.centre')} className="field-input" value={spec.modifier.centre} aria-describedby={describedBy} aria-invalid={invalid} onChange={(e) => changeSpec({ modifier: { ...spec.modifier, centre: e.target.value as SpecDraft['modifier']['centre'] } }, 'modifier.centre')}>
+                  <option value="none">None</option>
+                  <option value="mean">On the mean</option>
+                  <option value="median">On the median</option>
+                  <option value="value">On a value</option>
+                </select>
+                {spec.modifier.centre === 'value' && (
+                  <input className="field-input w-28" inputMode="decimal" aria-label="Centring value" value={spec.modifier.centreValue} aria-invalid={invalid} onChange={(e) => changeSpec({ modifier: { ...spec.modifier, centreValue: e.target.value } }, 'modifier.centre')} />
+                )}
+              </div>
+            )}
+          </Field>
+          <Field id={fieldId('modifier.slopesAt')} label="Report the effect at" error={shownError('modifier.slopesAt')} hint={spec.modifier.slopes === 'sd' ? undefined : `Separate with commas, e.g. ${spec.modifier.slopes === 'percentiles' ? '10, 50, 90' : modifierRange ? `${modifierRange.min}, ${modifierRange.median}, ${modifierRange.max}` : '2, 5, 8'}.`}>
+            {(describedBy, invalid) => (
+              <div className="flex gap-2">
+                <select id={fieldId('modifier.slopesAt')} className="field-input" value={spec.modifier.slopes} aria-describedby={describedBy} aria-invalid={invalid} onChange={(e) => changeSpec({ modifier: { ...spec.modifier, slopes: e.target.value as SpecDraft['modifier']['slopes'] } }, 'modifier.slopesAt')}>
+                  <option value="sd">Mean and ± 1 SD</option>
+                  <option value="percentiles">Percentiles</option>
+                  <option value="values">Values</option>
+                </select>
+                {spec.modifier.slopes !== 'sd' && (
+                  <input className="field-input" aria-label={spec.modifier.slopes === 'percentiles' ? 'Percentiles' : 'Values'} value={spec.modifier.slopeList} aria-invalid={invalid} aria-describedby={describedBy} onChange={(e) => changeSpec({ modifier: { ...spec.modifier, slopeList: e.target.value } }, 'modifier.slopesAt')} />
+                )}
+              </div>
+            )}
+          </Field>
+        </div>
+      )}
+    </Section>
+  );
+}

@@ -1,0 +1,58 @@
+/**
+ * The analysis form's live summary: the model equation and what a run will compute (the
+ * specification in words and the list of results), once the specification is complete.
+ */
+import type { Spec } from '../../engine/boundary/schemas';
+import type { FormColumn } from './formColumns';
+import { modelEquation } from './modelEquation';
+import { ModelEquationView } from './ModelEquationView';
+import { computationSummary, specInWords } from './specWords';
+
+export interface SummaryPanelProps {
+  /** Prefix of the headings' ids. */
+  idPrefix: string;
+  /** The converted specification, or null while the draft does not convert. */
+  spec: Spec | null;
+  columns: readonly FormColumn[];
+}
+
+export function SummaryPanel({ idPrefix, spec, columns }: SummaryPanelProps) {
+  const equation = spec ? modelEquation(spec, columns) : null;
+  const summary = spec ? computationSummary(spec, columns) : [];
+  return (
+    <>
+      <section className="card p-5" aria-labelledby={`${idPrefix}-equation`}>
+        <h2 id={`${idPrefix}-equation`} className="text-base mb-2">
+          Model equation
+        </h2>
+        {equation ? (
+          <ModelEquationView equation={equation} />
+        ) : (
+          <p className="text-sm text-ink-500" data-testid="model-equation">
+            The equation appears once the outcome, intervention and modifier are chosen and valid.
+          </p>
+        )}
+      </section>
+      <section className="card p-5" aria-labelledby={`${idPrefix}-summary`} data-testid="computation-summary">
+        <h2 id={`${idPrefix}-summary`} className="text-base mb-2">
+          What a run will compute
+        </h2>
+        {spec ? (
+          <>
+            <p className="text-sm text-ink-700 mb-3">{specInWords(spec, { columns })}</p>
+            <dl className="grid gap-2 text-sm m-0">
+              {summary.map((item) => (
+                <div key={item.title}>
+                  <dt className="font-semibold">{item.title}</dt>
+                  <dd className="m-0 text-ink-700">{item.detail}</dd>
+                </div>
+              ))}
+            </dl>
+          </>
+        ) : (
+          <p className="text-sm text-ink-500">Complete the specification to see what will be computed.</p>
+        )}
+      </section>
+    </>
+  );
+}

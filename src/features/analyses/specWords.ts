@@ -1,0 +1,152 @@
+/**
+ * The specification in plain English (shown on the analysis and run pages and in the
+ * result tables) and the list of what a run will compute, shown before running.
+ */
+import type { Spec } from '../../engine/boundary/schemas';
+import { defaultReference, levelsFromReference, type FormColumn } from './formColumns';
+import { CI_METHOD_LABEL, DEFAULT_REPLICATES, DEFAULT_SEED, MEASURE_LABEL, MODEL_LABEL, MULTIPLICITY_LABEL, isRatioModel, measureFor } from './specRules';
+
+/** How a column is named in prose: its short description where it has one, else its name. */
+export function columnLabel(name: string, columns?: readonly FormColumn[]): string {
+  const description = columns?.find((column) => column.name === name)?.description.trim() ?? '';
+  return description !== '' && description.length <= 48 && !/[.\n]/.test(description) ? description : name;
+}
+
+function listInWords(items: readonly string[]): string {
+  if (items.length <= 1) return items.join('');
+  return `${items.slice(0, -1).join(', ')} and ${items[items.length - 1]}`;
+}
+
+/** A percentage without binary noise: 0.95 → "95", 0.050000000000000044 → "5". */
+export function percentText(proportion: number): string {
+  return String(Number((proportion * 100).toPrecision(10)));
+}
+
+export interface WordsContext {
+  /** Dictionary columns, for short descriptions and the modifier's number of levels. */
+  columns?: readonly FormColumn[];
+  /** The modifier's levels as the run saw them (from the result), when known. */
+  modifierLevels?: readonly string[] | null;
+}
+
+function slopesInWords(slopes: NonNullable<Spec['modifier']['slopesAt']>): string {
+  if (slopes.kind === 'sd') return 'the mean and one standard deviation either side';
+  if (slopes.kind === 'percentiles') return `the ${listInWords(slopes.percentiles.map((p) => `${p}th`))} percentiles`;
+  return listInWords(slopes.values.map(String));
+}
+
+/**
+ * The specification in plain English, e.g. "Logistic regression of readmitted_30d on
+ * call_back (reference 0), its product with age_band (reference 18-44), adjusted for sex,
+ * comorbidity_score and site; effects as odds ratios; 95 % delta-method intervals; tests
+ * at the 5 % level; Holm adjustment across 4 strata."
+ */
+export function specInWords(spec: Spec, context: WordsContext = {}): string {
+  const label = (name: string) => columnLabel(name, context.columns);
+  const outcome = spec.outcome.event ? `${label(spec.outcome.column)} (event: ${spec.outcome.event})` : label(spec.outcome.column);
+  const parts: string[] = [];
+  const model = MODEL_LABEL[spec.model];
+  const centre = spec.modifier.centre ?? 'none';
+  const modifierPart =
+    spec.modifier.type === 'categorical'
+      ? `its product with ${label(spec.modifier.column)} (reference ${spec.modifier.reference ?? 'the first level'})`
+      : `its product with ${label(spec.modifier.column)} as a continuous modifier${centre === 'none' ? '' : ` centred on ${typeof centre === 'number' ? centre : `its ${centre}`}`}`;
+  const covariates = spec.covariates.map((covariate) => label(covariate.column));
+  parts.push(
+    `${model} of ${outcome} on ${label(spec.exposure.column)} (reference ${spec.exposure.reference}), ${modifierPart}, ${covariates.length > 0 ? `adjusted for ${listInWords(covariates)}` : 'with no adjustment for other covariates'}`,
+  );
+  const measure = spec.effectMeasure ?? measureFor(spec.model, spec.outcome.type);
+  parts.push(`effects as ${MEASURE_LABEL[measure]}s`);
+  const method = spec.ci.method === 'bootstrap'
+    ? `percentile-bootstrap intervals from ${(spec.ci.replicates ?? DEFAULT_REPLICATES).toLocaleString('en-GB')} replicates (seed ${spec.ci.seed ?? DEFAULT_SEED})`
+    : spec.ci.method === 'mover'
+      ? 'MOVER intervals for RERI and delta-method intervals otherwise'
+      : 'delta-method intervals';
+  parts.push(`${percentText(spec.ci.level)} % ${method}`);
+  parts.push(`tests at the ${percentText(spec.alpha ?? 1 - spec.ci.level)} % level`);
+  if (spec.modifier.type === 'categorical') {
+    const levels = context.modifierLevels ?? context.columns?.find((column) => column.name === spec.modifier.column)?.levels ?? null;
+    const strata = levels ? `${levels.length} strata` : 'the strata';
+    const multiplicity = spec.multiplicity ?? 'holm';
+    parts.push(multiplicity === 'none' ? `no adjustment for multiple comparisons across ${strata}` : `${MULTIPLICITY_LABEL[multiplicity]} adjustment across ${strata}`);
+  } else {
+    parts.push(`simple slopes at ${slopesInWords(spec.modifier.slopesAt ?? { kind: 'sd' })}, with Johnson-Neyman boundaries`);
+  }
+  if (spec.preventive) parts.push('additive measures recoded for a preventive intervention');
+  return `${parts.join('; ')}.`;
+}
+
+/** One line of the "what will be computed" panel. */
+export interface ComputationItem {
+  title: string;
+  detail: string;
+}
+
+/** What a run of this specification will compute, shown before running. */
+export function computationSummary(spec: Spec, columns: readonly FormColumn[]): ComputationItem[] {
+  const byName = new Map(columns.map((column) => [column.name, column]));
+  const measure = spec.effectMeasure ?? measureFor(spec.model, spec.outcome.type);
+  const measureName = MEASURE_LABEL[measure];
+  const ratio = isRatioModel(spec.model);
+  const items: ComputationItem[] = [];
+  const covariateCount = spec.covariates.length;
+  items.push({
+    title: 'Model',
+    detail: `${MODEL_LABEL[spec.model]} with ${covariateCount === 0 ? 'no covariates' : `${covariateCount} covariate${covariateCount === 1 ? '' : 's'}`}${spec.model === 'log-binomial' ? '; if it does not converge the engine falls back to modified Poisson and says so' : ''}.`,
+  });
+  const level = `${percentText(spec.ci.level)} %`;
+  if (spec.modifier.type === 'categorical') {
+    const levels = byName.get(spec.modifier.column)?.levels ?? [];
+    const reference = spec.modifier.reference ?? defaultReference(levels);
+    const ordered = levels.length > 0 ? levelsFromReference(levels, reference) : [];
+    const others = ordered.slice(1);
+    const k = ordered.length;
+    items.push({
+      title: 'Effect within each stratum',
+      detail: `The ${measureName} of ${spec.exposure.column} within each of ${k > 0 ? `the ${k} levels` : 'the levels'} of ${spec.modifier.column}${ordered.length > 0 ? ` (${ordered.join(', ')})` : ''}, with ${level} intervals and ${MULTIPLICITY_LABEL[spec.multiplicity ?? 'holm']}-adjusted p-values.`,
+    });
+    items.push({
+      title: 'Joint effects',
+      detail: `${k > 0 ? `All ${2 * k}` : 'All'} combinations of ${spec.exposure.column} and ${spec.modifier.column} against one reference (${spec.exposure.column} = ${spec.exposure.reference}, ${spec.modifier.column} = ${reference}), with counts.`,
+    });
+    items.push({
+      title: 'Interaction on the multiplicative scale',
+      detail: ratio
+        ? `The ratio of ${measureName}s for each of ${others.length > 0 ? others.join(', ') : 'the other levels'} against ${reference}, and an omnibus ${spec.model === 'modified-poisson' ? 'robust Wald' : 'likelihood-ratio'} test of all product terms together.`
+        : `The difference in differences for each level against ${reference}, and an omnibus F test of all product terms together.`,
+    });
+    if (ratio) {
+      items.push({
+        title: 'Interaction on the additive scale',
+        detail: `RERI, AP, AP* and S for each level against ${reference}, with ${CI_METHOD_LABEL[spec.ci.method]} intervals${spec.preventive ? ', each recoded so that the lowest-risk combination is the reference' : ''}.`,
+      });
+    }
+    if (spec.outcome.type === 'binary') {
+      items.push({ title: 'Stratified tables', detail: 'Crude 2 × 2 tables per level with Mantel-Haenszel pooled estimates and tests of homogeneity (Breslow-Day with Tarone\'s correction, Woolf).' });
+    }
+  } else {
+    const slopes = spec.modifier.slopesAt ?? { kind: 'sd' };
+    items.push({
+      title: 'Simple slopes',
+      detail: `The ${measureName} of ${spec.exposure.column} at ${slopesInWords(slopes)} of ${spec.modifier.column}, with ${level} intervals.`,
+    });
+    items.push({
+      title: 'Johnson-Neyman boundaries',
+      detail: `Where along ${spec.modifier.column} the effect of ${spec.exposure.column} is significant at the ${percentText(spec.alpha ?? 1 - spec.ci.level)} % level, with the band across the observed range for the plot.`,
+    });
+    items.push({
+      title: 'Interaction',
+      detail: ratio
+        ? `The ratio of ${measureName}s per unit of ${spec.modifier.column}; RERI, AP and S for one standard deviation above the mean; an omnibus test of the product term.`
+        : `The change in the mean difference per unit of ${spec.modifier.column} and for one standard deviation above the mean; an F test of the product term.`,
+    });
+  }
+  if (spec.ci.method === 'bootstrap') {
+    items.push({
+      title: 'Bootstrap',
+      detail: `${(spec.ci.replicates ?? DEFAULT_REPLICATES).toLocaleString('en-GB')} resamples with seed ${spec.ci.seed ?? DEFAULT_SEED}; each refits the model, so this step takes the longest. The same seed reproduces the same intervals.`,
+    });
+  }
+  items.push({ title: 'Power', detail: 'The smallest interaction these data could detect with 80 % power, and the power for an interaction as large as the main effect.' });
+  return items;
+}
