@@ -8,8 +8,10 @@
  */
 import type { Result, Spec } from '../../engine/boundary/schemas';
 import { RESULT_CAUTIONS } from '../../lib/cautions';
-import { MODEL_LABEL, percentText } from '../analyses/specForm';
-import { buildResultTables, formatNumber } from '../runs/resultTables';
+import { MODEL_LABEL } from '../analyses/specRules';
+import { percentText } from '../analyses/specWords';
+import { formatNumber } from '../runs/resultFormat';
+import { buildResultTables } from '../runs/resultTables';
 import { briefCounts, cellId, countText, isPublished, isSmallStratum, type BriefCounts } from './briefCounts';
 import { smallCountText } from './suppression';
 

@@ -10,7 +10,7 @@
  *   part of a brief).
  */
 import type { Result } from '../../engine/boundary/schemas';
-import { formatCount } from '../runs/resultTables';
+import { formatCount } from '../runs/resultFormat';
 import { planSuppression, smallCountText, WITHHELD_TEXT, type CountCell, type Relation, type SuppressionPlan } from './suppression';
 
 export interface BriefCounts {

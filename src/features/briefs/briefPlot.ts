@@ -3,7 +3,7 @@
  * vectors): one row per stratum (or per modifier value), a point at the estimate, a line
  * over the interval, a dashed line at no effect, and ticks on a log scale for ratios.
  */
-import { formatNumber } from '../runs/resultTables';
+import { formatNumber } from '../runs/resultFormat';
 import type { BriefPlot } from './briefContent';
 
 export interface PlotLayout {
