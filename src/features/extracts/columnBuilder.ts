@@ -59,6 +59,8 @@ export class ColumnBuilder {
   private readonly tokenNames: readonly string[];
   private readonly tokenCounts: Int32Array;
   private readonly longestToken: number;
+  /** 1 for every byte a token can start with (both letter cases), so most fields skip the token comparison. */
+  private readonly tokenFirstByte = new Uint8Array(256);
   private levelFirstRows = new Int32Array(16);
   private capacity: number;
   private readonly plan: CapacityPlan;
@@ -94,6 +96,12 @@ export class ColumnBuilder {
     this.tokenNames = options.tokenNames;
     this.tokenCounts = new Int32Array(options.tokenNames.length);
     this.longestToken = Math.max(...options.missingTokens.map((t) => t.length));
+    for (const token of options.missingTokens) {
+      if (token.length === 0) continue;
+      const first = token[0];
+      this.tokenFirstByte[first] = 1;
+      if (first >= 65 && first <= 90) this.tokenFirstByte[first + 32] = 1;
+    }
     this.missing = new Uint8Array((capacity + 7) >> 3);
   }
 
@@ -131,7 +139,8 @@ export class ColumnBuilder {
     while (end > start && (bytes[end - 1] === 32 || bytes[end - 1] === 9)) end--;
     const row = this.rowCount++;
     if (row === this.capacity) this.grow();
-    const token = start === end ? 0 : end - start <= this.longestToken ? this.tokenIndex(bytes, start, end) : -1;
+    const token =
+      start === end ? 0 : end - start <= this.longestToken && this.tokenFirstByte[bytes[start]] === 1 ? this.tokenIndex(bytes, start, end) : -1;
     if (token >= 0) {
       this.tokenCounts[token]++;
       this.missing[row >> 3] |= 1 << (row & 7);
