@@ -2,7 +2,13 @@
  * Dense symmetric positive-definite algebra for the small p × p systems of the fits
  * (p is the number of model terms, rarely above 50). Matrices are row-major
  * Float64Arrays of length p²; only the upper triangle of the input is read.
+ *
+ * The factorisation and the solve are the engine's own, because they carry its rule for
+ * aliased terms (Jacobi scaling and a pivot-ratio threshold, like R's QR tolerance) and
+ * run in every IRLS step. The inverse of the triangular factor and the small products of
+ * the delta method and the sandwich (gᵀVg, CVCᵀ, BMB) are ml-matrix's.
  */
+import { Matrix, inverse } from 'ml-matrix';
 
 /** Result of factorising a cross-product matrix. */
 export interface CholeskyFactor {
@@ -99,26 +105,28 @@ export function choleskySolve(cholesky: CholeskyFactor, rightHandSide: ArrayLike
   return solution;
 }
 
-/** The full symmetric inverse A⁻¹ (row-major p × p) from a factor of A. */
+/**
+ * The full symmetric inverse A⁻¹ (row-major p × p) from a factor of A:
+ * A⁻¹ = D⁻¹ R⁻¹ R⁻ᵀ D⁻¹, with R⁻¹ from ml-matrix's LU inverse (on a triangular matrix,
+ * back substitution).
+ */
 export function choleskyInverse(cholesky: CholeskyFactor): Float64Array {
-  const { size } = cholesky;
-  const inverse = new Float64Array(size * size);
-  const unit = new Float64Array(size);
-  for (let column = 0; column < size; column++) {
-    unit.fill(0);
-    unit[column] = 1;
-    const solved = choleskySolve(cholesky, unit);
-    for (let row = 0; row < size; row++) inverse[row * size + column] = solved[row];
+  const { size, factor, scale } = cholesky;
+  const factorInverse = inverse(Matrix.from1DArray(size, size, factor));
+  const scaledInverse = factorInverse.mmul(factorInverse.transpose());
+  const result = new Float64Array(size * size);
+  for (let row = 0; row < size; row++) {
+    for (let column = 0; column < size; column++) result[row * size + column] = scaledInverse.get(row, column) / (scale[row] * scale[column]);
   }
   // Symmetrise against rounding.
   for (let row = 0; row < size; row++) {
     for (let column = row + 1; column < size; column++) {
-      const mean = 0.5 * (inverse[row * size + column] + inverse[column * size + row]);
-      inverse[row * size + column] = mean;
-      inverse[column * size + row] = mean;
+      const mean = 0.5 * (result[row * size + column] + result[column * size + row]);
+      result[row * size + column] = mean;
+      result[column * size + row] = mean;
     }
   }
-  return inverse;
+  return result;
 }
 
 /** Fills the lower triangle of a row-major matrix whose upper triangle is set. */
@@ -128,33 +136,20 @@ export function mirrorUpperTriangle(matrix: Float64Array, size: number): void {
   }
 }
 
-/** Quadratic form gᵀ V g for a row-major p × p matrix V. */
+/** Quadratic form gᵀ V g for a row-major p × p matrix V (the delta method's variance). */
 export function quadraticForm(gradient: ArrayLike<number>, covariance: ArrayLike<number>, size: number): number {
-  let total = 0;
-  for (let row = 0; row < size; row++) {
-    let inner = 0;
-    for (let column = 0; column < size; column++) inner += covariance[row * size + column] * gradient[column];
-    total += gradient[row] * inner;
-  }
-  return total;
+  const g = Matrix.columnVector(gradient);
+  return g.dot(Matrix.from1DArray(size, size, covariance).mmul(g));
 }
 
-/** C = A B for row-major matrices of sizes (m × k)(k × n). */
-export function multiply(left: ArrayLike<number>, right: ArrayLike<number>, m: number, k: number, n: number): Float64Array {
-  const product = new Float64Array(m * n);
-  for (let i = 0; i < m; i++) {
-    for (let l = 0; l < k; l++) {
-      const value = left[i * k + l];
-      if (value === 0) continue;
-      for (let j = 0; j < n; j++) product[i * n + j] += value * right[l * n + j];
-    }
-  }
-  return product;
+/** The sandwich B M B of a bread B and a meat M, both row-major p × p. */
+export function sandwich(bread: ArrayLike<number>, meat: ArrayLike<number>, p: number): Float64Array {
+  const b = Matrix.from1DArray(p, p, bread);
+  return Float64Array.from(b.mmul(Matrix.from1DArray(p, p, meat)).mmul(b).to1DArray());
 }
 
 /** Covariance of linear combinations: C V Cᵀ for a (m × p) contrast C and p × p V. */
 export function contrastCovariance(contrast: ArrayLike<number>, covariance: ArrayLike<number>, m: number, p: number): Float64Array {
-  const transposed = new Float64Array(p * m);
-  for (let i = 0; i < m; i++) for (let j = 0; j < p; j++) transposed[j * m + i] = contrast[i * p + j];
-  return multiply(multiply(contrast, covariance, m, p, p), transposed, m, p, m);
+  const c = Matrix.from1DArray(m, p, contrast);
+  return Float64Array.from(c.mmul(Matrix.from1DArray(p, p, covariance)).mmul(c.transpose()).to1DArray());
 }

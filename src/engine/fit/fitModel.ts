@@ -39,6 +39,11 @@ export interface FitOptions {
   readonly standardErrors?: 'model' | 'hc3';
   /** Helper threads for the passes over the rows (results are identical without them). */
   readonly parallel?: PassPool | null;
+  /**
+   * Starting coefficients for a logistic or Poisson fit (others ignore them); the fit
+   * still runs to the maximum under the usual rule, so only the number of steps changes.
+   */
+  readonly start?: ArrayLike<number> | null;
 }
 
 /** Pivot ratios below this (VIF above 1e8) earn a near-collinearity warning. */
@@ -159,7 +164,7 @@ export function fitModel(inputDesign: DesignMatrix, inputY: Float64Array, model:
       const fallback = fitGeneralizedLinearModel({ design, y, family: 'poisson-log', parallel });
       return fromGlm('modified-poisson', 'log-binomial', design, y, fallback, warnings);
     }
-    const fit = fitGeneralizedLinearModel({ design, y, family: glmFamilyOf(model), parallel });
+    const fit = fitGeneralizedLinearModel({ design, y, family: glmFamilyOf(model), parallel, start: options.start ?? null });
     return fromGlm(model, model, design, y, fit, warnings);
   } catch (error) {
     if (error instanceof NotPositiveDefiniteError) throw singular(design, error);

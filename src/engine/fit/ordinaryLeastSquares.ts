@@ -1,4 +1,4 @@
-import { choleskyFactor, choleskyInverse, choleskySolve, multiply } from '../core/symmetricPositiveDefinite.js';
+import { choleskyFactor, choleskyInverse, choleskySolve, sandwich } from '../core/symmetricPositiveDefinite.js';
 import type { DesignMatrix } from '../design/designMatrix.js';
 import { createPassBuffers, executePass, setCoefficients } from './blockedPasses.js';
 import {
@@ -111,7 +111,7 @@ export function fitOrdinaryLeastSquares(input: LeastSquaresInput): LeastSquaresF
     accumulateWeighted(design, meatWeights, null, meatAccumulator);
     const meat = new Float64Array(p * p);
     assembleCrossProducts(design, meatAccumulator, meat, new Float64Array(p));
-    covarianceHC3 = multiply(multiply(crossProductInverse, meat, p, p, p), crossProductInverse, p, p, p);
+    covarianceHC3 = sandwich(crossProductInverse, meat, p);
   }
   const logLik = -0.5 * weightSum * (Math.log(2 * Math.PI) + 1 - Math.log(weightSum) + Math.log(residualSumOfSquares));
   return {

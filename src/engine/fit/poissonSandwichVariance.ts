@@ -1,4 +1,4 @@
-import { multiply } from '../core/symmetricPositiveDefinite.js';
+import { sandwich } from '../core/symmetricPositiveDefinite.js';
 import type { DesignMatrix } from '../design/designMatrix.js';
 import { accumulateWeighted, assembleCrossProducts, createAccumulator, linearPredictor } from './crossProductAccumulator.js';
 
@@ -33,5 +33,5 @@ export function poissonSandwichVariance(
   accumulateWeighted(design, squaredResiduals, null, accumulator);
   const meat = new Float64Array(p * p);
   assembleCrossProducts(design, accumulator, meat, new Float64Array(p));
-  return multiply(multiply(bread, meat, p, p, p), bread, p, p, p);
+  return sandwich(bread, meat, p);
 }

@@ -24,26 +24,11 @@
 import { createHash, type Hash } from 'node:crypto';
 import { isAscii } from 'node:buffer';
 import { ExtractRefusalError } from './extractRefusal';
+import { SEMICOLON, TAB, binaryMessage, countLineBreaks, detectDelimiter, findHeaderLine, firstInvalidUtf8Offset, formatBytes, isBlank, skipBlankLines } from './csvBytes';
+import { CsvRecordParser, type CsvSink } from './csvRecordParser';
 
-const LF = 10;
-const CR = 13;
-const QUOTE = 34;
-const COMMA = 44;
-const SEMICOLON = 59;
-const TAB = 9;
-
-/** Receives the parsed records. Byte ranges are only valid during the call. */
-export interface CsvSink {
-  /** Called once with the validated column names (in file order). */
-  header(names: readonly string[]): void;
-  /** One field of the current data record; `column` counts from 0. */
-  field(column: number, bytes: Uint8Array, start: number, end: number): void;
-  /**
-   * The current data record is complete (it had exactly as many fields as the header);
-   * `line` is the physical line (1-based, header on line 1) where it began.
-   */
-  endRecord(line?: number): void;
-}
+export { firstInvalidUtf8Offset, formatBytes } from './csvBytes';
+export type { CsvSink } from './csvRecordParser';
 
 /** Options of {@link CsvChunkReader}. */
 export interface CsvReaderOptions {
@@ -80,89 +65,18 @@ export interface CsvReadSummary {
 /** Default upload limit: 500 MiB. */
 export const DEFAULT_MAX_BYTES = 500 * 1024 * 1024;
 
-const enum Mode {
-  /** At the start of a field (or of a record). */
-  FieldStart,
-  /** Inside an unquoted field that began in an earlier chunk (its bytes are in scratch). */
-  Unquoted,
-  /** Inside a quoted field. */
-  Quoted,
-  /** Just saw a `"` inside a quoted field as the last byte of a chunk. */
-  QuotedAfterQuote,
-  /** Just ended a record with CR as the last byte of a chunk; a leading LF is skipped. */
-  AfterCr,
-}
-
-function delimiterName(byte: number): string {
-  if (byte === SEMICOLON) return 'semicolon';
-  if (byte === TAB) return 'tab';
-  return 'comma';
-}
-
-function countLineBreaks(bytes: Uint8Array, end: number): number {
-  let breaks = 0;
-  for (let i = 0; i < end; i++) {
-    const b = bytes[i];
-    if (b === LF) breaks++;
-    else if (b === CR && bytes[i + 1] !== LF) breaks++;
-  }
-  return breaks;
-}
-
-/**
- * Offset of the first byte that makes `bytes` invalid UTF-8 (Unicode 15, table 3-7:
- * no overlong forms, no surrogates, nothing above U+10FFFF), or -1. A sequence cut off
- * by the end of `bytes` counts as invalid only when `final` is true.
- */
-export function firstInvalidUtf8Offset(bytes: Uint8Array, final: boolean): number {
-  const n = bytes.length;
-  let i = 0;
-  while (i < n) {
-    const b = bytes[i];
-    if (b < 0x80) {
-      i++;
-      continue;
-    }
-    let need: number;
-    let lo = 0x80;
-    let hi = 0xbf;
-    if (b >= 0xc2 && b <= 0xdf) need = 1;
-    else if (b >= 0xe0 && b <= 0xef) {
-      need = 2;
-      if (b === 0xe0) lo = 0xa0;
-      if (b === 0xed) hi = 0x9f;
-    } else if (b >= 0xf0 && b <= 0xf4) {
-      need = 3;
-      if (b === 0xf0) lo = 0x90;
-      if (b === 0xf4) hi = 0x8f;
-    } else return i;
-    for (let k = 1; k <= need; k++) {
-      if (i + k >= n) return final ? i : -1;
-      const c = bytes[i + k];
-      const min = k === 1 ? lo : 0x80;
-      const max = k === 1 ? hi : 0xbf;
-      if (c < min || c > max) return i;
-    }
-    i += need + 1;
-  }
-  return -1;
-}
-
 /**
  * The synchronous core of the reader: feed it chunks with {@link CsvChunkReader.push} and
  * call {@link CsvChunkReader.finish} at the end of the input. Throws
  * {@link ExtractRefusalError} as soon as the input is known to be unacceptable, without
- * consuming the rest. Wrap it in a stream or an async loop (see {@link readCsv}).
+ * consuming the rest. Wrap it in a stream or an async loop (see {@link readCsv}). The
+ * records themselves are parsed by {@link CsvRecordParser} (csvRecordParser.ts).
  */
-export class CsvChunkReader {
-  private readonly sink: CsvSink;
+export class CsvChunkReader extends CsvRecordParser {
   private readonly maxBytes: number;
   private readonly maxHeaderBytes: number;
-  private readonly maxFieldBytes: number;
-  private readonly maxColumns: number;
   private readonly hash: Hash = createHash('sha256');
   private readonly utf8 = new TextDecoder('utf-8', { fatal: true });
-  private readonly names = new TextDecoder('utf-8');
 
   private byteCount = 0;
   /** The last chunk ended inside a multi-byte sequence, so the next one must be decoded. */
@@ -176,39 +90,16 @@ export class CsvChunkReader {
   private headLength = 0;
   private hadBom = false;
 
-  private delimiter = -1;
-  private mode: Mode = Mode.FieldStart;
-  /** Physical line of the byte being parsed. */
-  private line = 1;
-  /** Line on which the current record started. */
-  private recordLine = 1;
-  /** Line on which the current quoted field opened. */
-  private quoteLine = 1;
-  /** A CR inside a quoted field was the last byte of a chunk (line counted once its LF-ness is known). */
-  private quotedCrPending = false;
-  private fieldIndex = 0;
-  private columnCount = -1;
-  private headerFields: string[] = [];
-  private recordCount = 0;
-  private blankLines = 0;
-  /** A field that spans chunks or contains doubled quotes is assembled here. */
-  private scratch = new Uint8Array(1024);
-  private scratchLength = 0;
-  private usingScratch = false;
   private finished = false;
-  /** The input so far ended with a line break (for the final line count). */
-  private endedWithBreak = false;
 
   /**
    * @param sink receives the header and the records
    * @param options limits; see {@link CsvReaderOptions}
    */
   constructor(sink: CsvSink, options: CsvReaderOptions = {}) {
-    this.sink = sink;
+    super(sink, options.maxFieldBytes ?? 1024 * 1024, options.maxColumns ?? 2000);
     this.maxBytes = options.maxBytes ?? DEFAULT_MAX_BYTES;
     this.maxHeaderBytes = options.maxHeaderBytes ?? 1024 * 1024;
-    this.maxFieldBytes = options.maxFieldBytes ?? 1024 * 1024;
-    this.maxColumns = options.maxColumns ?? 2000;
   }
 
   /** Bytes received so far. */
@@ -320,7 +211,7 @@ export class CsvChunkReader {
   private checkText(chunk: Uint8Array): void {
     const nul = chunk.indexOf(0);
     if (nul >= 0) {
-      throw new ExtractRefusalError('not-text', this.binaryMessage(this.lineOfOffset(chunk, nul)), this.lineOfOffset(chunk, nul));
+      throw new ExtractRefusalError('not-text', binaryMessage(this.leading, this.leadingLength, this.lineOfOffset(chunk, nul)), this.lineOfOffset(chunk, nul));
     }
     // ASCII chunks cannot be invalid unless a multi-byte sequence is still open.
     if (!this.utf8Pending && isAscii(chunk)) return;
@@ -336,21 +227,6 @@ export class CsvChunkReader {
       );
     }
     this.utf8Pending = chunk[chunk.length - 1] >= 0x80;
-  }
-
-  private binaryMessage(line: number): string {
-    const b = this.leading;
-    const n = this.leadingLength;
-    if (n >= 2 && ((b[0] === 0xff && b[1] === 0xfe) || (b[0] === 0xfe && b[1] === 0xff))) {
-      return 'The file is saved as UTF-16 text, not UTF-8. Save or export it as "CSV UTF-8" and upload again.';
-    }
-    if (n >= 4 && b[0] === 0x50 && b[1] === 0x4b && b[2] === 0x03 && b[3] === 0x04) {
-      return 'The file is a ZIP archive or a spreadsheet workbook (such as .xlsx), not CSV text. Export the sheet as CSV and upload that.';
-    }
-    if (n >= 4 && b[0] === 0x25 && b[1] === 0x50 && b[2] === 0x44 && b[3] === 0x46) {
-      return 'The file is a PDF document, not CSV text.';
-    }
-    return `Line ${line}: the file contains binary data (a NUL byte), so it is not CSV text. Upload a CSV file exported as UTF-8 text.`;
   }
 
   // ---- header collection and delimiter detection -----------------------------------------
@@ -397,386 +273,6 @@ export class CsvChunkReader {
     // The head buffer is private, so parsing it in place is safe.
     this.parse(all.subarray(header.lineStart));
   }
-
-  // ---- the parser ---------------------------------------------------------------------
-
-  private appendScratch(bytes: Uint8Array, start: number, end: number): void {
-    const length = end - start;
-    if (length <= 0) return;
-    const needed = this.scratchLength + length;
-    if (needed > this.maxFieldBytes) this.fieldTooLong();
-    if (needed > this.scratch.length) {
-      const grown = new Uint8Array(Math.max(needed, this.scratch.length * 2));
-      grown.set(this.scratch.subarray(0, this.scratchLength));
-      this.scratch = grown;
-    }
-    this.scratch.set(bytes.subarray(start, end), this.scratchLength);
-    this.scratchLength = needed;
-  }
-
-  private fieldTooLong(): never {
-    if (this.mode === Mode.Quoted || this.mode === Mode.QuotedAfterQuote) {
-      throw new ExtractRefusalError(
-        'unterminated-quote',
-        `Line ${this.quoteLine}: a quoted field opens here and is not closed within ${formatBytes(this.maxFieldBytes)}; check for a missing closing quote (").`,
-        this.quoteLine,
-      );
-    }
-    throw new ExtractRefusalError(
-      'field-too-long',
-      `Line ${this.recordLine}: a field is longer than ${formatBytes(this.maxFieldBytes)}.`,
-      this.recordLine,
-    );
-  }
-
-  private emit(bytes: Uint8Array, start: number, end: number): void {
-    if (end - start > this.maxFieldBytes) this.fieldTooLong();
-    if (this.columnCount < 0) {
-      if (this.fieldIndex >= this.maxColumns) {
-        throw new ExtractRefusalError(
-          'too-many-columns',
-          `Line 1: the header has more than ${this.maxColumns} columns.`,
-          1,
-        );
-      }
-      this.headerFields.push(this.names.decode(bytes.subarray(start, end)).trim());
-      return;
-    }
-    if (this.fieldIndex >= this.columnCount) this.ragged(this.fieldIndex + 1);
-    this.sink.field(this.fieldIndex, bytes, start, end);
-  }
-
-  private ragged(fields: number): never {
-    const more = fields > this.columnCount ? 'at least ' : '';
-    throw new ExtractRefusalError(
-      'ragged-row',
-      `Line ${this.recordLine}: this row has ${more}${fields} field${fields === 1 ? '' : 's'} but the header has ${this.columnCount}. Every row must have as many fields as the header.`,
-      this.recordLine,
-    );
-  }
-
-  private endRecord(): void {
-    if (this.columnCount < 0) {
-      this.acceptHeader();
-    } else {
-      if (this.fieldIndex + 1 !== this.columnCount) this.ragged(this.fieldIndex + 1);
-      this.recordCount++;
-      this.sink.endRecord(this.recordLine);
-    }
-    this.fieldIndex = 0;
-  }
-
-  private acceptHeader(): void {
-    const names = this.headerFields;
-    const seen = new Map<string, number>();
-    for (let i = 0; i < names.length; i++) {
-      const name = names[i];
-      if (name === '') {
-        throw new ExtractRefusalError(
-          'empty-column-name',
-          `Line 1: column ${i + 1} of the header has no name. Every column needs a name.`,
-          1,
-        );
-      }
-      const key = name.toLowerCase();
-      const first = seen.get(key);
-      if (first !== undefined) {
-        const same = names[first] === name ? `"${name}"` : `"${names[first]}" and "${name}"`;
-        throw new ExtractRefusalError(
-          'duplicate-column',
-          `Line 1: columns ${first + 1} and ${i + 1} have the same name, ${same} (names are compared ignoring case). Column names must be unique.`,
-          1,
-        );
-      }
-      seen.set(key, i);
-    }
-    this.columnCount = names.length;
-    this.sink.header(names.slice());
-  }
-
-  /** Handles the separator byte at `at`; returns the index after it. */
-  private separator(bytes: Uint8Array, at: number): number {
-    const b = bytes[at];
-    if (b === this.delimiter) {
-      this.fieldIndex++;
-      this.endedWithBreak = false;
-      return at + 1;
-    }
-    this.endRecord();
-    this.line++;
-    this.recordLine = this.line;
-    this.endedWithBreak = true;
-    if (b === CR) {
-      if (at + 1 < bytes.length) return bytes[at + 1] === LF ? at + 2 : at + 1;
-      this.mode = Mode.AfterCr;
-    }
-    return at + 1;
-  }
-
-  private parse(bytes: Uint8Array): void {
-    const n = bytes.length;
-    const d = this.delimiter;
-    let i = 0;
-    if (this.mode === Mode.AfterCr) {
-      this.mode = Mode.FieldStart;
-      if (bytes[0] === LF) i = 1;
-    }
-    if (this.quotedCrPending) {
-      this.quotedCrPending = false;
-      if (bytes[0] !== LF) this.line++;
-    }
-    while (i < n) {
-      const mode = this.mode;
-      if (mode === Mode.FieldStart) {
-        const b = bytes[i];
-        if (b === QUOTE) {
-          this.mode = Mode.Quoted;
-          this.quoteLine = this.line;
-          this.endedWithBreak = false;
-          this.scratchLength = 0;
-          this.usingScratch = false;
-          i = this.scanQuoted(bytes, i + 1);
-          continue;
-        }
-        if (this.fieldIndex === 0 && (b === LF || b === CR)) {
-          // A completely empty line: skipped, but still a physical line.
-          this.blankLines++;
-          this.line++;
-          this.recordLine = this.line;
-          this.endedWithBreak = true;
-          if (b === CR) {
-            if (i + 1 < n) i = bytes[i + 1] === LF ? i + 2 : i + 1;
-            else {
-              this.mode = Mode.AfterCr;
-              i++;
-            }
-          } else i++;
-          continue;
-        }
-        let j = i;
-        while (j < n) {
-          const c = bytes[j];
-          if (c === d || c === LF || c === CR) break;
-          j++;
-        }
-        this.endedWithBreak = false;
-        if (j === n) {
-          this.scratchLength = 0;
-          this.appendScratch(bytes, i, n);
-          this.mode = Mode.Unquoted;
-          return;
-        }
-        this.emit(bytes, i, j);
-        i = this.separator(bytes, j);
-        continue;
-      }
-      if (mode === Mode.Unquoted) {
-        let j = i;
-        while (j < n) {
-          const c = bytes[j];
-          if (c === d || c === LF || c === CR) break;
-          j++;
-        }
-        this.appendScratch(bytes, i, j);
-        if (j === n) return;
-        this.mode = Mode.FieldStart;
-        this.emit(this.scratch, 0, this.scratchLength);
-        i = this.separator(bytes, j);
-        continue;
-      }
-      if (mode === Mode.Quoted) {
-        // Resuming a quoted field in a new chunk: everything so far is in scratch.
-        i = this.scanQuoted(bytes, i);
-        continue;
-      }
-      // Mode.QuotedAfterQuote: the previous chunk ended with a quote inside a quoted field.
-      const next = bytes[i];
-      if (next === QUOTE) {
-        this.appendScratch(bytes, i, i + 1);
-        this.mode = Mode.Quoted;
-        i = this.scanQuoted(bytes, i + 1);
-        continue;
-      }
-      this.closeQuoted(bytes, i, this.scratch, 0, this.scratchLength);
-      i = this.separator(bytes, i);
-    }
-  }
-
-  /**
-   * Scans a quoted field's content from `from`; the field's earlier content, if any, is in
-   * scratch (`usingScratch`). Returns the index where parsing continues.
-   */
-  private scanQuoted(bytes: Uint8Array, from: number): number {
-    const n = bytes.length;
-    let segment = from;
-    let j = from;
-    for (;;) {
-      while (j < n) {
-        const c = bytes[j];
-        if (c === QUOTE) break;
-        if (c === LF) this.line++;
-        else if (c === CR) {
-          if (j + 1 < n) {
-            if (bytes[j + 1] !== LF) this.line++;
-          } else this.quotedCrPending = true;
-        }
-        j++;
-      }
-      if (j === n) {
-        this.appendScratch(bytes, segment, n);
-        this.usingScratch = true;
-        this.mode = Mode.Quoted;
-        return n;
-      }
-      // A quote at j: either a doubled quote or the end of the field.
-      if (j + 1 === n) {
-        this.appendScratch(bytes, segment, j);
-        this.usingScratch = true;
-        this.mode = Mode.QuotedAfterQuote;
-        return n;
-      }
-      const next = bytes[j + 1];
-      if (next === QUOTE) {
-        this.appendScratch(bytes, segment, j + 1);
-        this.usingScratch = true;
-        j += 2;
-        segment = j;
-        continue;
-      }
-      if (this.usingScratch) {
-        this.appendScratch(bytes, segment, j);
-        this.closeQuoted(bytes, j + 1, this.scratch, 0, this.scratchLength);
-      } else {
-        this.closeQuoted(bytes, j + 1, bytes, segment, j);
-      }
-      return this.separator(bytes, j + 1);
-    }
-  }
-
-  /** The byte after a closing quote must separate fields; then the field is emitted. */
-  private closeQuoted(bytes: Uint8Array, after: number, field: Uint8Array, start: number, end: number): void {
-    const next = bytes[after];
-    if (next !== this.delimiter && next !== LF && next !== CR) {
-      throw new ExtractRefusalError(
-        'bad-quoting',
-        `Line ${this.line}: a quoted field is followed by other characters before the next ${delimiterName(this.delimiter)}. Inside a quoted field, write a quote as two quotes ("").`,
-        this.line,
-      );
-    }
-    this.mode = Mode.FieldStart;
-    this.emit(field, start, end);
-  }
-
-  /** End of input: completes a last record that has no final line break. */
-  private flushEnd(): void {
-    if (this.mode === Mode.Quoted) {
-      throw new ExtractRefusalError(
-        'unterminated-quote',
-        `Line ${this.quoteLine}: a quoted field opens here and is never closed; check for a missing closing quote (").`,
-        this.quoteLine,
-      );
-    }
-    if (this.mode === Mode.QuotedAfterQuote) {
-      this.mode = Mode.FieldStart;
-      this.emit(this.scratch, 0, this.scratchLength);
-      this.endRecord();
-      return;
-    }
-    if (this.mode === Mode.Unquoted) {
-      this.mode = Mode.FieldStart;
-      this.emit(this.scratch, 0, this.scratchLength);
-      this.endRecord();
-      return;
-    }
-    if (this.mode === Mode.FieldStart && this.fieldIndex > 0) {
-      // The file ends right after a delimiter: the last field is empty.
-      this.emit(this.scratch, 0, 0);
-      this.endRecord();
-    }
-  }
-}
-
-/**
- * Locates the header: the first line that is not blank (spaces and tabs count as blank).
- * Returns null until its line break (outside quotes) has arrived.
- */
-function findHeaderLine(
-  bytes: Uint8Array,
-  start: number,
-  end: number,
-): { lineStart: number; lineEnd: number; skippedLines: number } | null {
-  let lineStart = start;
-  let skippedLines = 0;
-  let quoted = false;
-  let blank = true;
-  for (let i = start; i < end; i++) {
-    const b = bytes[i];
-    if (b === QUOTE) {
-      quoted = !quoted;
-      blank = false;
-    } else if (!quoted && (b === LF || b === CR)) {
-      if (!blank) return { lineStart, lineEnd: i, skippedLines };
-      if (b === CR && i + 1 < end && bytes[i + 1] === LF) i++;
-      else if (b === CR && i + 1 === end) return null;
-      skippedLines++;
-      lineStart = i + 1;
-    } else if (b !== 32 && b !== TAB) blank = false;
-  }
-  return null;
-}
-
-/** Comma, semicolon or tab: whichever occurs most often outside quotes in the header line. */
-function detectDelimiter(head: Uint8Array): number {
-  let commas = 0;
-  let semicolons = 0;
-  let tabs = 0;
-  let quoted = false;
-  for (let i = 0; i < head.length; i++) {
-    const b = head[i];
-    if (b === QUOTE) quoted = !quoted;
-    else if (quoted) continue;
-    else if (b === LF || b === CR) {
-      if (commas + semicolons + tabs > 0) break;
-    } else if (b === COMMA) commas++;
-    else if (b === SEMICOLON) semicolons++;
-    else if (b === TAB) tabs++;
-  }
-  if (semicolons > commas && semicolons >= tabs) return SEMICOLON;
-  if (tabs > commas && tabs > semicolons) return TAB;
-  return COMMA;
-}
-
-/** Offset of the first line that is not blank. */
-function skipBlankLines(bytes: Uint8Array): number {
-  let lineStart = 0;
-  for (let i = 0; i < bytes.length; i++) {
-    const b = bytes[i];
-    if (b === LF || b === CR) lineStart = i + 1;
-    else if (b !== 32 && b !== TAB) return lineStart;
-  }
-  return bytes.length;
-}
-
-function isBlank(bytes: Uint8Array): boolean {
-  for (let i = 0; i < bytes.length; i++) {
-    const b = bytes[i];
-    if (b !== LF && b !== CR && b !== 32 && b !== TAB) return false;
-  }
-  return true;
-}
-
-/** "500 MiB", "1.5 KiB", "12 bytes". */
-export function formatBytes(bytes: number): string {
-  if (bytes < 1024) return `${bytes} bytes`;
-  const units = ['KiB', 'MiB', 'GiB'];
-  let value = bytes / 1024;
-  let unit = 0;
-  while (value >= 1024 && unit < units.length - 1) {
-    value /= 1024;
-    unit++;
-  }
-  const text = Number.isInteger(value) ? String(value) : value.toFixed(1);
-  return `${text} ${units[unit]}`;
 }
 
 /** Options of {@link readCsv}. */
