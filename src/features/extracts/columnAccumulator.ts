@@ -8,7 +8,7 @@
  *   value already seen. At `maxLevels` distinct values the dictionary stops learning and
  *   the column is flagged (its later new values get code -2 and are only screened);
  * - missing rows are a bitmap (bit `i & 7` of byte `i >> 3`);
- * - identifier-pattern counts for the screen (see identifierScreen.ts).
+ * - identifier-pattern counts for the screen (see valuePatterns.ts).
  *
  * A field is missing when it is empty after trimming spaces and tabs, or is one of the
  * shared missing-value tokens (NA, N/A, NULL, ".", "-", NaN in any letter case; see
