@@ -172,14 +172,18 @@ export function startCluster(overrides = {}) {
   return { ...settings, startedHere: !alreadyRunning };
 }
 
-/** Stops the cluster if it runs; a no-op otherwise. */
-export function stopCluster(overrides = {}) {
+/**
+ * Stops the cluster if it runs; a no-op otherwise. `mode` is pg_ctl's shutdown mode:
+ * `fast` (the default) ends sessions cleanly; `immediate` is an abrupt stop, as a crash
+ * or a lost database host looks to the app (the outage test uses it).
+ */
+export function stopCluster(overrides = {}, { mode = 'fast' } = {}) {
   const settings = clusterSettings(overrides);
   if (!existsSync(path.join(settings.dataDir, 'PG_VERSION'))) return;
   const bin = postgresBinaries();
   if (!isRunning(bin, settings)) return;
-  step('Stopping PostgreSQL');
-  pgRun(bin, 'pg_ctl', ['-D', settings.dataDir, '-m', 'fast', '-w', 'stop']);
+  step(`Stopping PostgreSQL${mode === 'fast' ? '' : ` (${mode})`}`);
+  pgRun(bin, 'pg_ctl', ['-D', settings.dataDir, '-m', mode, '-w', 'stop']);
 }
 
 /** Stops the cluster and removes its folder (the test command's throwaway cluster). */
