@@ -186,6 +186,16 @@ export function stopCluster(overrides = {}, { mode = 'fast' } = {}) {
   pgRun(bin, 'pg_ctl', ['-D', settings.dataDir, '-m', mode, '-w', 'stop']);
 }
 
+/**
+ * Runs a PostgreSQL client program (pg_dump, pg_restore, psql) against the cluster as its
+ * superuser, over the cluster's socket. `options` go to spawnSync (stdio for streaming a
+ * dump to or from a file). Returns spawnSync's result.
+ */
+export function runClusterTool(program, args, options = {}, overrides = {}) {
+  const settings = clusterSettings(overrides);
+  return pgRun(postgresBinaries(), program, ['-h', settings.socketDir, '-p', String(settings.port), '-U', 'postgres', ...args], options);
+}
+
 /** Stops the cluster and removes its folder (the test command's throwaway cluster). */
 export function destroyCluster(overrides = {}) {
   stopCluster(overrides);

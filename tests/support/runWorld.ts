@@ -4,6 +4,7 @@
  * and helpers to create an analysis and queue a run over HTTP.
  */
 import { expect } from 'vitest';
+import { SpecSchema, type Spec } from '../../src/engine/boundary/schemas';
 import { generateCallBackCohort } from '../../src/features/extracts/demoCohorts';
 import { hashPassword } from '../../src/lib/server/passwords';
 import { makeReadyExtract } from './extractFactory';
@@ -12,14 +13,14 @@ import { ApiClient } from './http';
 
 export const WORLD_PASSWORD = 'harbour-lantern-sedge';
 
-export const CALL_BACK_SPEC = {
+export const CALL_BACK_SPEC: Spec = SpecSchema.parse({
   outcome: { column: 'readmitted_30d', type: 'binary' },
   exposure: { column: 'call_back', reference: '0' },
   modifier: { column: 'age_band', type: 'categorical', reference: '18-44' },
   covariates: [{ column: 'comorbidity_score', type: 'continuous' }],
   model: 'logistic',
   ci: { level: 0.95, method: 'delta' },
-};
+});
 
 export interface World {
   initiativeId: string;
