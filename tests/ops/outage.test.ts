@@ -76,7 +76,13 @@ describe('a database outage', () => {
     await sleep(1_000);
     const down = Date.now();
     stopCluster(cluster, { mode: 'immediate' });
-    await sleep(OUTAGE_MS);
+    await sleep(2_000);
+    // A page during the outage: the product's own 503 page, not a stack trace or a 500.
+    const page = await client.request('GET', '/');
+    expect(page.status).toBe(503);
+    expect(page.headers.get('retry-after')).toBe('5');
+    expect(await page.text()).toContain('Crossgrain is waiting for its database');
+    await sleep(OUTAGE_MS - 2_000);
     startCluster(cluster);
     const up = Date.now();
     // Service resumes by itself: wait for the first 200 after the restart.
