@@ -1,12 +1,15 @@
 // `npm start`: installs what is missing, starts PostgreSQL on loopback, migrates, loads
 // the demo data once, builds, and serves Crossgrain with its fake mail server and job
-// worker beside it. Ctrl-C stops everything, the database included.
+// worker beside it. A child that ends on its own (a crash) is started again with a
+// growing delay and the reason is logged; PostgreSQL keeps running meanwhile. Ctrl-C
+// stops everything, the database included.
 // `npm run dev` does the same with Astro's hot-reloading development server.
 import { spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { ensureNodeModules, run, signalGroup, startChild, step } from './lib/system.mjs';
+import { supervise } from './lib/supervise.mjs';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 const dev = process.argv.includes('--dev');
@@ -52,19 +55,23 @@ if (!dev) {
   run('npx', ['astro', 'build', '--silent'], { cwd: root, env });
 }
 
-const children = [];
+const supervised = [];
 function launch(name, command, args) {
-  const child = startChild(name, command, args, { cwd: root, env });
-  writeFileSync(path.join(runDir, `${name}.pid`), String(child.pid));
-  child.on('exit', (code, signal) => {
-    rmSync(path.join(runDir, `${name}.pid`), { force: true });
-    if (!stopping) {
-      step(`The ${name} process ended (${signal ?? code}); stopping everything`);
-      shutdown(1);
-    }
+  const pidFile = path.join(runDir, `${name}.pid`);
+  const handle = supervise({
+    name,
+    start: () => {
+      const child = startChild(name, command, args, { cwd: root, env });
+      child.once('exit', () => rmSync(pidFile, { force: true }));
+      return child;
+    },
+    onStart: (child) => writeFileSync(pidFile, String(child.pid)),
+    // Each child leads its own process group (npx, tsx, worker threads): stop all of it.
+    kill: (child, signal) => signalGroup(child.pid, signal),
+    log: step,
   });
-  children.push(child);
-  return child;
+  supervised.push(handle);
+  return handle;
 }
 
 let stopping = false;
@@ -73,15 +80,7 @@ async function shutdown(code = 0) {
   if (stopping) return;
   stopping = true;
   step('Stopping');
-  const exited = children.map((child) =>
-    child.exitCode !== null || child.signalCode !== null ? Promise.resolve() : new Promise((resolve) => child.once('exit', resolve)),
-  );
-  for (const child of children) signalGroup(child.pid, 'SIGTERM');
-  const grace = setTimeout(() => {
-    for (const child of children) if (child.exitCode === null) signalGroup(child.pid, 'SIGKILL');
-  }, 3000);
-  await Promise.all(exited);
-  clearTimeout(grace);
+  await Promise.all(supervised.map((handle) => handle.stop(3000)));
   stopCluster();
   process.exit(code);
 }

@@ -1,8 +1,8 @@
 import { randomBytes, randomUUID } from 'node:crypto';
 import { defineMiddleware, sequence } from 'astro:middleware';
 import { scopedTo } from './lib/server/db';
-import { clientAddress, errorResponse } from './lib/server/http';
-import { AppError } from './lib/server/errors';
+import { clientAddress, errorResponse, outagePage } from './lib/server/http';
+import { AppError, isDatabaseUnavailable } from './lib/server/errors';
 import { logger } from './lib/server/logger';
 import { addNonceToScripts, securityHeaders } from './lib/server/securityHeaders';
 import { resolveSession } from './lib/server/session';
@@ -63,6 +63,22 @@ const headers = defineMiddleware(async (context, next) => {
   return response;
 });
 
+/**
+ * A database outage is not a bug: whatever request meets it (session look-up, page,
+ * endpoint) gets a 503 that says so, and the next request after the database is back is
+ * served as usual. Other errors go on to Astro's own handling.
+ */
+const outage = defineMiddleware(async (context, next) => {
+  try {
+    return await next();
+  } catch (error) {
+    if (!isDatabaseUnavailable(error)) throw error;
+    if (context.url.pathname.startsWith('/api/')) return errorResponse(error, context.locals.requestId);
+    logger.warn({ requestId: context.locals.requestId, reason: error instanceof Error ? error.message : String(error) }, 'database unavailable');
+    return outagePage(context.locals.requestId);
+  }
+});
+
 const SAFE_METHODS = new Set(['GET', 'HEAD', 'OPTIONS']);
 
 /**
@@ -83,4 +99,4 @@ const sameOrigin = defineMiddleware(async (context, next) => {
   return next();
 });
 
-export const onRequest = sequence(requestContext, headers, sameOrigin, session);
+export const onRequest = sequence(requestContext, headers, outage, sameOrigin, session);

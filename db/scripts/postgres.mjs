@@ -172,14 +172,28 @@ export function startCluster(overrides = {}) {
   return { ...settings, startedHere: !alreadyRunning };
 }
 
-/** Stops the cluster if it runs; a no-op otherwise. */
-export function stopCluster(overrides = {}) {
+/**
+ * Stops the cluster if it runs; a no-op otherwise. `mode` is pg_ctl's shutdown mode:
+ * `fast` (the default) ends sessions cleanly; `immediate` is an abrupt stop, as a crash
+ * or a lost database host looks to the app (the outage test uses it).
+ */
+export function stopCluster(overrides = {}, { mode = 'fast' } = {}) {
   const settings = clusterSettings(overrides);
   if (!existsSync(path.join(settings.dataDir, 'PG_VERSION'))) return;
   const bin = postgresBinaries();
   if (!isRunning(bin, settings)) return;
-  step('Stopping PostgreSQL');
-  pgRun(bin, 'pg_ctl', ['-D', settings.dataDir, '-m', 'fast', '-w', 'stop']);
+  step(`Stopping PostgreSQL${mode === 'fast' ? '' : ` (${mode})`}`);
+  pgRun(bin, 'pg_ctl', ['-D', settings.dataDir, '-m', mode, '-w', 'stop']);
+}
+
+/**
+ * Runs a PostgreSQL client program (pg_dump, pg_restore, psql) against the cluster as its
+ * superuser, over the cluster's socket. `options` go to spawnSync (stdio for streaming a
+ * dump to or from a file). Returns spawnSync's result.
+ */
+export function runClusterTool(program, args, options = {}, overrides = {}) {
+  const settings = clusterSettings(overrides);
+  return pgRun(postgresBinaries(), program, ['-h', settings.socketDir, '-p', String(settings.port), '-U', 'postgres', ...args], options);
 }
 
 /** Stops the cluster and removes its folder (the test command's throwaway cluster). */

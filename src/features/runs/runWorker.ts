@@ -7,7 +7,7 @@
 import { hostname } from 'node:os';
 import { sequelize } from '../../lib/server/db';
 import { logger } from '../../lib/server/logger';
-import { createQueue } from '../../lib/server/queue';
+import { createQueue, startWhenReachable } from '../../lib/server/queue';
 import { executeRun } from './executeRun';
 import { RUN_QUEUE, type RunJob } from './runQueue';
 import { sweepStaleRuns } from './runs.server';
@@ -17,7 +17,7 @@ const name = `${hostname()}:${process.pid}`;
 
 export async function startWorker(): Promise<{ stop: () => Promise<void> }> {
   const boss = createQueue({ supervise: true });
-  await boss.start();
+  await startWhenReachable(boss);
   await boss.work<RunJob>(RUN_QUEUE, { batchSize: 1, pollingIntervalSeconds: 1 }, async ([job]) => {
     logger.info({ runId: job.data.runId, worker: name }, 'run taken');
     const status = await executeRun(job.data.runId, job.data.startedBy, { workerName: name });

@@ -164,6 +164,8 @@ export interface RunView {
   verification: Verification | null;
   /** draft, submitted, sent-back or signed-off (its latest review step). */
   reviewState: ReviewState;
+  /** The worker that executed it, as `host:process` (null until one claims it). */
+  worker: string | null;
 }
 
 interface RunRow {
@@ -172,6 +174,7 @@ interface RunRow {
   seed: string | null; exploratory: boolean; caution_text: string; result: unknown; error: RunView['error'];
   started_by: string; starter: string; queued_at: Date; started_at: Date | null; finished_at: Date | null; cancel_requested: boolean;
   heartbeat_at: Date | null; verifies_run_id: string | null; verification: Verification | null; review_state: ReviewState;
+  worker: string | null;
 }
 
 const iso = (d: Date | null) => (d ? new Date(d).toISOString() : null);
@@ -183,7 +186,7 @@ function toRunView(r: RunRow): RunView {
     seed: seedOf(r.seed), exploratory: r.exploratory, cautionText: r.caution_text, result: r.result,
     error: r.error, startedBy: { id: r.started_by, name: r.starter }, queuedAt: iso(r.queued_at) ?? '', startedAt: iso(r.started_at),
     finishedAt: iso(r.finished_at), cancelRequested: r.cancel_requested, verifiesRunId: r.verifies_run_id, verification: r.verification,
-    reviewState: r.review_state,
+    reviewState: r.review_state, worker: r.worker ?? null,
   };
 }
 
@@ -193,7 +196,7 @@ const REVIEW_STATE_COLUMN = `coalesce((SELECT s.kind FROM review_steps s WHERE s
 /** Every column but the result, for listings and progress polling. */
 const RUN_COLUMNS = `r.id, r.analysis_id, r.initiative_id, r.extract_version_id, r.status, r.progress, r.spec, r.spec_hash,
   r.extract_sha256, r.engine_version, r.seed, r.exploratory, r.caution_text, r.error, r.started_by, r.queued_at, r.started_at,
-  r.finished_at, r.cancel_requested, r.heartbeat_at, r.verifies_run_id, r.verification, ${REVIEW_STATE_COLUMN}`;
+  r.finished_at, r.cancel_requested, r.heartbeat_at, r.verifies_run_id, r.verification, r.worker, ${REVIEW_STATE_COLUMN}`;
 
 /**
  * One run, or null when not visible. A run that reads as running but whose worker has

@@ -41,6 +41,41 @@ export const unprocessable = (code: string, message: string, details?: unknown) 
 export const tooManyRequests = (message: string, retryAfterSeconds: number) =>
   new AppError(429, 'too-many-requests', message, undefined, { 'Retry-After': String(retryAfterSeconds) });
 
+export const databaseUnavailable = () =>
+  new AppError(
+    503,
+    'database-unavailable',
+    'The database cannot be reached just now, so nothing was read or changed. Try again in a few seconds; the service resumes by itself once the database is back.',
+    undefined,
+    { 'Retry-After': '5' },
+  );
+
+/** Node's socket errors that mean the database server is not there. */
+const UNREACHABLE_CODES = new Set(['ECONNREFUSED', 'ECONNRESET', 'EPIPE', 'ETIMEDOUT', 'EHOSTUNREACH', 'ENOTFOUND']);
+/** Sequelize's connection-level error classes (by name, so this module needs no database library). */
+const CONNECTION_ERROR_NAMES = /^Sequelize(Connection|ConnectionRefused|ConnectionTimedOut|HostNotFound|HostNotReachable|ConnectionAcquireTimeout|InvalidConnection)Error$/;
+
+/**
+ * True when an error means the database is unreachable rather than that the request was
+ * wrong: a refused or reset connection, PostgreSQL's class 08 (connection exception) and
+ * 57P01-57P03 (shut down by an administrator, crashed, starting up), a connection that
+ * ended under a query, or Sequelize's connection errors. Looks through wrapped causes.
+ */
+export function isDatabaseUnavailable(error: unknown): boolean {
+  const seen = new Set<unknown>();
+  let current: unknown = error;
+  while (current instanceof Error && !seen.has(current)) {
+    seen.add(current);
+    const { code, name, message } = current as Error & { code?: unknown };
+    if (typeof code === 'string' && (UNREACHABLE_CODES.has(code) || /^08[0-9A-Z]{3}$/.test(code) || /^57P0[123]$/.test(code))) return true;
+    if (CONNECTION_ERROR_NAMES.test(name)) return true;
+    if (/Connection terminated|Client has encountered a connection error|terminating connection due to administrator command|the database system is (starting up|shutting down|in recovery mode)/i.test(message)) return true;
+    const wrapped = current as Error & { parent?: unknown; original?: unknown; cause?: unknown };
+    current = wrapped.parent ?? wrapped.original ?? wrapped.cause;
+  }
+  return false;
+}
+
 /** The JSON body of an error response. */
 export interface ErrorBody {
   error: { code: string; message: string; details?: unknown; requestId?: string };

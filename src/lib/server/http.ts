@@ -1,6 +1,6 @@
 import type { APIContext, APIRoute } from 'astro';
 import { z, type ZodType } from 'zod';
-import { AppError, validationFailed, type ErrorBody } from './errors';
+import { AppError, databaseUnavailable, isDatabaseUnavailable, validationFailed, type ErrorBody } from './errors';
 import { logger } from './logger';
 
 /** A JSON response with the given status. */
@@ -14,6 +14,11 @@ export function json(body: unknown, status = 200, headers: Record<string, string
 /** Turns any thrown value into the error vocabulary's response; unknown errors are logged. */
 export function errorResponse(error: unknown, requestId?: string): Response {
   if (error instanceof z.ZodError) error = validationFailed(flattenIssues(error));
+  if (!(error instanceof AppError) && isDatabaseUnavailable(error)) {
+    // An outage, not a bug: one warning line without the stack, and a 503 the client can retry.
+    logger.warn({ requestId, reason: error instanceof Error ? error.message : String(error) }, 'database unavailable');
+    error = databaseUnavailable();
+  }
   if (error instanceof AppError) {
     const body: ErrorBody = { error: { code: error.code, message: error.message, requestId } };
     if (error.details !== undefined) body.error.details = error.details;
@@ -26,6 +31,24 @@ export function errorResponse(error: unknown, requestId?: string): Response {
     { error: { code: 'internal-error', message: `Something went wrong on our side. The error has been logged${reference}.`, requestId } },
     500,
   );
+}
+
+/**
+ * The page shown instead of any page while the database cannot be reached (API paths get
+ * the JSON error instead). Plain and self-contained: it needs nothing from the database.
+ */
+export function outagePage(requestId?: string): Response {
+  const reference = requestId ? `<p>Reference: <code>${requestId}</code></p>` : '';
+  const html = `<!doctype html><html lang="en"><head><meta charset="utf-8"><title>Crossgrain is waiting for its database</title>
+<meta name="viewport" content="width=device-width, initial-scale=1"></head>
+<body style="font-family: system-ui, sans-serif; max-width: 40rem; margin: 4rem auto; padding: 0 1rem; line-height: 1.5">
+<h1>Crossgrain is waiting for its database</h1>
+<p>The database cannot be reached just now, so nothing was read or changed. Reload this page in a few seconds; the service resumes by itself once the database is back.</p>
+${reference}</body></html>`;
+  return new Response(html, {
+    status: 503,
+    headers: { 'Content-Type': 'text/html; charset=utf-8', 'Cache-Control': 'no-store', 'Retry-After': '5' },
+  });
 }
 
 /**

@@ -9,6 +9,8 @@ import PgBoss from 'pg-boss';
 import { QueryTypes, type Transaction } from 'sequelize';
 import { sequelize } from './db';
 import { env } from './env';
+import { isDatabaseUnavailable } from './errors';
+import { logger } from './logger';
 
 export const QUEUE_SCHEMA = 'pgboss';
 
@@ -27,10 +29,34 @@ export function createQueue(options: { supervise?: boolean } = {}): PgBoss {
     max: 3,
     application_name: 'crossgrain',
   });
-  boss.on('error', () => {
-    // Connection errors surface on the next send or fetch; pg-boss also emits them here.
+  // Without a listener an 'error' event would end the process. A database outage makes
+  // every poll fail; one warning per outage is enough, and polling resumes by itself.
+  let lastWarned = 0;
+  boss.on('error', (error) => {
+    if (Date.now() - lastWarned < 10_000) return;
+    lastWarned = Date.now();
+    logger.warn({ reason: error.message, code: (error as Error & { code?: string }).code }, 'job queue cannot reach the database; it keeps trying');
   });
   return boss;
+}
+
+/**
+ * Starts a queue, waiting for the database when it cannot be reached (a worker started
+ * during an outage, or before its database): retries with a doubling delay up to 30 s and
+ * says why in the log. Any other failure is thrown.
+ */
+export async function startWhenReachable(boss: PgBoss): Promise<void> {
+  for (let attempt = 1; ; attempt++) {
+    try {
+      await boss.start();
+      return;
+    } catch (error) {
+      if (!isDatabaseUnavailable(error)) throw error;
+      const delayMs = Math.min(30_000, 500 * 2 ** attempt);
+      logger.warn({ reason: error instanceof Error ? error.message : String(error), retryInMs: delayMs }, 'job queue cannot reach the database yet; retrying');
+      await new Promise((resolve) => setTimeout(resolve, delayMs));
+    }
+  }
 }
 
 /**

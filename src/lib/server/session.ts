@@ -58,6 +58,9 @@ const pool = new pg.Pool({
   password: env.CROSSGRAIN_DB_APP_PASSWORD,
   max: 5,
 });
+// An idle connection the database drops (a restart, an outage) emits 'error' on the pool;
+// without a listener that would end the process. The next query opens a new connection.
+pool.on('error', () => {});
 
 interface SessionRowAttributes {
   created_at: Date;

@@ -90,6 +90,7 @@ describe('plot figures from real engine results', () => {
   it('uses only trace types of the basic bundle and our config', () => {
     const figures = [stratumForestFigure(callBack), profileFigure(callBack), profileFigure(upAndAbout), significanceBandFigure(upAndAbout)!];
     for (const figure of figures) for (const trace of figure.data) expect(BASIC_TRACE_TYPES).toContain(trace.type);
-    expect(PLOT_CONFIG).toMatchObject({ displaylogo: false, responsive: true });
+    expect(PLOT_CONFIG).toMatchObject({ displaylogo: false, responsive: true, showLink: false, showSendToCloud: false, showEditInChartStudio: false, plotlyServerURL: '' });
+    expect(PLOT_CONFIG.modeBarButtonsToRemove).toContain('sendChartToCloud');
   });
 });

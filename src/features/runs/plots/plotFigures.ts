@@ -34,8 +34,22 @@ export interface PlotFigure {
   layout: Record<string, unknown>;
 }
 
-/** The config every plot uses. */
-export const PLOT_CONFIG = { displaylogo: false, responsive: true, modeBarButtonsToRemove: ['select2d', 'lasso2d'] } as const;
+/**
+ * The config every plot uses. Nothing of a page may leave the machine: no share or
+ * hosted-editor button, no link out, no logo, and no server address to send a chart to.
+ * The toolbar keeps image export (PNG), zoom and reset.
+ */
+export const PLOT_CONFIG = {
+  displaylogo: false,
+  responsive: true,
+  showLink: false,
+  showSendToCloud: false,
+  showEditInChartStudio: false,
+  showSources: false,
+  plotlyServerURL: '',
+  linkText: '',
+  modeBarButtonsToRemove: ['select2d', 'lasso2d', 'sendChartToCloud', 'sendDataToCloud', 'editInChartStudio', 'downloadJson'],
+} as const;
 
 function baseLayout(): Record<string, unknown> {
   return {
