@@ -5,6 +5,9 @@ import { getViteConfig } from 'astro/config';
 // Two projects: `engine` is pure computation (no services), `app` needs the throwaway
 // PostgreSQL cluster (and, for tests/browser, the built server) that scripts/test.mjs starts.
 export default getViteConfig({
+  // Test runs create database clusters, uploads and screenshots inside the project: the
+  // watcher must not follow them (thousands of files would exhaust the watch limit).
+  server: { watch: { ignored: ['**/.data/**', '**/.test-artifacts/**', '**/dist/**', '**/.build/**', '**/node_modules/**'] } },
   test: {
     testTimeout: 60_000,
     hookTimeout: 120_000,
