@@ -96,7 +96,7 @@ export const OPERATIONS: Operation[] = [
   { method: 'GET', path: '/api/analyses/{id}/runs', tag: 'Analyses and runs', summary: "The analysis's runs, newest first", auth: 'session', status: 200 },
   { method: 'POST', path: '/api/analyses/{id}/runs', tag: 'Analyses and runs', summary: 'Queue a run of the analysis', auth: 'session', response: RunAccepted, status: 202 },
   { method: 'GET', path: '/api/runs/{runId}', tag: 'Analyses and runs', summary: 'A run: status (queued, running, succeeded, failed, cancelled), progress and the engine result', auth: 'session', status: 200,
-    description: '`result` is the engine result schema unchanged (result.schema.json). `?fields=status` leaves it out, for polling.' },
+    description: '`result` follows the engine result schema (result.schema.json); a result stored by an earlier engine carries null in the fields it did not record yet. `?fields=status` leaves it out, for polling.' },
   { method: 'POST', path: '/api/runs/{runId}/verify', tag: 'Analyses and runs', summary: 'Re-run a finished run to check that it reproduces bit for bit', auth: 'session', response: RunAccepted, status: 202,
     description: 'Auditors of the initiative. The re-run uses the run\'s own specification snapshot, extract version and seed; once it ends, `GET /api/runs/{runId}` of the re-run carries `verification` (each input compared, the result digests, the first differing values). Audited as `run.verification-started` and `run.verified`.' },
   { method: 'POST', path: '/api/runs/{runId}/cancel', tag: 'Analyses and runs', summary: 'Cancel a queued or running run', auth: 'session', status: 200 },
