@@ -34,21 +34,18 @@ try {
   const { createAnalysis, analysableVersions } = await import('../src/features/analyses/analyses.server');
   const { startRun } = await import('../src/features/runs/runs.server');
   const { executeRun } = await import('../src/features/runs/executeRun');
+  const { CALL_BACK_DEMO_SPEC } = await import('../src/features/analyses/demoSpecs');
+  const { QueryTypes } = await import('sequelize');
   await seedDemo(ownerDb());
   await seedDemoExtracts();
-  const [analyst] = await ownerDb().query<{ id: string }>("SELECT id FROM users WHERE email = 'analyst@tern-valley.example'", { type: 'SELECT' as never });
-  const [initiative] = await ownerDb().query<{ id: string }>("SELECT id FROM initiatives WHERE slug = 'call-back-72h'", { type: 'SELECT' as never });
+  const [analyst] = await ownerDb().query<{ id: string }>("SELECT id FROM users WHERE email = 'analyst@tern-valley.example'", { type: QueryTypes.SELECT });
+  const [initiative] = await ownerDb().query<{ id: string }>("SELECT id FROM initiatives WHERE slug = 'call-back-72h'", { type: QueryTypes.SELECT });
   const runId = await withIdentity(analyst.id, async (t) => {
     const [version] = await analysableVersions(t, initiative.id);
     const { id } = await createAnalysis(t, { id: analyst.id, clientAddress: 'bench' }, {
       initiativeId: initiative.id, extractVersionId: version.id, title: 'Benchmark by age band', question: 'Does the call-back help older patients more?',
       prespecified: false,
-      spec: {
-        outcome: { column: 'readmitted_30d', type: 'binary' }, exposure: { column: 'call_back', reference: '0' },
-        modifier: { column: 'age_band', type: 'categorical', reference: '18-44' },
-        covariates: [{ column: 'sex', type: 'categorical', reference: 'F' }, { column: 'comorbidity_score', type: 'continuous' }, { column: 'prior_admissions', type: 'continuous' }, { column: 'site', type: 'categorical' }],
-        model: 'logistic', ci: { level: 0.95, method: 'delta' },
-      } as never,
+      spec: CALL_BACK_DEMO_SPEC,
     });
     return (await startRun(t, { id: analyst.id, clientAddress: 'bench' }, id)).runId;
   });

@@ -9,6 +9,7 @@
  */
 import { QueryTypes } from 'sequelize';
 import { createAnalysis } from '../../src/features/analyses/analyses.server';
+import { CALL_BACK_DEMO_SPEC, UP_AND_ABOUT_DEMO_SPEC } from '../../src/features/analyses/demoSpecs';
 import { reviewedRun, submitForReview } from '../../src/features/review/review.server';
 import { executeRun } from '../../src/features/runs/executeRun';
 import { getRun, startRun } from '../../src/features/runs/runs.server';
@@ -29,36 +30,14 @@ const DEMO_ANALYSES: DemoAnalysis[] = [
     initiativeSlug: 'call-back-72h',
     title: 'Readmissions by age band (demo)',
     question: 'Does the 72-hour call-back prevent more readmissions in older patients than in younger ones?',
-    spec: {
-      outcome: { column: 'readmitted_30d', type: 'binary' },
-      exposure: { column: 'call_back', reference: '0' },
-      modifier: { column: 'age_band', type: 'categorical', reference: '18-44' },
-      covariates: [
-        { column: 'sex', type: 'categorical', reference: 'F' },
-        { column: 'comorbidity_score', type: 'continuous' },
-        { column: 'prior_admissions', type: 'continuous' },
-        { column: 'site', type: 'categorical', reference: 'Tern Valley General' },
-      ],
-      model: 'logistic',
-      ci: { level: 0.95, method: 'delta' },
-    } as Spec,
+    spec: CALL_BACK_DEMO_SPEC,
     submitNote: 'Demo: the age-band gradient is ready for a clinical read.',
   },
   {
     initiativeSlug: 'up-and-about',
     title: 'Length of stay by frailty (demo)',
     question: 'Does early mobility shorten stays more for frailer patients?',
-    spec: {
-      outcome: { column: 'length_of_stay_days', type: 'continuous' },
-      exposure: { column: 'early_mobility', reference: '0' },
-      modifier: { column: 'frailty_score', type: 'continuous' },
-      covariates: [
-        { column: 'age_band', type: 'categorical', reference: '18-64' },
-        { column: 'sex', type: 'categorical', reference: 'F' },
-      ],
-      model: 'linear',
-      ci: { level: 0.95, method: 'delta' },
-    } as Spec,
+    spec: UP_AND_ABOUT_DEMO_SPEC,
   },
 ];
 

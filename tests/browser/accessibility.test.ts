@@ -10,9 +10,11 @@ import { readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { QueryTypes } from 'sequelize';
 import { seedDemo } from '../../db/seed';
 import { seedDemoExtracts } from '../../db/seeds/demoExtracts';
 import { DEMO_PASSWORD, demoEmail } from '../../db/seeds/demo';
+import { CALL_BACK_DEMO_SPEC } from '../../src/features/analyses/demoSpecs';
 import { createAnalysis } from '../../src/features/analyses/analyses.server';
 import { executeRun } from '../../src/features/runs/executeRun';
 import { startRun } from '../../src/features/runs/runs.server';
@@ -60,7 +62,7 @@ beforeAll(async () => {
        FROM initiatives i JOIN extracts e ON e.initiative_id = i.id JOIN extract_versions v ON v.extract_id = e.id AND v.status = 'ready'
        JOIN users u ON u.email = :email
       WHERE i.slug = 'call-back-72h' ORDER BY v.version_number LIMIT 1`,
-    { replacements: { email: demoEmail('analyst') }, type: 'SELECT' as never },
+    { replacements: { email: demoEmail('analyst') }, type: QueryTypes.SELECT },
   );
   initiativeId = demo.initiative_id;
   extractId = demo.extract_id;
@@ -69,10 +71,7 @@ beforeAll(async () => {
     createAnalysis(t, actor, {
       initiativeId, extractVersionId: demo.version_id, title: 'Accessibility check by age band', question: 'Does the call-back help older patients more?',
       prespecified: false,
-      spec: {
-        outcome: { column: 'readmitted_30d', type: 'binary' }, exposure: { column: 'call_back', reference: '0' },
-        modifier: { column: 'age_band', type: 'categorical', reference: '18-44' }, covariates: [], model: 'logistic', ci: { level: 0.95, method: 'delta' },
-      } as never,
+      spec: { ...CALL_BACK_DEMO_SPEC, covariates: [] },
     }),
   ));
   ({ runId } = await withIdentity(actor.id, (t) => startRun(t, actor, analysisId)));

@@ -6,7 +6,9 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
+import type { Spec } from '../../src/engine/boundary/schemas';
 import { createAnalysis } from '../../src/features/analyses/analyses.server';
+import { CALL_BACK_DEMO_SPEC } from '../../src/features/analyses/demoSpecs';
 import { generateCallBackCohort } from '../../src/features/extracts/demoCohorts';
 import { executeRun } from '../../src/features/runs/executeRun';
 import { RUN_QUEUE } from '../../src/features/runs/runQueue';
@@ -20,14 +22,8 @@ let analystId: string;
 let initiativeId: string;
 let versionId: string;
 
-const spec = {
-  outcome: { column: 'readmitted_30d', type: 'binary' as const },
-  exposure: { column: 'call_back', reference: '0' },
-  modifier: { column: 'age_band', type: 'categorical' as const, reference: '18-44' },
-  covariates: [{ column: 'comorbidity_score', type: 'continuous' as const }],
-  model: 'logistic' as const,
-  ci: { level: 0.95, method: 'delta' as const },
-};
+/** The demo call-back analysis with one covariate. */
+const spec: Spec = { ...CALL_BACK_DEMO_SPEC, covariates: [{ column: 'comorbidity_score', type: 'continuous' }] };
 
 beforeAll(async () => {
   analystId = (await makeUser()).id;
@@ -40,11 +36,11 @@ afterAll(async () => {
   await closeOwnerDb();
 });
 
-async function newAnalysis(specOverride: object = spec): Promise<string> {
+async function newAnalysis(specOverride: Spec = spec): Promise<string> {
   const created = await withIdentity(analystId, (t) =>
     createAnalysis(t, { id: analystId, clientAddress: 'test' }, {
       initiativeId, extractVersionId: versionId, title: 'Call-back by age band', question: 'Does the call-back help older patients more?',
-      prespecified: false, spec: specOverride as never,
+      prespecified: false, spec: specOverride,
     }),
   );
   return created.id;
@@ -143,7 +139,7 @@ describe('what a failed run shows', () => {
     const created = await withIdentity(analystId, (t) =>
       createAnalysis(t, { id: analystId, clientAddress: 'test' }, {
         initiativeId, extractVersionId: own.versionId, title: 'Damaged store', question: 'What does a damaged column show?',
-        prespecified: false, spec: spec as never,
+        prespecified: false, spec,
       }),
     );
     await ownerDb().query(

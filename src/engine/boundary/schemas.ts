@@ -1,20 +1,36 @@
 import { z } from 'zod';
 
 /**
- * The engine's specification and result as zod schemas: what the API validates, serves,
- * and the audit trail stores. They describe the same shapes as src/engine/types.ts (the
- * engine core cannot import zod); tests parse real results with these strict schemas, and
- * result.schema.json / spec.schema.json are generated from them (npm run -s engine -- --write-schemas).
+ * The engine's specification and result, defined once: these zod schemas are what the API
+ * validates and serves and what a run stores, and their inferred types are the engine's
+ * own (src/engine/types.ts re-exports them; the engine core imports boundary/ for types
+ * only, so zod stays out of it: src/engine/importRule.test.ts). result.schema.json and
+ * spec.schema.json are generated from them (npm run -s engine -- --write-schemas).
  */
 
 const levelName = z.string().min(1);
 const columnName = z.string().min(1);
+const outcomeType = z.enum(['binary', 'continuous']);
+const variableType = z.enum(['categorical', 'continuous']);
+const modelFamily = z.enum(['logistic', 'modified-poisson', 'log-binomial', 'linear']);
+const ciMethod = z.enum(['delta', 'mover', 'bootstrap']);
+const effectMeasure = z.enum(['OR', 'RR', 'RD', 'MD']);
+const multiplicity = z.enum(['none', 'holm', 'bh']);
+const slopePoints = z.discriminatedUnion('kind', [
+  z.object({ kind: z.literal('sd') }),
+  z.object({ kind: z.literal('percentiles'), percentiles: z.array(z.number().min(0).max(100)).min(1).max(20) }),
+  z.object({ kind: z.literal('values'), values: z.array(z.number()).min(1).max(20) }),
+]);
+
+// ---------------------------------------------------------------------------------------
+// Specification
+// ---------------------------------------------------------------------------------------
 
 export const SpecSchema = z
   .object({
     outcome: z.object({
       column: columnName,
-      type: z.enum(['binary', 'continuous']),
+      type: outcomeType,
       event: levelName.optional().describe('Extra: the level counted as the event when a binary outcome is categorical.'),
     }),
     exposure: z.object({
@@ -23,38 +39,31 @@ export const SpecSchema = z
     }),
     modifier: z.object({
       column: columnName,
-      type: z.enum(['categorical', 'continuous']),
+      type: variableType,
       reference: z.string().optional().describe('Reference level (categorical modifiers); omitted for continuous ones.'),
       centre: z
         .union([z.enum(['none', 'mean', 'median']), z.number()])
         .optional()
         .describe('Extra (continuous): subtract this from the modifier before forming the product; default "none".'),
-      slopesAt: z
-        .discriminatedUnion('kind', [
-          z.object({ kind: z.literal('sd') }),
-          z.object({ kind: z.literal('percentiles'), percentiles: z.array(z.number().min(0).max(100)).min(1).max(20) }),
-          z.object({ kind: z.literal('values'), values: z.array(z.number()).min(1).max(20) }),
-        ])
-        .optional()
-        .describe('Extra (continuous): where to report simple slopes; default mean and ± 1 SD.'),
+      slopesAt: slopePoints.optional().describe('Extra (continuous): where to report simple slopes; default mean and ± 1 SD.'),
     }),
     covariates: z.array(
       z.object({
         column: columnName,
-        type: z.enum(['categorical', 'continuous']),
+        type: variableType,
         reference: z.string().optional(),
       }),
     ),
-    model: z.enum(['logistic', 'modified-poisson', 'log-binomial', 'linear']),
+    model: modelFamily,
     ci: z.object({
       level: z.number().gt(0.5).lt(1),
-      method: z.enum(['delta', 'mover', 'bootstrap']),
+      method: ciMethod,
       replicates: z.number().int().min(100).max(100_000).optional().describe('Bootstrap replicates; default 2000.'),
       seed: z.number().int().min(0).max(0xffffffff).optional().describe('Seed of the bootstrap stream; default 1.'),
     }),
-    effectMeasure: z.enum(['OR', 'RR', 'RD', 'MD']).optional().describe('Extra: must agree with the model.'),
+    effectMeasure: effectMeasure.optional().describe('Extra: must agree with the model.'),
     alpha: z.number().gt(0).lt(0.5).optional().describe('Extra: level of tests, Johnson-Neyman and planning; default 1 − ci.level.'),
-    multiplicity: z.enum(['none', 'holm', 'bh']).optional().describe('Extra: the adjusted p-value the summary treats as primary; default holm.'),
+    multiplicity: multiplicity.optional().describe('Extra: the adjusted p-value the summary treats as primary; default holm.'),
     preventive: z.boolean().optional().describe('Extra: recode each level so that the lowest-risk joint cell is the reference.'),
     standardErrors: z.enum(['model', 'hc3']).optional().describe('Extra (linear): classical or HC3 standard errors; default model.'),
     planning: z
@@ -66,15 +75,183 @@ export const SpecSchema = z
   })
   .describe('An effect-modification analysis specification.');
 
-export type Spec = z.infer<typeof SpecSchema>;
+/** An analysis specification: what the form builds, the API accepts, a run snapshots and the engine reads. */
+export type Spec = z.output<typeof SpecSchema>;
+export type OutcomeType = z.output<typeof outcomeType>;
+export type ModelFamily = z.output<typeof modelFamily>;
+export type CiMethod = z.output<typeof ciMethod>;
+export type EffectMeasure = z.output<typeof effectMeasure>;
+export type MultiplicityCorrection = z.output<typeof multiplicity>;
+/** Where the conditional effect of a continuous modifier is reported (simple slopes). */
+export type SlopePoints = z.output<typeof slopePoints>;
+
+// ---------------------------------------------------------------------------------------
+// Result. Its parts are named so that the engine's modules can type what they build.
+//
+// A field added after results were first stored is `.nullable().default(null)`: a result
+// stored by an earlier engine lacks it, and reads back with null, meaning "not recorded by
+// the engine that made this result" (never a made-up count). The engine always sets it.
+// ---------------------------------------------------------------------------------------
 
 const num = z.number().nullable();
 const interval = z.strictObject({ estimate: num, lower: num, upper: num });
 const effectInterval = z.strictObject({ estimate: num, lower: num, upper: num, se: num, p: num });
-const measureInterval = z
-  .strictObject({ estimate: num, lower: num, upper: num, se: num, method: z.enum(['delta', 'mover', 'bootstrap']) })
-  .nullable();
+const measureInterval = z.strictObject({ estimate: num, lower: num, upper: num, se: num, method: ciMethod });
 const test = z.strictObject({ statistic: num, df: z.number(), p: num });
+const cellName = z.strictObject({ exposure: z.string(), modifier: z.string() });
+
+const coefficient = z.strictObject({
+  term: z.string(),
+  estimate: num,
+  se: num,
+  statistic: num,
+  p: num,
+  lower: num,
+  upper: num,
+  seRobust: num.optional().describe('Linear models: HC3 standard error beside the classical one.'),
+});
+
+const modelSummary = z.strictObject({
+  family: modelFamily,
+  requestedFamily: modelFamily.describe('The family asked for (differs from family after the log-binomial fallback).'),
+  link: z.enum(['logit', 'log', 'identity']),
+  iterations: z.number().int(),
+  converged: z.boolean(),
+  logLik: num,
+  deviance: num,
+  aic: num,
+  residualDf: z.number(),
+  dispersion: num.describe('Residual variance (linear) or 1 (GLMs).'),
+  standardErrors: z.enum(['model', 'HC0', 'HC3']),
+  coefficients: z.array(coefficient),
+  covariance: z.array(z.array(num)).describe('Covariance of the coefficients (the one used for the measures), by term order.'),
+});
+
+const stratumEffect = z.strictObject({
+  level: z.string(),
+  n: z.number(),
+  events: num.describe('Binary outcomes: events in the stratum.'),
+  effect: effectInterval,
+  pAdjusted: z.strictObject({ holm: num, bh: num }),
+});
+
+const modifierEffect = z.strictObject({ exposure: z.string(), level: z.string(), effect: effectInterval });
+
+const jointCell = z.strictObject({
+  exposure: z.string(),
+  modifier: z.string(),
+  n: z.number(),
+  events: num,
+  risk: num.describe('Binary: proportion with the event.'),
+  mean: num.describe('Continuous: mean outcome.'),
+  effect: effectInterval.nullable().describe('Effect against the reference cell; null for the reference cell itself.'),
+});
+
+const multiplicativeEntry = z.strictObject({ level: z.string(), estimate: num, lower: num, upper: num, p: num, se: num });
+
+const additiveEntry = z.strictObject({
+  level: z.string(),
+  reference: cellName.describe('The joint cell used as the reference (differs from the coded reference after preventive recoding).'),
+  reri: measureInterval.nullable(),
+  ap: measureInterval.nullable(),
+  apStar: measureInterval.nullable(),
+  s: measureInterval.nullable().describe('Synergy index; its se is that of ln S.'),
+  differenceInDifferences: effectInterval.nullable().describe('Linear models: the product coefficient, the difference of differences.'),
+});
+
+const omnibusTest = z.strictObject({
+  test: z.enum(['likelihood-ratio', 'F', 'wald', 'wald-robust']),
+  statistic: num,
+  df: z.number(),
+  df2: num,
+  p: num,
+});
+
+const slopeEntry = z.strictObject({ label: z.string(), at: z.number(), estimate: num, se: num, lower: num, upper: num, p: num });
+
+const johnsonNeymanResult = z.strictObject({
+  bounds: z.union([z.tuple([z.number(), z.number()]), z.tuple([z.number()])]).nullable(),
+  significant: z.enum(['outside', 'inside', 'everywhere', 'nowhere']),
+  observed: z.tuple([z.number(), z.number()]),
+  boundsInRange: z.array(z.boolean()),
+  criticalValue: z.number(),
+});
+
+const bandPoint = z.strictObject({ x: z.number(), estimate: num, lower: num, upper: num });
+
+const stratifiedTableRow = z.strictObject({
+  level: z.string(),
+  a: z.number().describe('Exposed with the event.'),
+  b: z.number().describe('Exposed without the event.'),
+  c: z.number().describe('Unexposed with the event.'),
+  d: z.number().describe('Unexposed without the event.'),
+  oddsRatio: interval.nullable(),
+  riskRatio: interval.nullable(),
+  riskDifference: interval.nullable(),
+});
+
+const stratifiedTables = z.strictObject({
+  strata: z.array(stratifiedTableRow),
+  mantelHaenszel: z.strictObject({
+    oddsRatio: interval.nullable(),
+    riskRatio: interval.nullable(),
+    riskDifference: interval.nullable().describe('Pooled risk difference, limits from Sato (1989) variance.'),
+    riskDifferenceVariances: z
+      .array(z.strictObject({ variance: z.enum(['sato', 'greenland-robins']), label: z.string(), se: num, lower: num, upper: num }))
+      .nullable()
+      .default(null)
+      .describe('The pooled risk difference under both published variances, Sato (1989) and Greenland-Robins (1985), each labelled; null when not available or not recorded.'),
+    chiSquare: test.extend({ continuityCorrection: z.boolean() }),
+  }),
+  homogeneity: z.strictObject({ breslowDay: test.nullable(), breslowDayTarone: test.nullable(), woolf: test.nullable() }),
+});
+
+const bootstrapAccount = z.strictObject({
+  replicates: z.number().int(),
+  successful: z.number().int(),
+  failed: z.number().int().describe('Replicates left out of the percentile intervals (sum of failures).'),
+  failures: z
+    .strictObject({
+      notConverged: z.number().int(),
+      separated: z.number().int(),
+      fitFailed: z.number().int(),
+      undefinedMeasure: z.number().int(),
+    })
+    .nullable()
+    .default(null)
+    .describe('Replicates left out, by reason; null in results stored before they were counted by reason.'),
+  flagged: z.boolean().nullable().default(null).describe('More than 1% of replicates were left out; null when not recorded.'),
+  rule: z.string().nullable().default(null).describe('The rule by which replicates are left out and intervals flagged; null when not recorded.'),
+  seed: z.number().int(),
+});
+
+const planningLevel = z.strictObject({
+  level: z.string(),
+  se: num.describe('Standard error of the product term (link scale) at the observed n.'),
+  interaction: num.describe('Interaction size used, on the effect scale.'),
+  power: num,
+  detectable: z
+    .strictObject({ lower: num, upper: num })
+    .describe('Smallest interaction detectable with targetPower, on the effect scale (both directions for ratios).'),
+  requiredN: num.describe('Rows needed for targetPower at interaction, scaling the standard error by sqrt(n/n\').'),
+});
+
+const planningBlock = z.strictObject({
+  method: z.literal('normal-approximation'),
+  alpha: z.number(),
+  targetPower: z.number(),
+  n: z.number(),
+  interactionSource: z.enum(['spec', 'main-effect']).describe('Where the interaction size came from.'),
+  levels: z.array(planningLevel),
+});
+
+const engineWarning = z.strictObject({
+  code: z.string(),
+  message: z.string(),
+  column: z.string().optional(),
+  level: z.string().optional(),
+  term: z.string().optional(),
+});
 
 export const ResultSchema = z
   .strictObject({
@@ -82,17 +259,19 @@ export const ResultSchema = z
     dropped: z.number().int(),
     missingByColumn: z
       .array(z.strictObject({ column: z.string(), rows: z.number().int() }))
-      .describe('Rows missing in each used column that has any; a left-out row may count under several columns.'),
+      .nullable()
+      .default(null)
+      .describe('Rows missing in each used column that has any; a left-out row may count under several columns. Null in results stored before the per-column counts.'),
     engineVersion: z.string(),
     seed: z.number().int().nullable().describe('Seed of the bootstrap stream, null when no bootstrap was run.'),
-    effectMeasure: z.enum(['OR', 'RR', 'RD', 'MD']),
+    effectMeasure,
     ciLevel: z.number(),
-    ciMethod: z.enum(['delta', 'mover', 'bootstrap']),
+    ciMethod,
     alpha: z.number(),
-    multiplicity: z.enum(['none', 'holm', 'bh']),
+    multiplicity,
     outcome: z.strictObject({
       column: z.string(),
-      type: z.enum(['binary', 'continuous']),
+      type: outcomeType,
       event: z.string().nullable(),
       events: num,
       mean: num,
@@ -100,7 +279,7 @@ export const ResultSchema = z
     exposure: z.strictObject({ column: z.string(), reference: z.string(), level: z.string() }),
     modifier: z.strictObject({
       column: z.string(),
-      type: z.enum(['categorical', 'continuous']),
+      type: variableType,
       reference: z.string().nullable(),
       levels: z.array(z.string()).nullable(),
       centre: num,
@@ -111,170 +290,57 @@ export const ResultSchema = z
     covariates: z.array(
       z.strictObject({
         column: z.string(),
-        type: z.enum(['categorical', 'continuous']),
+        type: variableType,
         reference: z.string().nullable(),
         terms: z.array(z.string()),
       }),
     ),
-    model: z.strictObject({
-      family: z.enum(['logistic', 'modified-poisson', 'log-binomial', 'linear']),
-      requestedFamily: z.enum(['logistic', 'modified-poisson', 'log-binomial', 'linear']),
-      link: z.enum(['logit', 'log', 'identity']),
-      iterations: z.number().int(),
-      converged: z.boolean(),
-      logLik: num,
-      deviance: num,
-      aic: num,
-      residualDf: z.number(),
-      dispersion: num,
-      standardErrors: z.enum(['model', 'HC0', 'HC3']),
-      coefficients: z.array(
-        z.strictObject({
-          term: z.string(),
-          estimate: num,
-          se: num,
-          statistic: num,
-          p: num,
-          lower: num,
-          upper: num,
-          seRobust: num.optional(),
-        }),
-      ),
-      covariance: z.array(z.array(num)),
-    }),
-    strata: z.array(
-      z.strictObject({
-        level: z.string(),
-        n: z.number(),
-        events: num,
-        effect: effectInterval,
-        pAdjusted: z.strictObject({ holm: num, bh: num }),
-      }),
-    ),
-    modifierEffects: z.array(z.strictObject({ exposure: z.string(), level: z.string(), effect: effectInterval })),
-    joint: z
-      .strictObject({
-        reference: z.strictObject({ exposure: z.string(), modifier: z.string() }),
-        cells: z.array(
-          z.strictObject({
-            exposure: z.string(),
-            modifier: z.string(),
-            n: z.number(),
-            events: num,
-            risk: num,
-            mean: num,
-            effect: effectInterval.nullable(),
-          }),
-        ),
-      })
-      .nullable(),
+    model: modelSummary,
+    strata: z.array(stratumEffect),
+    modifierEffects: z.array(modifierEffect),
+    joint: z.strictObject({ reference: cellName, cells: z.array(jointCell) }).nullable(),
     interaction: z.strictObject({
-      multiplicative: z.array(z.strictObject({ level: z.string(), estimate: num, lower: num, upper: num, p: num, se: num })),
-      additive: z.array(
-        z.strictObject({
-          level: z.string(),
-          reference: z.strictObject({ exposure: z.string(), modifier: z.string() }),
-          reri: measureInterval,
-          ap: measureInterval,
-          apStar: measureInterval,
-          s: measureInterval,
-          differenceInDifferences: effectInterval.nullable(),
-        }),
-      ),
-      omnibus: z.strictObject({
-        test: z.enum(['likelihood-ratio', 'F', 'wald', 'wald-robust']),
-        statistic: num,
-        df: z.number(),
-        df2: num,
-        p: num,
-      }),
+      multiplicative: z.array(multiplicativeEntry),
+      additive: z.array(additiveEntry),
+      omnibus: omnibusTest,
     }),
-    slopes: z
-      .array(z.strictObject({ label: z.string(), at: z.number(), estimate: num, se: num, lower: num, upper: num, p: num }))
-      .optional(),
-    johnsonNeyman: z
-      .strictObject({
-        bounds: z.union([z.tuple([z.number(), z.number()]), z.tuple([z.number()])]).nullable(),
-        significant: z.enum(['outside', 'inside', 'everywhere', 'nowhere']),
-        observed: z.tuple([z.number(), z.number()]),
-        boundsInRange: z.array(z.boolean()),
-        criticalValue: z.number(),
-      })
-      .optional(),
-    band: z.array(z.strictObject({ x: z.number(), estimate: num, lower: num, upper: num })).optional(),
-    stratifiedTables: z
-      .strictObject({
-        strata: z.array(
-          z.strictObject({
-            level: z.string(),
-            a: z.number(),
-            b: z.number(),
-            c: z.number(),
-            d: z.number(),
-            oddsRatio: interval.nullable(),
-            riskRatio: interval.nullable(),
-            riskDifference: interval.nullable(),
-          }),
-        ),
-        mantelHaenszel: z.strictObject({
-          oddsRatio: interval.nullable(),
-          riskRatio: interval.nullable(),
-          riskDifference: interval.nullable().describe('Pooled risk difference, limits from Sato (1989) variance.'),
-          riskDifferenceVariances: z
-            .array(z.strictObject({ variance: z.enum(['sato', 'greenland-robins']), label: z.string(), se: num, lower: num, upper: num }))
-            .nullable()
-            .describe('The pooled risk difference under both published variances, Sato (1989) and Greenland-Robins (1985), each labelled.'),
-          chiSquare: test.extend({ continuityCorrection: z.boolean() }),
-        }),
-        homogeneity: z.strictObject({ breslowDay: test.nullable(), breslowDayTarone: test.nullable(), woolf: test.nullable() }),
-      })
-      .nullable(),
-    bootstrap: z
-      .strictObject({
-        replicates: z.number().int(),
-        successful: z.number().int(),
-        failed: z.number().int().describe('Replicates left out of the percentile intervals (sum of failures).'),
-        failures: z.strictObject({
-          notConverged: z.number().int(),
-          separated: z.number().int(),
-          fitFailed: z.number().int(),
-          undefinedMeasure: z.number().int(),
-        }),
-        flagged: z.boolean().describe('More than 1% of replicates were left out.'),
-        rule: z.string().describe('The rule by which replicates are left out and intervals flagged.'),
-        seed: z.number().int(),
-      })
-      .nullable(),
-    planning: z.strictObject({
-      method: z.literal('normal-approximation'),
-      alpha: z.number(),
-      targetPower: z.number(),
-      n: z.number(),
-      interactionSource: z.enum(['spec', 'main-effect']),
-      levels: z.array(
-        z.strictObject({
-          level: z.string(),
-          se: num,
-          interaction: num,
-          power: num,
-          detectable: z.strictObject({ lower: num, upper: num }),
-          requiredN: num,
-        }),
-      ),
-    }),
-    warnings: z.array(
-      z.strictObject({
-        code: z.string(),
-        message: z.string(),
-        column: z.string().optional(),
-        level: z.string().optional(),
-        term: z.string().optional(),
-      }),
-    ),
+    slopes: z.array(slopeEntry).optional(),
+    johnsonNeyman: johnsonNeymanResult.optional(),
+    band: z.array(bandPoint).optional(),
+    stratifiedTables: stratifiedTables.nullable(),
+    bootstrap: bootstrapAccount
+      .nullable()
+      .describe('Percentile bootstrap accounting: replicates left out of the intervals, by reason, the rule applied, and whether the intervals are flagged.'),
+    planning: planningBlock,
+    warnings: z.array(engineWarning),
   })
   .describe('The result of an effect-modification analysis.');
 
-export type Result = z.infer<typeof ResultSchema>;
+/** The result of an analysis: what the engine returns, the API serves and a run stores. */
+export type Result = z.output<typeof ResultSchema>;
+export type Interval = z.output<typeof interval>;
+/** An interval with the standard error of its estimate (on the link scale for ratios) and p. */
+export type EffectInterval = z.output<typeof effectInterval>;
+/** An interval of RERI, AP, AP* or S with its delta-method standard error (of ln S for S) and how the limits were computed. */
+export type MeasureInterval = z.output<typeof measureInterval>;
+export type TestResult = z.output<typeof test>;
+export type Coefficient = z.output<typeof coefficient>;
+export type ModelSummary = z.output<typeof modelSummary>;
+export type StratumEffect = z.output<typeof stratumEffect>;
+export type ModifierEffect = z.output<typeof modifierEffect>;
+export type JointCell = z.output<typeof jointCell>;
+export type MultiplicativeEntry = z.output<typeof multiplicativeEntry>;
+export type AdditiveEntry = z.output<typeof additiveEntry>;
+export type OmnibusTest = z.output<typeof omnibusTest>;
+export type SlopeEntry = z.output<typeof slopeEntry>;
+export type JohnsonNeymanResult = z.output<typeof johnsonNeymanResult>;
+export type BandPoint = z.output<typeof bandPoint>;
+export type StratifiedTableRow = z.output<typeof stratifiedTableRow>;
+export type StratifiedTables = z.output<typeof stratifiedTables>;
+export type BootstrapAccount = z.output<typeof bootstrapAccount>;
+export type PlanningLevel = z.output<typeof planningLevel>;
+export type PlanningBlock = z.output<typeof planningBlock>;
+export type EngineWarning = z.output<typeof engineWarning>;
 
 export const ErrorSchema = z.strictObject({
   error: z.strictObject({

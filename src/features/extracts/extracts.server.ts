@@ -19,6 +19,7 @@ import { sequelize as appSequelize, withIdentity } from '../../lib/server/db';
 import { env } from '../../lib/server/env';
 import { AppError, badRequest, conflict, notFound, unprocessable, unsupportedMediaType } from '../../lib/server/errors';
 import { logger } from '../../lib/server/logger';
+import { bodyChunks } from '../../lib/server/requestBody';
 import { recordAudit } from '../audit/audit.server';
 import { decodeCodes, decodeNumericValues, encodeColumn } from './columnStore';
 import type { EngineData } from '../../engine';
@@ -59,17 +60,17 @@ export function uploadSource(request: Request): ChunkSource {
   const type = (request.headers.get('content-type') ?? '').toLowerCase();
   if (!request.body) throw badRequest('The request has no body. Send the CSV file as the body.');
   if (type.startsWith('text/csv') || type.startsWith('application/csv') || type.startsWith('text/plain')) {
-    return request.body as unknown as ChunkSource;
+    return bodyChunks(request.body);
   }
-  if (type.startsWith('multipart/form-data')) return multipartFile(request);
+  if (type.startsWith('multipart/form-data')) return multipartFile(request.headers, request.body);
   throw unsupportedMediaType('Send the extract as text/csv, or as a file in multipart/form-data.');
 }
 
 /** Streams the first file part of a multipart body; other fields are ignored. */
-async function* multipartFile(request: Request): AsyncGenerator<Uint8Array> {
-  const headers = Object.fromEntries(request.headers);
+async function* multipartFile(requestHeaders: Headers, body: ReadableStream<Uint8Array>): AsyncGenerator<Uint8Array> {
+  const headers = Object.fromEntries(requestHeaders);
   const parser = Busboy({ headers, limits: { files: 1, fileSize: env.CROSSGRAIN_UPLOAD_MAX_BYTES + 1 } });
-  const input = Readable.fromWeb(request.body as never);
+  const input = Readable.from(bodyChunks(body), { objectMode: false });
   const file = new Promise<Readable>((resolve, reject) => {
     parser.on('file', (_name, stream) => resolve(stream));
     parser.on('error', reject);

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { runAnalysis } from '../../engine';
+import { runAnalysis, type AnalysisSpec } from '../../engine';
 import { toEngineData } from './engineData';
 import { ExtractRefusalError, ingestExtract, readExtractColumns } from './extracts';
 import { chunked } from './testSupport';
@@ -197,10 +197,10 @@ describe('columns', () => {
     const csv = ['arm,event,site,dose', ...rows.slice(0, 5), '', ...rows.slice(5)].join('\n');
     const read = await readExtractColumns([csv]);
     const data = toEngineData(read.read.recordCount, read.columns.map((c) => (c.kind === 'numeric' ? { name: c.name, storage: 'numeric' as const, values: c.values } : { name: c.name, storage: 'text' as const, codes: c.codes, levels: c.levels })), { arm: 'categorical', event: 'categorical', site: 'categorical', dose: 'continuous' });
-    const spec = {
+    const spec: AnalysisSpec = {
       outcome: { column: 'event', type: 'binary' }, exposure: { column: 'arm', reference: '0' }, modifier: { column: 'site', type: 'categorical', reference: 'a' },
       covariates: [{ column: 'dose', type: 'continuous' }], model: 'logistic', ci: { level: 0.95, method: 'delta' },
-    } as const;
+    };
     // Data row 21 (i = 20) is on line 23: header line 1, rows from line 2, plus the blank line.
     await expect(runAnalysis({ ...data, lineOfRow: read.lineOfRow }, spec, { threads: 0 })).rejects.toMatchObject({
       code: 'COLUMN_TYPE_MISMATCH', column: 'dose', level: 'see chart', message: expect.stringContaining('"see chart" (first on line 23)'),

@@ -12,6 +12,7 @@ import { promisify } from 'node:util';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { runAnalysis, type EngineColumn, type EngineData } from '../../engine';
 import { ErrorSchema, ResultSchema, type Spec } from '../../engine/boundary/schemas';
+import { ERROR_CODE } from '../../lib/server/errors';
 import { ColumnSet } from '../extracts/columnAccumulator';
 import { decodeCodes, decodeNumericValues, encodeColumn } from '../extracts/columnStore';
 import { readCsv } from '../extracts/csvReader';
@@ -144,13 +145,17 @@ describe('engine command', () => {
     }).join('\n');
     const { code, stderr } = await command(['--data', file('infert-text.csv', `${texted}\n`), '--spec', specPath]);
     expect(code).toBe(1);
-    expect(ErrorSchema.parse(JSON.parse(stderr)).error.message).toMatch(/"see chart".*line 41/);
+    const error = ErrorSchema.parse(JSON.parse(stderr)).error;
+    expect(error.message).toMatch(/"see chart".*line 41/);
+    // The product's code for the engine's refusal, as a failed run shows it (runFailure.ts).
+    expect(error).toMatchObject({ code: 'column-type-mismatch', column: 'age' });
+    expect(error.code).toMatch(ERROR_CODE);
   });
 
   it('reports a file that does not exist', async () => {
     const { code, stderr } = await command(['--data', join(folder, 'absent.csv'), '--spec', specPath]);
     expect(code).toBe(1);
-    expect(ErrorSchema.parse(JSON.parse(stderr)).error).toMatchObject({ code: 'INVALID_DATA', message: expect.stringMatching(/could not be read.*absent\.csv/) });
+    expect(ErrorSchema.parse(JSON.parse(stderr)).error).toMatchObject({ code: 'invalid-data', message: expect.stringMatching(/could not be read.*absent\.csv/) });
   });
 
   it('reports a ragged row by its line', async () => {
@@ -158,30 +163,30 @@ describe('engine command', () => {
     const { code, stdout, stderr } = await command(['--data', ragged, '--spec', specPath]);
     expect(code).toBe(1);
     expect(stdout).toBe('');
-    expect(ErrorSchema.parse(JSON.parse(stderr)).error).toMatchObject({ code: 'INVALID_DATA', message: expect.stringMatching(/^Line 5: this row has 3 fields but the header has 7/) });
+    expect(ErrorSchema.parse(JSON.parse(stderr)).error).toMatchObject({ code: 'invalid-data', message: expect.stringMatching(/^Line 5: this row has 3 fields but the header has 7/) });
   });
 
   it('reports a specification that is not JSON or not valid', async () => {
     const notJson = await command(['--data', infert, '--spec', file('not-json.json', '{"outcome":')]);
     expect(notJson.code).toBe(1);
-    expect(ErrorSchema.parse(JSON.parse(notJson.stderr)).error.code).toBe('INVALID_SPEC');
+    expect(ErrorSchema.parse(JSON.parse(notJson.stderr)).error.code).toBe('invalid-specification');
     const invalid = await command(['--data', infert, '--spec', file('invalid.json', JSON.stringify({ ...spec, model: 'probit' }))]);
     expect(invalid.code).toBe(1);
-    expect(ErrorSchema.parse(JSON.parse(invalid.stderr)).error).toMatchObject({ code: 'INVALID_SPEC', message: expect.stringContaining('"model"') });
+    expect(ErrorSchema.parse(JSON.parse(invalid.stderr)).error).toMatchObject({ code: 'invalid-specification', message: expect.stringContaining('"model"') });
   });
 
   it('reports a column the file lacks as the engine names it', async () => {
     const missing = file('missing-column.json', JSON.stringify({ ...spec, modifier: { ...spec.modifier, column: 'no_such_column' } }));
     const { code, stderr } = await command(['--data', infert, '--spec', missing]);
     expect(code).toBe(1);
-    expect(ErrorSchema.parse(JSON.parse(stderr)).error).toMatchObject({ code: 'COLUMN_NOT_FOUND', column: 'no_such_column' });
+    expect(ErrorSchema.parse(JSON.parse(stderr)).error).toMatchObject({ code: 'column-not-found', column: 'no_such_column' });
   });
 
   it('exits with status 2 for a usage error', async () => {
     for (const args of [['--data', infert], ['--data', infert, '--spec', specPath, '--threads', 'many']]) {
       const { code, stderr } = await command(args);
       expect(code).toBe(2);
-      expect(ErrorSchema.parse(JSON.parse(stderr)).error.code).toBe('USAGE');
+      expect(ErrorSchema.parse(JSON.parse(stderr)).error.code).toBe('usage');
     }
   });
 });

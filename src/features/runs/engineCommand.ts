@@ -2,7 +2,10 @@
  * The engine on a CSV file, from the command line:
  *   npm run -s engine -- --data FILE.csv --spec SPEC.json [--threads N]
  * prints the result as JSON on stdout; on failure prints {"error": {code, message, ...}}
- * on stderr and exits with status 1 (2 for a usage error).
+ * on stderr and exits with status 1 (2 for a usage error). The codes are the product's
+ * kebab-case ones, the same a failed run shows (runFailure.ts): `usage`,
+ * `invalid-specification`, `invalid-data`, an engine refusal's code (`column-not-found`, ...)
+ * or `internal-error`.
  *
  * The file is read exactly as an upload is (engineInput.ts). `npm run engine` runs this
  * module bundled ahead of time (scripts/engineCommand.mjs rebuilds the bundle when it is
@@ -10,16 +13,21 @@
  */
 import { readFile, stat } from 'node:fs/promises';
 import { resolve } from 'node:path';
-import { EngineError, runAnalysis, type AnalysisSpec } from '../../engine';
+import { EngineError, runAnalysis } from '../../engine';
 import { defaultThreadCount } from '../../engine/bootstrap/percentileBootstrap';
 import { SpecSchema } from '../../engine/boundary/schemas';
 import { passPool } from '../../engine/threads/passPool';
 import { ExtractRefusalError } from '../extracts/extractRefusal';
 import { columnRoles } from './columnRoles';
 import { EngineInputError, readEngineData } from './engineInput';
+import { INTERNAL_ERROR, productCode } from './runFailure';
 
 /** Files from this size probably hold enough rows for the engine to fit on several threads. */
 const LARGE_FILE_BYTES = 4_000_000;
+
+const USAGE = 'usage';
+const INVALID_SPEC = productCode('INVALID_SPEC');
+const INVALID_DATA = productCode('INVALID_DATA');
 
 class CommandFailure extends Error {
   constructor(
@@ -46,23 +54,23 @@ function fileArgument(args: string[], name: string): string | undefined {
 async function main(args: string[]): Promise<void> {
   const dataPath = fileArgument(args, '--data');
   const specPath = fileArgument(args, '--spec');
-  if (!dataPath || !specPath) throw new CommandFailure('USAGE', 'Usage: engine --data FILE.csv --spec SPEC.json [--threads N]', 2);
+  if (!dataPath || !specPath) throw new CommandFailure(USAGE, 'Usage: engine --data FILE.csv --spec SPEC.json [--threads N]', 2);
   const threadsText = argument(args, '--threads');
   const threads = threadsText === undefined ? undefined : Number(threadsText);
   if (threads !== undefined && !(Number.isInteger(threads) && threads >= 0 && threads <= 64)) {
-    throw new CommandFailure('USAGE', '--threads must be an integer from 0 to 64.', 2);
+    throw new CommandFailure(USAGE, '--threads must be an integer from 0 to 64.', 2);
   }
 
   let specJson: unknown;
   try {
     specJson = JSON.parse(await readFile(specPath, 'utf8'));
   } catch (error) {
-    throw new CommandFailure('INVALID_SPEC', `The specification file could not be read as JSON: ${(error as Error).message}`, 1);
+    throw new CommandFailure(INVALID_SPEC, `The specification file could not be read as JSON: ${(error as Error).message}`, 1);
   }
   const parsed = SpecSchema.safeParse(specJson);
   if (!parsed.success) {
     const issue = parsed.error.issues[0];
-    throw new CommandFailure('INVALID_SPEC', `The specification is not valid at "${issue.path.join('.') || '(root)'}": ${issue.message}`, 1);
+    throw new CommandFailure(INVALID_SPEC, `The specification is not valid at "${issue.path.join('.') || '(root)'}": ${issue.message}`, 1);
   }
   // The engine starts its helper threads for a large fit on first use; start them now, so
   // that they boot while the file is read (the same process-wide pool is then reused).
@@ -75,13 +83,11 @@ async function main(args: string[]): Promise<void> {
   } catch (error) {
     if (error instanceof ExtractRefusalError || error instanceof EngineInputError) {
       const column: Record<string, string> = error instanceof EngineInputError && error.column !== undefined ? { column: error.column } : {};
-      throw new CommandFailure('INVALID_DATA', error.message, 1, column);
+      throw new CommandFailure(INVALID_DATA, error.message, 1, column);
     }
-    throw new CommandFailure('INVALID_DATA', `The data file could not be read: ${(error as Error).message}`, 1);
+    throw new CommandFailure(INVALID_DATA, `The data file could not be read: ${(error as Error).message}`, 1);
   }
-  // The schema describes the same shape as AnalysisSpec (boundary/schemas.ts).
-  const spec: AnalysisSpec = parsed.data;
-  const result = await runAnalysis(data, spec, threads === undefined ? {} : { threads });
+  const result = await runAnalysis(data, parsed.data, threads === undefined ? {} : { threads });
   process.stdout.write(`${JSON.stringify(result, null, 2)}\n`);
 }
 
@@ -90,8 +96,8 @@ main(process.argv.slice(2)).catch((error: unknown) => {
   if (error instanceof CommandFailure) failure = error;
   else if (error instanceof EngineError) {
     const { code, message, ...details } = error.toJSON();
-    failure = new CommandFailure(code, message, 1, details);
-  } else failure = new CommandFailure('INTERNAL', `Unexpected failure: ${(error as Error)?.message ?? String(error)}`, 1);
+    failure = new CommandFailure(productCode(code), message, 1, details);
+  } else failure = new CommandFailure(INTERNAL_ERROR, `Unexpected failure: ${(error as Error)?.message ?? String(error)}`, 1);
   process.stderr.write(`${JSON.stringify({ error: { code: failure.code, message: failure.message, ...failure.details } })}\n`);
   process.exitCode = failure.status;
 });

@@ -146,7 +146,7 @@ describe('tables of a categorical modifier (Call-back, logistic, real engine res
     expect(tables.omnibus.df).toBe('3 df');
     expectInterval(tables.mantelHaenszel?.pooled, result.stratifiedTables!.mantelHaenszel.oddsRatio);
     expect(tables.mantelHaenszel?.alternative).toBeNull();
-    expect(tables.covariates.map((covariate) => covariate.text)).toEqual(['sex (reference F)', 'comorbidity_score', 'site (reference Tern Valley General)']);
+    expect(tables.covariates.map((covariate) => covariate.text)).toEqual(['sex (reference F)', 'comorbidity_score', 'prior_admissions', 'site (reference Tern Valley General)']);
     expect(tables.modelLine).toContain(`${result.n.toLocaleString('en-GB')} rows analysed`);
     expect(tables.modifierWithinArms.flatMap((row) => row.cells)).toHaveLength(result.modifierEffects.length);
     for (const row of tables.modifierWithinArms) {

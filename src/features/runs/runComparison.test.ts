@@ -14,7 +14,7 @@ describe('run comparison', () => {
 
   it('lists exactly the changed specification fields', () => {
     expect(specChanges(CALL_BACK_SPEC, changed)).toEqual([
-      { path: 'covariates', before: 'sex categorical F, comorbidity_score continuous, site categorical Tern Valley General', after: 'sex categorical F, comorbidity_score continuous' },
+      { path: 'covariates', before: 'sex categorical F, comorbidity_score continuous, prior_admissions continuous, site categorical Tern Valley General', after: 'sex categorical F, comorbidity_score continuous' },
       { path: 'effectMeasure', before: 'OR', after: 'RR' },
       { path: 'model', before: 'logistic', after: 'modified-poisson' },
     ]);

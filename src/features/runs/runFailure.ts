@@ -29,14 +29,22 @@ const ENGINE_CODES: Record<EngineErrorCode, string> = {
   CANCELLED: 'cancelled',
 };
 
+/** The code of anything that is not a refusal of the data or specification. */
+export const INTERNAL_ERROR = 'internal-error';
+
+/** The product's code for an engine refusal (also what the engine command prints). */
+export function productCode(engineCode: EngineErrorCode): string {
+  return ENGINE_CODES[engineCode];
+}
+
 /** The failure a run stores and shows, for an error thrown while it ran. */
 export function runFailure(error: unknown, runId: string): RunFailure {
   if (error instanceof EngineError) {
     // The engine words its refusals for people and names the column and level concerned.
-    return { code: ENGINE_CODES[error.code], message: error.message };
+    return { code: productCode(error.code), message: error.message };
   }
   return {
-    code: 'internal-error',
+    code: INTERNAL_ERROR,
     message:
       `The analysis stopped because of a problem on our side, not in your data or specification. ` +
       `It has been logged under reference ${runId}. Nothing partial was kept; start a new run, ` +
@@ -45,4 +53,4 @@ export function runFailure(error: unknown, runId: string): RunFailure {
 }
 
 /** True when the failure came from the data or specification, not from Crossgrain itself. */
-export const isRefusal = (failure: RunFailure): boolean => failure.code !== 'internal-error';
+export const isRefusal = (failure: RunFailure): boolean => failure.code !== INTERNAL_ERROR;

@@ -9,7 +9,7 @@
  */
 import { QueryTypes, type Transaction } from 'sequelize';
 import { ENGINE_VERSION } from '../../engine';
-import type { Spec } from '../../engine/boundary/schemas';
+import type { Result, Spec } from '../../engine/boundary/schemas';
 import { CAUTION_VERSION, cautionText } from '../../lib/cautions';
 import { sequelize } from '../../lib/server/db';
 import { env } from '../../lib/server/env';
@@ -21,6 +21,7 @@ import type { ReviewState } from '../review/review.schema';
 import { enqueueRun, type RunEnqueuer } from './runQueue';
 import type { RunStatus } from './runs.schema';
 import type { Verification } from './runVerification';
+import { parseStoredResult } from './storedResult';
 
 export interface Actor {
   id: string;
@@ -152,7 +153,8 @@ export interface RunView {
   seed: number | null;
   exploratory: boolean;
   cautionText: string;
-  result: unknown;
+  /** The stored result, read with its schema (parseStoredResult); null when none or not read. */
+  result: Result | null;
   error: { code: string; message: string } | null;
   startedBy: { id: string; name: string };
   queuedAt: string;
@@ -183,7 +185,7 @@ function toRunView(r: RunRow): RunView {
   return {
     id: r.id, analysisId: r.analysis_id, initiativeId: r.initiative_id, extractVersionId: r.extract_version_id, status: r.status,
     progress: r.progress, spec: r.spec, specHash: r.spec_hash, extractSha256: r.extract_sha256, engineVersion: r.engine_version,
-    seed: seedOf(r.seed), exploratory: r.exploratory, cautionText: r.caution_text, result: r.result,
+    seed: seedOf(r.seed), exploratory: r.exploratory, cautionText: r.caution_text, result: parseStoredResult(r.result),
     error: r.error, startedBy: { id: r.started_by, name: r.starter }, queuedAt: iso(r.queued_at) ?? '', startedAt: iso(r.started_at),
     finishedAt: iso(r.finished_at), cancelRequested: r.cancel_requested, verifiesRunId: r.verifies_run_id, verification: r.verification,
     reviewState: r.review_state, worker: r.worker ?? null,

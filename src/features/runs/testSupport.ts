@@ -6,6 +6,7 @@
 import { ResultSchema, SpecSchema, type Result, type Spec } from '../../engine/boundary/schemas';
 import { runAnalysis } from '../../engine/index';
 import type { EngineData } from '../../engine/types';
+import { CALL_BACK_DEMO_SPEC, UP_AND_ABOUT_DEMO_SPEC } from '../analyses/demoSpecs';
 import { generateCallBackCohort, generateUpAndAboutCohort } from '../extracts/demoCohorts';
 import { engineDataOfCsv } from './engineInput';
 
@@ -22,36 +23,9 @@ function upAndAbout(): EngineData {
   return upAndAboutData;
 }
 
-/** Call-back: 30-day readmission on call_back by age band, adjusted for sex, comorbidity and site. */
-export const CALL_BACK_SPEC: Spec = SpecSchema.parse({
-  outcome: { column: 'readmitted_30d', type: 'binary' },
-  exposure: { column: 'call_back', reference: '0' },
-  modifier: { column: 'age_band', type: 'categorical', reference: '18-44' },
-  covariates: [
-    { column: 'sex', type: 'categorical', reference: 'F' },
-    { column: 'comorbidity_score', type: 'continuous' },
-    { column: 'site', type: 'categorical', reference: 'Tern Valley General' },
-  ],
-  model: 'logistic',
-  ci: { level: 0.95, method: 'delta' },
-  effectMeasure: 'OR',
-  alpha: 0.05,
-  multiplicity: 'holm',
-});
-
-/** Up-and-about: length of stay on early mobility with frailty as a continuous modifier. */
-export const UP_AND_ABOUT_SPEC: Spec = SpecSchema.parse({
-  outcome: { column: 'length_of_stay_days', type: 'continuous' },
-  exposure: { column: 'early_mobility', reference: '0' },
-  modifier: { column: 'frailty_score', type: 'continuous' },
-  covariates: [
-    { column: 'age_band', type: 'categorical', reference: '18-64' },
-    { column: 'admission_type', type: 'categorical', reference: 'elective' },
-    { column: 'site', type: 'categorical', reference: 'Tern Valley General' },
-  ],
-  model: 'linear',
-  ci: { level: 0.95, method: 'delta' },
-});
+/** The demo analyses' specifications (src/features/analyses/demoSpecs.ts), checked by the spec schema. */
+export const CALL_BACK_SPEC: Spec = SpecSchema.parse(CALL_BACK_DEMO_SPEC);
+export const UP_AND_ABOUT_SPEC: Spec = SpecSchema.parse(UP_AND_ABOUT_DEMO_SPEC);
 
 /** Runs the engine and checks its result against the strict result schema. */
 export async function engineResult(cohort: 'call-back' | 'up-and-about', spec: Spec): Promise<Result> {

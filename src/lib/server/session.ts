@@ -14,7 +14,8 @@ import type { AstroCookies } from 'astro';
 import { Lucia, TimeSpan } from 'lucia';
 import { NodePostgresAdapter } from '@lucia-auth/adapter-postgresql';
 import pg from 'pg';
-import type { Role } from '../../../db/models';
+import { z } from 'zod';
+import { ROLES, type Role } from '../../../db/models';
 import { env, isProduction } from './env';
 
 export interface MembershipInfo {
@@ -124,9 +125,15 @@ const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/;
  * read from the session row, checked again here before it is written into the text.
  */
 export async function loadMemberships(userId: string): Promise<MembershipInfo[]> {
-  const results = (await pool.query(membershipsQuery(userId))) as unknown as pg.QueryResult<MembershipInfo>[];
-  return results[1].rows;
+  // pg answers a multi-statement text with one result per statement, which its types do not say.
+  const results: unknown = await pool.query(membershipsQuery(userId));
+  if (!Array.isArray(results) || results.length !== 2) throw new Error('loadMemberships expected one result per statement');
+  return MEMBERSHIP_ROWS.parse(results[1].rows);
 }
+
+const MEMBERSHIP_ROWS = z.array(
+  z.object({ initiativeId: z.string(), initiativeName: z.string(), initiativeSlug: z.string(), role: z.enum(ROLES) }),
+);
 
 /** The two-statement text of loadMemberships (exported for its connection-hygiene test). */
 export function membershipsQuery(userId: string): string {

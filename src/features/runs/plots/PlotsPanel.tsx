@@ -3,13 +3,13 @@
  * profile plot side by side, and for continuous modifiers the significance band plot
  * below them. Mount with client:only="react" on the results page only.
  */
-import type { Result } from '../../../engine/boundary/schemas';
+import type { PlotInput } from './plotInput';
 import ProfilePlot from './ProfilePlot';
 import SignificanceBandPlot from './SignificanceBandPlot';
 import StratumForestPlot from './StratumForestPlot';
 
 export interface PlotsPanelProps {
-  result: Result;
+  result: PlotInput;
 }
 
 export default function PlotsPanel({ result }: PlotsPanelProps) {

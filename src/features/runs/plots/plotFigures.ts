@@ -4,7 +4,7 @@
  * traces are used, which the plotly basic bundle includes: error_x for intervals,
  * fill "tonexty" for bands, layout shapes for the null line, boundaries and ranges.
  */
-import type { Result } from '../../../engine/boundary/schemas';
+import type { PlotInput } from './plotInput';
 import { percentText } from '../../analyses/specWords';
 import { displayLevels, fixed, formatInterval, formatNumber, measureInfo, modifierDecimals } from '../resultFormat';
 import { johnsonNeymanSentence } from '../resultWords';
@@ -84,7 +84,7 @@ function nullLine(orientation: 'vertical' | 'horizontal', value: number): PlotSh
 }
 
 /** "odds ratio of call_back = 1 against 0" */
-function effectName(result: Result): string {
+function effectName(result: PlotInput): string {
   return `${measureInfo(result).name} of ${result.exposure.column} = ${result.exposure.level} against ${result.exposure.reference}`;
 }
 
@@ -105,7 +105,7 @@ interface ForestRow {
  * pooled estimate where the result has one, and the null line (1 on a log axis for
  * ratios, 0 for differences).
  */
-export function stratumForestFigure(result: Result): PlotFigure {
+export function stratumForestFigure(result: PlotInput): PlotFigure {
   const measure = measureInfo(result);
   const ciText = `${percentText(result.ciLevel)} % CI`;
   const decimals = modifierDecimals(result.modifier.observed);
@@ -187,13 +187,13 @@ export function stratumForestFigure(result: Result): PlotFigure {
 }
 
 /** Inverse link: the linear predictor to the outcome scale. */
-function inverseLink(link: Result['model']['link'], eta: number): number {
+function inverseLink(link: PlotInput['model']['link'], eta: number): number {
   if (link === 'logit') return 1 / (1 + Math.exp(-eta));
   if (link === 'log') return Math.exp(eta);
   return eta;
 }
 
-function coefficient(result: Result, term: string): number | null {
+function coefficient(result: PlotInput, term: string): number | null {
   return result.model.coefficients.find((entry) => entry.term === term)?.estimate ?? null;
 }
 
@@ -204,7 +204,7 @@ function coefficient(result: Result, term: string): number | null {
  * covariates at their reference levels (continuous covariates at 0), marking the chosen
  * simple-slope values.
  */
-export function profileFigure(result: Result): PlotFigure {
+export function profileFigure(result: PlotInput): PlotFigure {
   const binary = result.outcome.type === 'binary';
   const outcomeColumn = result.outcome.column;
   const arms = [result.exposure.reference, result.exposure.level];
@@ -310,7 +310,7 @@ export function profileFigure(result: Result): PlotFigure {
  * observed range with its pointwise band, the null line, the Johnson-Neyman boundaries
  * that fall in view, and the observed range shaded. Null when the result has no band.
  */
-export function significanceBandFigure(result: Result): PlotFigure | null {
+export function significanceBandFigure(result: PlotInput): PlotFigure | null {
   const band = result.band;
   const jn = result.johnsonNeyman;
   if (!band || band.length === 0 || !jn) return null;

@@ -3,10 +3,19 @@ import type { Result } from '../../../engine/boundary/schemas';
 /**
  * The part of a result the plots read (plotFigures.ts), so that the results page does
  * not serialise the whole result (covariance matrix, bootstrap, planning, tables) into
- * the island's props. Keep this in step with what plotFigures.ts reads.
+ * the island's props. The figures take this type, so reading a field left out here fails
+ * to compile: add the field here first.
  */
-export function plotInput(result: Result): Result {
-  const picked = {
+export type PlotInput = Pick<
+  Result,
+  'effectMeasure' | 'alpha' | 'ciLevel' | 'exposure' | 'modifier' | 'outcome' | 'joint' | 'strata' | 'slopes' | 'band' | 'johnsonNeyman'
+> & {
+  model: Pick<Result['model'], 'link' | 'coefficients'>;
+  stratifiedTables: Pick<NonNullable<Result['stratifiedTables']>, 'mantelHaenszel'> | null;
+};
+
+export function plotInput(result: Result): PlotInput {
+  return {
     effectMeasure: result.effectMeasure,
     alpha: result.alpha,
     ciLevel: result.ciLevel,
@@ -19,7 +28,6 @@ export function plotInput(result: Result): Result {
     band: result.band,
     johnsonNeyman: result.johnsonNeyman,
     model: { link: result.model.link, coefficients: result.model.coefficients },
-    stratifiedTables: result.stratifiedTables ? { mantelHaenszel: result.stratifiedTables.mantelHaenszel } : result.stratifiedTables,
+    stratifiedTables: result.stratifiedTables ? { mantelHaenszel: result.stratifiedTables.mantelHaenszel } : null,
   };
-  return picked as unknown as Result;
 }

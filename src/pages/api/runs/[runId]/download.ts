@@ -1,7 +1,6 @@
 import { recordAudit } from '../../../../features/audit/audit.server';
 import { resultCsv } from '../../../../features/runs/resultCsv';
 import { DownloadQuery } from '../../../../features/analyses/analysisApi.schema';
-import type { Result } from '../../../../engine/boundary/schemas';
 import { readableRun } from '../../../../features/runs/runAccess';
 import { authorize } from '../../../../lib/server/authorize';
 import { cautionText } from '../../../../lib/cautions';
@@ -19,12 +18,12 @@ export const GET = endpoint(async (context) => {
   const body = await context.locals.db(async (t) => {
     const run = await readableRun(t, user, runId, { withResult: true });
     authorize(user, 'export', 'Run', { initiativeId: run.initiativeId });
-    if (run.status !== 'succeeded') throw conflict('Only a finished run has results to download.');
+    if (run.status !== 'succeeded' || !run.result) throw conflict('Only a finished run has results to download.');
     await recordAudit(t, {
       action: 'run.downloaded', actorId: user.id, subjectType: 'run', subjectId: runId, initiativeId: run.initiativeId,
       clientAddress: clientAddress(context), details: { format, specHash: run.specHash, extractSha256: run.extractSha256, engineVersion: run.engineVersion },
     });
-    if (format === 'csv') return resultCsv(run.result as Result, run.spec);
+    if (format === 'csv') return resultCsv(run.result, run.spec);
     return JSON.stringify({
       caution: cautionText(), exploratory: run.exploratory, runId: run.id, analysisId: run.analysisId,
       extractVersionId: run.extractVersionId, extractSha256: run.extractSha256, specHash: run.specHash, engineVersion: run.engineVersion,
