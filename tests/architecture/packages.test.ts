@@ -18,7 +18,6 @@ const USED_UNNAMED = new Map<string, string>([
   ['typescript', 'the type checker behind `npx tsc` and `npm run check`'],
   ['@astrojs/check', '`npm run check` (astro check)'],
   ['vite', 'pins one Vite for Astro, its plugins and vitest (`npm ls vite` shows one copy)'],
-  ['pdfkit', 'kept for the briefs area, which renders its PDF with it (being added); remove this line once it imports pdfkit'],
 ]);
 
 function sourceFiles(folder: string): string[] {
