@@ -2,7 +2,15 @@ import { QueryTypes, type Transaction } from 'sequelize';
 import { createSequelize } from '../../../db/connection';
 import { initModels } from '../../../db/models';
 
-/** The application's only connection pool: the `app` role, which row-level security binds. */
+/**
+ * The application's connection pool: the `app` role, which row-level security binds.
+ * Every model and query of a request runs on it. Two other pools exist per process, each
+ * saying why where it is made: the session library's (src/lib/server/session.ts; lucia's
+ * adapter takes a pg Pool) and pg-boss's own (src/lib/server/queue.ts; the worker's queue
+ * fetches and supervises jobs on it, while sends ride on this pool's transactions).
+ * Sequelize marks a client that errors while idle as invalid and drops it from the pool,
+ * and db/connection.ts logs the error, so a lost connection never crashes the process.
+ */
 export const sequelize = createSequelize('app');
 export const models = initModels(sequelize);
 

@@ -9,10 +9,15 @@ import PgBoss from 'pg-boss';
 import { QueryTypes, type Transaction } from 'sequelize';
 import { sequelize } from './db';
 import { env } from './env';
+import { logger } from './logger';
 
 export const QUEUE_SCHEMA = 'pgboss';
 
-/** A pg-boss instance for the app role. Workers supervise (expire and archive jobs); senders do not. */
+/**
+ * A pg-boss instance for the app role. Workers supervise (expire and archive jobs); senders
+ * do not. pg-boss keeps its own small pool (`max`), opened only when it is started: the
+ * worker's. A sender is never started, since every send runs on a request transaction.
+ */
 export function createQueue(options: { supervise?: boolean } = {}): PgBoss {
   const boss = new PgBoss({
     host: env.CROSSGRAIN_DB_HOST,
@@ -27,9 +32,8 @@ export function createQueue(options: { supervise?: boolean } = {}): PgBoss {
     max: 3,
     application_name: 'crossgrain',
   });
-  boss.on('error', () => {
-    // Connection errors surface on the next send or fetch; pg-boss also emits them here.
-  });
+  // Connection errors (a dropped idle connection too) are emitted here; logged, never thrown.
+  boss.on('error', (error) => logger.error({ err: error }, 'job queue error'));
   return boss;
 }
 
