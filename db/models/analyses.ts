@@ -1,6 +1,7 @@
 /** Analyses and their runs (…create-analyses-and-runs, …add-run-verification). */
-import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
+import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type NonAttribute, type Sequelize } from 'sequelize';
 import { filledByDatabase, stamps, tableOptions, uuidKey } from './common';
+import { User } from './identity';
 
 export class Analysis extends Model<InferAttributes<Analysis>, InferCreationAttributes<Analysis>> {
   declare id: CreationOptional<string>;
@@ -47,6 +48,8 @@ export class Run extends Model<InferAttributes<Run>, InferCreationAttributes<Run
   declare cancelRequested: CreationOptional<boolean>;
   declare verifiesRunId: CreationOptional<string | null>;
   declare verification: CreationOptional<unknown>;
+  declare analysis?: NonAttribute<Analysis>;
+  declare starter?: NonAttribute<User>;
 }
 
 export function initAnalyses(sequelize: Sequelize): void {
@@ -98,4 +101,5 @@ export function initAnalyses(sequelize: Sequelize): void {
   );
   Run.belongsTo(Analysis, { foreignKey: 'analysisId', as: 'analysis' });
   Analysis.hasMany(Run, { foreignKey: 'analysisId', as: 'runs' });
+  Run.belongsTo(User, { foreignKey: 'startedBy', as: 'starter' });
 }

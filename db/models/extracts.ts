@@ -1,6 +1,7 @@
 /** Cohort extracts, their versions, their stored columns and upload intakes (…create-extracts). */
-import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
+import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type NonAttribute, type Sequelize } from 'sequelize';
 import { filledByDatabase, tableOptions } from './common';
+import { Initiative, User } from './identity';
 
 export class Extract extends Model<InferAttributes<Extract>, InferCreationAttributes<Extract>> {
   declare id: string;
@@ -34,6 +35,9 @@ export class ExtractVersion extends Model<InferAttributes<ExtractVersion>, Infer
   declare attestation: CreationOptional<unknown>;
   declare confirmedBy: CreationOptional<string | null>;
   declare confirmedAt: CreationOptional<Date | null>;
+  declare initiative?: NonAttribute<Initiative>;
+  declare uploader?: NonAttribute<User>;
+  declare extract?: NonAttribute<Extract>;
 }
 
 /**
@@ -72,6 +76,7 @@ export class ExtractIntake extends Model<InferAttributes<ExtractIntake>, InferCr
   declare heartbeatAt: CreationOptional<Date>;
   declare createdAt: CreationOptional<Date>;
   declare finishedAt: CreationOptional<Date | null>;
+  declare uploader?: NonAttribute<User>;
 }
 
 export function initExtracts(sequelize: Sequelize): void {
@@ -148,4 +153,7 @@ export function initExtracts(sequelize: Sequelize): void {
   ExtractVersion.belongsTo(Extract, { foreignKey: 'extractId', as: 'extract' });
   Extract.hasMany(ExtractVersion, { foreignKey: 'extractId', as: 'versions' });
   ExtractColumn.belongsTo(ExtractVersion, { foreignKey: 'versionId', as: 'version' });
+  ExtractVersion.belongsTo(Initiative, { foreignKey: 'initiativeId', as: 'initiative' });
+  ExtractVersion.belongsTo(User, { foreignKey: 'uploadedBy', as: 'uploader' });
+  ExtractIntake.belongsTo(User, { foreignKey: 'uploadedBy', as: 'uploader' });
 }

@@ -1,5 +1,5 @@
 /** Users, initiatives, memberships and sessions (db/migrations/…create-identity-and-initiatives). */
-import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
+import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type NonAttribute, type Sequelize } from 'sequelize';
 import { filledByDatabase, stamps, tableOptions, uuidKey } from './common';
 
 export type Role = 'analyst' | 'clinician' | 'auditor';
@@ -17,6 +17,7 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
   declare lastSignInAt: CreationOptional<Date | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
+  declare memberships?: NonAttribute<Membership[]>;
 }
 
 export class Initiative extends Model<InferAttributes<Initiative>, InferCreationAttributes<Initiative>> {
@@ -38,6 +39,8 @@ export class Membership extends Model<InferAttributes<Membership>, InferCreation
   declare role: Role;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
+  declare initiative?: NonAttribute<Initiative>;
+  declare user?: NonAttribute<User>;
 }
 
 /** A sign-in session; the session library writes and validates these rows (src/lib/server/session.ts). */
