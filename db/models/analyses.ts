@@ -37,8 +37,8 @@ export class Run extends Model<InferAttributes<Run>, InferCreationAttributes<Run
   declare exploratory: boolean;
   declare cautionText: string;
   declare cautionVersion: string;
-  declare result: CreationOptional<unknown>;
-  declare error: CreationOptional<unknown>;
+  declare result: CreationOptional<object | null>;
+  declare error: CreationOptional<object | null>;
   declare startedBy: string;
   declare queuedAt: CreationOptional<Date>;
   declare startedAt: CreationOptional<Date | null>;
@@ -47,7 +47,7 @@ export class Run extends Model<InferAttributes<Run>, InferCreationAttributes<Run
   declare worker: CreationOptional<string | null>;
   declare cancelRequested: CreationOptional<boolean>;
   declare verifiesRunId: CreationOptional<string | null>;
-  declare verification: CreationOptional<unknown>;
+  declare verification: CreationOptional<object | null>;
   declare analysis?: NonAttribute<Analysis>;
   declare starter?: NonAttribute<User>;
 }

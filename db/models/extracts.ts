@@ -29,10 +29,10 @@ export class ExtractVersion extends Model<InferAttributes<ExtractVersion>, Infer
   declare uploadedBy: string;
   declare uploadedAt: CreationOptional<Date>;
   declare profile: unknown;
-  declare findings: CreationOptional<unknown>;
+  declare findings: CreationOptional<unknown[]>;
   declare droppedColumns: CreationOptional<string[]>;
-  declare dictionary: CreationOptional<unknown>;
-  declare attestation: CreationOptional<unknown>;
+  declare dictionary: CreationOptional<object | null>;
+  declare attestation: CreationOptional<object | null>;
   declare confirmedBy: CreationOptional<string | null>;
   declare confirmedAt: CreationOptional<Date | null>;
   declare initiative?: NonAttribute<Initiative>;

@@ -31,7 +31,6 @@ const RULES: LayerRule[] = [
 const OVERSIZED_ALLOWED = new Map<string, string>([
   ['src/features/analyses/specForm.ts', 'the whole analysis form model (labels, defaults, validation, words): to split by concern'],
   ['src/features/analyses/AnalysisForm.tsx', 'the analysis form island: to split into one component per section'],
-  ['src/features/extracts/extracts.server.ts', 'intake, confirmation, listing and column loading of extracts: to split by step'],
   ['src/features/extracts/csvReader.ts', 'the streaming CSV reader with all its refusals: to split reading from checks'],
   ['src/features/extracts/columnAccumulator.ts', 'per-column typing and profiling while reading: to split typing from profiling'],
   ['src/features/extracts/identifierScreen.ts', 'the identifier screen’s rules and their wording: to split rules from messages'],

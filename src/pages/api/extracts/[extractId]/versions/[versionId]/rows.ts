@@ -1,6 +1,6 @@
 import { recordAudit } from '../../../../../../features/audit/audit.server';
 import { RowsQuery } from '../../../../../../features/extracts/extracts.schema';
-import { previewRows } from '../../../../../../features/extracts/extracts.server';
+import { previewRows } from '../../../../../../features/extracts/columns.server';
 import { authorize } from '../../../../../../lib/server/authorize';
 import { ExtractVersion, Initiative } from '../../../../../../../db/models';
 import { notFound } from '../../../../../../lib/server/errors';
