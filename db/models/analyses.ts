@@ -1,6 +1,8 @@
 /** Analyses and their runs (…create-analyses-and-runs, …add-run-verification). */
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type NonAttribute, type Sequelize } from 'sequelize';
 import { filledByDatabase, stamps, tableOptions, uuidKey } from './common';
+import type { Spec } from '../../src/engine/boundary/schemas';
+import { ExtractVersion } from './extracts';
 import { User } from './identity';
 
 export class Analysis extends Model<InferAttributes<Analysis>, InferCreationAttributes<Analysis>> {
@@ -11,11 +13,13 @@ export class Analysis extends Model<InferAttributes<Analysis>, InferCreationAttr
   declare question: string;
   declare prespecified: boolean;
   declare prespecifiedAt: Date | null;
-  declare spec: unknown;
+  /** The engine specification, checked against its schema when the analysis was written. */
+  declare spec: Spec;
   declare createdBy: string;
   declare createdAt: CreationOptional<Date>;
   declare updatedBy: string;
   declare updatedAt: CreationOptional<Date>;
+  declare extractVersion?: NonAttribute<ExtractVersion>;
 }
 
 export type RunStatusColumn = 'queued' | 'running' | 'succeeded' | 'failed' | 'cancelled';
@@ -28,7 +32,8 @@ export class Run extends Model<InferAttributes<Run>, InferCreationAttributes<Run
   declare extractVersionId: string;
   declare status: RunStatusColumn;
   declare progress: CreationOptional<{ stage: string; fraction: number }>;
-  declare spec: unknown;
+  /** The specification snapshot the run executes. */
+  declare spec: Spec;
   declare specHash: string;
   declare extractSha256: string;
   declare engineVersion: CreationOptional<string | null>;
@@ -38,7 +43,7 @@ export class Run extends Model<InferAttributes<Run>, InferCreationAttributes<Run
   declare cautionText: string;
   declare cautionVersion: string;
   declare result: CreationOptional<object | null>;
-  declare error: CreationOptional<object | null>;
+  declare error: CreationOptional<Record<string, unknown> | null>;
   declare startedBy: string;
   declare queuedAt: CreationOptional<Date>;
   declare startedAt: CreationOptional<Date | null>;
@@ -47,9 +52,10 @@ export class Run extends Model<InferAttributes<Run>, InferCreationAttributes<Run
   declare worker: CreationOptional<string | null>;
   declare cancelRequested: CreationOptional<boolean>;
   declare verifiesRunId: CreationOptional<string | null>;
-  declare verification: CreationOptional<object | null>;
+  declare verification: CreationOptional<Record<string, unknown> | null>;
   declare analysis?: NonAttribute<Analysis>;
   declare starter?: NonAttribute<User>;
+  declare extractVersion?: NonAttribute<ExtractVersion>;
 }
 
 export function initAnalyses(sequelize: Sequelize): void {
@@ -102,4 +108,6 @@ export function initAnalyses(sequelize: Sequelize): void {
   Run.belongsTo(Analysis, { foreignKey: 'analysisId', as: 'analysis' });
   Analysis.hasMany(Run, { foreignKey: 'analysisId', as: 'runs' });
   Run.belongsTo(User, { foreignKey: 'startedBy', as: 'starter' });
+  Analysis.belongsTo(ExtractVersion, { foreignKey: 'extractVersionId', as: 'extractVersion' });
+  Run.belongsTo(ExtractVersion, { foreignKey: 'extractVersionId', as: 'extractVersion' });
 }

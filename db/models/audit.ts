@@ -4,8 +4,9 @@
  * only reads them; audit checkpoints have no table (they are functions over this one,
  * policies/rls/005_audit_checkpoints.sql).
  */
-import { DataTypes, Model, type InferAttributes, type Sequelize } from 'sequelize';
+import { DataTypes, Model, type InferAttributes, type NonAttribute, type Sequelize } from 'sequelize';
 import { tableOptions } from './common';
+import { User } from './identity';
 
 export class AuditEvent extends Model<InferAttributes<AuditEvent>, never> {
   declare id: string;
@@ -21,6 +22,7 @@ export class AuditEvent extends Model<InferAttributes<AuditEvent>, never> {
   declare details: Record<string, unknown>;
   declare prevHash: string;
   declare hash: string;
+  declare actor?: NonAttribute<User>;
 }
 
 function refuseWrite(): never {
@@ -52,4 +54,5 @@ export function initAudit(sequelize: Sequelize): void {
       },
     },
   );
+  AuditEvent.belongsTo(User, { foreignKey: 'actorId', as: 'actor' });
 }

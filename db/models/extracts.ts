@@ -31,8 +31,8 @@ export class ExtractVersion extends Model<InferAttributes<ExtractVersion>, Infer
   declare profile: unknown;
   declare findings: CreationOptional<unknown[]>;
   declare droppedColumns: CreationOptional<string[]>;
-  declare dictionary: CreationOptional<object | null>;
-  declare attestation: CreationOptional<object | null>;
+  declare dictionary: CreationOptional<unknown[] | null>;
+  declare attestation: CreationOptional<Record<string, unknown> | null>;
   declare confirmedBy: CreationOptional<string | null>;
   declare confirmedAt: CreationOptional<Date | null>;
   declare initiative?: NonAttribute<Initiative>;

@@ -1,6 +1,7 @@
 /** The review of runs: its append-only steps and comments (…create-review). */
-import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
+import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type NonAttribute, type Sequelize } from 'sequelize';
 import { filledByDatabase, tableOptions, uuidKey } from './common';
+import { User } from './identity';
 
 export type ReviewStepKind = 'submitted' | 'signed-off' | 'sent-back';
 
@@ -12,6 +13,7 @@ export class ReviewStep extends Model<InferAttributes<ReviewStep>, InferCreation
   declare actorId: string;
   declare note: CreationOptional<string>;
   declare createdAt: CreationOptional<Date>;
+  declare actor?: NonAttribute<User>;
 }
 
 export class RunComment extends Model<InferAttributes<RunComment>, InferCreationAttributes<RunComment>> {
@@ -22,6 +24,7 @@ export class RunComment extends Model<InferAttributes<RunComment>, InferCreation
   declare authorId: string;
   declare body: string;
   declare createdAt: CreationOptional<Date>;
+  declare author?: NonAttribute<User>;
 }
 
 export function initReview(sequelize: Sequelize): void {
@@ -51,4 +54,6 @@ export function initReview(sequelize: Sequelize): void {
     },
     tableOptions(sequelize, 'run_comments'),
   );
+  ReviewStep.belongsTo(User, { foreignKey: 'actorId', as: 'actor' });
+  RunComment.belongsTo(User, { foreignKey: 'authorId', as: 'author' });
 }

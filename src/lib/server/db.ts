@@ -28,6 +28,7 @@ export async function withIdentity<T>(
   work: (transaction: Transaction) => Promise<T>,
 ): Promise<T> {
   return sequelize.transaction(async (transaction) => {
+    // set_config, the row-level-security identity: raw SQL.
     await sequelize.query("SELECT set_config('app.user_id', :userId, true)", {
       replacements: { userId: userId ?? '' },
       transaction,
@@ -45,6 +46,7 @@ export function scopedTo(userId: string | null): Scoped {
 /** True when the database answers a trivial query within the pool's acquire timeout. */
 export async function databaseAnswers(): Promise<boolean> {
   try {
+    // A liveness probe, no table: raw SQL.
     await sequelize.query('SELECT 1', { type: QueryTypes.SELECT });
     return true;
   } catch {
@@ -58,6 +60,7 @@ export async function databaseAnswers(): Promise<boolean> {
  * the user as the actor.
  */
 export async function actAs(transaction: Transaction, userId: string): Promise<void> {
+  // set_config, the row-level-security identity: raw SQL.
   await sequelize.query("SELECT set_config('app.user_id', :userId, true)", {
     replacements: { userId },
     transaction,

@@ -46,6 +46,7 @@ export function transactionDb(transaction: Transaction): PgBoss.Db {
     executeSql: async (text, values) => {
       // pg reads undefined as null; sequelize's bind needs it said.
       const bind = values.map((value: unknown) => (value === undefined ? null : value));
+      // pg-boss's own SQL, run as it wrote it: raw by nature.
       const rows = await sequelize.query<Record<string, unknown>>(text, { bind, type: QueryTypes.SELECT, transaction });
       return { rows };
     },
