@@ -130,8 +130,14 @@ const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/;
  * read from the session row, checked again here before it is written into the text.
  */
 export async function loadMemberships(userId: string): Promise<MembershipInfo[]> {
-  const results = (await pool.query(membershipsQuery(userId))) as unknown as pg.QueryResult<MembershipInfo>[];
+  // pg types a query as one result; a text of two statements gives one result per statement.
+  const results: unknown = await pool.query(membershipsQuery(userId));
+  if (!isTwoResults(results)) throw new Error('The membership read did not return two results.');
   return results[1].rows;
+}
+
+function isTwoResults(value: unknown): value is [pg.QueryResult, pg.QueryResult<MembershipInfo>] {
+  return Array.isArray(value) && value.length === 2 && value.every((result) => result instanceof Object && 'rows' in result);
 }
 
 /** The two-statement text of loadMemberships (exported for its connection-hygiene test). */
