@@ -32,21 +32,16 @@ export async function listUsers(transaction: Transaction): Promise<UserListItem[
     order: [['displayName', 'ASC'], [{ model: Membership, as: 'memberships' }, { model: Initiative, as: 'initiative' }, 'name', 'ASC']],
     transaction,
   });
-  const rows = users.map((u) => ({
-    id: u.id, email: u.email, display_name: u.displayName, status: u.status, is_admin: u.isAdmin,
-    last_sign_in_at: u.lastSignInAt, created_at: u.createdAt,
+  return users.map((u) => ({
+    id: u.id,
+    email: u.email,
+    displayName: u.displayName,
+    status: u.status,
+    isAdmin: u.isAdmin,
+    lastSignInAt: iso(u.lastSignInAt),
+    createdAt: iso(u.createdAt) ?? '',
     memberships: (u.memberships ?? []).flatMap((m) =>
       m.initiative ? [{ initiativeId: m.initiative.id, initiativeName: m.initiative.name, role: m.role, membershipId: m.id }] : []),
-  }));
-  return rows.map((r) => ({
-    id: r.id,
-    email: r.email,
-    displayName: r.display_name,
-    status: r.status,
-    isAdmin: r.is_admin,
-    lastSignInAt: iso(r.last_sign_in_at),
-    createdAt: iso(r.created_at) ?? '',
-    memberships: r.memberships,
   }));
 }
 
