@@ -54,7 +54,8 @@ try {
   const ingest = JSON.parse(once.stdout.trim().split('\n').pop() ?? '{}');
 
   const { withIdentity, sequelize } = await import('../src/lib/server/db');
-  const { loadColumns, toEngineData } = await import('../src/features/extracts/extracts.server');
+  const { loadColumns } = await import('../src/features/extracts/columns.server');
+  const { toEngineData } = await import('../src/features/extracts/engineData');
   const names = ['readmitted_30d', 'call_back', 'age_band', 'sex', 'comorbidity_score', 'prior_admissions'];
   const roles = { readmitted_30d: 'continuous', call_back: 'categorical', age_band: 'categorical', sex: 'categorical', comorbidity_score: 'continuous', prior_admissions: 'continuous' } as const;
   const loads: number[] = [];

@@ -21,5 +21,13 @@ export function createSequelize(role: Role, options: { poolMax?: number } = {}):
     logging: (sql) => logger.trace({ sql: sql.slice(0, 200) }, 'sql'),
     pool: { max: options.poolMax ?? env.CROSSGRAIN_DB_POOL_MAX, min: 0, idle: 10_000, acquire: 30_000 },
     define: { underscored: true, timestamps: true },
+    hooks: {
+      // Sequelize already drops a client that errors while idle; this says so in the log.
+      afterConnect: (connection) => {
+        if (connection instanceof pg.Client) {
+          connection.on('error', (error) => logger.error({ err: error, role }, 'database connection lost'));
+        }
+      },
+    },
   });
 }

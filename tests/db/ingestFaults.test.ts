@@ -8,7 +8,8 @@ import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
 import { readExtractColumns, reviewExtractColumns } from '../../src/features/extracts/extracts';
-import { cancelIntake, getExtract, storeVersion } from '../../src/features/extracts/extracts.server';
+import { getExtract, storeVersion } from '../../src/features/extracts/extracts.server';
+import { cancelIntake } from '../../src/features/extracts/intake.server';
 import { sequelize, withIdentity } from '../../src/lib/server/db';
 import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
 

@@ -3,7 +3,8 @@
  * administrator's request transaction (row-level security lets administrators manage
  * initiatives and memberships) and writes its audit event in the same transaction.
  */
-import { QueryTypes, type Transaction } from 'sequelize';
+import { Op, QueryTypes, type Transaction } from 'sequelize';
+import { Initiative, Membership, User } from '../../../db/models';
 import { sequelize } from '../../lib/server/db';
 import { publicUrl } from '../../lib/server/env';
 import { conflict, notFound, unprocessable } from '../../lib/server/errors';
@@ -22,25 +23,25 @@ const iso = (value: Date | string | null) => (value === null ? null : new Date(v
 
 /** Every account with its memberships, for the people list. */
 export async function listUsers(transaction: Transaction): Promise<UserListItem[]> {
-  const rows = await sequelize.query<{
-    id: string; email: string; display_name: string; status: UserListItem['status']; is_admin: boolean;
-    last_sign_in_at: Date | null; created_at: Date; memberships: UserListItem['memberships'] | null;
-  }>(
-    `SELECT u.id, u.email, u.display_name, u.status, u.is_admin, u.last_sign_in_at, u.created_at,
-            (SELECT json_agg(json_build_object('initiativeId', i.id, 'initiativeName', i.name, 'role', m.role, 'membershipId', m.id) ORDER BY i.name)
-               FROM memberships m JOIN initiatives i ON i.id = m.initiative_id WHERE m.user_id = u.id) AS memberships
-       FROM users u ORDER BY u.display_name`,
-    { type: QueryTypes.SELECT, transaction },
-  );
-  return rows.map((r) => ({
-    id: r.id,
-    email: r.email,
-    displayName: r.display_name,
-    status: r.status,
-    isAdmin: r.is_admin,
-    lastSignInAt: iso(r.last_sign_in_at),
-    createdAt: iso(r.created_at) ?? '',
-    memberships: r.memberships ?? [],
+  const users = await User.findAll({
+    attributes: ['id', 'email', 'displayName', 'status', 'isAdmin', 'lastSignInAt', 'createdAt'],
+    include: [{
+      model: Membership, as: 'memberships', attributes: ['id', 'role'], required: false,
+      include: [{ model: Initiative, as: 'initiative', attributes: ['id', 'name'], required: true }],
+    }],
+    order: [['displayName', 'ASC'], [{ model: Membership, as: 'memberships' }, { model: Initiative, as: 'initiative' }, 'name', 'ASC']],
+    transaction,
+  });
+  return users.map((u) => ({
+    id: u.id,
+    email: u.email,
+    displayName: u.displayName,
+    status: u.status,
+    isAdmin: u.isAdmin,
+    lastSignInAt: iso(u.lastSignInAt),
+    createdAt: iso(u.createdAt) ?? '',
+    memberships: (u.memberships ?? []).flatMap((m) =>
+      m.initiative ? [{ initiativeId: m.initiative.id, initiativeName: m.initiative.name, role: m.role, membershipId: m.id }] : []),
   }));
 }
 
@@ -50,19 +51,13 @@ export async function listUsers(transaction: Transaction): Promise<UserListItem[
  * single-use link valid for 7 days. The e-mail goes out after the transaction commits.
  */
 export async function inviteUser(transaction: Transaction, actor: Actor, body: InviteUserBody): Promise<{ userId: string; send: () => Promise<unknown> }> {
-  const [existing] = await sequelize.query<{ id: string; status: string }>(
-    'SELECT id, status FROM users WHERE email = :email',
-    { replacements: { email: body.email }, type: QueryTypes.SELECT, transaction },
-  );
+  const existing = await User.findOne({ attributes: ['id', 'status'], where: { email: body.email }, transaction });
   if (existing && existing.status !== 'invited') {
     throw conflict('That person already has an account. Add them to an initiative from the initiative page instead.');
   }
   let userId = existing?.id;
   if (!userId) {
-    const [created] = await sequelize.query<{ id: string }>(
-      `INSERT INTO users (email, display_name, status, is_admin) VALUES (:email, :name, 'invited', :isAdmin) RETURNING id`,
-      { replacements: { email: body.email, name: body.displayName, isAdmin: body.isAdmin }, type: QueryTypes.SELECT, transaction },
-    );
+    const created = await User.create({ email: body.email, displayName: body.displayName, status: 'invited', isAdmin: body.isAdmin }, { transaction });
     userId = created.id;
   }
   if (body.membership) await setMembership(transaction, actor, body.membership.initiativeId, userId, body.membership.role);
@@ -94,23 +89,21 @@ export async function setUserStatus(transaction: Transaction, actor: Actor, user
   if (userId === actor.id && status === 'deactivated') {
     throw unprocessable('cannot-deactivate-self', 'You cannot deactivate your own account.');
   }
-  const [user] = await sequelize.query<{ status: string; password_hash: string | null }>(
-    'SELECT status, password_hash FROM users WHERE id = :id FOR UPDATE',
-    { replacements: { id: userId }, type: QueryTypes.SELECT, transaction },
-  );
+  const user = await User.findByPk(userId, { attributes: ['id', 'status', 'passwordHash'], lock: transaction.LOCK.UPDATE, transaction });
   if (!user) throw notFound('That person');
-  if (status === 'active' && !user.password_hash) {
+  if (status === 'active' && !user.passwordHash) {
     throw unprocessable('never-activated', 'This person has not accepted their invitation yet. Send a new invitation instead.');
   }
   if (user.status === status) return;
-  await sequelize.query('UPDATE users SET status = :status, updated_at = now() WHERE id = :id', { replacements: { id: userId, status }, transaction });
+  const from = user.status;
+  await user.update({ status }, { transaction });
   await recordAudit(transaction, {
     action: status === 'deactivated' ? 'user.deactivated' : 'user.reactivated',
     actorId: actor.id,
     subjectType: 'user',
     subjectId: userId,
     clientAddress: actor.address,
-    details: { from: user.status, to: status },
+    details: { from, to: status },
   });
   if (status === 'deactivated') await endAllSessions(userId);
 }
@@ -133,6 +126,7 @@ const toInitiative = (r: InitiativeRow): InitiativeItem => ({
 
 /** Every initiative the caller may see (administrators: all). */
 export async function listInitiatives(transaction: Transaction): Promise<InitiativeItem[]> {
+  // A count per initiative beside its columns: a reporting query, raw SQL.
   const rows = await sequelize.query<InitiativeRow>(
     `SELECT i.*, (SELECT count(*) FROM memberships m WHERE m.initiative_id = i.id) AS member_count
        FROM initiatives i WHERE i.archived_at IS NULL ORDER BY i.name`,
@@ -148,17 +142,16 @@ export function slugify(name: string): string {
 
 export async function createInitiative(transaction: Transaction, actor: Actor, body: CreateInitiativeBody): Promise<InitiativeItem> {
   const base = slugify(body.name);
-  const [{ taken }] = await sequelize.query<{ taken: string }>(
-    "SELECT count(*) AS taken FROM initiatives WHERE slug = :base OR slug LIKE :pattern",
-    { replacements: { base, pattern: `${base}-%` }, type: QueryTypes.SELECT, transaction },
+  const taken = await Initiative.count({ where: { [Op.or]: [{ slug: base }, { slug: { [Op.like]: `${base}-%` } }] }, transaction });
+  const slug = taken === 0 ? base : `${base}-${taken + 1}`;
+  const created = await Initiative.create(
+    { name: body.name, slug, organisation: body.organisation, description: body.description, readersSeeRows: body.readersSeeRows },
+    { transaction },
   );
-  const slug = Number(taken) === 0 ? base : `${base}-${Number(taken) + 1}`;
-  const [row] = await sequelize.query<InitiativeRow>(
-    `INSERT INTO initiatives (name, slug, organisation, description, readers_see_rows)
-     VALUES (:name, :slug, :organisation, :description, :readersSeeRows)
-     RETURNING *, 0 AS member_count`,
-    { replacements: { ...body, slug }, type: QueryTypes.SELECT, transaction },
-  );
+  const row: InitiativeRow = {
+    id: created.id, name: created.name, slug: created.slug, organisation: created.organisation, description: created.description,
+    readers_see_rows: created.readersSeeRows, member_count: '0', created_at: created.createdAt,
+  };
   await recordAudit(transaction, {
     action: 'initiative.created', actorId: actor.id, subjectType: 'initiative', subjectId: row.id,
     initiativeId: row.id, clientAddress: actor.address, details: { name: body.name },
@@ -167,19 +160,17 @@ export async function createInitiative(transaction: Transaction, actor: Actor, b
 }
 
 export async function updateInitiative(transaction: Transaction, actor: Actor, initiativeId: string, body: UpdateInitiativeBody): Promise<void> {
-  const [row] = await sequelize.query<{ readers_see_rows: boolean }>(
-    'SELECT readers_see_rows FROM initiatives WHERE id = :id FOR UPDATE',
-    { replacements: { id: initiativeId }, type: QueryTypes.SELECT, transaction },
-  );
-  if (!row) throw notFound('That initiative');
-  await sequelize.query(
-    `UPDATE initiatives SET readers_see_rows = coalesce(:readersSeeRows, readers_see_rows),
-            description = coalesce(:description, description), updated_at = now() WHERE id = :id`,
-    { replacements: { id: initiativeId, readersSeeRows: body.readersSeeRows ?? null, description: body.description ?? null }, transaction },
-  );
+  const initiative = await Initiative.findByPk(initiativeId, { attributes: ['id', 'readersSeeRows', 'description'], lock: transaction.LOCK.UPDATE, transaction });
+  if (!initiative) throw notFound('That initiative');
+  const previousReadersSeeRows = initiative.readersSeeRows;
+  initiative.readersSeeRows = body.readersSeeRows ?? initiative.readersSeeRows;
+  initiative.description = body.description ?? initiative.description;
+  // updated_at changes on every update, as before, even when nothing else did.
+  initiative.changed('updatedAt', true);
+  await initiative.save({ transaction });
   await recordAudit(transaction, {
     action: 'initiative.updated', actorId: actor.id, subjectType: 'initiative', subjectId: initiativeId,
-    initiativeId, clientAddress: actor.address, details: { ...body, previousReadersSeeRows: row.readers_see_rows },
+    initiativeId, clientAddress: actor.address, details: { ...body, previousReadersSeeRows },
   });
 }
 
@@ -193,11 +184,16 @@ export interface MemberItem {
 }
 
 export async function listMembers(transaction: Transaction, initiativeId: string): Promise<MemberItem[]> {
-  return sequelize.query<MemberItem>(
-    `SELECT m.id AS "membershipId", u.id AS "userId", u.email, u.display_name AS "displayName", u.status, m.role
-       FROM memberships m JOIN users u ON u.id = m.user_id WHERE m.initiative_id = :initiativeId ORDER BY u.display_name`,
-    { replacements: { initiativeId }, type: QueryTypes.SELECT, transaction },
-  );
+  const memberships = await Membership.findAll({
+    attributes: ['id', 'role'],
+    where: { initiativeId },
+    include: [{ model: User, as: 'user', attributes: ['id', 'email', 'displayName', 'status'], required: true }],
+    order: [[{ model: User, as: 'user' }, 'displayName', 'ASC']],
+    transaction,
+  });
+  return memberships.flatMap((m) => (m.user
+    ? [{ membershipId: m.id, userId: m.user.id, email: m.user.email, displayName: m.user.displayName, status: m.user.status, role: m.role }]
+    : []));
 }
 
 /** Adds a person to an initiative with one role, or changes their role there. */
@@ -208,26 +204,17 @@ export async function setMembership(
   userId: string,
   role: 'analyst' | 'clinician' | 'auditor',
 ): Promise<void> {
-  const [initiative] = await sequelize.query<{ id: string }>('SELECT id FROM initiatives WHERE id = :id', {
-    replacements: { id: initiativeId }, type: QueryTypes.SELECT, transaction,
-  });
+  const initiative = await Initiative.findByPk(initiativeId, { attributes: ['id'], transaction });
   if (!initiative) throw notFound('That initiative');
-  const [user] = await sequelize.query<{ id: string }>('SELECT id FROM users WHERE id = :id', {
-    replacements: { id: userId }, type: QueryTypes.SELECT, transaction,
-  });
+  const user = await User.findByPk(userId, { attributes: ['id'], transaction });
   if (!user) throw notFound('That person');
-  const [current] = await sequelize.query<{ id: string; role: string }>(
-    'SELECT id, role FROM memberships WHERE initiative_id = :initiativeId AND user_id = :userId FOR UPDATE',
-    { replacements: { initiativeId, userId }, type: QueryTypes.SELECT, transaction },
-  );
-  if (current?.role === role) return;
-  if (current) {
-    await sequelize.query('UPDATE memberships SET role = :role, updated_at = now() WHERE id = :id', { replacements: { id: current.id, role }, transaction });
-  } else {
-    await sequelize.query('INSERT INTO memberships (initiative_id, user_id, role) VALUES (:initiativeId, :userId, :role)', {
-      replacements: { initiativeId, userId, role }, transaction,
-    });
-  }
+  const current = await Membership.findOne({
+    attributes: ['id', 'role'], where: { initiativeId, userId }, lock: transaction.LOCK.UPDATE, transaction,
+  });
+  const previousRole = current?.role ?? null;
+  if (previousRole === role) return;
+  if (current) await current.update({ role }, { transaction });
+  else await Membership.create({ initiativeId, userId, role }, { transaction });
   await recordAudit(transaction, {
     action: current ? 'membership.role-changed' : 'membership.added',
     actorId: actor.id,
@@ -235,17 +222,16 @@ export async function setMembership(
     subjectId: userId,
     initiativeId,
     clientAddress: actor.address,
-    details: { from: current?.role ?? null, to: role },
+    details: { from: previousRole, to: role },
   });
 }
 
 export async function removeMembership(transaction: Transaction, actor: Actor, initiativeId: string, userId: string): Promise<void> {
-  const [current] = await sequelize.query<{ id: string; role: string }>(
-    'SELECT id, role FROM memberships WHERE initiative_id = :initiativeId AND user_id = :userId FOR UPDATE',
-    { replacements: { initiativeId, userId }, type: QueryTypes.SELECT, transaction },
-  );
+  const current = await Membership.findOne({
+    attributes: ['id', 'role'], where: { initiativeId, userId }, lock: transaction.LOCK.UPDATE, transaction,
+  });
   if (!current) throw notFound('That membership');
-  await sequelize.query('DELETE FROM memberships WHERE id = :id', { replacements: { id: current.id }, transaction });
+  await Membership.destroy({ where: { id: current.id }, transaction });
   await recordAudit(transaction, {
     action: 'membership.removed', actorId: actor.id, subjectType: 'user', subjectId: userId,
     initiativeId, clientAddress: actor.address, details: { from: current.role, to: null },

@@ -3,6 +3,7 @@
  * confirmed extract version. Analysts create and change them; every member reads them.
  */
 import { QueryTypes, type Transaction } from 'sequelize';
+import { Analysis, Extract, ExtractVersion } from '../../../db/models';
 import type { Spec } from '../../engine/boundary/schemas';
 import { sequelize } from '../../lib/server/db';
 import { conflict, notFound, unprocessable } from '../../lib/server/errors';
@@ -45,11 +46,18 @@ interface VersionRow {
 
 /** The confirmed extract version an analysis may pin; 422 when it is not usable. */
 async function usableVersion(transaction: Transaction, initiativeId: string, versionId: string): Promise<VersionRow> {
-  const [version] = await sequelize.query<VersionRow>(
-    `SELECT v.id, v.extract_id, v.initiative_id, v.status, v.dictionary, v.profile, e.archived_at
-       FROM extract_versions v JOIN extracts e ON e.id = v.extract_id WHERE v.id = :id`,
-    { replacements: { id: versionId }, type: QueryTypes.SELECT, transaction },
-  );
+  const found = await ExtractVersion.findByPk(versionId, {
+    attributes: ['id', 'extractId', 'initiativeId', 'status', 'dictionary', 'profile'],
+    include: [{ model: Extract, as: 'extract', attributes: ['archivedAt'], required: true }],
+    transaction,
+  });
+  // jsonb as the extracts area confirmed and stored it.
+  const version: VersionRow | null = found?.extract
+    ? {
+        id: found.id, extract_id: found.extractId, initiative_id: found.initiativeId, status: found.status,
+        dictionary: found.dictionary as DictionaryEntry[] | null, profile: found.profile as ColumnProfile[], archived_at: found.extract.archivedAt,
+      }
+    : null;
   if (!version || version.initiative_id !== initiativeId) {
     throw unprocessable('extract-version-unknown', 'That extract version is not in this initiative.', [{ path: 'extractVersionId', message: 'Choose an extract version of this initiative.' }]);
   }
@@ -109,47 +117,50 @@ export async function createAnalysis(transaction: Transaction, actor: Actor, bod
   const version = await usableVersion(transaction, body.initiativeId, body.extractVersionId);
   if (version.archived_at) throw conflict('That extract is archived; restore it or choose another before creating an analysis.');
   checkSpecAgainstDictionary(body.spec, version.dictionary ?? [], version.profile);
-  const [row] = await sequelize.query<{ id: string }>(
-    `INSERT INTO analyses (initiative_id, extract_version_id, title, question, prespecified, prespecified_at, spec, created_by, updated_by)
-     VALUES (:initiativeId, :extractVersionId, :title, :question, :prespecified, :prespecifiedAt, CAST(:spec AS jsonb), :actor, :actor)
-     RETURNING id`,
+  const row = await Analysis.create(
     {
-      replacements: { ...body, prespecifiedAt: body.prespecified ? new Date() : null, spec: JSON.stringify(body.spec), actor: actor.id },
-      type: QueryTypes.SELECT,
-      transaction,
+      initiativeId: body.initiativeId, extractVersionId: body.extractVersionId, title: body.title, question: body.question,
+      prespecified: body.prespecified, prespecifiedAt: body.prespecified ? new Date() : null, spec: body.spec,
+      createdBy: actor.id, updatedBy: actor.id,
     },
+    { transaction },
   );
   await recordAudit(transaction, {
     action: 'analysis.created', actorId: actor.id, subjectType: 'analysis', subjectId: row.id, initiativeId: body.initiativeId,
     clientAddress: actor.clientAddress,
     details: { title: body.title, extractVersionId: body.extractVersionId, prespecified: body.prespecified, spec: body.spec },
   });
-  return row;
+  return { id: row.id };
 }
 
 /** Changes an analysis. Its runs keep the specification they ran with. */
 export async function updateAnalysis(transaction: Transaction, actor: Actor, analysisId: string, body: AnalysisBody): Promise<void> {
-  const [current] = await sequelize.query<{ initiative_id: string; spec: Spec; prespecified: boolean; prespecified_at: Date | null; extract_version_id: string }>(
-    'SELECT initiative_id, spec, prespecified, prespecified_at, extract_version_id FROM analyses WHERE id = :id FOR UPDATE',
-    { replacements: { id: analysisId }, type: QueryTypes.SELECT, transaction },
-  );
-  if (!current || current.initiative_id !== body.initiativeId) throw notFound('That analysis');
+  const analysis = await Analysis.findByPk(analysisId, {
+    attributes: ['id', 'initiativeId', 'spec', 'prespecified', 'prespecifiedAt', 'extractVersionId'],
+    lock: transaction.LOCK.UPDATE,
+    transaction,
+  });
+  if (!analysis || analysis.initiativeId !== body.initiativeId) throw notFound('That analysis');
+  const before = { spec: analysis.spec, extractVersionId: analysis.extractVersionId, prespecified: analysis.prespecified };
   const version = await usableVersion(transaction, body.initiativeId, body.extractVersionId);
   checkSpecAgainstDictionary(body.spec, version.dictionary ?? [], version.profile);
   // The declaration time stays the first one; turning prespecification on later stamps now.
-  const prespecifiedAt = body.prespecified ? (current.prespecified_at ?? new Date()) : null;
-  await sequelize.query(
-    `UPDATE analyses SET title = :title, question = :question, prespecified = :prespecified, prespecified_at = :prespecifiedAt,
-            spec = CAST(:spec AS jsonb), extract_version_id = :extractVersionId, updated_by = :actor, updated_at = now() WHERE id = :id`,
-    { replacements: { ...body, prespecifiedAt, spec: JSON.stringify(body.spec), actor: actor.id, id: analysisId }, transaction },
-  );
+  const prespecifiedAt = body.prespecified ? (analysis.prespecifiedAt ?? new Date()) : null;
+  analysis.set({
+    title: body.title, question: body.question, prespecified: body.prespecified, prespecifiedAt, spec: body.spec,
+    extractVersionId: body.extractVersionId, updatedBy: actor.id,
+  });
+  // Saved even when nothing changed, as before: the change is stamped and audited.
+  analysis.changed('updatedBy', true);
+  await analysis.save({ transaction });
   await recordAudit(transaction, {
     action: 'analysis.changed', actorId: actor.id, subjectType: 'analysis', subjectId: analysisId, initiativeId: body.initiativeId,
     clientAddress: actor.clientAddress,
-    details: { before: { spec: current.spec, extractVersionId: current.extract_version_id, prespecified: current.prespecified }, after: { spec: body.spec, extractVersionId: body.extractVersionId, prespecified: body.prespecified } },
+    details: { before, after: { spec: body.spec, extractVersionId: body.extractVersionId, prespecified: body.prespecified } },
   });
 }
 
+// A count and the latest run per analysis beside a four-table join: a reporting query, raw SQL.
 const SELECT_ANALYSIS = `
   SELECT a.id, a.initiative_id, a.extract_version_id, a.title, a.question, a.prespecified, a.prespecified_at, a.spec,
          a.created_by, u.display_name AS creator, a.created_at, a.updated_at,
@@ -206,11 +217,16 @@ export async function listAnalyses(transaction: Transaction, initiativeId: strin
 
 /** The confirmed versions an analysis may pin, with their dictionaries and profiles. */
 export async function analysableVersions(transaction: Transaction, initiativeId: string) {
-  return sequelize.query<{ id: string; extract_id: string; name: string; version_number: number; row_count: number; dictionary: DictionaryEntry[]; profile: ColumnProfile[] }>(
-    `SELECT v.id, v.extract_id, e.name, v.version_number, v.row_count, v.dictionary, v.profile
-       FROM extract_versions v JOIN extracts e ON e.id = v.extract_id
-      WHERE v.initiative_id = :id AND v.status = 'ready' AND e.archived_at IS NULL
-      ORDER BY e.name, v.version_number DESC`,
-    { replacements: { id: initiativeId }, type: QueryTypes.SELECT, transaction },
-  );
+  const versions = await ExtractVersion.findAll({
+    attributes: ['id', 'extractId', 'versionNumber', 'rowCount', 'dictionary', 'profile'],
+    where: { initiativeId, status: 'ready' },
+    include: [{ model: Extract, as: 'extract', attributes: ['name'], where: { archivedAt: null }, required: true }],
+    order: [[{ model: Extract, as: 'extract' }, 'name', 'ASC'], ['versionNumber', 'DESC']],
+    transaction,
+  });
+  // jsonb as the extracts area confirmed and stored it.
+  return versions.map((v) => ({
+    id: v.id, extract_id: v.extractId, name: v.extract?.name ?? '', version_number: v.versionNumber, row_count: v.rowCount,
+    dictionary: v.dictionary as DictionaryEntry[], profile: v.profile as ColumnProfile[],
+  }));
 }

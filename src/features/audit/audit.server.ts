@@ -4,7 +4,8 @@
  * the hash chain (policies/rls/002_access_and_audit.sql): the application cannot set the
  * hash, the position or the time, and cannot change or remove an event.
  */
-import { QueryTypes, type Transaction } from 'sequelize';
+import { Op, QueryTypes, type Order, type Transaction, type WhereOptions } from 'sequelize';
+import { AuditEvent, User } from '../../../db/models';
 import { sequelize } from '../../lib/server/db';
 import { CHECKPOINT_FORMAT, type AuditCheckpoint, type AuditEventsFilter, type AuditEventView, type ChainReport } from './audit.schema';
 
@@ -60,6 +61,7 @@ export interface AuditEventInput {
 
 /** Appends one event in the caller's transaction. */
 export async function recordAudit(transaction: Transaction, event: AuditEventInput): Promise<void> {
+  // The audit chain: the table's trigger numbers and links each appended row, so it is a plain INSERT (raw SQL).
   await sequelize.query(
     `INSERT INTO audit_events (actor_id, action, subject_type, subject_id, initiative_id, client_address, details)
      VALUES (:actorId, :action, :subjectType, :subjectId, :initiativeId, :clientAddress, CAST(:details AS jsonb))`,
@@ -86,6 +88,7 @@ export async function recordAudit(transaction: Transaction, event: AuditEventInp
  * the database and return positions and hashes, never content.
  */
 export async function verifyAuditChain(transaction: Transaction, checkpoint?: AuditCheckpoint): Promise<ChainReport> {
+  // The chain's own check function (SECURITY DEFINER, positions and hashes only): raw SQL.
   const [row] = await sequelize.query<{
     checked: string; head_position: string | null; head_hash: string | null;
     broken_position: string | null; broken_id: string | null; reason: string | null;
@@ -106,6 +109,7 @@ export async function verifyAuditChain(transaction: Transaction, checkpoint?: Au
 }
 
 async function compareWithCheckpoint(transaction: Transaction, checkpoint: AuditCheckpoint, headPosition: number | null): Promise<NonNullable<ChainReport['checkpoint']>> {
+  // The chain's link function (SECURITY DEFINER, positions and hashes only): raw SQL.
   const [link] = await sequelize.query<{ link_hash: string }>('SELECT link_hash FROM app_audit_chain_link(:position)', {
     replacements: { position: checkpoint.position }, type: QueryTypes.SELECT, transaction,
   });
@@ -123,6 +127,7 @@ async function compareWithCheckpoint(transaction: Transaction, checkpoint: Audit
 
 /** The chain's head now, as a checkpoint to keep outside the database; null while the trail is empty. */
 export async function takeCheckpoint(transaction: Transaction): Promise<AuditCheckpoint | null> {
+  // The chain's head function (SECURITY DEFINER, positions and hashes only): raw SQL.
   const [head] = await sequelize.query<{ head_position: string; head_hash: string; head_at: Date }>('SELECT * FROM app_audit_chain_head()', {
     type: QueryTypes.SELECT, transaction,
   });
@@ -149,66 +154,48 @@ export function mayCheckChain(user: { isAdmin: boolean; memberships: { role: str
 // these queries only filter and page within it.
 // ---------------------------------------------------------------------------------------
 
-interface AuditRow {
-  chain_position: string; occurred_at: Date; actor_id: string | null; actor_name: string | null; actor_email: string | null;
-  actor_role: string | null; action: string; subject_type: string | null; subject_id: string | null; client_address: string | null;
-  details: Record<string, unknown>; prev_hash: string; hash: string;
-}
-
 /**
  * Whose events: one initiative's (its auditors read them), or those outside any initiative
  * (sign-ins, invitations, account changes; administrators read them).
  */
 export type AuditScope = { initiativeId: string } | { outsideInitiatives: true };
 
-/** The WHERE clause and bind values for a scope's events under a filter. */
-function filterSql(scope: AuditScope, filter: AuditEventsFilter): { where: string; bind: unknown[] } {
-  const bind: unknown[] = [];
-  const clauses: string[] = [];
-  if ('initiativeId' in scope) {
-    bind.push(scope.initiativeId);
-    clauses.push('e.initiative_id = $1');
-  } else {
-    clauses.push('e.initiative_id IS NULL');
-  }
-  if (filter.action) {
-    bind.push(filter.action, `${filter.action}.%`);
-    clauses.push(`(e.action = $${bind.length - 1} OR e.action LIKE $${bind.length})`);
-  }
-  if (filter.actor) {
-    bind.push(filter.actor);
-    clauses.push(`e.actor_id = $${bind.length}`);
-  }
-  if (filter.subject) {
-    bind.push(filter.subject);
-    clauses.push(`e.subject_id = $${bind.length}`);
-  }
-  if (filter.from) {
-    bind.push(filter.from);
-    clauses.push(`e.occurred_at >= ($${bind.length}::date)::timestamp AT TIME ZONE 'UTC'`);
-  }
-  if (filter.to) {
-    bind.push(filter.to);
-    clauses.push(`e.occurred_at < ($${bind.length}::date + 1)::timestamp AT TIME ZONE 'UTC'`);
-  }
-  return { where: clauses.join(' AND '), bind };
+const DAY_MS = 86_400_000;
+const utcDay = (day: string) => new Date(`${day}T00:00:00.000Z`);
+
+/** The conditions on a scope's events under a filter (dates are UTC days, both ends included). */
+function filterWhere(scope: AuditScope, filter: AuditEventsFilter): WhereOptions<AuditEvent> {
+  const conditions: WhereOptions<AuditEvent>[] = [{ initiativeId: 'initiativeId' in scope ? scope.initiativeId : null }];
+  if (filter.action) conditions.push({ [Op.or]: [{ action: filter.action }, { action: { [Op.like]: `${filter.action}.%` } }] });
+  if (filter.actor) conditions.push({ actorId: filter.actor });
+  if (filter.subject) conditions.push({ subjectId: filter.subject });
+  if (filter.from) conditions.push({ occurredAt: { [Op.gte]: utcDay(filter.from) } });
+  if (filter.to) conditions.push({ occurredAt: { [Op.lt]: new Date(utcDay(filter.to).getTime() + DAY_MS) } });
+  return { [Op.and]: conditions };
 }
 
-const EVENT_COLUMNS = `e.chain_position, e.occurred_at, e.actor_id, u.display_name AS actor_name, u.email AS actor_email, e.actor_role,
-  e.action, e.subject_type, e.subject_id, e.client_address, e.details, e.prev_hash, e.hash`;
-
-function toView(row: AuditRow): AuditEventView {
+/** An event with its actor's name and e-mail, oldest or newest first. */
+function eventQuery(scope: AuditScope, filter: AuditEventsFilter, transaction: Transaction, direction: 'ASC' | 'DESC') {
   return {
-    position: Number(row.chain_position),
-    occurredAt: new Date(row.occurred_at).toISOString(),
-    actor: row.actor_id ? { id: row.actor_id, name: row.actor_name ?? '', email: row.actor_email ?? '' } : null,
-    actorRole: row.actor_role,
+    where: filterWhere(scope, filter),
+    include: [{ model: User, as: 'actor', attributes: ['displayName', 'email'], required: false }],
+    order: [['chainPosition', direction]] satisfies Order,
+    transaction,
+  };
+}
+
+function toView(row: AuditEvent): AuditEventView {
+  return {
+    position: Number(row.chainPosition),
+    occurredAt: new Date(row.occurredAt).toISOString(),
+    actor: row.actorId ? { id: row.actorId, name: row.actor?.displayName ?? '', email: row.actor?.email ?? '' } : null,
+    actorRole: row.actorRole,
     action: row.action,
-    subjectType: row.subject_type,
-    subjectId: row.subject_id,
-    clientAddress: row.client_address,
+    subjectType: row.subjectType,
+    subjectId: row.subjectId,
+    clientAddress: row.clientAddress,
     details: row.details ?? {},
-    prevHash: row.prev_hash,
+    prevHash: row.prevHash,
     hash: row.hash,
   };
 }
@@ -217,33 +204,26 @@ function toView(row: AuditRow): AuditEventView {
 export async function listAuditEvents(
   transaction: Transaction, scope: AuditScope, filter: AuditEventsFilter, paging: { page: number; pageSize: number },
 ): Promise<{ events: AuditEventView[]; total: number }> {
-  const { where, bind } = filterSql(scope, filter);
-  const [counted] = await sequelize.query<{ total: string }>(`SELECT count(*) AS total FROM audit_events e WHERE ${where}`, {
-    bind, type: QueryTypes.SELECT, transaction,
+  const total = await AuditEvent.count({ where: filterWhere(scope, filter), transaction });
+  const rows = await AuditEvent.findAll({
+    ...eventQuery(scope, filter, transaction, 'DESC'), limit: paging.pageSize, offset: (paging.page - 1) * paging.pageSize,
   });
-  const rows = await sequelize.query<AuditRow>(
-    `SELECT ${EVENT_COLUMNS} FROM audit_events e LEFT JOIN users u ON u.id = e.actor_id
-     WHERE ${where} ORDER BY e.chain_position DESC LIMIT $${bind.length + 1} OFFSET $${bind.length + 2}`,
-    { bind: [...bind, paging.pageSize, (paging.page - 1) * paging.pageSize], type: QueryTypes.SELECT, transaction },
-  );
-  return { events: rows.map(toView), total: Number(counted.total) };
+  return { events: rows.map(toView), total };
 }
 
 /** Every matching event, oldest first (chain order), for an export. */
 export async function exportAuditEvents(transaction: Transaction, scope: AuditScope, filter: AuditEventsFilter): Promise<AuditEventView[]> {
-  const { where, bind } = filterSql(scope, filter);
-  const rows = await sequelize.query<AuditRow>(
-    `SELECT ${EVENT_COLUMNS} FROM audit_events e LEFT JOIN users u ON u.id = e.actor_id WHERE ${where} ORDER BY e.chain_position`,
-    { bind, type: QueryTypes.SELECT, transaction },
-  );
+  const rows = await AuditEvent.findAll(eventQuery(scope, filter, transaction, 'ASC'));
   return rows.map(toView);
 }
 
 /** The people who appear in a scope's trail, for the actor filter. */
 export async function auditActors(transaction: Transaction, scope: AuditScope): Promise<{ id: string; name: string }[]> {
-  const { where, bind } = filterSql(scope, {});
-  return sequelize.query<{ id: string; name: string }>(
-    `SELECT DISTINCT u.id, u.display_name AS name FROM audit_events e JOIN users u ON u.id = e.actor_id WHERE ${where} ORDER BY name`,
-    { bind, type: QueryTypes.SELECT, transaction },
-  );
+  const events = await AuditEvent.findAll({
+    attributes: ['actorId'], where: { [Op.and]: [filterWhere(scope, {}), { actorId: { [Op.ne]: null } }] }, group: ['actorId'], raw: true, transaction,
+  });
+  const ids = events.flatMap((e) => (e.actorId ? [e.actorId] : []));
+  if (ids.length === 0) return [];
+  const users = await User.findAll({ attributes: ['id', 'displayName'], where: { id: ids }, order: [['displayName', 'ASC']], transaction });
+  return users.map((u) => ({ id: u.id, name: u.displayName }));
 }

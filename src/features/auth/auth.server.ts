@@ -3,7 +3,8 @@
  * whether an account exists; every outcome is an audit event.
  */
 import type { AstroCookies } from 'astro';
-import { QueryTypes, type Transaction } from 'sequelize';
+import { QueryTypes, fn, type Transaction } from 'sequelize';
+import { AuthToken, User } from '../../../db/models';
 import { actAs, sequelize, withIdentity } from '../../lib/server/db';
 import { publicUrl } from '../../lib/server/env';
 import { AppError, tooManyRequests, unprocessable } from '../../lib/server/errors';
@@ -29,16 +30,17 @@ const decoy = () => (decoyHash ??= hashPassword(newToken()));
 interface UserRow {
   id: string;
   email: string;
-  password_hash: string | null;
+  passwordHash: string | null;
   status: string;
 }
 
 async function findUserByEmail(transaction: Transaction, email: string): Promise<UserRow | null> {
-  const [row] = await sequelize.query<UserRow>(
-    'SELECT id, email, password_hash, status FROM users WHERE email = :email',
-    { replacements: { email: email.toLowerCase() }, type: QueryTypes.SELECT, transaction },
-  );
-  return row ?? null;
+  return User.findOne({
+    attributes: ['id', 'email', 'passwordHash', 'status'],
+    where: { email: email.toLowerCase() },
+    raw: true,
+    transaction,
+  });
 }
 
 /**
@@ -64,9 +66,9 @@ export async function signIn(
       return { kind: 'throttled' as const, retryAfter: throttle.retryAfterSeconds };
     }
     const user = await findUserByEmail(transaction, email);
-    const hash = user?.password_hash ?? (await decoy());
+    const hash = user?.passwordHash ?? (await decoy());
     const matches = await verifyPassword(hash, credentials.password);
-    const ok = Boolean(user && user.password_hash && matches && user.status === 'active');
+    const ok = Boolean(user && user.passwordHash && matches && user.status === 'active');
     await recordAttempt(transaction, email, client.address, ok);
     if (!ok || !user) {
       await recordAudit(transaction, {
@@ -89,10 +91,7 @@ export async function signIn(
 
   const { sessionId } = await startSession(cookies, outcome.userId, client);
   await withIdentity(outcome.userId, async (transaction) => {
-    await sequelize.query('UPDATE users SET last_sign_in_at = now() WHERE id = :id', {
-      replacements: { id: outcome.userId },
-      transaction,
-    });
+    await User.update({ lastSignInAt: fn('now') }, { where: { id: outcome.userId }, silent: true, transaction });
     await recordAudit(transaction, {
       action: 'auth.sign-in',
       actorId: outcome.userId,
@@ -138,17 +137,10 @@ export async function issueToken(
 ): Promise<string> {
   const token = newToken(24);
   // A new link replaces any unused one of the same kind.
-  await sequelize.query(
-    "UPDATE auth_tokens SET used_at = now() WHERE user_id = :userId AND purpose = :purpose AND used_at IS NULL",
-    { replacements: { userId, purpose }, transaction },
-  );
-  await sequelize.query(
-    `INSERT INTO auth_tokens (user_id, purpose, token_hash, expires_at, created_by)
-     VALUES (:userId, :purpose, :hash, :expiresAt, :createdBy)`,
-    {
-      replacements: { userId, purpose, hash: hashToken(token), expiresAt: new Date(Date.now() + TOKEN_LIFETIME_MS[purpose]), createdBy },
-      transaction,
-    },
+  await AuthToken.update({ usedAt: fn('now') }, { where: { userId, purpose, usedAt: null }, transaction });
+  await AuthToken.create(
+    { userId, purpose, tokenHash: hashToken(token), expiresAt: new Date(Date.now() + TOKEN_LIFETIME_MS[purpose]), createdBy },
+    { transaction },
   );
   return token;
 }
@@ -170,8 +162,9 @@ async function findToken(
   purpose: TokenPurpose,
   lock: boolean,
 ): Promise<{ row: TokenRow; problem: null } | { row: null; problem: { code: string; message: string } }> {
+  // A join locked on one side only (FOR UPDATE OF t): raw SQL.
   const [row] = await sequelize.query<TokenRow>(
-    `SELECT t.id AS token_id, t.expires_at, t.used_at, u.id, u.email, u.password_hash, u.status
+    `SELECT t.id AS token_id, t.expires_at, t.used_at, u.id, u.email, u.password_hash AS "passwordHash", u.status
        FROM auth_tokens t JOIN users u ON u.id = t.user_id
       WHERE t.token_hash = :hash AND t.purpose = :purpose${lock ? ' FOR UPDATE OF t' : ''}`,
     { replacements: { hash: hashToken(token), purpose }, type: QueryTypes.SELECT, transaction },
@@ -188,7 +181,7 @@ async function findToken(
 async function consumeToken(transaction: Transaction, token: string, purpose: TokenPurpose): Promise<UserRow> {
   const found = await findToken(transaction, token, purpose, true);
   if (found.problem) throw unprocessable(found.problem.code, found.problem.message);
-  await sequelize.query('UPDATE auth_tokens SET used_at = now() WHERE id = :id', { replacements: { id: found.row.token_id }, transaction });
+  await AuthToken.update({ usedAt: fn('now') }, { where: { id: found.row.token_id }, transaction });
   return found.row;
 }
 
@@ -239,10 +232,7 @@ export async function resetPassword(token: string, password: string, client: Cli
   const userId = await withIdentity(null, async (transaction) => {
     const user = await consumeToken(transaction, token, 'password-reset');
     requireGoodPassword(password, user.email);
-    await sequelize.query('UPDATE users SET password_hash = :hash, updated_at = now() WHERE id = :id', {
-      replacements: { hash: await hashPassword(password), id: user.id },
-      transaction,
-    });
+    await User.update({ passwordHash: await hashPassword(password) }, { where: { id: user.id }, transaction });
     await actAs(transaction, user.id);
     await recordAudit(transaction, { action: 'auth.password-reset', actorId: user.id, subjectType: 'user', subjectId: user.id, clientAddress: client.address });
     return user.id;
@@ -260,10 +250,7 @@ export async function acceptInvitation(
   const userId = await withIdentity(null, async (transaction) => {
     const user = await consumeToken(transaction, token, 'invitation');
     requireGoodPassword(password, user.email);
-    await sequelize.query(
-      "UPDATE users SET password_hash = :hash, status = 'active', updated_at = now() WHERE id = :id",
-      { replacements: { hash: await hashPassword(password), id: user.id }, transaction },
-    );
+    await User.update({ passwordHash: await hashPassword(password), status: 'active' }, { where: { id: user.id }, transaction });
     await actAs(transaction, user.id);
     await recordAudit(transaction, {
       action: 'auth.invitation-accepted',

@@ -5,6 +5,7 @@
  */
 import { createHash } from 'node:crypto';
 import { QueryTypes, type Transaction } from 'sequelize';
+import { SigninAttempt } from '../../../db/models';
 import { sequelize } from '../../lib/server/db';
 import { env } from '../../lib/server/env';
 
@@ -20,6 +21,7 @@ export interface ThrottleState {
 
 /** Whether this account or address has used up its failures in the current window. */
 export async function throttleState(transaction: Transaction, email: string, address: string): Promise<ThrottleState> {
+  // Two filtered counts in one aggregate over a sliding window: raw SQL.
   const [row] = await sequelize.query<{ account: string; address: string; oldest: Date | null }>(
     `SELECT count(*) FILTER (WHERE account_key = :key) AS account,
             count(*) FILTER (WHERE client_address = :address) AS address,
@@ -47,13 +49,7 @@ export async function throttleState(transaction: Transaction, email: string, add
 export async function recordAttempt(transaction: Transaction, email: string, address: string, succeeded: boolean): Promise<void> {
   const key = accountKey(email);
   if (succeeded) {
-    await sequelize.query('DELETE FROM signin_attempts WHERE account_key = :key AND NOT succeeded', {
-      replacements: { key },
-      transaction,
-    });
+    await SigninAttempt.destroy({ where: { accountKey: key, succeeded: false }, transaction });
   }
-  await sequelize.query(
-    'INSERT INTO signin_attempts (account_key, client_address, succeeded) VALUES (:key, :address, :succeeded)',
-    { replacements: { key, address, succeeded }, transaction },
-  );
+  await SigninAttempt.create({ accountKey: key, clientAddress: address, succeeded }, { transaction });
 }

@@ -18,7 +18,7 @@ import { useMemo, useState } from 'react';
 import { apiFetch } from '../../lib/client/api';
 import { QueryRoot } from '../../components/ui/QueryRoot';
 import { SortableHeader } from '../../components/ui/SortableHeader';
-import type { RowsPage } from './extracts.server';
+import type { RowsPage } from './columns.server';
 
 const features = tableFeatures({ rowSortingFeature, rowPaginationFeature });
 type Row = (string | number | null)[];

@@ -6,6 +6,7 @@
  * row-level security policies in policies/rls/007_review.sql.
  */
 import { QueryTypes, type Transaction } from 'sequelize';
+import { ReviewStep, RunComment, User } from '../../../db/models';
 import { sequelize } from '../../lib/server/db';
 import { conflict, notFound } from '../../lib/server/errors';
 import { recordAudit } from '../audit/audit.server';
@@ -46,30 +47,33 @@ const STATE_WORDS: Record<ReviewState, string> = {
 const STEP_WORDS = { submitted: 'submitted', 'signed-off': 'signed off', 'sent-back': 'sent back' } as const;
 
 async function stateOf(transaction: Transaction, runId: string): Promise<ReviewState> {
-  const [latest] = await sequelize.query<{ kind: ReviewState }>(
-    'SELECT kind FROM review_steps WHERE run_id = :runId ORDER BY id DESC LIMIT 1',
-    { replacements: { runId }, type: QueryTypes.SELECT, transaction },
-  );
+  const latest = await ReviewStep.findOne({ attributes: ['kind'], where: { runId }, order: [['id', 'DESC']], transaction });
   return latest?.kind ?? 'draft';
 }
 
 /** A run's review: its state, every step and every comment, oldest first. */
 export async function reviewOf(transaction: Transaction, runId: string): Promise<ReviewView> {
-  const steps = await sequelize.query<{ kind: 'submitted' | 'signed-off' | 'sent-back'; actor_id: string; actor_name: string; note: string; created_at: Date }>(
-    `SELECT s.kind, s.actor_id, u.display_name AS actor_name, s.note, s.created_at
-       FROM review_steps s JOIN users u ON u.id = s.actor_id WHERE s.run_id = :runId ORDER BY s.id`,
-    { replacements: { runId }, type: QueryTypes.SELECT, transaction },
-  );
-  const comments = await sequelize.query<{ id: string; parent_id: string | null; author_id: string; author_name: string; body: string; created_at: Date }>(
-    `SELECT c.id, c.parent_id, c.author_id, u.display_name AS author_name, c.body, c.created_at
-       FROM run_comments c JOIN users u ON u.id = c.author_id WHERE c.run_id = :runId ORDER BY c.created_at, c.id`,
-    { replacements: { runId }, type: QueryTypes.SELECT, transaction },
-  );
+  const steps = await ReviewStep.findAll({
+    attributes: ['id', 'kind', 'actorId', 'note', 'createdAt'],
+    where: { runId },
+    include: [{ model: User, as: 'actor', attributes: ['displayName'], required: true }],
+    order: [['id', 'ASC']],
+    transaction,
+  });
+  const comments = await RunComment.findAll({
+    attributes: ['id', 'parentId', 'authorId', 'body', 'createdAt'],
+    where: { runId },
+    include: [{ model: User, as: 'author', attributes: ['displayName'], required: true }],
+    order: [['createdAt', 'ASC'], ['id', 'ASC']],
+    transaction,
+  });
   return {
     runId,
     state: steps.at(-1)?.kind ?? 'draft',
-    steps: steps.map((s) => ({ kind: s.kind, actor: { id: s.actor_id, name: s.actor_name }, note: s.note, at: iso(s.created_at) })),
-    comments: comments.map((c) => ({ id: c.id, parentId: c.parent_id, author: { id: c.author_id, name: c.author_name }, body: c.body, at: iso(c.created_at) })),
+    steps: steps.map((s) => ({ kind: s.kind, actor: { id: s.actorId, name: s.actor?.displayName ?? '' }, note: s.note, at: iso(s.createdAt) })),
+    comments: comments.map((c) => ({
+      id: c.id, parentId: c.parentId, author: { id: c.authorId, name: c.author?.displayName ?? '' }, body: c.body, at: iso(c.createdAt),
+    })),
   };
 }
 
@@ -78,14 +82,11 @@ async function addStep(
 ): Promise<ReviewState> {
   if (run.status !== 'succeeded') throw conflict('Only a run that finished with results can be reviewed.');
   if (run.verifiesRunId) throw conflict('A re-run that verifies another run is not reviewed itself; review the run it verifies.');
-  // Serialise steps on one run, so two reviewers cannot both act on the same state.
+  // Serialise steps on one run, so two reviewers cannot both act on the same state (an advisory lock: raw SQL).
   await sequelize.query('SELECT pg_advisory_xact_lock(hashtext(:key))', { replacements: { key: `review:${run.id}` }, transaction });
   const state = await stateOf(transaction, run.id);
   if (!NEXT[state].includes(kind)) throw conflict(`This run is ${STATE_WORDS[state]}, so it cannot be ${STEP_WORDS[kind]} now.`);
-  await sequelize.query(
-    'INSERT INTO review_steps (run_id, initiative_id, kind, actor_id, note) VALUES (:runId, :initiativeId, :kind, :actor, :note)',
-    { replacements: { runId: run.id, initiativeId: run.initiativeId, kind, actor: reviewer.id, note: note.trim() }, transaction },
-  );
+  await ReviewStep.create({ runId: run.id, initiativeId: run.initiativeId, kind, actorId: reviewer.id, note: note.trim() }, { transaction });
   await recordAudit(transaction, {
     action: `review.${kind}`, actorId: reviewer.id, subjectType: 'run', subjectId: run.id, initiativeId: run.initiativeId,
     clientAddress: reviewer.clientAddress, details: { from: state, to: kind, noteLength: note.trim().length },
@@ -109,17 +110,13 @@ export function decideReview(
 export async function addComment(transaction: Transaction, author: Reviewer, run: ReviewedRun, body: string, parentId?: string): Promise<string> {
   let threadId: string | null = null;
   if (parentId) {
-    const [parent] = await sequelize.query<{ id: string; parent_id: string | null }>(
-      'SELECT id, parent_id FROM run_comments WHERE id = :id AND run_id = :runId',
-      { replacements: { id: parentId, runId: run.id }, type: QueryTypes.SELECT, transaction },
-    );
+    const parent = await RunComment.findOne({ attributes: ['id', 'parentId'], where: { id: parentId, runId: run.id }, transaction });
     if (!parent) throw notFound('That comment');
-    threadId = parent.parent_id ?? parent.id;
+    threadId = parent.parentId ?? parent.id;
   }
-  const [created] = await sequelize.query<{ id: string }>(
-    `INSERT INTO run_comments (run_id, initiative_id, parent_id, author_id, body)
-     VALUES (:runId, :initiativeId, :parentId, :author, :body) RETURNING id`,
-    { replacements: { runId: run.id, initiativeId: run.initiativeId, parentId: threadId, author: author.id, body: body.trim() }, type: QueryTypes.SELECT, transaction },
+  const created = await RunComment.create(
+    { runId: run.id, initiativeId: run.initiativeId, parentId: threadId, authorId: author.id, body: body.trim() },
+    { transaction },
   );
   await recordAudit(transaction, {
     action: 'review.commented', actorId: author.id, subjectType: 'run', subjectId: run.id, initiativeId: run.initiativeId,
@@ -134,6 +131,7 @@ export async function addComment(transaction: Transaction, author: Reviewer, run
  * with its latest finished run (or none yet).
  */
 export async function boardOf(transaction: Transaction, initiativeId: string): Promise<BoardView> {
+  // The latest step and latest run per analysis (DISTINCT ON): a reporting query, raw SQL.
   const rows = await sequelize.query<{
     id: string; title: string; question: string; run_id: string | null; kind: ReviewState | null; actor_id: string | null;
     actor_name: string | null; note: string | null; step_at: Date | null; status: string | null; started_by: string | null;
@@ -180,6 +178,7 @@ export async function boardOf(transaction: Transaction, initiativeId: string): P
  */
 export async function waitingForReview(transaction: Transaction, initiativeIds: readonly string[], readerId: string): Promise<Map<string, number>> {
   if (initiativeIds.length === 0) return new Map();
+  // A count per initiative of runs whose latest step is a submission: a reporting query, raw SQL.
   const rows = await sequelize.query<{ initiative_id: string; waiting: string }>(
     `SELECT r.initiative_id, count(*) AS waiting
        FROM runs r

@@ -5,7 +5,8 @@
  * (runFailure.ts); an unexpected error is logged with its stack, never shown as it is.
  */
 import { hostname } from 'node:os';
-import { QueryTypes, type Transaction } from 'sequelize';
+import { QueryTypes, fn, type Transaction } from 'sequelize';
+import { Run } from '../../../db/models';
 import { AnalysisCancelledError, ENGINE_VERSION, runAnalysis } from '../../engine';
 import type { Spec } from '../../engine/boundary/schemas';
 import { sequelize, withIdentity } from '../../lib/server/db';
@@ -20,21 +21,21 @@ import { compareRuns, verificationSentence, type RunFacts } from './runVerificat
 
 /** Compares a finished verification re-run with the run it verifies, and records the outcome. */
 async function storeVerification(transaction: Transaction, rerunId: string, originalId: string, actorId: string, rerun: RunFacts): Promise<void> {
-  const [original] = await sequelize.query<{ initiative_id: string; extract_sha256: string; spec_hash: string; engine_version: string | null; seed: string | null; result: unknown }>(
-    'SELECT initiative_id, extract_sha256, spec_hash, engine_version, seed, result FROM runs WHERE id = :id',
-    { replacements: { id: originalId }, type: QueryTypes.SELECT, transaction },
-  );
+  const original = await Run.findByPk(originalId, {
+    attributes: ['initiativeId', 'extractSha256', 'specHash', 'engineVersion', 'seed', 'result'], raw: true, transaction,
+  });
   if (!original) return;
   const verification = compareRuns(
-    { extractSha256: original.extract_sha256, specHash: original.spec_hash, engineVersion: original.engine_version, seed: seedOf(original.seed), result: original.result },
+    {
+      extractSha256: original.extractSha256, specHash: original.specHash, engineVersion: original.engineVersion,
+      seed: seedOf(original.seed === null ? null : String(original.seed)), result: original.result,
+    },
     rerun,
   );
   const resultCheck = verification.checks.find((check) => check.name === 'result');
-  await sequelize.query('UPDATE runs SET verification = CAST(:verification AS jsonb) WHERE id = :id', {
-    replacements: { id: rerunId, verification: JSON.stringify(verification) }, transaction,
-  });
+  await Run.update({ verification: { ...verification } }, { where: { id: rerunId }, transaction });
   await recordAudit(transaction, {
-    action: 'run.verified', actorId, subjectType: 'run', subjectId: originalId, initiativeId: original.initiative_id,
+    action: 'run.verified', actorId, subjectType: 'run', subjectId: originalId, initiativeId: original.initiativeId,
     details: {
       rerunId, reproduced: verification.reproduced, summary: verificationSentence(verification),
       resultSha256: resultCheck?.original, rerunResultSha256: resultCheck?.rerun,
@@ -52,6 +53,7 @@ export async function executeRun(runId: string, startedBy: string, options: { wo
   const claimed = await withIdentity(startedBy, async (t) => {
     // Read under the starter's identity: row-level security confirms they may still run it.
     // Analysts execute their runs; auditors only the re-runs that verify a past run.
+    // The policy's own helper functions in a locking read: raw SQL.
     const [run] = await sequelize.query<{
       status: RunStatus; initiative_id: string; spec: Spec; extract_version_id: string; spec_hash: string; extract_sha256: string;
       caution_text: string; seed: string | null; verifies_run_id: string | null;
@@ -64,10 +66,9 @@ export async function executeRun(runId: string, startedBy: string, options: { wo
       { replacements: { id: runId, startedBy }, type: QueryTypes.SELECT, transaction: t },
     );
     if (!run || run.status !== 'queued') return null;
-    await sequelize.query(
-      `UPDATE runs SET status = 'running', started_at = now(), heartbeat_at = now(), worker = :worker,
-              progress = '{"stage": "loading", "fraction": 0}'::jsonb WHERE id = :id`,
-      { replacements: { id: runId, worker }, transaction: t },
+    await Run.update(
+      { status: 'running', startedAt: fn('now'), heartbeatAt: fn('now'), worker, progress: { stage: 'loading', fraction: 0 } },
+      { where: { id: runId }, transaction: t },
     );
     return run;
   });
@@ -80,14 +81,13 @@ export async function executeRun(runId: string, startedBy: string, options: { wo
     if (writing) return;
     writing = true;
     try {
-      const [state] = await withIdentity(startedBy, (t) =>
-        sequelize.query<{ cancel_requested: boolean; status: string }>(
-          `UPDATE runs SET heartbeat_at = now(), progress = CAST(:progress AS jsonb) WHERE id = :id AND status = 'running'
-           RETURNING cancel_requested, status`,
-          { replacements: { id: runId, progress: JSON.stringify(lastProgress) }, type: QueryTypes.SELECT, transaction: t },
+      const [, [state]] = await withIdentity(startedBy, (t) =>
+        Run.update(
+          { heartbeatAt: fn('now'), progress: lastProgress },
+          { where: { id: runId, status: 'running' }, returning: true, transaction: t },
         ),
       );
-      if (!state || state.cancel_requested) controller.abort();
+      if (!state || state.cancelRequested) controller.abort();
     } catch (error) {
       logger.warn({ err: error, runId }, 'progress report failed');
     } finally {
@@ -100,6 +100,7 @@ export async function executeRun(runId: string, startedBy: string, options: { wo
   const finish = async (status: RunStatus, fields: { result?: unknown; error?: { code: string; message: string }; seed?: number | null }) => {
     clearInterval(heartbeat);
     await withIdentity(startedBy, async (t) => {
+      // A compare-and-set on a still-running run that writes the engine's result as it came: raw SQL.
       const [updated] = await sequelize.query<{ id: string }>(
         `UPDATE runs SET status = :status, finished_at = now(), heartbeat_at = now(), engine_version = :engineVersion,
                 result = CAST(:result AS jsonb), error = CAST(:error AS jsonb), seed = coalesce(:seed, seed),

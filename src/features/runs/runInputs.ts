@@ -5,7 +5,7 @@
 import type { EngineData } from '../../engine';
 import type { Spec } from '../../engine/boundary/schemas';
 import { withIdentity } from '../../lib/server/db';
-import { loadAnalysisData } from '../extracts/extracts.server';
+import { loadAnalysisData } from '../extracts/columns.server';
 import { columnRoles } from './columnRoles';
 
 /** The run's data, read as the analyst who started it (row-level security applies). */

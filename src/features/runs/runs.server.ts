@@ -7,7 +7,8 @@
  * A run whose worker died, or whose job is gone, is marked failed by the stale-run sweep,
  * never left running or queued forever.
  */
-import { QueryTypes, type Transaction } from 'sequelize';
+import { QueryTypes, fn, type Transaction } from 'sequelize';
+import { Analysis, ExtractVersion, Run } from '../../../db/models';
 import { ENGINE_VERSION } from '../../engine';
 import type { Result, Spec } from '../../engine/boundary/schemas';
 import { CAUTION_VERSION, cautionText } from '../../lib/cautions';
@@ -41,18 +42,17 @@ export interface StartOptions {
  * analysis was prespecified before the pinned extract version was uploaded.
  */
 export async function startRun(transaction: Transaction, actor: Actor, analysisId: string, options: StartOptions = {}): Promise<QueuedRun> {
-  const [analysis] = await sequelize.query<{
-    initiative_id: string; extract_version_id: string; spec: Spec; prespecified_at: Date | null; sha256: string; uploaded_at: Date; status: string;
-  }>(
-    `SELECT a.initiative_id, a.extract_version_id, a.spec, a.prespecified_at, v.sha256, v.uploaded_at, v.status
-       FROM analyses a JOIN extract_versions v ON v.id = a.extract_version_id WHERE a.id = :id`,
-    { replacements: { id: analysisId }, type: QueryTypes.SELECT, transaction },
-  );
-  if (!analysis) throw notFound('That analysis');
-  if (analysis.status !== 'ready') throw conflict('The pinned extract version is not confirmed.');
-  const exploratory = !analysis.prespecified_at || new Date(analysis.uploaded_at) > new Date(analysis.prespecified_at);
+  const analysis = await Analysis.findByPk(analysisId, {
+    attributes: ['initiativeId', 'extractVersionId', 'spec', 'prespecifiedAt'],
+    include: [{ model: ExtractVersion, as: 'extractVersion', attributes: ['sha256', 'uploadedAt', 'status'], required: true }],
+    transaction,
+  });
+  const version = analysis?.extractVersion;
+  if (!analysis || !version) throw notFound('That analysis');
+  if (version.status !== 'ready') throw conflict('The pinned extract version is not confirmed.');
+  const exploratory = !analysis.prespecifiedAt || new Date(version.uploadedAt) > new Date(analysis.prespecifiedAt);
   return queueRun(transaction, actor, {
-    analysisId, initiativeId: analysis.initiative_id, extractVersionId: analysis.extract_version_id, extractSha256: analysis.sha256,
+    analysisId, initiativeId: analysis.initiativeId, extractVersionId: analysis.extractVersionId, extractSha256: version.sha256,
     spec: analysis.spec, exploratory, seed: analysis.spec.ci.seed ?? (analysis.spec.ci.method === 'bootstrap' ? 1 : null), verifiesRunId: null,
   }, 'run.started', { analysisId }, options);
 }
@@ -63,20 +63,18 @@ export async function startRun(transaction: Transaction, actor: Actor, analysisI
  * (runVerification.ts) and stores the comparison on the re-run.
  */
 export async function startVerification(transaction: Transaction, actor: Actor, runId: string, options: StartOptions = {}): Promise<QueuedRun> {
-  const [original] = await sequelize.query<{
-    id: string; analysis_id: string; initiative_id: string; extract_version_id: string; status: RunStatus; spec: Spec;
-    exploratory: boolean; seed: string | null; engine_version: string | null; sha256: string;
-  }>(
-    `SELECT r.id, r.analysis_id, r.initiative_id, r.extract_version_id, r.status, r.spec, r.exploratory, r.seed, r.engine_version, v.sha256
-       FROM runs r JOIN extract_versions v ON v.id = r.extract_version_id WHERE r.id = :id`,
-    { replacements: { id: runId }, type: QueryTypes.SELECT, transaction },
-  );
-  if (!original) throw notFound('That run');
+  const original = await Run.findByPk(runId, {
+    attributes: ['id', 'analysisId', 'initiativeId', 'extractVersionId', 'status', 'spec', 'exploratory', 'seed', 'engineVersion'],
+    include: [{ model: ExtractVersion, as: 'extractVersion', attributes: ['sha256'], required: true }],
+    transaction,
+  });
+  if (!original?.extractVersion) throw notFound('That run');
   if (original.status !== 'succeeded') throw conflict('Only a run that finished with results can be re-run to verify it.');
+  const seed = seedOf(original.seed === null ? null : String(original.seed));
   return queueRun(transaction, actor, {
-    analysisId: original.analysis_id, initiativeId: original.initiative_id, extractVersionId: original.extract_version_id,
-    extractSha256: original.sha256, spec: original.spec, exploratory: original.exploratory, seed: seedOf(original.seed), verifiesRunId: original.id,
-  }, 'run.verification-started', { verifiesRunId: original.id, originalEngineVersion: original.engine_version, seed: seedOf(original.seed) }, options);
+    analysisId: original.analysisId, initiativeId: original.initiativeId, extractVersionId: original.extractVersionId,
+    extractSha256: original.extractVersion.sha256, spec: original.spec, exploratory: original.exploratory, seed, verifiesRunId: original.id,
+  }, 'run.verification-started', { verifiesRunId: original.id, originalEngineVersion: original.engineVersion, seed }, options);
 }
 
 export interface QueuedRun {
@@ -98,17 +96,13 @@ async function queueRun(
 ): Promise<QueuedRun> {
   const hash = specHash(run.spec);
   const caution = cautionText();
-  const [row] = await sequelize.query<{ id: string }>(
-    `INSERT INTO runs (analysis_id, initiative_id, extract_version_id, status, spec, spec_hash, extract_sha256, exploratory,
-                       caution_text, caution_version, started_by, seed, verifies_run_id)
-     VALUES (:analysisId, :initiativeId, :extractVersionId, 'queued', CAST(:spec AS jsonb), :hash, :extractSha256, :exploratory,
-             :caution, :cautionVersion, :actor, :seed, :verifiesRunId)
-     RETURNING id`,
+  const row = await Run.create(
     {
-      replacements: { ...run, spec: JSON.stringify(run.spec), hash, caution, cautionVersion: CAUTION_VERSION, actor: actor.id },
-      type: QueryTypes.SELECT,
-      transaction,
+      analysisId: run.analysisId, initiativeId: run.initiativeId, extractVersionId: run.extractVersionId, status: 'queued', spec: run.spec,
+      specHash: hash, extractSha256: run.extractSha256, exploratory: run.exploratory, cautionText: caution, cautionVersion: CAUTION_VERSION,
+      startedBy: actor.id, seed: run.seed, verifiesRunId: run.verifiesRunId,
     },
+    { transaction },
   );
   await recordAudit(transaction, {
     action, actorId: actor.id, subjectType: 'run', subjectId: row.id, initiativeId: run.initiativeId, clientAddress: actor.clientAddress,
@@ -193,6 +187,7 @@ function toRunView(r: RunRow): RunView {
 }
 
 /** The run's review state: its latest review step, or draft (src/features/review). */
+// Each run's latest review step as a correlated subquery: the run views below are raw SQL for it.
 const REVIEW_STATE_COLUMN = `coalesce((SELECT s.kind FROM review_steps s WHERE s.run_id = r.id ORDER BY s.id DESC LIMIT 1), 'draft') AS review_state`;
 
 /** Every column but the result, for listings and progress polling. */
@@ -235,22 +230,19 @@ export async function listRuns(transaction: Transaction, analysisId: string): Pr
 
 /** Asks for a run to stop. A queued run is cancelled at once; a running one at its next report. */
 export async function requestCancel(transaction: Transaction, actor: Actor, runId: string): Promise<RunStatus> {
-  const [run] = await sequelize.query<{ status: RunStatus; initiative_id: string }>(
-    'SELECT status, initiative_id FROM runs WHERE id = :id FOR UPDATE', { replacements: { id: runId }, type: QueryTypes.SELECT, transaction },
-  );
+  const run = await Run.findByPk(runId, { attributes: ['id', 'status', 'initiativeId'], lock: transaction.LOCK.UPDATE, transaction });
   if (!run) throw notFound('That run');
   if (run.status !== 'queued' && run.status !== 'running') return run.status;
   if (run.status === 'queued') {
-    await sequelize.query(
-      `UPDATE runs SET status = 'cancelled', cancel_requested = true, finished_at = now(),
-              error = CAST(:error AS jsonb) WHERE id = :id`,
-      { replacements: { id: runId, error: JSON.stringify({ code: 'cancelled', message: 'Cancelled before it started.' }) }, transaction },
+    await Run.update(
+      { status: 'cancelled', cancelRequested: true, finishedAt: fn('now'), error: { code: 'cancelled', message: 'Cancelled before it started.' } },
+      { where: { id: runId }, transaction },
     );
-    await recordAudit(transaction, { action: 'run.cancelled', actorId: actor.id, subjectType: 'run', subjectId: runId, initiativeId: run.initiative_id, clientAddress: actor.clientAddress });
+    await recordAudit(transaction, { action: 'run.cancelled', actorId: actor.id, subjectType: 'run', subjectId: runId, initiativeId: run.initiativeId, clientAddress: actor.clientAddress });
     return 'cancelled';
   }
-  await sequelize.query('UPDATE runs SET cancel_requested = true WHERE id = :id', { replacements: { id: runId }, transaction });
-  await recordAudit(transaction, { action: 'run.cancel-requested', actorId: actor.id, subjectType: 'run', subjectId: runId, initiativeId: run.initiative_id, clientAddress: actor.clientAddress });
+  await Run.update({ cancelRequested: true }, { where: { id: runId }, transaction });
+  await recordAudit(transaction, { action: 'run.cancel-requested', actorId: actor.id, subjectType: 'run', subjectId: runId, initiativeId: run.initiativeId, clientAddress: actor.clientAddress });
   return 'running';
 }
 
@@ -259,6 +251,7 @@ export async function requestCancel(transaction: Transaction, actor: Actor, runI
  * is gone from the queue (any initiative; policies/rls/008_run_sweep.sql); returns their ids.
  */
 export async function sweepStaleRuns(transaction?: Transaction): Promise<string[]> {
+  // A row-level-security helper function (it writes across initiatives): raw SQL.
   const rows = await sequelize.query<{ app_fail_stale_runs: string }>('SELECT app_fail_stale_runs(:seconds)', {
     replacements: { seconds: env.CROSSGRAIN_RUN_STALE_SECONDS }, type: QueryTypes.SELECT, transaction,
   });

@@ -2,7 +2,15 @@ import { QueryTypes, type Transaction } from 'sequelize';
 import { createSequelize } from '../../../db/connection';
 import { initModels } from '../../../db/models';
 
-/** The application's only connection pool: the `app` role, which row-level security binds. */
+/**
+ * The application's connection pool: the `app` role, which row-level security binds.
+ * Every model and query of a request runs on it. Two other pools exist per process, each
+ * saying why where it is made: the session library's (src/lib/server/session.ts; lucia's
+ * adapter takes a pg Pool) and pg-boss's own (src/lib/server/queue.ts; the worker's queue
+ * fetches and supervises jobs on it, while sends ride on this pool's transactions).
+ * Sequelize marks a client that errors while idle as invalid and drops it from the pool,
+ * and db/connection.ts logs the error, so a lost connection never crashes the process.
+ */
 export const sequelize = createSequelize('app');
 export const models = initModels(sequelize);
 
@@ -20,6 +28,7 @@ export async function withIdentity<T>(
   work: (transaction: Transaction) => Promise<T>,
 ): Promise<T> {
   return sequelize.transaction(async (transaction) => {
+    // set_config, the row-level-security identity: raw SQL.
     await sequelize.query("SELECT set_config('app.user_id', :userId, true)", {
       replacements: { userId: userId ?? '' },
       transaction,
@@ -37,6 +46,7 @@ export function scopedTo(userId: string | null): Scoped {
 /** True when the database answers a trivial query within the pool's acquire timeout. */
 export async function databaseAnswers(): Promise<boolean> {
   try {
+    // A liveness probe, no table: raw SQL.
     await sequelize.query('SELECT 1', { type: QueryTypes.SELECT });
     return true;
   } catch {
@@ -50,6 +60,7 @@ export async function databaseAnswers(): Promise<boolean> {
  * the user as the actor.
  */
 export async function actAs(transaction: Transaction, userId: string): Promise<void> {
+  // set_config, the row-level-security identity: raw SQL.
   await sequelize.query("SELECT set_config('app.user_id', :userId, true)", {
     replacements: { userId },
     transaction,

@@ -4,7 +4,7 @@
  * turn it into `{ "error": { "code", "message", "details"?, "requestId" } }`. Anything
  * else becomes a logged 500 (stack in the log, a generic message with the request id).
  * Other vocabularies are translated where they leave their area: an extract refusal in
- * extracts.server.ts, an engine refusal stored on a failed run in runs/runFailure.ts.
+ * intake.server.ts, an engine refusal stored on a failed run in runs/runFailure.ts.
  */
 export const ERROR_CODE = /^[a-z]+(-[a-z0-9]+)*$/;
 

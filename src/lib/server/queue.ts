@@ -14,7 +14,11 @@ import { logger } from './logger';
 
 export const QUEUE_SCHEMA = 'pgboss';
 
-/** A pg-boss instance for the app role. Workers supervise (expire and archive jobs); senders do not. */
+/**
+ * A pg-boss instance for the app role. Workers supervise (expire and archive jobs); senders
+ * do not. pg-boss keeps its own small pool (`max`), opened only when it is started: the
+ * worker's. A sender is never started, since every send runs on a request transaction.
+ */
 export function createQueue(options: { supervise?: boolean } = {}): PgBoss {
   const boss = new PgBoss({
     host: env.CROSSGRAIN_DB_HOST,
@@ -68,6 +72,7 @@ export function transactionDb(transaction: Transaction): PgBoss.Db {
     executeSql: async (text, values) => {
       // pg reads undefined as null; sequelize's bind needs it said.
       const bind = values.map((value: unknown) => (value === undefined ? null : value));
+      // pg-boss's own SQL, run as it wrote it: raw by nature.
       const rows = await sequelize.query<Record<string, unknown>>(text, { bind, type: QueryTypes.SELECT, transaction });
       return { rows };
     },

@@ -16,6 +16,6 @@ export async function* bodyChunks(body: ReadableStream<Uint8Array>): AsyncGenera
     }
   } finally {
     if (finished) reader.releaseLock();
-    else await reader.cancel();
+    else await reader.cancel().catch(() => {});
   }
 }

@@ -17,6 +17,7 @@ import pg from 'pg';
 import { z } from 'zod';
 import { ROLES, type Role } from '../../../db/models';
 import { env, isProduction } from './env';
+import { logger } from './logger';
 
 export interface MembershipInfo {
   initiativeId: string;
@@ -51,6 +52,12 @@ const absoluteMs = () => env.CROSSGRAIN_SESSION_ABSOLUTE_HOURS * 3_600_000;
 /** Writing last_seen_at on every request would cost a write per page; once a minute is enough. */
 const LAST_SEEN_WRITE_INTERVAL_MS = 60_000;
 
+/**
+ * The session library's own pool, beside the app's Sequelize pool (src/lib/server/db.ts):
+ * lucia's PostgreSQL adapter takes a pg Pool, and Sequelize's pool hands out bare clients.
+ * It is small, and it also runs the two-statement membership read (loadMemberships), which
+ * needs pg's simple query protocol.
+ */
 const pool = new pg.Pool({
   host: env.CROSSGRAIN_DB_HOST,
   port: env.CROSSGRAIN_DB_PORT,
@@ -59,9 +66,8 @@ const pool = new pg.Pool({
   password: env.CROSSGRAIN_DB_APP_PASSWORD,
   max: 5,
 });
-// An idle connection the database drops (a restart, an outage) emits 'error' on the pool;
-// without a listener that would end the process. The next query opens a new connection.
-pool.on('error', () => {});
+// An idle client whose connection drops emits here; without a listener the process would exit.
+pool.on('error', (error) => logger.error({ err: error }, 'session pool: idle connection lost'));
 
 interface SessionRowAttributes {
   created_at: Date;

@@ -1,5 +1,6 @@
 import { NewExtractQuery } from '../../../../features/extracts/extracts.schema';
-import { listExtracts, receiveUpload } from '../../../../features/extracts/extracts.server';
+import { listExtracts } from '../../../../features/extracts/extracts.server';
+import { receiveUpload } from '../../../../features/extracts/intake.server';
 import { authorize, requireMember } from '../../../../lib/server/authorize';
 import { clientAddress, endpoint, json, parseQuery, requireUser, uuidParam } from '../../../../lib/server/http';
 

@@ -1,5 +1,6 @@
 import { NewVersionQuery } from '../../../../../features/extracts/extracts.schema';
-import { extractScope, receiveUpload } from '../../../../../features/extracts/extracts.server';
+import { extractScope } from '../../../../../features/extracts/extracts.server';
+import { receiveUpload } from '../../../../../features/extracts/intake.server';
 import { authorize } from '../../../../../lib/server/authorize';
 import { notFound } from '../../../../../lib/server/errors';
 import { clientAddress, endpoint, json, parseQuery, requireUser, uuidParam } from '../../../../../lib/server/http';

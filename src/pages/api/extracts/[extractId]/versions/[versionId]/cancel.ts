@@ -1,4 +1,5 @@
-import { cancelIntake, extractScope } from '../../../../../../features/extracts/extracts.server';
+import { extractScope } from '../../../../../../features/extracts/extracts.server';
+import { cancelIntake } from '../../../../../../features/extracts/intake.server';
 import { authorize } from '../../../../../../lib/server/authorize';
 import { notFound } from '../../../../../../lib/server/errors';
 import { clientAddress, endpoint, json, requireUser, uuidParam } from '../../../../../../lib/server/http';

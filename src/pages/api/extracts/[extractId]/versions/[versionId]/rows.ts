@@ -1,9 +1,8 @@
-import { QueryTypes } from 'sequelize';
 import { recordAudit } from '../../../../../../features/audit/audit.server';
 import { RowsQuery } from '../../../../../../features/extracts/extracts.schema';
-import { previewRows } from '../../../../../../features/extracts/extracts.server';
+import { previewRows } from '../../../../../../features/extracts/columns.server';
 import { authorize } from '../../../../../../lib/server/authorize';
-import { sequelize } from '../../../../../../lib/server/db';
+import { ExtractVersion, Initiative } from '../../../../../../../db/models';
 import { notFound } from '../../../../../../lib/server/errors';
 import { clientAddress, endpoint, json, parseQuery, requireUser, uuidParam } from '../../../../../../lib/server/http';
 
@@ -17,18 +16,19 @@ export const GET = endpoint(async (context) => {
   const versionId = uuidParam(context.params.versionId, 'That version');
   const query = parseQuery(context.url, RowsQuery);
   const page = await context.locals.db(async (t) => {
-    const [version] = await sequelize.query<{ initiative_id: string; readers_see_rows: boolean; version_number: number }>(
-      `SELECT v.initiative_id, i.readers_see_rows, v.version_number FROM extract_versions v JOIN initiatives i ON i.id = v.initiative_id
-        WHERE v.id = :versionId AND v.extract_id = :extractId`,
-      { replacements: { versionId, extractId }, type: QueryTypes.SELECT, transaction: t },
-    );
-    if (!version) throw notFound('That version');
-    authorize(user, 'read', 'ExtractRows', { initiativeId: version.initiative_id, readersSeeRows: version.readers_see_rows });
+    const version = await ExtractVersion.findOne({
+      attributes: ['initiativeId', 'versionNumber'],
+      where: { id: versionId, extractId },
+      include: [{ model: Initiative, as: 'initiative', attributes: ['readersSeeRows'], required: true }],
+      transaction: t,
+    });
+    if (!version?.initiative) throw notFound('That version');
+    authorize(user, 'read', 'ExtractRows', { initiativeId: version.initiativeId, readersSeeRows: version.initiative.readersSeeRows });
     const rows = await previewRows(t, versionId, query);
     await recordAudit(t, {
-      action: 'extract.rows-viewed', actorId: user.id, subjectType: 'extract', subjectId: extractId, initiativeId: version.initiative_id,
+      action: 'extract.rows-viewed', actorId: user.id, subjectType: 'extract', subjectId: extractId, initiativeId: version.initiativeId,
       clientAddress: clientAddress(context),
-      details: { versionId, version: version.version_number, page: query.page, pageSize: query.pageSize, sort: query.sort ?? null, rowsShown: rows.rows.length },
+      details: { versionId, version: version.versionNumber, page: query.page, pageSize: query.pageSize, sort: query.sort ?? null, rowsShown: rows.rows.length },
     });
     return rows;
   });

@@ -1,0 +1,59 @@
+/** The review of runs: its append-only steps and comments (…create-review). */
+import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type NonAttribute, type Sequelize } from 'sequelize';
+import { filledByDatabase, tableOptions, uuidKey } from './common';
+import { User } from './identity';
+
+export type ReviewStepKind = 'submitted' | 'signed-off' | 'sent-back';
+
+export class ReviewStep extends Model<InferAttributes<ReviewStep>, InferCreationAttributes<ReviewStep>> {
+  declare id: CreationOptional<string>;
+  declare runId: string;
+  declare initiativeId: string;
+  declare kind: ReviewStepKind;
+  declare actorId: string;
+  declare note: CreationOptional<string>;
+  declare createdAt: CreationOptional<Date>;
+  declare actor?: NonAttribute<User>;
+}
+
+export class RunComment extends Model<InferAttributes<RunComment>, InferCreationAttributes<RunComment>> {
+  declare id: CreationOptional<string>;
+  declare runId: string;
+  declare initiativeId: string;
+  declare parentId: string | null;
+  declare authorId: string;
+  declare body: string;
+  declare createdAt: CreationOptional<Date>;
+  declare author?: NonAttribute<User>;
+}
+
+export function initReview(sequelize: Sequelize): void {
+  ReviewStep.init(
+    {
+      // GENERATED ALWAYS AS IDENTITY: the database numbers the steps.
+      id: { type: DataTypes.BIGINT, primaryKey: true, autoIncrement: true },
+      runId: { type: DataTypes.UUID, allowNull: false },
+      initiativeId: { type: DataTypes.UUID, allowNull: false },
+      kind: { type: DataTypes.TEXT, allowNull: false },
+      actorId: { type: DataTypes.UUID, allowNull: false },
+      note: filledByDatabase(DataTypes.TEXT),
+      // clock_timestamp() by default, so steps in one transaction keep their order.
+      createdAt: filledByDatabase(DataTypes.DATE),
+    },
+    tableOptions(sequelize, 'review_steps'),
+  );
+  RunComment.init(
+    {
+      id: uuidKey,
+      runId: { type: DataTypes.UUID, allowNull: false },
+      initiativeId: { type: DataTypes.UUID, allowNull: false },
+      parentId: { type: DataTypes.UUID, allowNull: true },
+      authorId: { type: DataTypes.UUID, allowNull: false },
+      body: { type: DataTypes.TEXT, allowNull: false },
+      createdAt: filledByDatabase(DataTypes.DATE),
+    },
+    tableOptions(sequelize, 'run_comments'),
+  );
+  ReviewStep.belongsTo(User, { foreignKey: 'actorId', as: 'actor' });
+  RunComment.belongsTo(User, { foreignKey: 'authorId', as: 'author' });
+}

@@ -1,0 +1,240 @@
+/**
+ * Receiving an upload: the request body (raw CSV or a multipart form), the intake record
+ * (`extract_intakes`) that tracks it, and the background steps that screen it and hand it
+ * to storeVersion (extracts.server.ts).
+ *
+ * The intake record is committed on its own so that progress and refusals are visible
+ * while nothing else exists yet. The extract, its version and its columns are written
+ * together in one transaction at the end: a refused, cancelled, failed or killed upload
+ * leaves none of them behind.
+ */
+import { randomUUID } from 'node:crypto';
+import { createWriteStream, mkdirSync } from 'node:fs';
+import { rename, rm } from 'node:fs/promises';
+import path from 'node:path';
+import { Readable } from 'node:stream';
+import Busboy from 'busboy';
+import { fn, type Transaction } from 'sequelize';
+import { Extract, ExtractIntake } from '../../../db/models';
+import { sequelize as appSequelize, withIdentity } from '../../lib/server/db';
+import { env } from '../../lib/server/env';
+import { AppError, badRequest, conflict, notFound, unsupportedMediaType } from '../../lib/server/errors';
+import { logger } from '../../lib/server/logger';
+import { bodyChunks } from '../../lib/server/requestBody';
+import { recordAudit } from '../audit/audit.server';
+import { ExtractRefusalError } from './extractRefusal';
+import { readExtractColumns, reviewExtractColumns, type ReadExtract } from './extracts';
+import type { ProcessingStage } from './extracts.schema';
+import { storeVersion, type IntakeStart, type Uploader } from './extracts.server';
+
+const uploadDir = () => path.resolve(env.CROSSGRAIN_DATA_DIR, 'uploads');
+const storedFile = (initiativeId: string, versionId: string) =>
+  path.resolve(env.CROSSGRAIN_DATA_DIR, 'extracts', initiativeId, `${versionId}.csv`);
+
+type ChunkSource = AsyncIterable<Uint8Array>;
+
+/** The CSV bytes of a request: a raw `text/csv` body, or the first file of a multipart form. */
+export function uploadSource(request: Request): ChunkSource {
+  const type = (request.headers.get('content-type') ?? '').toLowerCase();
+  if (!request.body) throw badRequest('The request has no body. Send the CSV file as the body.');
+  if (type.startsWith('text/csv') || type.startsWith('application/csv') || type.startsWith('text/plain')) {
+    return bodyChunks(request.body);
+  }
+  if (type.startsWith('multipart/form-data')) return multipartFile(request);
+  throw unsupportedMediaType('Send the extract as text/csv, or as a file in multipart/form-data.');
+}
+
+/** Streams the first file part of a multipart body; other fields are ignored. */
+async function* multipartFile(request: Request): AsyncGenerator<Uint8Array> {
+  const headers = Object.fromEntries(request.headers);
+  const parser = Busboy({ headers, limits: { files: 1, fileSize: env.CROSSGRAIN_UPLOAD_MAX_BYTES + 1 } });
+  if (!request.body) throw badRequest('The request has no body. Send the CSV file as the body.');
+  const input = Readable.from(bodyChunks(request.body));
+  const file = new Promise<Readable>((resolve, reject) => {
+    parser.on('file', (_name, stream) => resolve(stream));
+    parser.on('error', reject);
+    parser.on('close', () => reject(badRequest('The form holds no file. Attach the CSV file.')));
+  });
+  input.pipe(parser);
+  const stream = await file;
+  for await (const chunk of stream) yield chunk as Uint8Array;
+}
+
+type IntakeChange = Partial<Pick<ExtractIntake, 'status' | 'stage' | 'percent' | 'reasons' | 'finishedAt'>>;
+
+/** Changes an intake record in a transaction of its own, so that its progress shows at once. */
+async function updateIntake(uploaderId: string, versionId: string, fields: IntakeChange): Promise<void> {
+  await withIdentity(uploaderId, (transaction) =>
+    ExtractIntake.update({ ...fields, heartbeatAt: fn('now') }, { where: { id: versionId }, transaction }),
+  );
+}
+
+/** Records a refusal: only the reasons are kept, never the data. */
+async function refuseIntake(uploader: Uploader, start: IntakeStart, reasons: unknown[], stage: ProcessingStage): Promise<void> {
+  await withIdentity(uploader.id, async (transaction) => {
+    await ExtractIntake.update(
+      { status: 'refused', stage, reasons, finishedAt: fn('now'), heartbeatAt: fn('now') },
+      { where: { id: start.versionId }, transaction },
+    );
+    await recordAudit(transaction, {
+      action: 'extract.upload-refused', actorId: uploader.id, subjectType: 'extract', subjectId: start.extractId,
+      initiativeId: start.initiativeId, clientAddress: uploader.clientAddress,
+      details: { versionId: start.versionId, name: start.name, reasons },
+    });
+  });
+}
+
+async function failIntake(uploaderId: string, versionId: string, code: string, message: string): Promise<void> {
+  await updateIntake(uploaderId, versionId, {
+    status: 'failed', reasons: [{ code, message }], finishedAt: new Date(),
+  }).catch((error: unknown) => logger.error({ err: error, versionId }, 'could not record a failed intake'));
+}
+
+/**
+ * Receives an upload: streams the body through the reader (refusing at once what is not
+ * a CSV of acceptable size), keeps the raw bytes under a server-chosen name, answers with
+ * the ids, and finishes screening, profiling and storing in the background.
+ */
+export async function receiveUpload(
+  uploader: Uploader,
+  target: { initiativeId: string; name: string } | { extractId: string },
+  request: Request,
+  options: { dropColumns?: readonly string[] } = {},
+): Promise<{ extractId: string; versionId: string; done: Promise<void> }> {
+  const start = await withIdentity(uploader.id, async (transaction): Promise<IntakeStart> => {
+    let initiativeId: string;
+    let extractId: string;
+    let name: string;
+    if ('extractId' in target) {
+      const extract = await Extract.findByPk(target.extractId, { attributes: ['id', 'initiativeId', 'name', 'archivedAt'], transaction });
+      if (!extract) throw notFound('That extract');
+      if (extract.archivedAt) throw conflict('This extract is archived. Restore it before adding a version.');
+      ({ initiativeId, id: extractId, name } = extract);
+    } else {
+      initiativeId = target.initiativeId;
+      extractId = randomUUID();
+      name = target.name;
+    }
+    const versionId = randomUUID();
+    await ExtractIntake.create(
+      {
+        id: versionId, extractId, initiativeId, name, newExtract: !('extractId' in target), uploadedBy: uploader.id,
+        status: 'processing', stage: 'receiving', percent: 0,
+      },
+      { transaction },
+    );
+    return { initiativeId, extractId, versionId, name, newExtract: !('extractId' in target) };
+  });
+
+  mkdirSync(uploadDir(), { recursive: true, mode: 0o700 });
+  const partFile = path.join(uploadDir(), `${start.versionId}.part`);
+  const expectedBytes = Number(request.headers.get('content-length') ?? 0) || undefined;
+  if (expectedBytes && expectedBytes > env.CROSSGRAIN_UPLOAD_MAX_BYTES) {
+    const error = new ExtractRefusalError('too-large', `The file is larger than the limit of ${formatMegabytes(env.CROSSGRAIN_UPLOAD_MAX_BYTES)}.`, null);
+    await refuseIntake(uploader, start, [error.toJSON()], 'receiving');
+    throw refusalAsAppError(error);
+  }
+
+  let read: ReadExtract;
+  const file = createWriteStream(partFile, { mode: 0o600 });
+  // A refusal destroys the stream while a write may be pending; that error is expected.
+  file.on('error', (error) => logger.debug({ err: error, versionId: start.versionId }, 'raw upload file closed early'));
+  let lastReport = 0;
+  try {
+    read = await readExtractColumns(keepWhileReading(uploadSource(request), file), {
+      expectedBytes,
+      dropColumns: options.dropColumns,
+      maxBytes: env.CROSSGRAIN_UPLOAD_MAX_BYTES,
+      onProgress: ({ percent }) => {
+        if (Date.now() - lastReport < 500) return;
+        lastReport = Date.now();
+        void updateIntake(uploader.id, start.versionId, { stage: 'reading', percent }).catch(() => {});
+      },
+    });
+    await closeFile(file);
+  } catch (error) {
+    file.destroy();
+    await rm(partFile, { force: true });
+    if (error instanceof ExtractRefusalError) {
+      await refuseIntake(uploader, start, [error.toJSON()], 'reading');
+      throw refusalAsAppError(error);
+    }
+    if (error instanceof AppError) {
+      await refuseIntake(uploader, start, [{ code: error.code, message: error.message, line: null }], 'receiving');
+      throw error;
+    }
+    await failIntake(uploader.id, start.versionId, 'upload-interrupted', 'The upload was interrupted before the whole file arrived.');
+    throw new AppError(400, 'upload-interrupted', 'The upload was interrupted before the whole file arrived. Nothing was kept.');
+  }
+
+  const done = finishIntake(uploader, start, read, partFile).catch(async (error: unknown) => {
+    logger.error({ err: error, versionId: start.versionId }, 'extract processing failed');
+    await rm(partFile, { force: true });
+    await failIntake(uploader.id, start.versionId, 'processing-failed', 'Processing stopped with an error. Nothing was kept; upload the file again.');
+  });
+  return { extractId: start.extractId, versionId: start.versionId, done };
+}
+
+function formatMegabytes(bytes: number): string {
+  return `${Math.round(bytes / 1024 / 1024)} MB`;
+}
+
+function refusalAsAppError(error: ExtractRefusalError): AppError {
+  return new AppError(error.status, error.code, error.message, [{ path: 'file', message: error.message, line: error.line }]);
+}
+
+/** Passes chunks on while writing them to the raw file, respecting the disk's pace. */
+async function* keepWhileReading(source: ChunkSource, file: ReturnType<typeof createWriteStream>): AsyncGenerator<Uint8Array> {
+  for await (const chunk of source) {
+    if (!file.write(chunk)) await new Promise<void>((resolve) => file.once('drain', () => resolve()));
+    yield chunk;
+  }
+}
+
+function closeFile(file: ReturnType<typeof createWriteStream>): Promise<void> {
+  return new Promise((resolve, reject) => {
+    file.end((error?: Error | null) => (error ? reject(error) : resolve()));
+  });
+}
+
+/** Stage two, after the answer has gone: screen, profile, and store in one transaction. */
+async function finishIntake(uploader: Uploader, start: IntakeStart, read: ReadExtract, partFile: string): Promise<void> {
+  await updateIntake(uploader.id, start.versionId, { stage: 'screening', percent: 90 });
+  const review = reviewExtractColumns(read.columns);
+  if (review.refused) {
+    await rm(partFile, { force: true });
+    const reasons = review.refusals.map((r) => ({ code: 'identifier-screen', column: r.column, rules: r.rules, categories: r.categories, message: r.message }));
+    await refuseIntake(uploader, start, reasons, 'screening');
+    return;
+  }
+  await updateIntake(uploader.id, start.versionId, { stage: 'storing', percent: 95 });
+  const stored = await withIdentity(uploader.id, (transaction) =>
+    storeVersion(appSequelize, transaction, uploader, start, read, review.profile, review.findings),
+  );
+  if (!stored) {
+    await rm(partFile, { force: true });
+    return;
+  }
+  const finalPath = storedFile(start.initiativeId, start.versionId);
+  mkdirSync(path.dirname(finalPath), { recursive: true, mode: 0o700 });
+  await rename(partFile, finalPath);
+}
+
+/** Cancels an upload that is still being processed; a no-op answer when it already ended. */
+export async function cancelIntake(transaction: Transaction, uploader: Uploader, extractId: string, versionId: string): Promise<boolean> {
+  const intake = await ExtractIntake.findOne({
+    attributes: ['id', 'status', 'initiativeId'], where: { id: versionId, extractId }, lock: transaction.LOCK.UPDATE, transaction,
+  });
+  if (!intake) throw notFound('That upload');
+  if (intake.status !== 'processing') return false;
+  await ExtractIntake.update(
+    { status: 'failed', reasons: [{ code: 'cancelled', message: 'Cancelled by the uploader. Nothing was kept.' }], finishedAt: fn('now') },
+    { where: { id: versionId }, transaction },
+  );
+  await recordAudit(transaction, {
+    action: 'extract.upload-cancelled', actorId: uploader.id, subjectType: 'extract', subjectId: extractId,
+    initiativeId: intake.initiativeId, clientAddress: uploader.clientAddress, details: { versionId },
+  });
+  return true;
+}
+
