@@ -15,6 +15,7 @@ import {
   displayLevels, fixed, formatCount, formatNumber, formatP, intervalCell, measureInfo, modifierDecimals, numberCell, pCell,
   type IntervalCell, type MeasureInfo, type NumberCell,
 } from './resultFormat';
+import { perResult } from './finishedResults';
 import {
   johnsonNeymanSentence, missingInWords, multiplicityNote, OMNIBUS_LABEL, planningInWords, referenceText, warningsInWords,
   type WarningView,
@@ -258,6 +259,9 @@ function modelLine(result: Result): string {
 }
 
 /** Builds every table of the results page from the result and its specification. */
+/** buildResultTables, computed once per finished result and specification (finishedResults.ts). */
+export const resultTablesOf = perResult(buildResultTables, (spec: Spec) => JSON.stringify(spec));
+
 export function buildResultTables(result: Result, spec: Spec): ResultTables {
   const measure = measureInfo(result);
   const levels = displayLevels(result);

@@ -22,6 +22,7 @@ import type { ReviewState } from '../review/review.schema';
 import { enqueueRun, type RunEnqueuer } from './runQueue';
 import type { RunStatus } from './runs.schema';
 import type { Verification } from './runVerification';
+import { cachedResult, keepResult } from './finishedResults';
 import { parseStoredResult } from './storedResult';
 
 export interface Actor {
@@ -201,7 +202,9 @@ const RUN_COLUMNS = `r.id, r.analysis_id, r.initiative_id, r.extract_version_id,
  * failed when its worker or its job is gone), so none reads as running or queued forever.
  */
 export async function getRun(transaction: Transaction, runId: string, options: { withResult?: boolean } = {}): Promise<RunView | null> {
-  const columns = options.withResult === false ? `${RUN_COLUMNS}, NULL AS result` : `r.*, ${REVIEW_STATE_COLUMN}`;
+  // A finished run's result is read and parsed once per process (finishedResults.ts).
+  const cached = options.withResult === false ? undefined : cachedResult(runId);
+  const columns = options.withResult === false || cached ? `${RUN_COLUMNS}, NULL AS result` : `r.*, ${REVIEW_STATE_COLUMN}`;
   const select = `SELECT ${columns}, u.display_name AS starter FROM runs r JOIN users u ON u.id = r.started_by`;
   const read = async () =>
     (await sequelize.query<RunRow>(`${select} WHERE r.id = :id`, { replacements: { id: runId }, type: QueryTypes.SELECT, transaction }))[0];
@@ -210,7 +213,11 @@ export async function getRun(transaction: Transaction, runId: string, options: {
     await sweepStaleRuns(transaction);
     row = await read();
   }
-  return row ? toRunView(row) : null;
+  if (!row) return null;
+  const view = toRunView(row);
+  if (row.status === 'succeeded' && cached) view.result = cached;
+  else if (row.status === 'succeeded' && view.result) keepResult(runId, view.result);
+  return view;
 }
 
 function isStale(heartbeat: Date | null): boolean {

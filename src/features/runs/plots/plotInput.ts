@@ -1,4 +1,5 @@
 import type { Result } from '../../../engine/boundary/schemas';
+import { perResult } from '../finishedResults';
 
 /**
  * The part of a result the plots read (plotFigures.ts), so that the results page does
@@ -13,6 +14,9 @@ export type PlotInput = Pick<
   model: Pick<Result['model'], 'link' | 'coefficients'>;
   stratifiedTables: Pick<NonNullable<Result['stratifiedTables']>, 'mantelHaenszel'> | null;
 };
+
+/** plotInput, computed once per finished result (finishedResults.ts). */
+export const plotInputOf = perResult((result: Result) => plotInput(result), () => '');
 
 export function plotInput(result: Result): PlotInput {
   return {
