@@ -208,7 +208,7 @@ describe('a checkpoint checked against a broken chain (issue 13)', () => {
         await ownerDb().query('UPDATE audit_events SET action = :action WHERE id = :id', { replacements: { action, id: target.id }, transaction: t });
         await ownerDb().query('ALTER TABLE audit_events ENABLE TRIGGER audit_events_no_change', { transaction: t });
       });
-    await rewrite(`${target.action.slice(0, -1)}#`);
+    await rewrite(`${target.action.slice(0, -1)}m`);
     return () => rewrite(target.action);
   }
 

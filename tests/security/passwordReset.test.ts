@@ -20,10 +20,11 @@ const freshAddress = () => `192.0.2.${(addressCounter += 1)}`;
 /** The statements a call runs, with every literal value blanked out. */
 async function statementsOf(call: () => Promise<void>): Promise<string[]> {
   const seen: string[] = [];
-  const options = sequelize.options as { logging?: unknown };
+  // Sequelize reads its `logging` option at each query; its type does not declare `options`.
+  const options: { logging?: unknown } = Reflect.get(sequelize, 'options');
   const previous = options.logging;
   options.logging = (sql: string) => {
-    seen.push(sql.replace(/^Executing \([^)]*\): /, '').replace(/'(?:[^']|'')*'/g, '?').replace(/\b\d+(\.\d+)?\b/g, 'N'));
+    seen.push(sql.replace(/^Executing \([^)]*\): /, '').replace(/'(?:[^']|'')*'/g, '?').replace(/\b\d+(\.\d+)?\b/g, 'N').replace(/\bNULL\b/g, '?'));
   };
   try {
     await call();
