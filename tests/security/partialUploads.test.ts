@@ -16,22 +16,24 @@ afterAll(async () => {
   await closeOwnerDb();
 });
 
-function csvRequest(body: Uint8Array<ArrayBuffer>): Request {
-  return new Request('http://127.0.0.1/upload', { method: 'POST', headers: { 'Content-Type': 'text/csv' }, body });
+function uploadRequest(body: Uint8Array<ArrayBuffer>, type = 'text/csv'): Request {
+  return new Request('http://127.0.0.1/upload', { method: 'POST', headers: { 'Content-Type': type }, body });
 }
 
 describe('a refused upload', () => {
-  it('leaves no partial file, even when refused on its first chunk', async () => {
+  it.each([
+    ['a body of the wrong media type (refused before a byte is read)', 'application/octet-stream', 415],
+    ['a binary first chunk', 'text/csv', 422],
+  ])('leaves no partial file for %s', async (_what, type, status) => {
     const user = await makeUser();
     const initiative = await makeInitiative();
     await addMember(initiative.id, user.id, 'analyst');
-    // A NUL byte in the first chunk: refused as binary before the raw file has opened.
     const binary = new Uint8Array([0x50, 0x4b, 0x03, 0x04, 0x00, 0x00, 0x01, 0x02]);
     for (let attempt = 0; attempt < 5; attempt += 1) {
       const before = new Set(existsSync(uploads) ? readdirSync(uploads) : []);
       await expect(
-        receiveUpload({ id: user.id, clientAddress: 'test' }, { initiativeId: initiative.id, name: `Refused ${attempt}` }, csvRequest(binary)),
-      ).rejects.toMatchObject({ status: 422 });
+        receiveUpload({ id: user.id, clientAddress: 'test' }, { initiativeId: initiative.id, name: `Refused ${attempt}` }, uploadRequest(binary, type)),
+      ).rejects.toMatchObject({ status });
       // Give a late open the time to create its file, as it did before.
       await new Promise((resolve) => setTimeout(resolve, 100));
       const left = readdirSync(uploads).filter((name) => !before.has(name) && name.endsWith('.part'));
