@@ -17,7 +17,8 @@ const GRANTS: Record<Role, Partial<Record<SubjectName, Action[]>>> = {
     Extract: ['read', 'create', 'update', 'archive'],
     ExtractRows: ['read'],
     Analysis: ['read', 'create', 'update'],
-    Run: ['read', 'run', 'cancel', 'submit', 'export', 'comment'],
+    // cancel: only runs they started (see the rules with conditions below).
+    Run: ['read', 'run', 'submit', 'export', 'comment'],
     Comment: ['read'],
     Brief: ['read', 'create', 'update', 'publish', 'export'],
   },
@@ -69,6 +70,20 @@ describe('rules with conditions', () => {
     const ability = defineAbilityFor({ id: USER_ID, isAdmin: false, memberships: [{ initiativeId: OWN, role: 'clinician' }] });
     expect(ability.can('decide', subject('Run', { initiativeId: OWN, startedBy: USER_ID }))).toBe(false);
     expect(ability.can('decide', subject('Run', { initiativeId: OWN, startedBy: 'someone-else' }))).toBe(true);
+  });
+
+  it('lets an analyst cancel only the runs they started, never an auditor’s re-run (issue 13)', () => {
+    const ability = defineAbilityFor({ id: USER_ID, isAdmin: false, memberships: [{ initiativeId: OWN, role: 'analyst' }] });
+    expect(ability.can('cancel', subject('Run', { initiativeId: OWN, startedBy: USER_ID }))).toBe(true);
+    expect(ability.can('cancel', subject('Run', { initiativeId: OWN, startedBy: 'auditor-1', verification: true }))).toBe(false);
+    expect(ability.can('cancel', subject('Run', { initiativeId: OWN, startedBy: 'analyst-2' }))).toBe(false);
+    expect(ability.can('cancel', subject('Run', { initiativeId: OTHER, startedBy: USER_ID }))).toBe(false);
+  });
+
+  it('lets an administrator cancel anyone’s run in an initiative they belong to', () => {
+    const ability = defineAbilityFor({ id: USER_ID, isAdmin: true, memberships: [{ initiativeId: OWN, role: 'clinician' }] });
+    expect(ability.can('cancel', subject('Run', { initiativeId: OWN, startedBy: 'analyst-2' }))).toBe(true);
+    expect(ability.can('cancel', subject('Run', { initiativeId: OTHER, startedBy: 'analyst-2' }))).toBe(false);
   });
 
   it('lets an auditor cancel only their own verification re-runs', () => {

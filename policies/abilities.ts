@@ -50,12 +50,14 @@ type Can = Builder['can'];
 type Cannot = Builder['cannot'];
 
 /** What an analyst may do within one initiative. */
-function analystRules(can: Can, initiativeId: string): void {
+function analystRules(can: Can, initiativeId: string, userId: string): void {
   const scope = { initiativeId };
   can('read', ['Initiative', 'Extract', 'ExtractRows', 'Analysis', 'Run', 'Comment', 'Brief'], scope);
   can(['create', 'update', 'archive'], 'Extract', scope);
   can(['create', 'update'], 'Analysis', scope);
-  can(['run', 'cancel', 'submit', 'export'], 'Run', scope);
+  can(['run', 'submit', 'export'], 'Run', scope);
+  // Only the runs they started themselves (never an auditor's verification re-run).
+  can('cancel', 'Run', { initiativeId, startedBy: userId });
   can('comment', 'Run', scope);
   can(['create', 'update', 'publish', 'export'], 'Brief', scope);
 }
@@ -91,7 +93,7 @@ export function defineAbilityFor(user: AbilityUser | null): AppAbility {
   const { can, cannot, build } = new AbilityBuilder<MongoAbility>(createMongoAbility);
   if (!user) return build() as AppAbility;
   for (const membership of user.memberships) {
-    if (membership.role === 'analyst') analystRules(can, membership.initiativeId);
+    if (membership.role === 'analyst') analystRules(can, membership.initiativeId, user.id);
     else if (membership.role === 'clinician') clinicianRules(can, cannot, membership.initiativeId, user.id);
     else if (membership.role === 'auditor') auditorRules(can, membership.initiativeId, user.id);
   }
@@ -102,6 +104,10 @@ export function defineAbilityFor(user: AbilityUser | null): AppAbility {
     can(['read', 'create', 'update'], 'Initiative');
     can('read', 'Outbox');
     can('read', 'AuditTrail', { initiativeId: { $exists: false } });
+    // Any run of an initiative they belong to, whoever started it (an administrator
+    // outside an initiative sees none of its runs).
+    const memberOf = user.memberships.map((membership) => membership.initiativeId);
+    if (memberOf.length > 0) can('cancel', 'Run', { initiativeId: { $in: memberOf } });
   }
   return build() as AppAbility;
 }

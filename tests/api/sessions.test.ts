@@ -10,7 +10,7 @@ import { hashPassword } from '../../src/lib/server/passwords';
 import { hashToken, SESSION_COOKIE } from '../../src/lib/server/session';
 import { readdirSync, readFileSync } from 'node:fs';
 import path from 'node:path';
-import { mailDir, startServer, type ServerHandle } from '../browser/harness';
+import { appUrl, mailDir, startServer, type ServerHandle } from '../browser/harness';
 import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
 import { ApiClient } from '../support/http';
 
@@ -201,6 +201,73 @@ describe('personal API tokens', () => {
 
     expect((await client.request('DELETE', `/api/me/tokens/${item.id}`)).status).toBe(204);
     expect((await script.request('GET', '/api/me')).status).toBe(401);
+  });
+});
+
+describe('issue 13 regressions', () => {
+  it('never redirects off the site after signing in, on the page or its form', async () => {
+    const { client } = await signedIn();
+    const page = await client.request('GET', '/sign-in?next=%2F%09%2Fevil.example');
+    expect(page.status).toBe(302);
+    expect(page.headers.get('location')).toBe('/');
+    const user = await makeUser({ passwordHash });
+    const form = new URLSearchParams({ email: user.email, password, next: '/\t/evil.example' });
+    const posted = await fetch(`${appUrl}/sign-in`, {
+      method: 'POST', redirect: 'manual', body: form,
+      headers: { 'Content-Type': 'application/x-www-form-urlencoded', Origin: appUrl },
+    });
+    expect(posted.status).toBe(302);
+    expect(posted.headers.get('location')).toBe('/');
+  });
+
+  it('records the socket’s address, not a forged X-Forwarded-For, when no proxy is trusted', async () => {
+    const user = await makeUser({ passwordHash });
+    const refused = await new ApiClient().request('POST', '/api/auth/sign-in', { email: user.email, password: 'not-the-password' }, { 'X-Forwarded-For': '203.0.113.77' });
+    expect(refused.status).toBe(401);
+    const attempts = await ownerDb().query<{ client_address: string }>(
+      "SELECT client_address FROM signin_attempts WHERE account_key = encode(sha256(convert_to('crossgrain-signin:' || :email, 'UTF8')), 'hex')",
+      { replacements: { email: user.email }, type: QueryTypes.SELECT },
+    );
+    expect(attempts.map((a) => a.client_address)).toEqual(['127.0.0.1']);
+    const audited = await ownerDb().query<{ client_address: string }>(
+      "SELECT client_address FROM audit_events WHERE action = 'auth.sign-in-failed' AND subject_id = :id",
+      { replacements: { id: user.id }, type: QueryTypes.SELECT },
+    );
+    expect(audited.map((a) => a.client_address)).toEqual(['127.0.0.1']);
+  });
+
+  it('ends API tokens with a password reset, and keeps them dead when a deactivated user is reactivated', async () => {
+    const { user, client } = await signedIn();
+    const mint = async (who: ApiClient, name: string) => ((await (await who.request('POST', '/api/me/tokens', { name })).json()) as { token: string }).token;
+    const beforeReset = new ApiClient(await mint(client, 'before reset'));
+    expect((await beforeReset.request('GET', '/api/me')).status).toBe(200);
+    expect((await new ApiClient().request('POST', '/api/auth/forgot-password', { email: user.email })).status).toBe(202);
+    const token = await resetTokenFor(user.email);
+    expect((await new ApiClient().request('POST', '/api/auth/reset-password', { token, password: 'reed-warbler-estuary' })).status).toBe(204);
+    expect((await beforeReset.request('GET', '/api/me')).status).toBe(401);
+
+    const admin = await signedIn({ isAdmin: true });
+    const target = await signedIn();
+    const script = new ApiClient(await mint(target.client, 'nightly'));
+    expect((await script.request('GET', '/api/me')).status).toBe(200);
+    expect((await admin.client.request('PATCH', `/api/admin/users/${target.user.id}`, { status: 'deactivated' })).status).toBe(204);
+    expect((await admin.client.request('PATCH', `/api/admin/users/${target.user.id}`, { status: 'active' })).status).toBe(204);
+    expect((await script.request('GET', '/api/me')).status).toBe(401);
+  });
+
+  it('refuses a NUL or a lone surrogate in text with a 400 naming the field, not a 500', async () => {
+    const { client } = await signedIn();
+    // Sent as JSON escapes, as a script would: JSON.parse turns them into the characters.
+    for (const name of ['nightly\\u0000export', 'broken \\ud800 name']) {
+      const raw = await fetch(`${appUrl}/api/me/tokens`, {
+        method: 'POST', body: `{"name":"${name}"}`,
+        headers: { 'Content-Type': 'application/json', Cookie: `${SESSION_COOKIE}=${client.cookie(SESSION_COOKIE)}` },
+      });
+      expect(raw.status).toBe(400);
+      const body = (await raw.json()) as { error: { code: string; details: { path: string }[] } };
+      expect(body.error.code).toBe('validation-failed');
+      expect(body.error.details[0].path).toBe('name');
+    }
   });
 });
 

@@ -196,6 +196,47 @@ describe('checkpoints of the chain head (standards: truncation is detectable)', 
   });
 });
 
+describe('a checkpoint checked against a broken chain (issue 13)', () => {
+  /** Changes one stored action behind the application's back; returns the undo. */
+  async function tamperWith(position: number): Promise<() => Promise<void>> {
+    const [target] = await ownerDb().query<{ id: string; action: string }>('SELECT id, action FROM audit_events WHERE chain_position = :position', {
+      replacements: { position }, type: QueryTypes.SELECT,
+    });
+    const rewrite = (action: string) =>
+      ownerDb().transaction(async (t) => {
+        await ownerDb().query('ALTER TABLE audit_events DISABLE TRIGGER audit_events_no_change', { transaction: t });
+        await ownerDb().query('UPDATE audit_events SET action = :action WHERE id = :id', { replacements: { action, id: target.id }, transaction: t });
+        await ownerDb().query('ALTER TABLE audit_events ENABLE TRIGGER audit_events_no_change', { transaction: t });
+      });
+    await rewrite(`${target.action.slice(0, -1)}m`);
+    return () => rewrite(target.action);
+  }
+
+  it('says the chain is broken, never that the checkpoint holds with events "added since"', async () => {
+    const user = await makeUser();
+    const append = async (n: number) => {
+      for (let i = 0; i < n; i += 1) await withIdentity(user.id, (t) => recordAudit(t, { action: 'auth.sign-in', actorId: user.id, details: { i } }));
+    };
+    await append(3);
+    const checkpoint = (await withIdentity(null, (t) => takeCheckpoint(t)))!;
+    await append(3);
+    for (const position of [checkpoint.position - 1, checkpoint.position + 2]) {
+      const undo = await tamperWith(position);
+      try {
+        const report = await withIdentity(null, (t) => verifyAuditChain(t, checkpoint));
+        expect(report.broken?.position).toBe(position);
+        expect(report.intact).toBe(false);
+        expect(report.checkpoint?.holds).toBe(false);
+        expect(report.checkpoint?.finding).toMatch(new RegExp(`^Broken: .*the chain is broken at position ${position}`));
+        expect(report.checkpoint?.finding).not.toMatch(/Holds|added since/);
+      } finally {
+        await undo();
+      }
+    }
+    expect((await withIdentity(null, (t) => verifyAuditChain(t, checkpoint))).checkpoint?.holds).toBe(true);
+  });
+});
+
 describe('the audit:checkpoint command', () => {
   const command = path.resolve(import.meta.dirname, '../../src/features/audit/checkpointCommand.ts');
   const run = (...args: string[]) => spawnSync('npx', ['tsx', command, ...args], { env: process.env, encoding: 'utf8' });

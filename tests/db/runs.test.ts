@@ -15,7 +15,7 @@ import { generateCallBackCohort } from '../../src/features/extracts/demoCohorts'
 import { loadColumns } from '../../src/features/extracts/columns.server';
 import { toEngineData } from '../../src/features/extracts/engineData';
 import { executeRun } from '../../src/features/runs/executeRun';
-import { columnRoles, getRun, specHash, startRun, startVerification } from '../../src/features/runs/runs.server';
+import { columnRoles, getRun, requestCancel, specHash, startRun, startVerification } from '../../src/features/runs/runs.server';
 import { cautionText } from '../../src/lib/cautions';
 import { sequelize, withIdentity } from '../../src/lib/server/db';
 import { makeReadyExtract } from '../support/extractFactory';
@@ -164,5 +164,39 @@ describe('verification re-runs under row-level security', () => {
     expect(await executeRun(started.runId, auditorId, { threads: 0 })).toBe('succeeded');
     const rerun = await withIdentity(auditorId, (t) => getRun(t, started.runId, { withResult: false }));
     expect(rerun?.verification?.reproduced).toBe(true);
+  });
+
+  it('lets only a run’s starter or an administrator of its initiative cancel it, whatever the caller asks of the database (issue 13)', async () => {
+    const auditorId = (await makeUser()).id;
+    const otherAnalystId = (await makeUser()).id;
+    const adminId = (await makeUser({ isAdmin: true })).id;
+    await addMember(initiativeId, auditorId, 'auditor');
+    await addMember(initiativeId, otherAnalystId, 'analyst');
+    await addMember(initiativeId, adminId, 'clinician');
+    const { id } = await newAnalysis();
+    const { runId } = await queue(id);
+    expect(await executeRun(runId, analystId, { threads: 0 })).toBe('succeeded');
+    const verification = await withIdentity(auditorId, (t) => startVerification(t, { id: auditorId, clientAddress: 'test' }, runId));
+    const other = await queue(id);
+    const statusOf = async (rid: string) =>
+      (await ownerDb().query<{ status: string }>('SELECT status FROM runs WHERE id = :rid', { replacements: { rid }, type: QueryTypes.SELECT }))[0]?.status;
+
+    // Another analyst, and even the analyst who started the verified run, cannot stop the auditor's re-run.
+    for (const who of [otherAnalystId, analystId]) {
+      await expect(withIdentity(who, (t) => requestCancel(t, { id: who, clientAddress: 'test' }, verification.runId))).rejects.toMatchObject({ status: 404 });
+      const touched = await withIdentity(who, (t) =>
+        sequelize.query<{ id: string }>('UPDATE runs SET cancel_requested = true WHERE id = :rid RETURNING id', {
+          replacements: { rid: verification.runId }, type: QueryTypes.SELECT, transaction: t,
+        }),
+      );
+      expect(touched).toEqual([]);
+    }
+    expect(await statusOf(verification.runId)).toBe('queued');
+    // Nor can another analyst stop their colleague's run.
+    await expect(withIdentity(otherAnalystId, (t) => requestCancel(t, { id: otherAnalystId, clientAddress: 'test' }, other.runId))).rejects.toMatchObject({ status: 404 });
+    expect(await statusOf(other.runId)).toBe('queued');
+    // The starter can, and an administrator who belongs to the initiative can.
+    expect(await withIdentity(auditorId, (t) => requestCancel(t, { id: auditorId, clientAddress: 'test' }, verification.runId))).toBe('cancelled');
+    expect(await withIdentity(adminId, (t) => requestCancel(t, { id: adminId, clientAddress: 'test' }, other.runId))).toBe('cancelled');
   });
 });

@@ -12,6 +12,7 @@ import { renderEmail, sendMail } from '../../lib/server/mail';
 import { endAllSessions } from '../../lib/server/session';
 import { recordAudit } from '../audit/audit.server';
 import { issueToken } from '../auth/auth.server';
+import { revokeAllApiTokens } from '../auth/apiTokens.server';
 import type { CreateInitiativeBody, InitiativeItem, InviteUserBody, UpdateInitiativeBody, UserListItem } from './admin.schema';
 
 export interface Actor {
@@ -105,7 +106,10 @@ export async function setUserStatus(transaction: Transaction, actor: Actor, user
     clientAddress: actor.address,
     details: { from, to: status },
   });
-  if (status === 'deactivated') await endAllSessions(userId);
+  if (status === 'deactivated') {
+    await revokeAllApiTokens(transaction, userId, 'deactivated', { id: actor.id, clientAddress: actor.address });
+    await endAllSessions(userId);
+  }
 }
 
 interface InitiativeRow {

@@ -97,7 +97,7 @@ export async function verifyAuditChain(transaction: Transaction, checkpoint?: Au
     ? { position: Number(row.broken_position), eventId: Number(row.broken_id), reason: row.reason ?? '' }
     : null;
   const headPosition = row.head_position === null ? null : Number(row.head_position);
-  const against = checkpoint ? await compareWithCheckpoint(transaction, checkpoint, headPosition) : null;
+  const against = checkpoint ? await compareWithCheckpoint(transaction, checkpoint, headPosition, broken) : null;
   return {
     checked: Number(row.checked),
     intact: broken === null && (against?.holds ?? true),
@@ -108,7 +108,12 @@ export async function verifyAuditChain(transaction: Transaction, checkpoint?: Au
   };
 }
 
-async function compareWithCheckpoint(transaction: Transaction, checkpoint: AuditCheckpoint, headPosition: number | null): Promise<NonNullable<ChainReport['checkpoint']>> {
+async function compareWithCheckpoint(
+  transaction: Transaction,
+  checkpoint: AuditCheckpoint,
+  headPosition: number | null,
+  broken: ChainReport['broken'],
+): Promise<NonNullable<ChainReport['checkpoint']>> {
   // The chain's link function (SECURITY DEFINER, positions and hashes only): raw SQL.
   const [link] = await sequelize.query<{ link_hash: string }>('SELECT link_hash FROM app_audit_chain_link(:position)', {
     replacements: { position: checkpoint.position }, type: QueryTypes.SELECT, transaction,
@@ -117,6 +122,15 @@ async function compareWithCheckpoint(transaction: Transaction, checkpoint: Audit
   if (!link) {
     const ends = headPosition === null ? 'the trail holds no events' : `the chain now ends at position ${headPosition}`;
     return { ...base, holds: false, finding: `Truncated: the checkpoint of ${checkpoint.takenAt} records an event at position ${checkpoint.position}, but ${ends}.` };
+  }
+  if (broken) {
+    // The chain check stops at the first broken link, so the head it reports is not the
+    // trail's: say the chain is broken rather than count events "added since".
+    const where = `the chain is broken at position ${broken.position}${broken.reason ? ` (${broken.reason})` : ''}`;
+    if (broken.position <= checkpoint.position || link.link_hash !== checkpoint.hash) {
+      return { ...base, holds: false, finding: `Broken: ${where}, at or before the checkpoint of ${checkpoint.takenAt} (position ${checkpoint.position}), so the checkpoint does not hold.` };
+    }
+    return { ...base, holds: false, finding: `Broken: the event at position ${checkpoint.position} still has the checkpoint's hash, but ${where}, after the checkpoint of ${checkpoint.takenAt}.` };
   }
   if (link.link_hash !== checkpoint.hash) {
     return { ...base, holds: false, finding: `Rewritten: the event at position ${checkpoint.position} no longer has the hash the checkpoint of ${checkpoint.takenAt} recorded, so the chain up to it was replaced.` };

@@ -58,6 +58,27 @@ export async function revokeApiToken(transaction: Transaction, userId: string, t
   await recordAudit(transaction, { action: 'token.revoked', actorId: userId, subjectType: 'api-token', subjectId: tokenId, clientAddress });
 }
 
+/**
+ * Revokes every live token of a person, in the caller's transaction: a password reset and
+ * a deactivation both end them for good (reactivation does not bring them back). One audit
+ * event names how many died and why.
+ */
+export async function revokeAllApiTokens(
+  transaction: Transaction,
+  userId: string,
+  reason: 'password-reset' | 'deactivated',
+  actor: { id: string | null; clientAddress: string },
+): Promise<number> {
+  const [revoked] = await ApiToken.update({ revokedAt: fn('now') }, { where: { userId, revokedAt: null }, transaction });
+  if (revoked > 0) {
+    await recordAudit(transaction, {
+      action: 'token.revoked', actorId: actor.id, subjectType: 'user', subjectId: userId,
+      clientAddress: actor.clientAddress, details: { reason, count: revoked },
+    });
+  }
+  return revoked;
+}
+
 /** Resolves a bearer token to its user, recording the use; null when unknown or revoked. */
 export async function resolveApiToken(
   token: string,

@@ -8,12 +8,14 @@ import { AuthToken, User } from '../../../db/models';
 import { actAs, sequelize, withIdentity } from '../../lib/server/db';
 import { publicUrl } from '../../lib/server/env';
 import { AppError, tooManyRequests, unprocessable } from '../../lib/server/errors';
+import { logger } from '../../lib/server/logger';
 import { renderEmail, sendMail } from '../../lib/server/mail';
 import { hashPassword, verifyPassword } from '../../lib/server/passwords';
 import { endAllSessions, endSession, hashToken, newToken, startSession } from '../../lib/server/session';
 import { recordAudit } from '../audit/audit.server';
+import { revokeAllApiTokens } from './apiTokens.server';
 import { passwordProblem } from './passwordPolicy';
-import { recordAttempt, throttleState } from './throttle.server';
+import { recordAttempt, recordResetRequest, resetRequestState, throttleState } from './throttle.server';
 
 export interface ClientInfo {
   address: string;
@@ -198,24 +200,53 @@ function requireGoodPassword(password: string, email: string): void {
   if (problem) throw unprocessable('password-refused', problem, [{ path: 'password', message: problem }]);
 }
 
-/** E-mails a reset link when the address belongs to an active account; silent otherwise. */
+/**
+ * E-mails a reset link when the address belongs to an active account; silent otherwise.
+ * Known and unknown addresses run the very same statements (the token insert simply
+ * selects no row for an unknown or inactive account) and the mail leaves after the
+ * answer, so neither the answer nor its timing tells whether an account exists. Requests
+ * are counted per account and per address; past the limit the answer is one 429 for all.
+ */
 export async function requestPasswordReset(email: string, client: ClientInfo): Promise<void> {
   const normalised = email.trim().toLowerCase();
-  const mail = await withIdentity(null, async (transaction) => {
-    const user = await findUserByEmail(transaction, normalised);
+  const token = newToken(24);
+  const outcome = await withIdentity(null, async (transaction) => {
+    const throttle = await resetRequestState(transaction, normalised, client.address);
+    if (throttle.blocked) return { kind: 'throttled' as const, retryAfter: throttle.retryAfterSeconds };
+    await recordResetRequest(transaction, normalised, client.address);
+    const replacements = {
+      email: normalised,
+      tokenHash: hashToken(token),
+      expiresAt: new Date(Date.now() + TOKEN_LIFETIME_MS['password-reset']),
+    };
+    // A new link replaces any unused one; both statements match no row for an unknown account.
+    await sequelize.query(
+      `UPDATE auth_tokens SET used_at = now()
+        WHERE purpose = 'password-reset' AND used_at IS NULL
+          AND user_id IN (SELECT id FROM users WHERE email = :email AND status = 'active')`,
+      { replacements, transaction },
+    );
+    const issued = await sequelize.query<{ user_id: string }>(
+      `INSERT INTO auth_tokens (user_id, purpose, token_hash, expires_at)
+       SELECT id, 'password-reset', :tokenHash, :expiresAt FROM users WHERE email = :email AND status = 'active'
+       RETURNING user_id`,
+      { replacements, type: QueryTypes.SELECT, transaction },
+    );
+    const userId = issued[0]?.user_id ?? null;
     await recordAudit(transaction, {
       action: 'auth.password-reset-requested',
       actorId: null,
-      subjectType: user ? 'user' : undefined,
-      subjectId: user?.id,
+      subjectType: userId ? 'user' : undefined,
+      subjectId: userId ?? undefined,
       clientAddress: client.address,
-      details: { sent: Boolean(user && user.status === 'active') },
+      details: { sent: userId !== null },
     });
-    if (!user || user.status !== 'active') return null;
-    return { token: await issueToken(transaction, user.id, 'password-reset', null), email: user.email };
+    return { kind: 'accepted' as const, sent: userId !== null };
   });
-  if (!mail) return;
-  const link = `${publicUrl()}/reset-password?token=${encodeURIComponent(mail.token)}`;
+  if (outcome.kind === 'throttled') {
+    throw tooManyRequests('Too many reset requests for this address or from this network. Wait a while, then try again.', outcome.retryAfter);
+  }
+  const link = `${publicUrl()}/reset-password?token=${encodeURIComponent(token)}`;
   const message = renderEmail({
     heading: 'Reset your password',
     paragraphs: [
@@ -224,7 +255,11 @@ export async function requestPasswordReset(email: string, client: ClientInfo): P
     ],
     action: { label: 'Set a new password', url: link },
   });
-  await sendMail({ to: mail.email, subject: 'Reset your Crossgrain password', ...message });
+  if (!outcome.sent) return;
+  // The answer does not wait for the mail server (its delay would tell that the account exists).
+  void sendMail({ to: normalised, subject: 'Reset your Crossgrain password', ...message }).catch((error: unknown) => {
+    logger.error({ err: error }, 'password reset mail could not be sent');
+  });
 }
 
 /** Sets a new password from a reset link and ends every session of the account. */
@@ -235,6 +270,7 @@ export async function resetPassword(token: string, password: string, client: Cli
     await User.update({ passwordHash: await hashPassword(password) }, { where: { id: user.id }, transaction });
     await actAs(transaction, user.id);
     await recordAudit(transaction, { action: 'auth.password-reset', actorId: user.id, subjectType: 'user', subjectId: user.id, clientAddress: client.address });
+    await revokeAllApiTokens(transaction, user.id, 'password-reset', { id: user.id, clientAddress: client.address });
     return user.id;
   });
   await endAllSessions(userId);

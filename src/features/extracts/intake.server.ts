@@ -10,7 +10,7 @@
  */
 import { randomUUID } from 'node:crypto';
 import { createWriteStream, mkdirSync } from 'node:fs';
-import { rename, rm } from 'node:fs/promises';
+import { readdir, rename, rm, stat } from 'node:fs/promises';
 import path from 'node:path';
 import { Readable } from 'node:stream';
 import Busboy from 'busboy';
@@ -32,6 +32,45 @@ const storedFile = (initiativeId: string, versionId: string) =>
   path.resolve(env.CROSSGRAIN_DATA_DIR, 'extracts', initiativeId, `${versionId}.csv`);
 
 type ChunkSource = AsyncIterable<Uint8Array>;
+
+/** When this process started: a partial file older than that belongs to an ended process. */
+const processStartedAt = Date.now() - process.uptime() * 1000;
+
+/**
+ * Removes the partial upload files (`.part`) that a process which ended mid-upload (a
+ * crash, a kill) left behind: those last changed before this process started. Runs once
+ * per process, before its first upload; returns the names removed.
+ */
+export async function sweepPartialUploads(directory = uploadDir(), startedAt = processStartedAt): Promise<string[]> {
+  let names: string[];
+  try {
+    names = await readdir(directory);
+  } catch {
+    return [];
+  }
+  const removed: string[] = [];
+  for (const name of names.filter((entry) => entry.endsWith('.part'))) {
+    const file = path.join(directory, name);
+    const info = await stat(file).catch(() => null);
+    if (!info || info.mtimeMs >= startedAt) continue;
+    await rm(file, { force: true });
+    removed.push(name);
+  }
+  if (removed.length > 0) logger.info({ count: removed.length }, 'removed partial upload files left by an earlier process');
+  return removed;
+}
+
+let swept: Promise<string[]> | null = null;
+
+/** Closes a partial file (waiting for a pending open to settle) and removes it. */
+async function discardPartFile(file: ReturnType<typeof createWriteStream>, partFile: string): Promise<void> {
+  if (!file.closed) {
+    const closed = new Promise<void>((resolve) => file.once('close', () => resolve()));
+    file.destroy();
+    await closed;
+  }
+  await rm(partFile, { force: true });
+}
 
 /** The CSV bytes of a request: a raw `text/csv` body, or the first file of a multipart form. */
 export function uploadSource(request: Request): ChunkSource {
@@ -127,6 +166,7 @@ export async function receiveUpload(
   });
 
   mkdirSync(uploadDir(), { recursive: true, mode: 0o700 });
+  await (swept ??= sweepPartialUploads());
   const partFile = path.join(uploadDir(), `${start.versionId}.part`);
   const expectedBytes = Number(request.headers.get('content-length') ?? 0) || undefined;
   if (expectedBytes && expectedBytes > env.CROSSGRAIN_UPLOAD_MAX_BYTES) {
@@ -153,8 +193,9 @@ export async function receiveUpload(
     });
     await closeFile(file);
   } catch (error) {
-    file.destroy();
-    await rm(partFile, { force: true });
+    // A refusal on the first chunk can come before the file has even opened: wait for it
+    // to close, or a 0-byte file would appear after the removal.
+    await discardPartFile(file, partFile);
     if (error instanceof ExtractRefusalError) {
       await refuseIntake(uploader, start, [error.toJSON()], 'reading');
       throw refusalAsAppError(error);

@@ -38,6 +38,18 @@ const Env = z.object({
   CROSSGRAIN_SIGNIN_MAX_FAILURES_ACCOUNT: z.coerce.number().int().positive().default(5),
   CROSSGRAIN_SIGNIN_MAX_FAILURES_ADDRESS: z.coerce.number().int().positive().default(20),
   CROSSGRAIN_SIGNIN_WINDOW_MINUTES: z.coerce.number().positive().default(15),
+  /** Reset links one account, or one client address, may ask for within the window. */
+  CROSSGRAIN_RESET_MAX_PER_ACCOUNT: z.coerce.number().int().positive().default(3),
+  CROSSGRAIN_RESET_MAX_PER_ADDRESS: z.coerce.number().int().positive().default(10),
+  CROSSGRAIN_RESET_WINDOW_MINUTES: z.coerce.number().positive().default(60),
+  /**
+   * Addresses of the reverse proxies allowed to name the client in X-Forwarded-For
+   * (comma-separated). Empty by default: the socket's address is the client's.
+   */
+  CROSSGRAIN_TRUSTED_PROXIES: z
+    .string()
+    .default('')
+    .transform((value) => value.split(',').map((item) => item.trim()).filter((item) => item.length > 0)),
 
   CROSSGRAIN_UPLOAD_MAX_BYTES: z.coerce.number().int().positive().default(500 * 1024 * 1024),
   CROSSGRAIN_DATA_DIR: z.string().default('.data'),

@@ -2,6 +2,8 @@ import type { APIContext, APIRoute } from 'astro';
 import { z, type ZodType } from 'zod';
 import { AppError, databaseUnavailable, isDatabaseUnavailable, validationFailed, type ErrorBody } from './errors';
 import { logger } from './logger';
+import { clientAddressOf } from './forwarded';
+import { assertStorableText } from './textSafety';
 
 /** A JSON response with the given status. */
 export function json(body: unknown, status = 200, headers: Record<string, string> = {}): Response {
@@ -79,6 +81,7 @@ export async function parseBody<S extends ZodType>(request: Request, schema: S):
   } catch {
     throw new AppError(400, 'invalid-json', 'The request body must be JSON.');
   }
+  assertStorableText(raw);
   const parsed = schema.safeParse(raw);
   if (!parsed.success) throw validationFailed(flattenIssues(parsed.error));
   return parsed.data;
@@ -86,18 +89,25 @@ export async function parseBody<S extends ZodType>(request: Request, schema: S):
 
 /** Parses a URL's query string with a zod schema (values arrive as strings). */
 export function parseQuery<S extends ZodType>(url: URL, schema: S): z.infer<S> {
-  const parsed = schema.safeParse(Object.fromEntries(url.searchParams));
+  const raw = Object.fromEntries(url.searchParams);
+  assertStorableText(raw);
+  const parsed = schema.safeParse(raw);
   if (!parsed.success) throw validationFailed(flattenIssues(parsed.error));
   return parsed.data;
 }
 
-/** The client's address as the adapter saw it. Behind a proxy, configure the proxy to set it. */
-export function clientAddress(context: APIContext | { clientAddress: string }): string {
+/**
+ * The client's address: the socket's, or X-Forwarded-For's only when the connection comes
+ * from a proxy named in CROSSGRAIN_TRUSTED_PROXIES (see forwarded.ts).
+ */
+export function clientAddress(context: APIContext | { clientAddress: string; request: Request }): string {
+  let astroAddress: string;
   try {
-    return context.clientAddress;
+    astroAddress = context.clientAddress;
   } catch {
-    return 'unknown';
+    astroAddress = 'unknown';
   }
+  return clientAddressOf(context.request, astroAddress);
 }
 
 /** The signed-in user, or a 401. */

@@ -1,10 +1,25 @@
 import type { AstroGlobal } from 'astro';
 import { AppError } from './errors';
+import { assertStorableText } from './textSafety';
 
-/** A same-site path to go to after signing in; anything else becomes "/". */
+/**
+ * A same-origin path to go to after signing in; anything else becomes "/". The value must
+ * start with a single "/", hold no backslash and no control character (a tab or newline
+ * inside "/\t/evil.example" is dropped by URL parsers and leaves "//evil.example"), and
+ * still resolve to the same origin once parsed as a URL.
+ */
 export function safeNext(value: string | null | undefined): string {
-  if (!value || !value.startsWith('/') || value.startsWith('//') || value.startsWith('/\\')) return '/';
-  return value;
+  if (!value || !value.startsWith('/') || value.startsWith('//')) return '/';
+  if (value.includes('\\') || /[\u0000-\u001f\u007f-\u009f]/.test(value)) return '/';
+  const origin = 'http://crossgrain.invalid';
+  let parsed: URL;
+  try {
+    parsed = new URL(value, origin);
+  } catch {
+    return '/';
+  }
+  if (parsed.origin !== origin || !parsed.pathname.startsWith('/') || parsed.pathname.startsWith('//')) return '/';
+  return `${parsed.pathname}${parsed.search}${parsed.hash}`;
 }
 
 /** Redirects signed-out visitors to the sign-in page, remembering where they were going. */
@@ -22,8 +37,10 @@ export function formError(error: unknown): { status: number; message: string; fi
   throw error;
 }
 
-/** Reads a form field as trimmed text ('' when absent). */
+/** Reads a form field as text ('' when absent); a control character in it is a 400 naming the field. */
 export function field(form: FormData, name: string): string {
   const value = form.get(name);
-  return typeof value === 'string' ? value : '';
+  if (typeof value !== 'string') return '';
+  assertStorableText(value, [name]);
+  return value;
 }
