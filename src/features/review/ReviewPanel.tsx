@@ -5,7 +5,7 @@
  * (the same abilities the API checks).
  */
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import { useRef, useState, type SyntheticEvent } from 'react';
+import { useEffect, useRef, useState, type SyntheticEvent } from 'react';
 import { apiFetch } from '../../lib/client/api';
 import { useHydrated } from '../../lib/client/useHydrated';
 import { QueryRoot } from '../../components/ui/QueryRoot';
@@ -105,7 +105,14 @@ function Panel({ runId, canSubmit, canDecide, canComment }: Props) {
   const client = useQueryClient();
   const [note, setNote] = useState('');
   const [deciding, setDeciding] = useState<Decision | null>(null);
-  const opener = useRef<HTMLButtonElement | null>(null);
+  // The button that opened the confirmation gets the focus back when it closes (it is re-rendered, so after the render).
+  const openers = useRef<Partial<Record<Decision, HTMLButtonElement | null>>>({});
+  const [refocus, setRefocus] = useState<Decision | null>(null);
+  useEffect(() => {
+    if (!refocus || deciding) return;
+    openers.current[refocus]?.focus();
+    setRefocus(null);
+  }, [refocus, deciding]);
   const review = useQuery({ queryKey: ['review', runId], queryFn: () => apiFetch<ReviewView>(`/api/runs/${runId}/review`) });
   const done = (data: ReviewView) => {
     client.setQueryData(['review', runId], data);
@@ -130,14 +137,13 @@ function Panel({ runId, canSubmit, canDecide, canComment }: Props) {
   const data = review.data;
   const maySubmit = canSubmit && (data.state === 'draft' || data.state === 'sent-back');
   const mayDecide = canDecide && data.state === 'submitted';
-  const open = (decision: Decision, button: HTMLButtonElement) => {
-    opener.current = button;
+  const open = (decision: Decision) => {
     decide.reset();
     setDeciding(decision);
   };
   const close = () => {
+    setRefocus(deciding);
     setDeciding(null);
-    opener.current?.focus();
   };
 
   return (
@@ -179,8 +185,8 @@ function Panel({ runId, canSubmit, canDecide, canComment }: Props) {
       {mayDecide && !deciding && (
         <div className="mt-4 grid gap-2 max-w-2xl">
           <div className="flex flex-wrap gap-2">
-            <button type="button" className="btn btn-secondary" disabled={!hydrated} onClick={(e) => open('sign-off', e.currentTarget)}>Sign off…</button>
-            <button type="button" className="btn btn-secondary" disabled={!hydrated} onClick={(e) => open('send-back', e.currentTarget)}>Send back…</button>
+            <button type="button" ref={(b) => { openers.current['sign-off'] = b; }} className="btn btn-secondary" disabled={!hydrated} onClick={() => open('sign-off')}>Sign off…</button>
+            <button type="button" ref={(b) => { openers.current['send-back'] = b; }} className="btn btn-secondary" disabled={!hydrated} onClick={() => open('send-back')}>Send back…</button>
           </div>
           <p className="text-xs text-ink-500">Either decision is your electronic signature, with your password and its meaning. Signing off says the analysis is clinically plausible and fit to brief; it is still exploratory, not clinical guidance.</p>
         </div>
