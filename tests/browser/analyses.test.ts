@@ -181,6 +181,7 @@ describe('the review of the age-band run', () => {
     await clinician.page.getByRole('navigation', { name: 'Initiatives' }).getByRole('link', { name: /Call-back within 72 hours/ }).click();
     await clinician.page.getByRole('navigation', { name: 'Initiative sections' }).getByRole('link', { name: 'Review board' }).click();
     await expect(clinician.page.getByTestId('board-signed-off').textContent()).resolves.toContain('Call-back effect by age band');
+    await expect(clinician.page.getByTestId('board-signed-off').textContent()).resolves.toContain('meaning “reviewed, no objection”');
     await saveScreenshot(clinician.page, 'review-board');
     expect(clinician.consoleErrors).toEqual([]);
     await clinician.context.close();
