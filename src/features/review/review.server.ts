@@ -6,11 +6,10 @@
  * row-level security policies in policies/rls/007_review.sql.
  */
 import { QueryTypes, type Transaction } from 'sequelize';
-import { ReviewStep, Run, RunComment, User } from '../../../db/models';
+import { ReviewStep, RunComment, User } from '../../../db/models';
 import { sequelize } from '../../lib/server/db';
 import { conflict, notFound } from '../../lib/server/errors';
 import { recordAudit } from '../audit/audit.server';
-import { resultDigest } from '../runs/canonical';
 import { REVIEW_STATES, type BoardView, type ReviewState, type ReviewView } from './review.schema';
 
 export interface Reviewer {
@@ -80,9 +79,10 @@ export async function reviewOf(transaction: Transaction, runId: string): Promise
   };
 }
 
-/** A decision's signature: what it means; the step binds it to the run's result digest. */
+/** A decision's signature: what it means, and the digest of the run's result it signs (storedResultDigest in the runs area). */
 export interface Signature {
   meaning: string;
+  resultDigest: string;
 }
 
 async function addStep(
@@ -95,7 +95,7 @@ async function addStep(
   await sequelize.query('SELECT pg_advisory_xact_lock(hashtext(:key))', { replacements: { key: `review:${run.id}` }, transaction });
   const state = await stateOf(transaction, run.id);
   if (!NEXT[state].includes(kind)) throw conflict(`This run is ${STATE_WORDS[state]}, so it cannot be ${STEP_WORDS[kind]} now.`);
-  const signed = signature ? { meaning: signature.meaning.trim(), resultDigest: await digestOf(transaction, run.id) } : { meaning: null, resultDigest: null };
+  const signed = signature ? { meaning: signature.meaning.trim(), resultDigest: signature.resultDigest } : { meaning: null, resultDigest: null };
   await ReviewStep.create({ runId: run.id, initiativeId: run.initiativeId, kind, actorId: reviewer.id, note: note.trim(), ...signed }, { transaction });
   await recordAudit(transaction, {
     action: `review.${kind}`, actorId: reviewer.id, subjectType: 'run', subjectId: run.id, initiativeId: run.initiativeId,
@@ -103,13 +103,6 @@ async function addStep(
     details: { from: state, to: kind, noteLength: note.trim().length, ...(signature ? signed : {}) },
   });
   return kind;
-}
-
-/** The SHA-256 of the run's stored result as canonical JSON: the digest a verifying re-run compares. */
-async function digestOf(transaction: Transaction, runId: string): Promise<string> {
-  const row = await Run.findByPk(runId, { attributes: ['result'], transaction });
-  if (!row?.result) throw conflict('This run has no stored result to sign.');
-  return resultDigest(row.result);
 }
 
 /** An analyst submits a finished run for review (first time, or again after it was sent back). */

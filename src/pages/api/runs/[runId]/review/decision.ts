@@ -1,8 +1,9 @@
 import { confirmSigner } from '../../../../../features/auth/signature.server';
 import { decideReview, reviewedRun, reviewOf } from '../../../../../features/review/review.server';
 import { DecisionBody } from '../../../../../features/review/review.schema';
-import { readableRun } from '../../../../../features/runs/runAccess';
+import { readableRun, storedResultDigest } from '../../../../../features/runs/runAccess';
 import { authorize } from '../../../../../lib/server/authorize';
+import { conflict } from '../../../../../lib/server/errors';
 import { clientAddress, endpoint, json, parseBody, requireUser, uuidParam } from '../../../../../lib/server/http';
 
 /**
@@ -28,7 +29,10 @@ export const POST = endpoint(async (context) => {
     await context.locals.db(async (t) => {
       const current = await readableRun(t, user, runId);
       authorize(user, 'decide', 'Run', { initiativeId: current.initiativeId, startedBy: current.startedBy.id });
-      await decideReview(t, { id: user.id, clientAddress: address }, reviewedRun(current), decision, note, { meaning });
+      // The signature names the numbers it signs: the digest of the result as stored.
+      const resultDigest = current.status === 'succeeded' ? await storedResultDigest(t, runId) : null;
+      if (current.status === 'succeeded' && !resultDigest) throw conflict('This run has no stored result to sign.');
+      await decideReview(t, { id: user.id, clientAddress: address }, reviewedRun(current), decision, note, { meaning, resultDigest: resultDigest ?? '' });
       return reviewOf(t, runId);
     }),
   );
