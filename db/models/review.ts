@@ -1,4 +1,4 @@
-/** The review of runs: its append-only steps and comments (…create-review). */
+/** The review of runs: its append-only steps and comments (…create-review, …add-review-signatures). */
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type NonAttribute, type Sequelize } from 'sequelize';
 import { filledByDatabase, tableOptions, uuidKey } from './common';
 import { User } from './identity';
@@ -12,6 +12,10 @@ export class ReviewStep extends Model<InferAttributes<ReviewStep>, InferCreation
   declare kind: ReviewStepKind;
   declare actorId: string;
   declare note: CreationOptional<string>;
+  /** What the signer's decision means, in their words or one of ours (…add-review-signatures); null on submissions. */
+  declare meaning: CreationOptional<string | null>;
+  /** SHA-256 of the canonical result the decision signs; null on submissions. */
+  declare resultDigest: CreationOptional<string | null>;
   declare createdAt: CreationOptional<Date>;
   declare actor?: NonAttribute<User>;
 }
@@ -37,6 +41,8 @@ export function initReview(sequelize: Sequelize): void {
       kind: { type: DataTypes.TEXT, allowNull: false },
       actorId: { type: DataTypes.UUID, allowNull: false },
       note: filledByDatabase(DataTypes.TEXT),
+      meaning: { type: DataTypes.TEXT, allowNull: true },
+      resultDigest: { type: DataTypes.TEXT, allowNull: true },
       // clock_timestamp() by default, so steps in one transaction keep their order.
       createdAt: filledByDatabase(DataTypes.DATE),
     },

@@ -83,7 +83,10 @@ beforeAll(async () => {
   signedRunId = await finishedRun(analysisId);
   unsignedRunId = await finishedRun(analysisId);
   expect((await client('analyst').request('POST', `/api/runs/${signedRunId}/review/submit`, {})).status).toBe(200);
-  const decision = await client('clinician').request('POST', `/api/runs/${signedRunId}/review/decision`, { decision: 'sign-off', note: 'Numbers and methods checked against the protocol.' });
+  const decision = await client('clinician').request('POST', `/api/runs/${signedRunId}/review/decision`, {
+    // The brief states the signature's meaning (typed in the signer's own words here), not the note.
+    decision: 'sign-off', note: 'See the thread on the 80+ stratum.', meaning: 'Numbers and methods checked against the protocol.', password,
+  });
   expect(decision.status).toBe(200);
 }, 120_000);
 

@@ -56,7 +56,11 @@ afterAll(async () => {
 });
 
 const review = async () => (await clients.auditor.request('GET', `/api/runs/${runId}/review`)).json();
-const decide = (client: ApiClient, body: object) => client.request('POST', `/api/runs/${runId}/review/decision`, body);
+/** A decision, signed with the signer's password and a meaning of ours unless the body says otherwise. */
+const decide = (client: ApiClient, body: { decision: string; note?: string }) =>
+  client.request('POST', `/api/runs/${runId}/review/decision`, {
+    password, meaning: body.decision === 'sign-off' ? 'reviewed, no objection' : 'returned for changes', ...body,
+  });
 
 describe('the review of a run', () => {
   it('starts as a draft that only an analyst may submit', async () => {

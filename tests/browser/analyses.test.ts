@@ -148,17 +148,40 @@ describe('the review of the age-band run', () => {
     await clinician.page.getByLabel('Add a comment').fill('The 80+ estimate is the one the ward will ask about.');
     await clinician.page.getByRole('button', { name: 'Add comment' }).click();
     await clinician.page.getByTestId('comment-threads').getByText('The 80+ estimate is the one the ward will ask about.').waitFor();
-    // Sending back without a note is refused next to the field, and nothing is recorded.
-    await clinician.page.getByRole('button', { name: 'Send back' }).click();
-    await clinician.page.locator('#review-note-error').getByText('Say what needs to change').waitFor();
-    await expect(clinician.page.getByTestId('review-panel').getAttribute('data-state')).resolves.toBe('submitted');
-    await clinician.page.getByRole('button', { name: 'Sign off' }).click();
-    await clinician.page.locator('[data-testid="review-panel"][data-state="signed-off"]').waitFor();
+    const page = clinician.page;
+    await expect(page.getByTestId('review-state-top').textContent()).resolves.toBe('Submitted for review');
+    // Sending back opens its own signed confirmation; without a note it is refused next to the field, and nothing is recorded.
+    await page.getByRole('button', { name: 'Send back…' }).click();
+    const sendBack = page.getByTestId('decision-form-send-back');
+    await sendBack.getByLabel('Your password').fill(DEMO_PASSWORD);
+    await sendBack.getByRole('button', { name: 'Sign and send back' }).click();
+    await sendBack.getByText('Say what needs to change').waitFor();
+    await expect(page.getByTestId('review-panel').getAttribute('data-state')).resolves.toBe('submitted');
+    // Escape closes it and gives the focus back to the button that opened it.
+    await page.keyboard.press('Escape');
+    await expect(sendBack.count()).resolves.toBe(0);
+    await expect(page.evaluate(() => document.activeElement?.textContent)).resolves.toBe('Send back…');
+    // Signing off by keyboard: open the confirmation, choose a meaning, enter the password, sign.
+    await page.getByRole('button', { name: 'Sign off…' }).focus();
+    await page.keyboard.press('Enter');
+    const signOff = page.getByTestId('decision-form-sign-off');
+    await expect(page.evaluate(() => document.activeElement?.textContent)).resolves.toBe('Sign off this run');
+    await signOff.getByLabel('reviewed, no objection').check();
+    await signOff.getByLabel('Note to the analyst (optional)').fill('The age gradient matches what the ward sees.');
+    await signOff.getByLabel('Your password').fill(DEMO_PASSWORD);
+    await saveScreenshot(page, 'run-review-confirm');
+    await signOff.getByLabel('Your password').press('Enter');
+    await page.locator('[data-testid="review-panel"][data-state="signed-off"]').waitFor();
+    // Every view of the state on the page follows, without a reload.
+    await expect(page.getByTestId('review-state-top').textContent()).resolves.toBe('Signed off');
+    const signature = await page.getByTestId('review-signature').last().textContent();
+    expect(signature).toMatch(/^Signed by .+ at \d{4}-\d{2}-\d{2} \d{2}:\d{2} UTC, meaning “reviewed, no objection” · result [0-9a-f]{16}$/);
     await saveScreenshot(clinician.page, 'run-review');
     await clinician.page.goto(clinician.page.url().replace(/\/runs\/.*$/, '/'));
     await clinician.page.getByRole('navigation', { name: 'Initiatives' }).getByRole('link', { name: /Call-back within 72 hours/ }).click();
     await clinician.page.getByRole('navigation', { name: 'Initiative sections' }).getByRole('link', { name: 'Review board' }).click();
     await expect(clinician.page.getByTestId('board-signed-off').textContent()).resolves.toContain('Call-back effect by age band');
+    await expect(clinician.page.getByTestId('board-signed-off').textContent()).resolves.toContain('meaning “reviewed, no objection”');
     await saveScreenshot(clinician.page, 'review-board');
     expect(clinician.consoleErrors).toEqual([]);
     await clinician.context.close();

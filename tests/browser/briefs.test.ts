@@ -57,7 +57,9 @@ beforeAll(async () => {
   expect((await analyst.request('POST', `/api/runs/${runId}/review/submit`, {})).status).toBe(200);
   const clinician = new ApiClient();
   expect((await clinician.signIn(demoEmail('clinician'), DEMO_PASSWORD)).status).toBe(204);
-  const decided = await clinician.request('POST', `/api/runs/${runId}/review/decision`, { decision: 'sign-off', note: 'Checked the table against the protocol; fit for an internal brief.' });
+  const decided = await clinician.request('POST', `/api/runs/${runId}/review/decision`, {
+    decision: 'sign-off', note: 'Checked the table against the protocol; fit for an internal brief.', meaning: 'approved for an internal brief', password: DEMO_PASSWORD,
+  });
   expect(decided.status).toBe(200);
 }, 180_000);
 

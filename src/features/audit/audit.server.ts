@@ -34,6 +34,7 @@ export const AUDIT_ACTIONS = [
   'review.submitted',
   'review.signed-off',
   'review.sent-back',
+  'review.signature-refused',
   'review.commented',
   'brief.drafted',
   'brief.published',

@@ -154,7 +154,7 @@ export async function composeContent(transaction: Transaction, brief: BriefRecor
     runId: run.id, extract: { name: facts.extract_name, version: facts.version_number, sha256: run.extractSha256 },
     engineVersion: run.engineVersion ?? result.engineVersion, seed: run.seed, specHash: run.specHash,
     prespecifiedAt: facts.prespecified_at ? iso(facts.prespecified_at) : null, exploratory: run.exploratory, analysesInInitiative: Number(facts.analyses),
-    signOff: signed ? { by: signed.actor.name, at: signed.at, meaning: signed.note } : null, threshold: settings.cellThreshold,
+    signOff: signed ? { by: signed.actor.name, at: signed.at, meaning: signed.meaning ?? signed.note } : null, threshold: settings.cellThreshold,
   };
   return buildBriefContent(result, run.spec as Spec, briefFacts, { title: brief.title, summary: brief.summary, plot: brief.plot, ownCautions: brief.ownCautions });
 }

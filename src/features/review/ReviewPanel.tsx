@@ -5,10 +5,11 @@
  * (the same abilities the API checks).
  */
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import { useState, type SyntheticEvent } from 'react';
-import { ApiError, apiFetch } from '../../lib/client/api';
+import { useEffect, useRef, useState, type SyntheticEvent } from 'react';
+import { apiFetch } from '../../lib/client/api';
 import { useHydrated } from '../../lib/client/useHydrated';
 import { QueryRoot } from '../../components/ui/QueryRoot';
+import { DecisionForm, type Decision, type DecisionRequest } from './DecisionForm';
 import { REVIEW_STATE_LABEL, type ReviewView } from './review.schema';
 
 interface Props {
@@ -94,21 +95,41 @@ function Comments({ review, runId, canComment }: { review: ReviewView; runId: st
   );
 }
 
+/** Every other view of this run's review state on the page (the header badge) follows the panel. */
+function showStateElsewhere(runId: string, state: ReviewView['state']) {
+  for (const element of document.querySelectorAll<HTMLElement>(`[data-review-state-for="${runId}"]`)) element.textContent = REVIEW_STATE_LABEL[state];
+}
+
 function Panel({ runId, canSubmit, canDecide, canComment }: Props) {
   const hydrated = useHydrated();
   const client = useQueryClient();
   const [note, setNote] = useState('');
-  const [noteError, setNoteError] = useState<string | null>(null);
+  const [deciding, setDeciding] = useState<Decision | null>(null);
+  // The button that opened the confirmation gets the focus back when it closes (it is re-rendered, so after the render).
+  const openers = useRef<Partial<Record<Decision, HTMLButtonElement | null>>>({});
+  const [refocus, setRefocus] = useState<Decision | null>(null);
+  useEffect(() => {
+    if (!refocus || deciding) return;
+    openers.current[refocus]?.focus();
+    setRefocus(null);
+  }, [refocus, deciding]);
   const review = useQuery({ queryKey: ['review', runId], queryFn: () => apiFetch<ReviewView>(`/api/runs/${runId}/review`) });
-  const act = useMutation({
-    mutationFn: (action: { path: 'submit' | 'decision'; body: object }) =>
-      apiFetch<ReviewView>(`/api/runs/${runId}/review/${action.path}`, { method: 'POST', body: action.body }),
+  const done = (data: ReviewView) => {
+    client.setQueryData(['review', runId], data);
+    showStateElsewhere(runId, data.state);
+  };
+  const submit = useMutation({
+    mutationFn: () => apiFetch<ReviewView>(`/api/runs/${runId}/review/submit`, { method: 'POST', body: { note } }),
     onSuccess: (data) => {
       setNote('');
-      client.setQueryData(['review', runId], data);
+      done(data);
     },
-    onError: (error) => {
-      if (error instanceof ApiError) setNoteError(error.fieldMessage('note') ?? null);
+  });
+  const decide = useMutation({
+    mutationFn: (request: DecisionRequest) => apiFetch<ReviewView>(`/api/runs/${runId}/review/decision`, { method: 'POST', body: request }),
+    onSuccess: (data) => {
+      setDeciding(null);
+      done(data);
     },
   });
   if (review.isPending) return <p className="text-sm text-ink-500">Loading the review…</p>;
@@ -116,13 +137,13 @@ function Panel({ runId, canSubmit, canDecide, canComment }: Props) {
   const data = review.data;
   const maySubmit = canSubmit && (data.state === 'draft' || data.state === 'sent-back');
   const mayDecide = canDecide && data.state === 'submitted';
-  const sendBack = () => {
-    if (!note.trim()) {
-      setNoteError('Say what needs to change before the run can be signed off.');
-      return;
-    }
-    setNoteError(null);
-    act.mutate({ path: 'decision', body: { decision: 'send-back', note } });
+  const open = (decision: Decision) => {
+    decide.reset();
+    setDeciding(decision);
+  };
+  const close = () => {
+    setRefocus(deciding);
+    setDeciding(null);
   };
 
   return (
@@ -138,40 +159,41 @@ function Panel({ runId, canSubmit, canDecide, canComment }: Props) {
           {data.steps.map((step, index) => (
             <li key={index}>
               <span className="text-ink-500">{when(step.at)}</span> · <strong>{step.actor.name}</strong> {STEP_WORDS[step.kind]}
+              {step.meaning && (
+                <span className="block ml-4 text-ink-700" data-testid="review-signature">
+                  Signed by {step.actor.name} at {when(step.at)}, meaning “{step.meaning}”
+                  {step.resultDigest && <> · result <span className="font-mono text-xs" title={step.resultDigest}>{step.resultDigest.slice(0, 16)}</span></>}
+                </span>
+              )}
               {step.note && <span className="block ml-4 text-ink-700 whitespace-pre-wrap">“{step.note}”</span>}
             </li>
           ))}
         </ol>
       )}
-      {(maySubmit || mayDecide) && (
+      {maySubmit && (
         <div className="mt-4 grid gap-2 max-w-2xl">
-          <label className="field-label" htmlFor="review-note">
-            {mayDecide ? 'Note to the analyst (required to send back)' : 'Note for the reviewers (optional)'}
-          </label>
-          <textarea id="review-note" className="field-input" rows={3} value={note} aria-invalid={noteError ? true : undefined}
-            aria-describedby={noteError ? 'review-note-error' : undefined} onChange={(e) => { setNote(e.target.value); setNoteError(null); }} disabled={!hydrated} />
-          {noteError && <p id="review-note-error" className="field-error">{noteError}</p>}
-          <div className="flex flex-wrap gap-2">
-            {maySubmit && (
-              <button type="button" className="btn btn-primary" disabled={!hydrated || act.isPending} onClick={() => act.mutate({ path: 'submit', body: { note } })}>
-                {data.state === 'sent-back' ? 'Submit again for review' : 'Submit for review'}
-              </button>
-            )}
-            {mayDecide && (
-              <>
-                <button type="button" className="btn btn-primary" disabled={!hydrated || act.isPending} onClick={() => act.mutate({ path: 'decision', body: { decision: 'sign-off', note } })}>
-                  Sign off
-                </button>
-                <button type="button" className="btn btn-secondary" disabled={!hydrated || act.isPending} onClick={sendBack}>
-                  Send back
-                </button>
-              </>
-            )}
+          <label className="field-label" htmlFor="review-note">Note for the reviewers (optional)</label>
+          <textarea id="review-note" className="field-input" rows={3} value={note} onChange={(e) => setNote(e.target.value)} disabled={!hydrated} />
+          <div>
+            <button type="button" className="btn btn-primary" disabled={!hydrated || submit.isPending} onClick={() => submit.mutate()}>
+              {data.state === 'sent-back' ? 'Submit again for review' : 'Submit for review'}
+            </button>
           </div>
-          {mayDecide && <p className="text-xs text-ink-500">Signing off says the analysis is clinically plausible and fit to brief; it is still exploratory, not clinical guidance.</p>}
+          {submit.error && <p role="alert" className="field-error">{submit.error.message}</p>}
         </div>
       )}
-      {act.error && !noteError && <p role="alert" className="field-error">{act.error.message}</p>}
+      {mayDecide && !deciding && (
+        <div className="mt-4 grid gap-2 max-w-2xl">
+          <div className="flex flex-wrap gap-2">
+            <button type="button" ref={(b) => { openers.current['sign-off'] = b; }} className="btn btn-secondary" disabled={!hydrated} onClick={() => open('sign-off')}>Sign off…</button>
+            <button type="button" ref={(b) => { openers.current['send-back'] = b; }} className="btn btn-secondary" disabled={!hydrated} onClick={() => open('send-back')}>Send back…</button>
+          </div>
+          <p className="text-xs text-ink-500">Either decision is your electronic signature, with your password and its meaning. Signing off says the analysis is clinically plausible and fit to brief; it is still exploratory, not clinical guidance.</p>
+        </div>
+      )}
+      {mayDecide && deciding && (
+        <DecisionForm key={deciding} decision={deciding} pending={decide.isPending} error={decide.error} onSign={(request) => decide.mutate(request)} onCancel={close} />
+      )}
       <Comments review={data} runId={runId} canComment={canComment} />
     </div>
   );

@@ -21,10 +21,25 @@ export const SubmitBody = z
   .object({ note: note.optional() })
   .meta({ id: 'ReviewSubmitRequest' });
 
+/**
+ * Meanings a signer may pick from; they may also type their own. A decision is an
+ * electronic signature, so it always says what it means.
+ */
+export const SIGN_OFF_MEANINGS = ['approved for an internal brief', 'reviewed, no objection', 'clinically plausible, fit to brief'] as const;
+export const SEND_BACK_MEANINGS = ['returned for changes', 'not clinically plausible as it stands'] as const;
+
 export const DecisionBody = z
   .object({
     decision: z.enum(['sign-off', 'send-back'], { message: 'Choose sign-off or send-back.' }),
     note: note.default(''),
+    /** What the signature means: one of the listed meanings or the signer's own words. */
+    meaning: z
+      .string({ message: 'Say what your signature means.' })
+      .trim()
+      .min(1, 'Say what your signature means.')
+      .max(200, 'Keep the meaning under 200 characters.'),
+    /** The signer's own password, entered again for this signature. */
+    password: z.string({ message: 'Enter your password to sign.' }).min(1, 'Enter your password to sign.').max(1024),
   })
   .refine((body) => body.decision !== 'send-back' || body.note.trim().length > 0, {
     path: ['note'],
@@ -46,7 +61,15 @@ export const ReviewView = z
   .object({
     runId: z.uuid(),
     state: z.enum(REVIEW_STATES),
-    steps: z.array(z.object({ kind: z.enum(['submitted', 'signed-off', 'sent-back']), actor: Person, note: z.string(), at: z.string() })),
+    steps: z.array(
+      z.object({
+        kind: z.enum(['submitted', 'signed-off', 'sent-back']), actor: Person, note: z.string(), at: z.string(),
+        /** A decision's stated meaning; null on submissions (and on decisions from before signatures). */
+        meaning: z.string().nullable(),
+        /** SHA-256 of the canonical result the decision signed (the digest verification re-runs compare). */
+        resultDigest: z.string().nullable(),
+      }),
+    ),
     comments: z.array(z.object({ id: z.uuid(), parentId: z.uuid().nullable(), author: Person, body: z.string(), at: z.string() })),
   })
   .meta({ id: 'RunReview' });
@@ -61,7 +84,7 @@ export const BoardView = z
           z.object({
             analysisId: z.uuid(), title: z.string(), question: z.string(),
             run: z.object({ id: z.uuid(), status: z.string(), startedBy: Person, queuedAt: z.string() }).nullable(),
-            lastStep: z.object({ kind: z.string(), actor: Person, at: z.string(), note: z.string() }).nullable(),
+            lastStep: z.object({ kind: z.string(), actor: Person, at: z.string(), note: z.string(), meaning: z.string().nullable() }).nullable(),
           }),
         ),
       }),

@@ -54,7 +54,7 @@ async function stateOf(transaction: Transaction, runId: string): Promise<ReviewS
 /** A run's review: its state, every step and every comment, oldest first. */
 export async function reviewOf(transaction: Transaction, runId: string): Promise<ReviewView> {
   const steps = await ReviewStep.findAll({
-    attributes: ['id', 'kind', 'actorId', 'note', 'createdAt'],
+    attributes: ['id', 'kind', 'actorId', 'note', 'meaning', 'resultDigest', 'createdAt'],
     where: { runId },
     include: [{ model: User, as: 'actor', attributes: ['displayName'], required: true }],
     order: [['id', 'ASC']],
@@ -70,15 +70,24 @@ export async function reviewOf(transaction: Transaction, runId: string): Promise
   return {
     runId,
     state: steps.at(-1)?.kind ?? 'draft',
-    steps: steps.map((s) => ({ kind: s.kind, actor: { id: s.actorId, name: s.actor?.displayName ?? '' }, note: s.note, at: iso(s.createdAt) })),
+    steps: steps.map((s) => ({
+      kind: s.kind, actor: { id: s.actorId, name: s.actor?.displayName ?? '' }, note: s.note, at: iso(s.createdAt), meaning: s.meaning, resultDigest: s.resultDigest,
+    })),
     comments: comments.map((c) => ({
       id: c.id, parentId: c.parentId, author: { id: c.authorId, name: c.author?.displayName ?? '' }, body: c.body, at: iso(c.createdAt),
     })),
   };
 }
 
+/** A decision's signature: what it means, and the digest of the run's result it signs (storedResultDigest in the runs area). */
+export interface Signature {
+  meaning: string;
+  resultDigest: string;
+}
+
 async function addStep(
   transaction: Transaction, reviewer: Reviewer, run: ReviewedRun, kind: 'submitted' | 'signed-off' | 'sent-back', note: string,
+  signature: Signature | null = null,
 ): Promise<ReviewState> {
   if (run.status !== 'succeeded') throw conflict('Only a run that finished with results can be reviewed.');
   if (run.verifiesRunId) throw conflict('A re-run that verifies another run is not reviewed itself; review the run it verifies.');
@@ -86,10 +95,12 @@ async function addStep(
   await sequelize.query('SELECT pg_advisory_xact_lock(hashtext(:key))', { replacements: { key: `review:${run.id}` }, transaction });
   const state = await stateOf(transaction, run.id);
   if (!NEXT[state].includes(kind)) throw conflict(`This run is ${STATE_WORDS[state]}, so it cannot be ${STEP_WORDS[kind]} now.`);
-  await ReviewStep.create({ runId: run.id, initiativeId: run.initiativeId, kind, actorId: reviewer.id, note: note.trim() }, { transaction });
+  const signed = signature ? { meaning: signature.meaning.trim(), resultDigest: signature.resultDigest } : { meaning: null, resultDigest: null };
+  await ReviewStep.create({ runId: run.id, initiativeId: run.initiativeId, kind, actorId: reviewer.id, note: note.trim(), ...signed }, { transaction });
   await recordAudit(transaction, {
     action: `review.${kind}`, actorId: reviewer.id, subjectType: 'run', subjectId: run.id, initiativeId: run.initiativeId,
-    clientAddress: reviewer.clientAddress, details: { from: state, to: kind, noteLength: note.trim().length },
+    clientAddress: reviewer.clientAddress,
+    details: { from: state, to: kind, noteLength: note.trim().length, ...(signature ? signed : {}) },
   });
   return kind;
 }
@@ -99,11 +110,15 @@ export function submitForReview(transaction: Transaction, reviewer: Reviewer, ru
   return addStep(transaction, reviewer, run, 'submitted', note);
 }
 
-/** A clinician signs a submitted run off, or sends it back with a note saying why. */
+/**
+ * A clinician signs a submitted run off, or sends it back with a note saying why. Either
+ * decision is a signature (the caller has re-authenticated the signer): it states its
+ * meaning and is bound to the digest of the run's result.
+ */
 export function decideReview(
-  transaction: Transaction, reviewer: Reviewer, run: ReviewedRun, decision: 'sign-off' | 'send-back', note: string,
+  transaction: Transaction, reviewer: Reviewer, run: ReviewedRun, decision: 'sign-off' | 'send-back', note: string, signature: Signature,
 ): Promise<ReviewState> {
-  return addStep(transaction, reviewer, run, decision === 'sign-off' ? 'signed-off' : 'sent-back', note);
+  return addStep(transaction, reviewer, run, decision === 'sign-off' ? 'signed-off' : 'sent-back', note, signature);
 }
 
 /** Adds a comment to a run; a reply to a reply joins its thread (threads are one level deep). */
@@ -134,14 +149,14 @@ export async function boardOf(transaction: Transaction, initiativeId: string): P
   // The latest step and latest run per analysis (DISTINCT ON): a reporting query, raw SQL.
   const rows = await sequelize.query<{
     id: string; title: string; question: string; run_id: string | null; kind: ReviewState | null; actor_id: string | null;
-    actor_name: string | null; note: string | null; step_at: Date | null; status: string | null; started_by: string | null;
+    actor_name: string | null; note: string | null; meaning: string | null; step_at: Date | null; status: string | null; started_by: string | null;
     starter: string | null; queued_at: Date | null;
   }>(
     `WITH latest_step AS (
-       SELECT DISTINCT ON (s.run_id) s.run_id, s.id, s.kind, s.actor_id, s.note, s.created_at
+       SELECT DISTINCT ON (s.run_id) s.run_id, s.id, s.kind, s.actor_id, s.note, s.meaning, s.created_at
          FROM review_steps s WHERE s.initiative_id = :initiativeId ORDER BY s.run_id, s.id DESC
      ), reviewed AS (
-       SELECT DISTINCT ON (r.analysis_id) r.analysis_id, r.id AS run_id, ls.kind, ls.actor_id, ls.note, ls.created_at
+       SELECT DISTINCT ON (r.analysis_id) r.analysis_id, r.id AS run_id, ls.kind, ls.actor_id, ls.note, ls.meaning, ls.created_at
          FROM runs r JOIN latest_step ls ON ls.run_id = r.id ORDER BY r.analysis_id, ls.id DESC
      ), latest_run AS (
        SELECT DISTINCT ON (r.analysis_id) r.analysis_id, r.id AS run_id
@@ -149,7 +164,7 @@ export async function boardOf(transaction: Transaction, initiativeId: string): P
         ORDER BY r.analysis_id, r.queued_at DESC
      )
      SELECT a.id, a.title, a.question, coalesce(rv.run_id, lr.run_id) AS run_id, rv.kind, rv.actor_id, au.display_name AS actor_name,
-            rv.note, rv.created_at AS step_at, r.status, r.started_by, su.display_name AS starter, r.queued_at
+            rv.note, rv.meaning, rv.created_at AS step_at, r.status, r.started_by, su.display_name AS starter, r.queued_at
        FROM analyses a
        LEFT JOIN reviewed rv ON rv.analysis_id = a.id
        LEFT JOIN latest_run lr ON lr.analysis_id = a.id
@@ -166,7 +181,7 @@ export async function boardOf(transaction: Transaction, initiativeId: string): P
     columns.find((column) => column.state === state)!.analyses.push({
       analysisId: row.id, title: row.title, question: row.question,
       run: row.run_id && row.started_by ? { id: row.run_id, status: row.status ?? '', startedBy: { id: row.started_by, name: row.starter ?? '' }, queuedAt: iso(row.queued_at!) } : null,
-      lastStep: row.kind && row.actor_id && row.step_at ? { kind: row.kind, actor: { id: row.actor_id, name: row.actor_name ?? '' }, at: iso(row.step_at), note: row.note ?? '' } : null,
+      lastStep: row.kind && row.actor_id && row.step_at ? { kind: row.kind, actor: { id: row.actor_id, name: row.actor_name ?? '' }, at: iso(row.step_at), note: row.note ?? '', meaning: row.meaning } : null,
     });
   }
   return { columns };

@@ -4,9 +4,11 @@
  * initiative looks the same as no run at all.
  */
 import type { Transaction } from 'sequelize';
+import { Run } from '../../../db/models';
 import { authorize } from '../../lib/server/authorize';
 import { notFound } from '../../lib/server/errors';
 import type { SessionUser } from '../../lib/server/session';
+import { resultDigest } from './canonical';
 import { getRun, type RunView } from './runs.server';
 
 export async function readableRun(transaction: Transaction, user: SessionUser, runId: string, options: { withResult?: boolean } = {}): Promise<RunView> {
@@ -14,4 +16,14 @@ export async function readableRun(transaction: Transaction, user: SessionUser, r
   if (!run) throw notFound('That run');
   authorize(user, 'read', 'Run', { initiativeId: run.initiativeId }, { hide: true });
   return run;
+}
+
+/**
+ * The digest of a run's result as stored (SHA-256 of its canonical JSON), the one a
+ * verifying re-run compares (compareRuns): a review signature is bound to it. Null when
+ * the run has no result.
+ */
+export async function storedResultDigest(transaction: Transaction, runId: string): Promise<string | null> {
+  const row = await Run.findByPk(runId, { attributes: ['result'], raw: true, transaction });
+  return row?.result ? resultDigest(row.result) : null;
 }
