@@ -9,6 +9,7 @@ import { apiFetch } from '../../lib/client/api';
 import { useHydrated } from '../../lib/client/useHydrated';
 import { QueryRoot } from '../../components/ui/QueryRoot';
 import type { ExtractView, VersionView } from './extracts.server';
+import { EXTRACTS_CHANGED_EVENT } from './extractsEvents';
 
 type Phase =
   | { kind: 'idle' }
@@ -48,9 +49,6 @@ function ProgressBar({ percent, label }: { percent: number; label: string }) {
     </div>
   );
 }
-
-/** The event the panel sends when an upload has been stored, so lists of extracts refresh. */
-export const EXTRACTS_CHANGED_EVENT = 'crossgrain:extracts-changed';
 
 interface RefusalReasonView {
   message: string;
