@@ -5,6 +5,7 @@
 import { useQuery } from '@tanstack/react-query';
 import { useEffect } from 'react';
 import { apiFetch } from '../../lib/client/api';
+import { useHydrated } from '../../lib/client/useHydrated';
 import { QueryRoot } from '../../components/ui/QueryRoot';
 import type { ExtractListItem } from './extracts.server';
 import { EXTRACTS_CHANGED_EVENT } from './extractsEvents';
@@ -25,6 +26,7 @@ function Table({ initiativeId, initial, canUpload }: Props) {
     staleTime: Infinity,
   });
   const { refetch } = list;
+  const hydrated = useHydrated();
   useEffect(() => {
     const refresh = () => void refetch();
     window.addEventListener(EXTRACTS_CHANGED_EVENT, refresh);
@@ -33,7 +35,7 @@ function Table({ initiativeId, initial, canUpload }: Props) {
   const extracts = list.data;
   if (extracts.length === 0) {
     return (
-      <div className="card p-6 text-ink-700" data-testid="extracts-empty">
+      <div className="card p-6 text-ink-700" data-testid="extracts-empty" data-hydrated={hydrated}>
         <p className="font-semibold">No extracts yet.</p>
         <p className="text-sm mt-1">{canUpload ? 'Upload a de-identified CSV from your data warehouse to begin.' : 'An analyst of this initiative uploads extracts.'}</p>
       </div>
@@ -41,7 +43,7 @@ function Table({ initiativeId, initial, canUpload }: Props) {
   }
   return (
     <div className="card overflow-x-auto">
-      <table className="data-table w-full text-sm" data-testid="extracts-table">
+      <table className="data-table w-full text-sm" data-testid="extracts-table" data-hydrated={hydrated}>
         <thead><tr><th>Extract</th><th>Latest version</th><th>Rows</th><th>Status</th><th>Updated (UTC)</th></tr></thead>
         <tbody>
           {extracts.map((e) => (
