@@ -75,7 +75,7 @@ function KeepColumns({ columns, onKeep }: { columns: string[]; onKeep: (columns:
   return (
     <div className="mt-3 border border-linen-300 bg-white rounded-sm p-3 text-ink-900" data-testid="keep-form">
       <p className="text-sm">
-        {one ? <><strong>{columns[0]}</strong> was flagged by its name only</> : 'These columns were flagged by their names only'}; their values match no
+        {one ? <><strong>{columns[0]}</strong> was flagged by its name only; its values match</> : 'These columns were flagged by their names only; their values match'} no
         identifier pattern. Your reason and your name are kept with the version and in the audit trail.
       </p>
       {!one && (
