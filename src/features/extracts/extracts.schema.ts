@@ -165,12 +165,18 @@ const DropColumns = z
 /** Columns flagged by their name alone to keep (repeat `keep=` per column); values are never split. */
 const KeepColumns = z
   .union([z.string(), z.array(z.string())])
+  .describe('A column flagged by its name alone to keep; repeat the parameter per column. Needs keepReason.')
   .optional()
   .transform((value) => (value === undefined ? [] : Array.isArray(value) ? value : [value]).map((name) => name.trim()).filter(Boolean))
   .pipe(z.array(z.string().max(200, 'Keep a column name under 200 characters.')).max(50, 'Keep at most 50 columns.'));
 
 /** Why the kept columns are not identifiers: required with `keep`. */
-const KeepReason = z.string().trim().max(1000, 'Keep the reason under 1,000 characters.').optional();
+const KeepReason = z
+  .string()
+  .trim()
+  .max(1000, 'Keep the reason under 1,000 characters.')
+  .describe('Why the kept columns are not identifiers; stored with the version and audited.')
+  .optional();
 
 /** The keep request of an upload: each kept column needs a stated reason. */
 export const KeepRequest = z
