@@ -329,3 +329,87 @@ describe('who may do what with extracts', () => {
     expect((await analyst.request('POST', `/api/extracts/${extractId}/archive`, { archived: false })).status).toBe(204);
   });
 });
+
+describe('keeping a column flagged by its name alone (issue 12)', () => {
+  // phone_call: a 0/1 intervention flag whose name matches the telephone rule; its values match no pattern.
+  const phoneCallCsv = `phone_call,call_back,y\n${Array.from({ length: 40 }, (_, i) => `${i % 2},${(i >> 1) % 2},${i % 3 === 0 ? 1 : 0}`).join('\n')}`;
+  const reason = 'A 0/1 flag: whether the ward phoned the patient after discharge.';
+  const cookie = () => ({ Cookie: `${SESSION_COOKIE}=${analyst.cookie(SESSION_COOKIE)}` });
+  const keepPath = (name: string, query: string) => `${uploadPath(name)}&${query}`;
+  const events = (extractId: string) => ownerDb().query<{ action: string; details: Record<string, unknown> }>(
+    'SELECT action, details FROM audit_events WHERE subject_id = :id ORDER BY chain_position', { replacements: { id: extractId }, type: QueryTypes.SELECT },
+  );
+
+  it('is refused with the offer to keep it; kept with a reason, the reason, person and rule are stored, shown and audited', async () => {
+    const refused = await settled(analyst, JSON.parse((await upload(analyst, 'Phone calls', phoneCallCsv)).body).extractId);
+    expect(refused.versions[0].status).toBe('refused');
+    expect(refused.versions[0].reasons).toMatchObject([{ column: 'phone_call', rules: ['column-name'], categories: ['phone'] }]);
+    expect(refused.versions[0].reasons[0].message).toContain('when its values are not identifiers, keep it and say why');
+
+    const response = await streamUpload(keepPath('Phone calls', `keep=phone_call&keepReason=${encodeURIComponent(reason)}`), [phoneCallCsv], cookie());
+    expect(response.status).toBe(202);
+    const { extractId, versionId } = JSON.parse(response.body);
+    const view = await settled(analyst, extractId);
+    expect(view.versions[0]).toMatchObject({ status: 'needs-review', columns: 3 });
+    expect(view.versions[0].keptColumns).toMatchObject([{ column: 'phone_call', rule: 'column-name', category: 'phone', reason, keptBy: { name: expect.any(String) } }]);
+    expect(view.versions[0].keptColumns[0].keptBy.name).not.toBe('');
+    const stored = await ownerDb().query<{ name: string }>('SELECT name FROM extract_columns WHERE version_id = :id ORDER BY position', {
+      replacements: { id: versionId }, type: QueryTypes.SELECT,
+    });
+    expect(stored.map((c) => c.name)).toEqual(['phone_call', 'call_back', 'y']);
+    const uploaded = (await events(extractId)).find((e) => e.action === 'extract.uploaded');
+    expect(uploaded?.details).toMatchObject({ keptColumns: [{ column: 'phone_call', rule: 'column-name', category: 'phone', reason }], droppedColumns: [] });
+    const page = await (await analyst.request('GET', `/extracts/${extractId}`)).text();
+    expect(page).toContain('data-testid="kept-phone_call"');
+    expect(page).toContain(reason);
+  });
+
+  it('takes keep and keepReason as multipart fields too', async () => {
+    const boundary = '----crossgrain-keep';
+    const field = (name: string, value: string) => `--${boundary}\r\nContent-Disposition: form-data; name="${name}"\r\n\r\n${value}\r\n`;
+    const body = `${field('keep', 'phone_call')}--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="calls.csv"\r\nContent-Type: text/csv\r\n\r\n${phoneCallCsv}\r\n${field('keepReason', reason)}--${boundary}--\r\n`;
+    const response = await streamUpload(uploadPath('Phone calls, form'), [body], {
+      ...cookie(), 'Content-Type': `multipart/form-data; boundary=${boundary}`, Origin: new URL(uploadPath('x'), process.env.CROSSGRAIN_TEST_APP_URL).origin,
+    });
+    expect(response.status).toBe(202);
+    const view = await settled(analyst, JSON.parse(response.body).extractId);
+    expect(view.versions[0]).toMatchObject({ status: 'needs-review', keptColumns: [{ column: 'phone_call', reason }] });
+  });
+
+  const valueHits: [string, string, string][] = [
+    ['real telephone numbers', 'phone', `phone,y\n${Array.from({ length: 30 }, (_, i) => `(555) 010-${1000 + i},${i % 2}`).join('\n')}`],
+    ['e-mail addresses', 'email', `email,y\n${Array.from({ length: 30 }, (_, i) => `p${i % 5}@mail.example,${i % 2}`).join('\n')}`],
+    ['full dates', 'visit_date', `visit_date,y\n${Array.from({ length: 30 }, (_, i) => `2026-03-${String(1 + (i % 28)).padStart(2, '0')},${i % 2}`).join('\n')}`],
+    ['ages over 89', 'age', `age,y\n${Array.from({ length: 30 }, (_, i) => `${i === 3 ? 95 : 40 + i},${i % 2}`).join('\n')}`],
+    ['near-unique codes', 'record_code', `record_code,y\n${Array.from({ length: 60 }, (_, i) => `${70001 + i * 37},${i % 2}`).join('\n')}`],
+  ];
+  it.each(valueHits)('a column of %s is refused again with the same message when kept', async (_label, column, csv) => {
+    const before = await dataCounts();
+    const plain = await settled(analyst, JSON.parse((await upload(analyst, 'Value hit', csv)).body).extractId);
+    expect(plain.versions[0].status).toBe('refused');
+    const response = await streamUpload(keepPath('Value hit kept', `keep=${column}&keepReason=not+an+identifier`), [csv], cookie());
+    expect(response.status).toBe(202);
+    const { extractId } = JSON.parse(response.body);
+    const again = await settled(analyst, extractId);
+    expect(again.versions[0].status).toBe('refused');
+    expect(again.versions[0].reasons.map((r: { message: string }) => r.message)).toEqual(plain.versions[0].reasons.map((r: { message: string }) => r.message));
+    expect(await dataCounts()).toEqual(before);
+    expect((await events(extractId)).map((e) => [e.action, e.details.keepAsked])).toEqual([['extract.upload-refused', [column]]]);
+  });
+
+  const bad: [string, string, RegExp][] = [
+    ['a column that was not flagged', 'keep=call_back&keepReason=fine', /call_back.*not flagged/],
+    ['a column not in the file', 'keep=phone_cal&keepReason=fine', /no column "phone_cal"/],
+    ['a dropped column', 'drop=phone_call&keep=phone_call&keepReason=fine', /both left out and kept/],
+    ['no reason', 'keep=phone_call', /keepReason/],
+    ['an empty reason', 'keep=phone_call&keepReason=%20%20', /keepReason/],
+    ['a reason without a column', 'keepReason=fine', /keep/],
+  ];
+  it.each(bad)('keep naming %s is a 400 that changes nothing', async (_label, query, message) => {
+    const before = await dataCounts();
+    const response = await streamUpload(keepPath('Bad keep', query), [phoneCallCsv], cookie());
+    expect(response.status).toBe(400);
+    expect(JSON.parse(response.body).error).toMatchObject({ code: 'keep-invalid', message: expect.stringMatching(message) });
+    expect(await dataCounts()).toEqual(before);
+  });
+});

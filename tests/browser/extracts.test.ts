@@ -105,6 +105,40 @@ describe('extracts in the browser', () => {
     await context.close();
   });
 
+  it('a column refused for its name alone is kept with a reason, and the table shows the new extract without a reload', async () => {
+    const { page, context, consoleErrors } = await harness.newPage();
+    await signInThroughPage(page, demoEmail('analyst'), DEMO_PASSWORD);
+    await openCallBackExtracts(page);
+    // phone_call is the intervention (0/1): only its name looks like a telephone identifier.
+    const file = path.join(os.tmpdir(), `phone-calls-${Date.now()}.csv`);
+    const lines = ['phone_call,readmitted_30d,age_band'];
+    for (let i = 0; i < 80; i += 1) lines.push(`${i % 2},${i % 5 === 0 ? 1 : 0},${['18-44', '45-64', '65-79', '80+'][i % 4]}`);
+    writeFileSync(file, `${lines.join('\n')}\n`);
+    await waitForHydrated(page, 'upload-panel');
+    await waitForHydrated(page, 'extracts-table');
+    await expect(page.getByTestId('extracts-table').textContent()).resolves.not.toContain('Follow-up calls (synthetic)');
+    await page.getByTestId('upload-file').setInputFiles(file);
+    await page.getByLabel('Name of the extract').fill('Follow-up calls (synthetic)');
+    await page.getByRole('button', { name: 'Upload', exact: true }).click();
+    await page.getByTestId('upload-refused').waitFor();
+    await expect(page.getByTestId('upload-refused').textContent()).resolves.toContain('phone_call');
+    await page.getByRole('button', { name: 'Keep this column: it is not an identifier' }).click();
+    await page.getByLabel('Why is it not an identifier?').fill('0/1 flag: whether the ward phoned the patient after discharge.');
+    await saveScreenshot(page, 'extract-keep-column');
+    await page.getByRole('button', { name: 'Upload again keeping phone_call' }).click();
+    await page.getByTestId('upload-done').waitFor();
+    await expect(page.getByTestId('upload-done').textContent()).resolves.toContain('80 rows and 3 columns');
+    // The table picks up the new extract without a reload.
+    await page.getByTestId('extracts-table').getByRole('link', { name: 'Follow-up calls (synthetic)' }).waitFor();
+    await saveScreenshot(page, 'extract-table-updated');
+    await page.getByTestId('extracts-table').getByRole('link', { name: 'Follow-up calls (synthetic)' }).click();
+    await page.getByTestId('kept-phone_call').waitFor();
+    await expect(page.getByTestId('kept-phone_call').textContent()).resolves.toContain('whether the ward phoned the patient');
+    await saveScreenshot(page, 'extract-kept-column');
+    expect(consoleErrors).toEqual([]);
+    await context.close();
+  });
+
   it('a clinician sees the profile and dictionary but no rows', async () => {
     const { page, context, consoleErrors } = await harness.newPage();
     await signInThroughPage(page, demoEmail('clinician'), DEMO_PASSWORD);

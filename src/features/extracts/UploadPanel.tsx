@@ -9,6 +9,7 @@ import { apiFetch } from '../../lib/client/api';
 import { useHydrated } from '../../lib/client/useHydrated';
 import { QueryRoot } from '../../components/ui/QueryRoot';
 import type { ExtractView, VersionView } from './extracts.server';
+import { EXTRACTS_CHANGED_EVENT } from './extractsEvents';
 
 type Phase =
   | { kind: 'idle' }
@@ -49,11 +50,62 @@ function ProgressBar({ percent, label }: { percent: number; label: string }) {
   );
 }
 
-function Processing({ extractId, versionId, onCancel, onRetryWithout, onSettled }: {
+interface RefusalReasonView {
+  message: string;
+  column?: string;
+  rules?: string[];
+}
+
+/**
+ * Offers to keep the columns flagged by their name alone (their values matched no
+ * identifier pattern), asking why they are not identifiers; one reason covers them all.
+ */
+function KeepColumns({ columns, onKeep }: { columns: string[]; onKeep: (columns: string[], reason: string) => void }) {
+  const [open, setOpen] = useState(false);
+  const [chosen, setChosen] = useState<string[]>(columns);
+  const [reason, setReason] = useState('');
+  const one = columns.length === 1;
+  if (!open) {
+    return (
+      <button type="button" className="btn btn-secondary mt-2 ml-2" onClick={() => setOpen(true)} data-testid="keep-columns">
+        {one ? 'Keep this column: it is not an identifier' : 'Keep these columns: they are not identifiers'}
+      </button>
+    );
+  }
+  return (
+    <div className="mt-3 border border-linen-300 bg-white rounded-sm p-3 text-ink-900" data-testid="keep-form">
+      <p className="text-sm">
+        {one ? <><strong>{columns[0]}</strong> was flagged by its name only; its values match</> : 'These columns were flagged by their names only; their values match'} no
+        identifier pattern. Your reason and your name are kept with the version and in the audit trail.
+      </p>
+      {!one && (
+        <fieldset className="mt-2">
+          <legend className="field-label">Columns to keep</legend>
+          {columns.map((column) => (
+            <label key={column} className="flex gap-2 items-center text-sm">
+              <input type="checkbox" checked={chosen.includes(column)}
+                onChange={(e) => setChosen(e.target.checked ? [...chosen, column] : chosen.filter((c) => c !== column))} />
+              {column}
+            </label>
+          ))}
+        </fieldset>
+      )}
+      <label className="field-label mt-2" htmlFor="keep-reason">Why {one ? 'is it' : 'are they'} not an identifier?</label>
+      <textarea id="keep-reason" className="field-input" rows={2} maxLength={1000} value={reason} onChange={(e) => setReason(e.target.value)}
+        placeholder="e.g. 0/1 flag: whether the patient got the follow-up phone call" />
+      <button type="button" className="btn btn-primary mt-2" disabled={!reason.trim() || chosen.length === 0} onClick={() => onKeep(chosen, reason.trim())}>
+        Upload again keeping {chosen.join(', ')}
+      </button>
+    </div>
+  );
+}
+
+function Processing({ extractId, versionId, onCancel, onRetryWithout, onRetryKeeping, onSettled }: {
   extractId: string;
   versionId: string;
   onCancel: () => void;
   onRetryWithout: (columns: string[]) => void;
+  onRetryKeeping: (columns: string[], reason: string) => void;
   /** Called once the upload has left processing, so the panel takes a new file again. */
   onSettled: () => void;
 }) {
@@ -67,9 +119,13 @@ function Processing({ extractId, versionId, onCancel, onRetryWithout, onSettled 
   });
   const version: VersionView | undefined = status.data?.versions.find((v) => v.versionId === versionId);
   const settled = Boolean(version && version.status !== 'processing');
+  const stored = Boolean(version && (version.status === 'needs-review' || version.status === 'ready'));
   useEffect(() => {
     if (settled) onSettled();
   }, [settled, onSettled]);
+  useEffect(() => {
+    if (stored) window.dispatchEvent(new CustomEvent(EXTRACTS_CHANGED_EVENT, { detail: { extractId } }));
+  }, [stored, extractId]);
   if (!version || version.status === 'processing') {
     return (
       <div data-testid="upload-processing">
@@ -79,7 +135,9 @@ function Processing({ extractId, versionId, onCancel, onRetryWithout, onSettled 
     );
   }
   if (version.status === 'refused' || version.status === 'failed') {
-    const reasons = (version.reasons ?? []) as { message: string; column?: string }[];
+    const reasons = (version.reasons ?? []) as RefusalReasonView[];
+    // Only a column flagged by its name alone may be kept; value-based findings never.
+    const keepable = reasons.filter((r) => r.column && r.rules?.length && r.rules.every((rule) => rule === 'column-name')).map((r) => r.column ?? '');
     return (
       <div role="alert" className="mt-3 border border-brick-100 bg-brick-50 rounded-sm p-3 text-sm text-brick-700" data-testid="upload-refused">
         <p className="font-semibold">{version.status === 'refused' ? 'The file was refused. Nothing from it was kept.' : 'The upload did not finish. Nothing from it was kept.'}</p>
@@ -95,6 +153,7 @@ function Processing({ extractId, versionId, onCancel, onRetryWithout, onSettled 
                   Upload again without {flagged.join(', ')}
                 </button>
               )}
+              {keepable.length > 0 && <KeepColumns columns={keepable} onKeep={onRetryKeeping} />}
             </>
           );
         })()}
@@ -132,11 +191,13 @@ function Uploader({ initiativeId, extractId, maxBytes }: Props) {
   };
   const tooLarge = file ? file.size > maxBytes : false;
 
-  const send = (drop: string[] = []) => {
+  const send = (drop: string[] = [], keep: { columns: string[]; reason: string } = { columns: [], reason: '' }) => {
     if (!file || tooLarge) return;
     const params = new URLSearchParams();
     if (!extractId) params.set('name', name.trim());
     if (drop.length) params.set('drop', drop.join(','));
+    for (const column of keep.columns) params.append('keep', column);
+    if (keep.columns.length) params.set('keepReason', keep.reason);
     const query = params.toString() ? `?${params}` : '';
     const url = extractId ? `/api/extracts/${extractId}/versions${query}` : `/api/initiatives/${initiativeId}/extracts${query}`;
     const xhr = new XMLHttpRequest();
@@ -199,7 +260,8 @@ function Uploader({ initiativeId, extractId, maxBytes }: Props) {
       </div>
       {phase.kind === 'sending' && <ProgressBar percent={(phase.loaded / Math.max(1, phase.total)) * 100} label={`Sending ${formatBytes(phase.loaded)} of ${formatBytes(phase.total)}`} />}
       {phase.kind === 'processing' && (
-        <Processing extractId={phase.extractId} versionId={phase.versionId} onCancel={() => void cancel()} onRetryWithout={(columns) => send(columns)} onSettled={markSettled} />
+        <Processing extractId={phase.extractId} versionId={phase.versionId} onCancel={() => void cancel()} onRetryWithout={(columns) => send(columns)}
+          onRetryKeeping={(columns, reason) => send([], { columns, reason })} onSettled={markSettled} />
       )}
       {phase.kind === 'refused-at-once' && (
         <p role="alert" className="mt-3 border border-brick-100 bg-brick-50 rounded-sm p-3 text-sm text-brick-700" data-testid="upload-refused">

@@ -162,14 +162,58 @@ const DropColumns = z
   .optional()
   .transform((value) => (value ? value.split(',').map((name) => name.trim()).filter(Boolean) : []));
 
+/** Columns flagged by their name alone to keep (repeat `keep=` per column); values are never split. */
+const KeepColumns = z
+  .union([z.string(), z.array(z.string())])
+  .describe('A column flagged by its name alone to keep; repeat the parameter per column. Needs keepReason.')
+  .optional()
+  .transform((value) => (value === undefined ? [] : Array.isArray(value) ? value : [value]).map((name) => name.trim()).filter(Boolean))
+  .pipe(z.array(z.string().max(200, 'Keep a column name under 200 characters.')).max(50, 'Keep at most 50 columns.'));
+
+/** Why the kept columns are not identifiers: required with `keep`. */
+const KeepReason = z
+  .string()
+  .trim()
+  .max(1000, 'Keep the reason under 1,000 characters.')
+  .describe('Why the kept columns are not identifiers; stored with the version and audited.')
+  .optional();
+
+/** The keep request of an upload: each kept column needs a stated reason. */
+export const KeepRequest = z
+  .object({ keep: KeepColumns, keepReason: KeepReason })
+  .superRefine((value, ctx) => {
+    if (value.keep.length > 0 && !value.keepReason) {
+      ctx.addIssue({ code: 'custom', path: ['keepReason'], message: 'Say why the kept column is not an identifier (the parameter "keepReason").' });
+    }
+    if (value.keep.length === 0 && value.keepReason) {
+      ctx.addIssue({ code: 'custom', path: ['keep'], message: 'Name the column to keep (the parameter "keep") along with the reason.' });
+    }
+  });
+export type KeepRequest = z.infer<typeof KeepRequest>;
+
 export const NewExtractQuery = z.object({
   name: z.string().trim().min(1, 'Give the extract a name (the query parameter "name").').max(120, 'Keep the name under 120 characters.'),
   drop: DropColumns,
+  keep: KeepColumns,
+  keepReason: KeepReason,
 });
 
 /** Query of POST /api/extracts/{extractId}/versions. */
-export const NewVersionQuery = z.object({ drop: DropColumns });
+export const NewVersionQuery = z.object({ drop: DropColumns, keep: KeepColumns, keepReason: KeepReason });
 export type NewExtractQuery = z.infer<typeof NewExtractQuery>;
+
+/** A column flagged by its name alone that the uploader kept, as stored with the version. */
+export const KeptColumn = z.object({
+  column: z.string(),
+  rule: FindingRule,
+  category: SafeHarborCategory,
+  /** The screen's message about the name. */
+  message: z.string(),
+  reason: z.string(),
+  keptBy: z.object({ id: z.uuid(), name: z.string() }),
+  keptAt: z.string(),
+}).meta({ id: 'KeptColumn' });
+export type KeptColumn = z.infer<typeof KeptColumn>;
 
 /** Query of the row preview. */
 export const RowsQuery = z.object({

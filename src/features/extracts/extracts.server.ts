@@ -12,7 +12,8 @@ import { encodeColumn } from './columnStore';
 import { isMissingToken } from '../../engine/design/missingValues';
 import { levelsLeftIn, missingCodeKey } from './engineData';
 import type { ReadExtract } from './extracts';
-import type { ColumnProfile, DictionaryEntry } from './extracts.schema';
+import type { ColumnProfile, DictionaryEntry, KeptColumn } from './extracts.schema';
+import type { Finding } from './identifierFindings';
 
 /** The statement an analyst signs before a version becomes ready. */
 export const ATTESTATION_STATEMENT =
@@ -37,6 +38,13 @@ export interface IntakeStart {
   newExtract: boolean;
 }
 
+/** A name finding the uploader overrode, as stored in the version's findings. */
+export type StoredKeep = Finding & { kept: { reason: string; by: string; at: string } };
+
+function isStoredKeep(value: unknown): value is StoredKeep {
+  return typeof value === 'object' && value !== null && 'kept' in value && 'column' in value;
+}
+
 /**
  * Writes the extract (when new), the version and every column, marks the intake stored
  * and records the audit event, all in the caller's transaction. Returns false (writing
@@ -50,7 +58,7 @@ export async function storeVersion(
   read: ReadExtract,
   profile: ColumnProfile[],
   findings: unknown[],
-  hooks: { afterColumn?: (position: number) => Promise<void> } = {},
+  hooks: { afterColumn?: (position: number) => Promise<void>; kept?: readonly StoredKeep[] } = {},
 ): Promise<boolean> {
   const intake = await ExtractIntake.findByPk(start.versionId, { attributes: ['id', 'status'], lock: transaction.LOCK.UPDATE, transaction });
   if (!intake || intake.status !== 'processing') return false;
@@ -94,7 +102,11 @@ export async function storeVersion(
     action: start.newExtract ? 'extract.uploaded' : 'extract.version-added',
     actorId: uploader.id, subjectType: 'extract', subjectId: start.extractId, initiativeId: start.initiativeId,
     clientAddress: uploader.clientAddress,
-    details: { versionId: start.versionId, version: next, name: start.name, sha256: read.read.sha256, rows: read.read.recordCount, columns: kept.length },
+    details: {
+      versionId: start.versionId, version: next, name: start.name, sha256: read.read.sha256, rows: read.read.recordCount, columns: kept.length,
+      droppedColumns: [...read.droppedColumns],
+      keptColumns: (hooks.kept ?? []).map((k) => ({ column: k.column, rule: k.rule, category: k.category, reason: k.kept.reason })),
+    },
   });
   return true;
 }
@@ -117,6 +129,8 @@ export interface VersionView {
   dictionary?: DictionaryEntry[] | null;
   attestation?: { signedName: string; signedAt: string; statement: string; userId: string } | null;
   droppedColumns?: string[];
+  /** Columns flagged by their name alone that the uploader kept, with the reason. */
+  keptColumns?: KeptColumn[];
 }
 
 export interface ExtractView {
@@ -189,6 +203,10 @@ export async function getExtract(transaction: Transaction, extractId: string, op
     dictionary: v.dictionary as DictionaryEntry[] | null,
     attestation: v.attestation as VersionView['attestation'],
     droppedColumns: v.droppedColumns,
+    keptColumns: (Array.isArray(v.findings) ? v.findings : []).filter(isStoredKeep).map((k) => ({
+      column: k.column, rule: k.rule, category: k.category, message: k.message, reason: k.kept.reason,
+      keptBy: { id: k.kept.by, name: k.kept.by === v.uploadedBy ? (v.uploader?.displayName ?? '') : '' }, keptAt: k.kept.at,
+    })),
   }));
   const first = intakes[intakes.length - 1];
   return {

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { runAnalysis, type AnalysisSpec } from '../../engine';
 import { toEngineData } from './engineData';
-import { ExtractRefusalError, ingestExtract, readExtractColumns } from './extracts';
+import { ExtractRefusalError, ingestExtract, readExtractColumns, reviewExtractColumns } from './extracts';
 import { chunked } from './testSupport';
 
 const ingest = (csv: string, options = {}) => ingestExtract(chunked(csv, 4096), options);
@@ -14,6 +14,29 @@ function csvOf(columns: Record<string, (i: number) => string | number>, rows: nu
 }
 
 describe('identifier screen on uploads', () => {
+  it('keeps a column flagged by its name alone, never one with a value-based finding', async () => {
+    // phone_call is a 0/1 intervention flag: only its name matches the telephone rule.
+    const phoneCall = csvOf({ phone_call: (i) => i % 2, outcome: (i) => (i % 3 === 0 ? 1 : 0) }, 60);
+    const { columns } = await readExtractColumns(chunked(phoneCall, 4096));
+    const refused = reviewExtractColumns(columns);
+    expect(refused.findings.map((f) => [f.column, f.rule, f.category])).toEqual([['phone_call', 'column-name', 'phone']]);
+    const kept = reviewExtractColumns(columns, {}, ['phone_call']);
+    expect(kept.refused).toBe(false);
+    expect(kept.kept.map((f) => [f.column, f.rule])).toEqual([['phone_call', 'column-name']]);
+    // Profiled as if unflagged: a 0/1 column is binary.
+    expect(kept.profile[0].inferredType).toBe('binary');
+    // Real telephone numbers in a column named "phone": the value rule refuses it even when kept, with the same message.
+    const phones = csvOf({ phone: (i) => `(555) 010-${String(1000 + i).slice(-4)}`, outcome: (i) => i % 2 }, 20);
+    const read = await readExtractColumns(chunked(phones, 4096));
+    const plain = reviewExtractColumns(read.columns);
+    const again = reviewExtractColumns(read.columns, {}, ['phone']);
+    expect(again.refused).toBe(true);
+    expect(again.kept).toEqual([]);
+    expect(again.refusals.map((r) => r.message)).toEqual(plain.refusals.map((r) => r.message));
+    // Asking to keep a column the screen did not flag is reported.
+    expect(reviewExtractColumns(columns, {}, ['outcome', 'phone_call']).keptButNotFlagged).toEqual(['outcome']);
+  });
+
   it('refuses a column of full dates as date-like, with the count of dates', async () => {
     const days = ['2024-01-05', '2024-02-11', '2024-03-17', '2024-04-23'];
     const result = await ingest(csvOf({ outcome: (i) => i % 2, seen: (i) => days[i % 4] }, 40));

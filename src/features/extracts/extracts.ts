@@ -54,9 +54,23 @@ export interface ReadExtract {
 /** What the screen and the profile say about the columns. */
 export interface ReviewedExtract {
   profile: ColumnProfile[];
+  /** Findings that refuse the upload (kept columns' name findings excluded). */
   findings: Finding[];
   refusals: ColumnRefusal[];
   refused: boolean;
+  /** Name findings of the columns the analyst kept (see {@link keepableColumn}). */
+  kept: Finding[];
+  /** Columns asked to be kept that the screen did not flag at all. */
+  keptButNotFlagged: string[];
+}
+
+/**
+ * Whether a column's findings allow the analyst to keep it: it was flagged by its name
+ * alone. A value-based finding (phone numbers, full dates, e-mail addresses, ages over 89,
+ * near-unique codes ...) can never be overridden.
+ */
+export function keepableColumn(findings: readonly Finding[]): boolean {
+  return findings.length > 0 && findings.every((f) => f.rule === 'column-name');
 }
 
 type ChunkSource = AsyncIterable<Uint8Array | string> | Iterable<Uint8Array | string>;
@@ -83,11 +97,23 @@ export async function readExtractColumns(source: ChunkSource, options: IngestOpt
   return { read, columns: sink.finish(), droppedColumns: sink.droppedColumns.slice(), lineOfRow: (row) => sink.lineOfRow(row) };
 }
 
-/** Stage 2: the identifier screen and the profile of every column (synchronous, no I/O). */
-export function reviewExtractColumns(columns: readonly ColumnData[], screen: Partial<ScreenOptions> = {}): ReviewedExtract {
+/**
+ * Stage 2: the identifier screen and the profile of every column (synchronous, no I/O).
+ * Columns named in `keep` that were flagged by their name alone are kept: their findings
+ * move to `kept` and their profile is built as if unflagged. A kept column with a
+ * value-based finding still refuses the upload, with the same message.
+ */
+export function reviewExtractColumns(
+  columns: readonly ColumnData[],
+  screen: Partial<ScreenOptions> = {},
+  keep: readonly string[] = [],
+): ReviewedExtract {
   const screenOptions = { ...DEFAULT_SCREEN_OPTIONS, ...screen };
   const findings: Finding[] = [];
+  const kept: Finding[] = [];
   const profile: ColumnProfile[] = [];
+  const keepNames = new Set(keep);
+  const flagged = new Set<string>();
   for (const column of columns) {
     const summary = summarizeColumn(column);
     const columnFindings = screenColumn(
@@ -105,10 +131,18 @@ export function reviewExtractColumns(columns: readonly ColumnData[], screen: Par
       },
       screenOptions,
     );
+    if (columnFindings.length > 0) flagged.add(column.name);
+    if (keepNames.has(column.name) && keepableColumn(columnFindings)) {
+      kept.push(...columnFindings);
+      const columnProfile = buildColumnProfile(column, summary, []);
+      profile.push({ ...columnProfile, notes: [...columnProfile.notes, 'Flagged by its name only; kept by the uploader as not an identifier.'] });
+      continue;
+    }
     findings.push(...columnFindings);
     profile.push(buildColumnProfile(column, summary, columnFindings));
   }
-  return { profile, findings, refusals: refusalsByColumn(findings), refused: findings.length > 0 };
+  const keptButNotFlagged = keep.filter((name) => !flagged.has(name));
+  return { profile, findings, refusals: refusalsByColumn(findings), refused: findings.length > 0, kept, keptButNotFlagged };
 }
 
 /**

@@ -86,7 +86,9 @@ export function refusalsByColumn(findings: readonly Finding[]): ColumnRefusal[] 
         columnIndex,
         rules: list.map((f) => f.rule),
         categories: [...new Set(list.map((f) => f.category))],
-        message: `Column "${column}" may identify people: ${reasons.join('; ')}. Remove the column (or drop it while uploading) and upload again.`,
+        message: `Column "${column}" may identify people: ${reasons.join('; ')}. Remove the column (or drop it while uploading) and upload again${
+          list.every((f) => f.rule === 'column-name') ? ', or, when its values are not identifiers, keep it and say why' : ''
+        }.`,
       };
     });
 }

@@ -80,5 +80,9 @@ describe('screenColumn', () => {
     expect(refusals[1].message).toBe(
       'Column "email" may identify people: its name suggests e-mail addresses, a Safe Harbor identifier; 100 values of 100 examined look like e-mail addresses; 100 distinct values among 100 (over 90% unique), so it behaves like an identifying code. Remove the column (or drop it while uploading) and upload again.',
     );
+    // A column flagged by its name alone may be kept; the message says so (from the product rule, issue 12 section 1).
+    expect(refusals[0].message).toBe(
+      'Column "zip" may identify people: its name suggests geographic units smaller than a state (addresses, ZIP or postal codes), a Safe Harbor identifier. Remove the column (or drop it while uploading) and upload again, or, when its values are not identifiers, keep it and say why.',
+    );
   });
 });

@@ -23,9 +23,9 @@ import { logger } from '../../lib/server/logger';
 import { bodyChunks } from '../../lib/server/requestBody';
 import { recordAudit } from '../audit/audit.server';
 import { ExtractRefusalError } from './extractRefusal';
-import { readExtractColumns, reviewExtractColumns, type ReadExtract } from './extracts';
-import type { ProcessingStage } from './extracts.schema';
-import { storeVersion, type IntakeStart, type Uploader } from './extracts.server';
+import { readExtractColumns, reviewExtractColumns, type ReadExtract, type ReviewedExtract } from './extracts';
+import { KeepRequest, type ProcessingStage } from './extracts.schema';
+import { storeVersion, type IntakeStart, type StoredKeep, type Uploader } from './extracts.server';
 
 const uploadDir = () => path.resolve(env.CROSSGRAIN_DATA_DIR, 'uploads');
 const storedFile = (initiativeId: string, versionId: string) =>
@@ -72,21 +72,34 @@ async function discardPartFile(file: ReturnType<typeof createWriteStream>, partF
   await rm(partFile, { force: true });
 }
 
-/** The CSV bytes of a request: a raw `text/csv` body, or the first file of a multipart form. */
-export function uploadSource(request: Request): ChunkSource {
+/** Text fields of a multipart form, by name (a repeated field keeps every value). */
+export type FormFields = Map<string, string[]>;
+
+/**
+ * The CSV bytes of a request: a raw `text/csv` body, or the first file of a multipart form.
+ * The form's text fields are added to `fields`; all of them are there once the file has
+ * been read to the end.
+ */
+export function uploadSource(request: Request, fields: FormFields = new Map()): ChunkSource {
   const type = (request.headers.get('content-type') ?? '').toLowerCase();
   if (!request.body) throw badRequest('The request has no body. Send the CSV file as the body.');
   if (type.startsWith('text/csv') || type.startsWith('application/csv') || type.startsWith('text/plain')) {
     return bodyChunks(request.body);
   }
-  if (type.startsWith('multipart/form-data')) return multipartFile(request);
+  if (type.startsWith('multipart/form-data')) return multipartFile(request, fields);
   throw unsupportedMediaType('Send the extract as text/csv, or as a file in multipart/form-data.');
 }
 
-/** Streams the first file part of a multipart body; other fields are ignored. */
-async function* multipartFile(request: Request): AsyncGenerator<Uint8Array> {
+/** Streams the first file part of a multipart body, collecting the text fields into `fields`. */
+async function* multipartFile(request: Request, fields: FormFields): AsyncGenerator<Uint8Array> {
   const headers = Object.fromEntries(request.headers);
-  const parser = Busboy({ headers, limits: { files: 1, fileSize: env.CROSSGRAIN_UPLOAD_MAX_BYTES + 1 } });
+  const parser = Busboy({ headers, limits: { files: 1, fileSize: env.CROSSGRAIN_UPLOAD_MAX_BYTES + 1, fields: 100, fieldSize: 4000 } });
+  parser.on('field', (name, value) => fields.set(name, [...(fields.get(name) ?? []), value]));
+  const finished = new Promise<void>((resolve, reject) => {
+    parser.on('close', () => resolve());
+    parser.on('error', reject);
+  });
+  finished.catch(() => undefined); // handled where it is awaited
   if (!request.body) throw badRequest('The request has no body. Send the CSV file as the body.');
   const input = Readable.from(bodyChunks(request.body));
   const file = new Promise<Readable>((resolve, reject) => {
@@ -97,6 +110,8 @@ async function* multipartFile(request: Request): AsyncGenerator<Uint8Array> {
   input.pipe(parser);
   const stream = await file;
   for await (const chunk of stream) yield chunk as Uint8Array;
+  // Fields after the file arrive once the rest of the body is parsed.
+  await finished;
 }
 
 type IntakeChange = Partial<Pick<ExtractIntake, 'status' | 'stage' | 'percent' | 'reasons' | 'finishedAt'>>;
@@ -109,7 +124,13 @@ async function updateIntake(uploaderId: string, versionId: string, fields: Intak
 }
 
 /** Records a refusal: only the reasons are kept, never the data. */
-async function refuseIntake(uploader: Uploader, start: IntakeStart, reasons: unknown[], stage: ProcessingStage): Promise<void> {
+async function refuseIntake(
+  uploader: Uploader,
+  start: IntakeStart,
+  reasons: unknown[],
+  stage: ProcessingStage,
+  asked: { droppedColumns?: readonly string[]; keep?: readonly string[]; keepReason?: string } = {},
+): Promise<void> {
   await withIdentity(uploader.id, async (transaction) => {
     await ExtractIntake.update(
       { status: 'refused', stage, reasons, finishedAt: fn('now'), heartbeatAt: fn('now') },
@@ -118,7 +139,11 @@ async function refuseIntake(uploader: Uploader, start: IntakeStart, reasons: unk
     await recordAudit(transaction, {
       action: 'extract.upload-refused', actorId: uploader.id, subjectType: 'extract', subjectId: start.extractId,
       initiativeId: start.initiativeId, clientAddress: uploader.clientAddress,
-      details: { versionId: start.versionId, name: start.name, reasons },
+      details: {
+        versionId: start.versionId, name: start.name, reasons,
+        ...(asked.droppedColumns?.length ? { droppedColumns: [...asked.droppedColumns] } : {}),
+        ...(asked.keep?.length ? { keepAsked: [...asked.keep], keepReason: asked.keepReason ?? '' } : {}),
+      },
     });
   });
 }
@@ -138,7 +163,7 @@ export async function receiveUpload(
   uploader: Uploader,
   target: { initiativeId: string; name: string } | { extractId: string },
   request: Request,
-  options: { dropColumns?: readonly string[] } = {},
+  options: { dropColumns?: readonly string[]; keep?: readonly string[]; keepReason?: string } = {},
 ): Promise<{ extractId: string; versionId: string; done: Promise<void> }> {
   const start = await withIdentity(uploader.id, async (transaction): Promise<IntakeStart> => {
     let initiativeId: string;
@@ -180,8 +205,9 @@ export async function receiveUpload(
   // A refusal destroys the stream while a write may be pending; that error is expected.
   file.on('error', (error) => logger.debug({ err: error, versionId: start.versionId }, 'raw upload file closed early'));
   let lastReport = 0;
+  const fields: FormFields = new Map();
   try {
-    read = await readExtractColumns(keepWhileReading(uploadSource(request), file), {
+    read = await readExtractColumns(keepWhileReading(uploadSource(request, fields), file), {
       expectedBytes,
       dropColumns: options.dropColumns,
       maxBytes: env.CROSSGRAIN_UPLOAD_MAX_BYTES,
@@ -208,7 +234,16 @@ export async function receiveUpload(
     throw new AppError(400, 'upload-interrupted', 'The upload was interrupted before the whole file arrived. Nothing was kept.');
   }
 
-  const done = finishIntake(uploader, start, read, partFile).catch(async (error: unknown) => {
+  let keeping: Keeping;
+  try {
+    keeping = keptColumnsOf(read, { keep: [...(options.keep ?? []), ...(fields.get('keep') ?? [])], keepReason: options.keepReason ?? fields.get('keepReason')?.[0] });
+  } catch (error) {
+    await rm(partFile, { force: true });
+    if (error instanceof AppError) await refuseIntake(uploader, start, [{ code: error.code, message: error.message, line: null }], 'screening');
+    throw error;
+  }
+
+  const done = finishIntake(uploader, start, read, partFile, keeping).catch(async (error: unknown) => {
     logger.error({ err: error, versionId: start.versionId }, 'extract processing failed');
     await rm(partFile, { force: true });
     await failIntake(uploader.id, start.versionId, 'processing-failed', 'Processing stopped with an error. Nothing was kept; upload the file again.');
@@ -238,19 +273,73 @@ function closeFile(file: ReturnType<typeof createWriteStream>): Promise<void> {
   });
 }
 
+function parseKeepRequest(request: { keep: string[]; keepReason?: string }): KeepRequest {
+  const parsed = KeepRequest.safeParse(request);
+  if (parsed.success) return parsed.data;
+  const issue = parsed.error.issues[0];
+  throw new AppError(400, 'keep-invalid', issue.message, [{ path: issue.path.join('.'), message: issue.message }]);
+}
+
+/**
+ * The `keep` (repeatable) and `keepReason` query parameters of an upload. Without a
+ * multipart form (whose fields could still add them) a bad pair is a 400 before anything
+ * is written.
+ */
+export function keepAsked(url: URL, request: Request): { keep: string[]; keepReason?: string } {
+  const asked = { keep: url.searchParams.getAll('keep'), keepReason: url.searchParams.get('keepReason') ?? undefined };
+  const multipart = (request.headers.get('content-type') ?? '').toLowerCase().startsWith('multipart/form-data');
+  if (!multipart) parseKeepRequest(asked);
+  return asked;
+}
+
+/** The columns an upload asks to keep, with the reason and (when any) the screen's review already done. */
+interface Keeping {
+  keep: string[];
+  reason: string;
+  review: ReviewedExtract | null;
+}
+
+/**
+ * Checks the keep request of an upload once its file has been read (query parameters and
+ * form fields together): every kept column needs the reason and must have been flagged by
+ * the screen. A 400 otherwise. A kept column with a value-based finding passes here and is
+ * refused by the screen, with the same message as without `keep`.
+ */
+function keptColumnsOf(read: ReadExtract, request: { keep: string[]; keepReason?: string }): Keeping {
+  const parsed = parseKeepRequest(request);
+  const keep = [...new Set(parsed.keep)];
+  if (keep.length === 0) return { keep, reason: '', review: null };
+  const dropped = keep.filter((name) => read.droppedColumns.includes(name));
+  if (dropped.length > 0) {
+    throw new AppError(400, 'keep-invalid', `Column "${dropped[0]}" cannot be both left out and kept.`, [{ path: 'keep', message: dropped[0] }]);
+  }
+  const review = reviewExtractColumns(read.columns, {}, keep);
+  if (review.keptButNotFlagged.length > 0) {
+    const name = review.keptButNotFlagged[0];
+    const present = read.columns.some((c) => c.name === name);
+    const message = present
+      ? `Column "${name}" was not flagged by the identifier screen, so there is nothing to keep. Only a column flagged by its name alone can be kept.`
+      : `There is no column "${name}" in the file, so it cannot be kept. Only a column flagged by its name alone can be kept.`;
+    throw new AppError(400, 'keep-invalid', message, [{ path: 'keep', message }]);
+  }
+  return { keep, reason: parsed.keepReason ?? '', review };
+}
+
 /** Stage two, after the answer has gone: screen, profile, and store in one transaction. */
-async function finishIntake(uploader: Uploader, start: IntakeStart, read: ReadExtract, partFile: string): Promise<void> {
+async function finishIntake(uploader: Uploader, start: IntakeStart, read: ReadExtract, partFile: string, keeping: Keeping): Promise<void> {
   await updateIntake(uploader.id, start.versionId, { stage: 'screening', percent: 90 });
-  const review = reviewExtractColumns(read.columns);
+  const review = keeping.review ?? reviewExtractColumns(read.columns);
   if (review.refused) {
     await rm(partFile, { force: true });
     const reasons = review.refusals.map((r) => ({ code: 'identifier-screen', column: r.column, rules: r.rules, categories: r.categories, message: r.message }));
-    await refuseIntake(uploader, start, reasons, 'screening');
+    await refuseIntake(uploader, start, reasons, 'screening', { droppedColumns: read.droppedColumns, keep: keeping.keep, keepReason: keeping.reason });
     return;
   }
   await updateIntake(uploader.id, start.versionId, { stage: 'storing', percent: 95 });
+  const keptAt = new Date().toISOString();
+  const kept: StoredKeep[] = review.kept.map((finding) => ({ ...finding, kept: { reason: keeping.reason, by: uploader.id, at: keptAt } }));
   const stored = await withIdentity(uploader.id, (transaction) =>
-    storeVersion(appSequelize, transaction, uploader, start, read, review.profile, review.findings),
+    storeVersion(appSequelize, transaction, uploader, start, read, review.profile, [...review.findings, ...kept], { kept }),
   );
   if (!stored) {
     await rm(partFile, { force: true });

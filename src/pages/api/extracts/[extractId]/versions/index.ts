@@ -1,6 +1,6 @@
 import { NewVersionQuery } from '../../../../../features/extracts/extracts.schema';
 import { extractScope } from '../../../../../features/extracts/extracts.server';
-import { receiveUpload } from '../../../../../features/extracts/intake.server';
+import { keepAsked, receiveUpload } from '../../../../../features/extracts/intake.server';
 import { authorize } from '../../../../../lib/server/authorize';
 import { notFound } from '../../../../../lib/server/errors';
 import { clientAddress, endpoint, json, parseQuery, requireUser, uuidParam } from '../../../../../lib/server/http';
@@ -14,6 +14,6 @@ export const POST = endpoint(async (context) => {
   authorize(user, 'read', 'Extract', { initiativeId: extract.initiativeId }, { hide: true });
   authorize(user, 'update', 'Extract', { initiativeId: extract.initiativeId });
   const { drop } = parseQuery(context.url, NewVersionQuery);
-  const accepted = await receiveUpload({ id: user.id, clientAddress: clientAddress(context) }, { extractId }, context.request, { dropColumns: drop });
+  const accepted = await receiveUpload({ id: user.id, clientAddress: clientAddress(context) }, { extractId }, context.request, { dropColumns: drop, ...keepAsked(context.url, context.request) });
   return json({ extractId: accepted.extractId, versionId: accepted.versionId }, 202);
 });
