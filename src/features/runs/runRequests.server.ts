@@ -57,7 +57,7 @@ export async function claimKey(transaction: Transaction, claim: Claim): Promise<
   if (claimed.length > 0) return 'claimed';
   const [earlier] = await sequelize.query<{ body_hash: string; run_id: string | null }>(
     `SELECT body_hash, run_id FROM run_requests WHERE user_id = :userId AND analysis_id = :analysisId AND idempotency_key = :key`,
-    { replacements: claim, type: QueryTypes.SELECT, transaction },
+    { replacements: { ...claim }, type: QueryTypes.SELECT, transaction },
   );
   if (!earlier?.run_id) throw unprocessable('idempotency-key-unsettled', 'A request with this Idempotency-Key is still being handled. Try again in a moment.');
   if (earlier.body_hash !== claim.bodyHash) {
