@@ -123,3 +123,22 @@ describe('Idempotency-Key on run starts', () => {
     expect(parameters).toContainEqual(expect.objectContaining({ name: 'Idempotency-Key', in: 'header' }));
   });
 });
+
+describe('comparing runs over HTTP', () => {
+  it('compares up to four runs, and refuses a fifth with a clear 400', async () => {
+    const ids: string[] = [];
+    for (let i = 0; i < 5; i += 1) ids.push((await (await start(analyst, null)).json()).runId);
+    const four = await analyst.request('GET', `/api/runs/compare?runs=${ids.slice(0, 4).join(',')}`);
+    expect(four.status).toBe(200);
+    const comparison = await four.json();
+    expect(comparison.runs.map((r: { letter: string }) => r.letter)).toEqual(['A', 'B', 'C', 'D']);
+    expect(comparison.caution).toMatch(/not clinical guidance/);
+    expect((await analyst.request('GET', `/runs/compare?runs=${ids.slice(0, 4).join(',')}`)).status).toBe(200);
+    const five = await analyst.request('GET', `/api/runs/compare?runs=${ids.join(',')}`);
+    expect(five.status).toBe(400);
+    expect((await five.json()).error.message).toBe('A comparison shows at most 4 runs; 5 were chosen. Choose up to 4.');
+    const page = await analyst.request('GET', `/runs/compare?${ids.map((id) => `run=${id}`).join('&')}`);
+    expect(page.status).toBe(400);
+    expect(await page.text()).toContain('A comparison shows at most 4 runs');
+  });
+});

@@ -10,6 +10,7 @@ import { useMutation, useQuery } from '@tanstack/react-query';
 import { useEffect, useRef, useState } from 'react';
 import { refreshRunsTable } from './refreshRunsTable';
 import { apiFetch } from '../../lib/client/api';
+import { useHydrated } from '../../lib/client/useHydrated';
 import { QueryRoot } from '../../components/ui/QueryRoot';
 import type { RunStatus } from './runs.schema';
 
@@ -110,8 +111,9 @@ function Launcher({ analysisId, runId: initialRunId, canRun, canCancel, reloadWh
     intentKey.current ??= crypto.randomUUID();
     start.mutate(intentKey.current);
   };
+  const hydrated = useHydrated();
   return (
-    <div className="space-y-3">
+    <div className="space-y-3" data-testid="run-watcher" data-hydrated={hydrated ? 'true' : 'false'}>
       {canRun && analysisId && (
         <button type="button" className="btn btn-primary" data-testid="run-button" onClick={run} disabled={start.isPending}>
           {start.isPending ? 'Queuing…' : runId ? 'Run again' : 'Run this analysis'}
