@@ -14,9 +14,9 @@ export function IntervalOptions({ spec, choices, fieldId, shownError, changeSpec
         <Field id={fieldId('effectMeasure')} label="Effect measure" error={shownError('effectMeasure')}>
           {(describedBy, invalid) => (
             <select id={fieldId('effectMeasure')} className="field-input" value={spec.effectMeasure} aria-describedby={describedBy} aria-invalid={invalid} onChange={(e) => changeSpec({ effectMeasure: e.target.value as SpecDraft['effectMeasure'] }, 'effectMeasure')}>
-              {choices.measures.map((measure) => (
-                <option key={measure} value={measure}>
-                  {MEASURE_LABEL[measure]} ({measure})
+              {choices.measures.map(({ value, disabledReason }) => (
+                <option key={value} value={value} disabled={disabledReason !== undefined && value !== spec.effectMeasure}>
+                  {MEASURE_LABEL[value]} ({value}){disabledReason ? ` — not available: ${disabledReason}` : ''}
                 </option>
               ))}
             </select>
@@ -25,9 +25,9 @@ export function IntervalOptions({ spec, choices, fieldId, shownError, changeSpec
         <Field id={fieldId('model')} label="Model" error={shownError('model')} hint={spec.model === 'log-binomial' ? 'Falls back to modified Poisson if it does not converge; the run says so.' : undefined}>
           {(describedBy, invalid) => (
             <select id={fieldId('model')} className="field-input" value={spec.model} aria-describedby={describedBy} aria-invalid={invalid} onChange={(e) => changeSpec({ model: e.target.value as SpecDraft['model'] }, 'model')}>
-              {choices.models.map((model) => (
-                <option key={model} value={model}>
-                  {MODEL_LABEL[model]}
+              {choices.models.map(({ value, disabledReason }) => (
+                <option key={value} value={value} disabled={disabledReason !== undefined && value !== spec.model}>
+                  {MODEL_LABEL[value]}{disabledReason ? ` — not available: ${disabledReason}` : ''}
                 </option>
               ))}
             </select>

@@ -11,6 +11,7 @@ import { recordAudit } from '../audit/audit.server';
 import { levelsLeftIn } from '../extracts/engineData';
 import type { ColumnProfile, DictionaryEntry } from '../extracts/extracts.schema';
 import type { AnalysisBody } from './analysisApi.schema';
+import { specRuleProblems } from './specRules';
 
 export interface Actor {
   id: string;
@@ -108,8 +109,8 @@ export function checkSpecAgainstDictionary(spec: Spec, dictionary: readonly Dict
     need(`spec.covariates.${i}.column`, c.column, c.type === 'categorical' ? ['binary', 'categorical', 'count'] : ['continuous', 'count', 'binary'], `${c.type} covariate`);
     if (c.type === 'categorical' && c.reference !== undefined) reference(`spec.covariates.${i}.reference`, c.column, c.reference);
   });
-  if (spec.outcome.type === 'binary' && spec.model === 'linear') problems.push({ path: 'spec.model', message: 'A binary outcome needs a logistic, log-binomial or modified Poisson model.' });
-  if (spec.outcome.type === 'continuous' && spec.model !== 'linear') problems.push({ path: 'spec.model', message: 'A continuous outcome needs the linear model.' });
+  // The same rule check as the form's validation and summary panel.
+  problems.push(...specRuleProblems(spec));
   if (problems.length) throw unprocessable('spec-invalid', problems[0].message, problems);
 }
 

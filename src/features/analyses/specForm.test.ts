@@ -27,8 +27,7 @@ describe('formChoices', () => {
     expect(binary.outcomes.map((c) => c.name)).toEqual(['readmitted_30d', 'call_back', 'sex', 'discharged_home']);
     const continuous = formChoices(CALL_BACK, { ...defaultDraft().spec, outcome: { type: 'continuous', column: '', event: '' } });
     expect(continuous.outcomes.map((c) => c.name)).toEqual(['comorbidity_score', 'prior_admissions', 'length_of_stay_days']);
-    expect(continuous.models).toEqual(['linear']);
-    expect(continuous.measures).toEqual(['MD']);
+    expect(continuous.models.filter((m) => !m.disabledReason).map((m) => m.value)).toEqual(['linear']);
   });
 
   it('offers binary and categorical interventions, disabling those without exactly two levels', () => {
@@ -69,23 +68,13 @@ describe('defaults and revisions', () => {
     ]);
   });
 
-  it('proposes reference levels and moves to linear for a continuous outcome', () => {
+  it('proposes reference levels, and leaves the model and measure alone when the outcome type changes', () => {
     const draft = callBackDraft();
     expect(draft.exposure.reference).toBe('0');
     expect(draft.modifier.reference).toBe('18-44');
     expect(draft.covariateReferences).toEqual({ sex: 'F', site: 'Eastholm Community' });
     const continuous = reviseDraft(CALL_BACK, draft, { outcome: { ...draft.outcome, type: 'continuous' } });
-    expect([continuous.model, continuous.effectMeasure, continuous.outcome.column]).toEqual(['linear', 'MD', '']);
-  });
-
-  it('keeps the model and the measure consistent whichever is changed', () => {
-    const draft = callBackDraft();
-    expect(reviseDraft(CALL_BACK, draft, { model: 'modified-poisson' }).effectMeasure).toBe('RR');
-    expect(reviseDraft(CALL_BACK, draft, { effectMeasure: 'RR' }).model).toBe('log-binomial');
-    expect(reviseDraft(CALL_BACK, draft, { effectMeasure: 'RD' }).model).toBe('linear');
-    // Choosing RR while already on modified Poisson keeps modified Poisson.
-    const poisson = reviseDraft(CALL_BACK, draft, { model: 'modified-poisson' });
-    expect(reviseDraft(CALL_BACK, poisson, { effectMeasure: 'RR' }).model).toBe('modified-poisson');
+    expect([continuous.model, continuous.effectMeasure, continuous.outcome.column]).toEqual(['logistic', 'OR', '']);
   });
 
   it('drops a covariate that becomes the modifier', () => {

@@ -7,7 +7,7 @@
 import type { Spec } from '../../engine/boundary/schemas';
 import { defaultReference, entryKind, naturalOrder, needsEventLevel, type ColumnKind, type FormColumn } from './formColumns';
 import {
-  DEFAULT_REPLICATES, DEFAULT_SEED, defaultModelFor, measureFor, measuresFor, modelsFor,
+  DEFAULT_REPLICATES, DEFAULT_SEED, MEASURES, MODELS, measureFor, measureRefusal, modelRefusal,
   type CiMethod, type EffectMeasure, type ModelFamily, type Multiplicity, type OutcomeType,
 } from './specRules';
 
@@ -105,13 +105,19 @@ export interface FormChoices {
   modifierReferences: string[];
   /** Everything else, for adjustment. */
   covariates: (ColumnChoice & { levels: string[] | null; kind: 'categorical' | 'continuous' })[];
-  models: ModelFamily[];
-  measures: EffectMeasure[];
+  /** Every model; those saving would refuse for the outcome type carry the reason. */
+  models: { value: ModelFamily; disabledReason?: string }[];
+  /** Every measure; those the chosen model does not give carry the reason. */
+  measures: { value: EffectMeasure; disabledReason?: string }[];
   ciMethods: CiMethod[];
 }
 
 function choice(column: FormColumn, disabledReason?: string): ColumnChoice {
   return { name: column.name, type: column.type, description: column.description, ...(disabledReason ? { disabledReason } : {}) };
+}
+
+function withReason<T>(value: T, reason: string | null): { value: T; disabledReason?: string } {
+  return reason === null ? { value } : { value, disabledReason: reason };
 }
 
 /** The choices each field offers for the current draft. */
@@ -143,16 +149,19 @@ export function formChoices(columns: readonly FormColumn[], draft: SpecDraft): F
     covariates: columns
       .filter((column) => !used.has(column.name))
       .map((column) => ({ ...choice(column), levels: column.levels ? naturalOrder(column.levels) : null, kind: entryKind(column.type) })),
-    models: modelsFor(draft.outcome.type),
-    measures: measuresFor(draft.outcome.type),
+    models: MODELS.map((value) => withReason(value, modelRefusal(draft.outcome.type, value))),
+    measures: MEASURES.map((value) => withReason(value, measureRefusal(draft.outcome.type, draft.model, value))),
     ciMethods: ['delta', 'mover', 'bootstrap'],
   };
 }
 
 /**
- * Applies one change to a draft and keeps the rest consistent: a new outcome type resets
- * the outcome and the model; a new intervention or modifier proposes a reference level;
- * a column chosen for one role leaves the covariates; a measure picks its model.
+ * Applies one change to a draft and keeps the rest consistent without changing another
+ * choice behind the analyst's back: a new outcome type clears an outcome column of the
+ * other type; a new intervention or modifier proposes a reference level (its own field
+ * group); a column chosen for one role leaves the covariates. The model and the measure
+ * never change each other or with the outcome type: what no longer fits is flagged by
+ * validation and disabled in the choices, with the reason.
  */
 export function reviseDraft(columns: readonly FormColumn[], draft: SpecDraft, change: Partial<SpecDraft>): SpecDraft {
   const byName = new Map(columns.map((column) => [column.name, column]));
@@ -169,8 +178,6 @@ export function reviseDraft(columns: readonly FormColumn[], draft: SpecDraft, ch
     const column = byName.get(next.outcome.column);
     if (!column || !allowed.includes(column.type)) next.outcome.column = '';
     next.outcome.event = '';
-    next.model = modelsFor(next.outcome.type)[0];
-    next.effectMeasure = measureFor(next.model, next.outcome.type);
   }
   if (change.outcome?.column !== undefined && change.outcome.column !== draft.outcome.column && change.outcome.event === undefined) {
     next.outcome.event = '';
@@ -185,11 +192,6 @@ export function reviseDraft(columns: readonly FormColumn[], draft: SpecDraft, ch
     const categorical = column !== undefined && entryKind(column.type) === 'categorical';
     if (!categorical) next.modifier.reference = '';
     else if (!column.levels?.includes(next.modifier.reference)) next.modifier.reference = defaultReference(column.levels);
-  }
-  if (change.model !== undefined && change.effectMeasure === undefined) next.effectMeasure = measureFor(change.model, next.outcome.type);
-  if (change.effectMeasure !== undefined && change.model === undefined) {
-    const model = defaultModelFor(change.effectMeasure);
-    if (measureFor(next.model, next.outcome.type) !== change.effectMeasure) next.model = model;
   }
   const roles = new Set([next.outcome.column, next.exposure.column, next.modifier.column]);
   next.covariates = next.covariates.filter((name) => !roles.has(name) && byName.has(name));

@@ -1,7 +1,8 @@
 /**
  * The rules between a specification's choices: which model families an outcome type
- * allows, which effect measure each model gives, which model a measure implies, whether
- * additive measures exist, the bootstrap defaults, and the names of each choice.
+ * allows (and why not), which effect measure each model gives, whether additive measures
+ * exist, the bootstrap defaults, and the names of each choice. A choice never changes
+ * another field: the form disables what does not fit, with the reason.
  */
 import type { Spec } from '../../engine/boundary/schemas';
 
@@ -40,9 +41,43 @@ export const MULTIPLICITY_LABEL: Record<Multiplicity, string> = {
   bh: 'Benjamini-Hochberg',
 };
 
-/** The model families a form offers for an outcome type, default first. */
+export const MODELS: ModelFamily[] = ['logistic', 'log-binomial', 'modified-poisson', 'linear'];
+export const MEASURES: EffectMeasure[] = ['OR', 'RR', 'RD', 'MD'];
+
+/** Why saving refuses a model for an outcome type, or null when it accepts it. */
+export function modelRefusal(outcome: OutcomeType, model: ModelFamily): string | null {
+  if (outcome === 'binary' && model === 'linear') return 'A binary outcome needs a logistic, log-binomial or modified Poisson model.';
+  if (outcome === 'continuous' && model !== 'linear') return 'A continuous outcome needs the linear model.';
+  return null;
+}
+
+/** Why a measure cannot go with the chosen model and outcome type, or null when it can. */
+export function measureRefusal(outcome: OutcomeType, model: ModelFamily, measure: EffectMeasure): string | null {
+  if (!measuresFor(outcome).includes(measure)) return `A ${outcome} outcome has no ${MEASURE_LABEL[measure]}.`;
+  const implied = measureFor(model, outcome);
+  if (implied === measure) return null;
+  const givers = MODELS.filter((m) => modelRefusal(outcome, m) === null && measureFor(m, outcome) === measure);
+  if (givers.length === 0) return `No model open to a ${outcome} outcome gives the ${MEASURE_LABEL[measure]}.`;
+  return `${MODEL_LABEL[model]} gives the ${MEASURE_LABEL[implied]}; choose ${givers.map((m) => MODEL_LABEL[m]).join(' or ')} first.`;
+}
+
+/**
+ * The choice rules a stored specification must meet, as { path, message } with paths
+ * into the request body: the one check the form's validation, its summary panel and the
+ * server's refusal all use, so the summary never calls runnable what saving refuses.
+ */
+export function specRuleProblems(spec: Pick<Spec, 'outcome' | 'model' | 'effectMeasure'>): { path: string; message: string }[] {
+  const problems: { path: string; message: string }[] = [];
+  const model = modelRefusal(spec.outcome.type, spec.model);
+  if (model) problems.push({ path: 'spec.model', message: model });
+  const measure = spec.effectMeasure === undefined ? null : measureRefusal(spec.outcome.type, spec.model, spec.effectMeasure);
+  if (measure && !model) problems.push({ path: 'spec.effectMeasure', message: measure });
+  return problems;
+}
+
+/** The model families a form offers for an outcome type, default first (others are shown disabled). */
 export function modelsFor(outcome: OutcomeType): ModelFamily[] {
-  return outcome === 'binary' ? ['logistic', 'log-binomial', 'modified-poisson', 'linear'] : ['linear'];
+  return MODELS.filter((model) => modelRefusal(outcome, model) === null);
 }
 
 /** The effect measure a model gives (the engine refuses any other). */
@@ -55,13 +90,6 @@ export function measureFor(model: ModelFamily, outcome: OutcomeType): EffectMeas
 /** The effect measures open to an outcome type. */
 export function measuresFor(outcome: OutcomeType): EffectMeasure[] {
   return outcome === 'binary' ? ['OR', 'RR', 'RD'] : ['MD'];
-}
-
-/** The model a form switches to when the analyst picks a measure. */
-export function defaultModelFor(measure: EffectMeasure): ModelFamily {
-  if (measure === 'OR') return 'logistic';
-  if (measure === 'RR') return 'log-binomial';
-  return 'linear';
 }
 
 /** Whether a specification's additive measures (RERI, AP, S) exist: ratio models only. */

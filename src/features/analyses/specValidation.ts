@@ -6,7 +6,7 @@
 import { SpecSchema, type Spec } from '../../engine/boundary/schemas';
 import { entryKind, needsEventLevel, type FormColumn } from './formColumns';
 import type { AnalysisDraft, SpecDraft } from './specForm';
-import { MEASURE_LABEL, MODEL_LABEL, measureFor, modelsFor } from './specRules';
+import { specRuleProblems } from './specRules';
 
 /** Messages by field path ("title", "modifier.reference", "ci.replicates", "covariates.site.reference"). */
 export type FieldErrors = Record<string, string>;
@@ -116,10 +116,9 @@ export function draftToSpec(columns: readonly FormColumn[], draft: SpecDraft): C
     covariates.push({ column: name, type: 'categorical', ...(reference ? { reference } : {}) });
   }
 
-  if (!modelsFor(draft.outcome.type).includes(draft.model)) errors.model = `A ${draft.outcome.type} outcome cannot use ${MODEL_LABEL[draft.model].toLowerCase()}.`;
-  const implied = measureFor(draft.model, draft.outcome.type);
-  if (draft.effectMeasure !== implied) {
-    errors.effectMeasure = `${MODEL_LABEL[draft.model]} gives the ${MEASURE_LABEL[implied]}; choose it or another model.`;
+  // The same rule check the server applies when saving (specRules.ts).
+  for (const problem of specRuleProblems({ outcome: { column: draft.outcome.column, type: draft.outcome.type }, model: draft.model, effectMeasure: draft.effectMeasure })) {
+    errors[fieldForServerPath(problem.path)] = problem.message;
   }
 
   const levelPercent = parseNumber(draft.ciLevel);

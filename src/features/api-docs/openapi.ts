@@ -58,6 +58,9 @@ function parameters(operation: Operation, components: Record<string, JsonSchema>
       list.push({ name, in: 'query', required: converted.required?.includes(name) ?? false, schema });
     }
   }
+  for (const header of operation.headers ?? []) {
+    list.push({ name: header.name, in: 'header', required: header.required ?? false, description: header.description, schema: { type: 'string' } });
+  }
   void components;
   return list;
 }

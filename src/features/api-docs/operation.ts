@@ -12,6 +12,8 @@ export interface Operation {
   description?: string;
   auth: Auth;
   query?: ZodType;
+  /** Request headers the endpoint reads (documented as header parameters). */
+  headers?: { name: string; description: string; required?: boolean }[];
   body?: ZodType;
   /** The body content type when it is not JSON (uploads). */
   bodyType?: string;

@@ -1,11 +1,16 @@
 /**
  * Starts a run and follows it, or follows one already under way: the stage and the share
  * of the work done (bootstrap replicates, for instance), a cancel button, and the way to
- * the results when it ends.
+ * the results when it ends. The Run button disables itself on the first click and sends
+ * an Idempotency-Key (one per intent to run, kept for retries of that intent), so a
+ * double-click queues one run. When a run starts or ends, the page's runs table is
+ * refreshed (refreshRunsTable.ts).
  */
 import { useMutation, useQuery } from '@tanstack/react-query';
-import { useState } from 'react';
+import { useEffect, useRef, useState } from 'react';
+import { refreshRunsTable } from './refreshRunsTable';
 import { apiFetch } from '../../lib/client/api';
+import { useHydrated } from '../../lib/client/useHydrated';
 import { QueryRoot } from '../../components/ui/QueryRoot';
 import type { RunStatus } from './runs.schema';
 
@@ -39,6 +44,15 @@ function Follow({ runId, canCancel }: { runId: string; canCancel: boolean }) {
   });
   const cancel = useMutation({ mutationFn: () => apiFetch(`/api/runs/${runId}/cancel`, { method: 'POST', body: {} }) });
   const data = run.data;
+  const ended = data !== undefined && data.status !== 'queued' && data.status !== 'running';
+  // Followed runs were under way when the page loaded or the button queued them: refresh once they end.
+  const refreshed = useRef(false);
+  useEffect(() => {
+    if (ended && !refreshed.current) {
+      refreshed.current = true;
+      void refreshRunsTable();
+    }
+  }, [ended]);
   if (!data) return <p role="status" className="text-ink-500">Checking the run…</p>;
   if (data.status === 'queued' || data.status === 'running') {
     const percent = Math.round((data.status === 'queued' ? 0 : data.progress.fraction) * 100);
@@ -76,14 +90,32 @@ function Follow({ runId, canCancel }: { runId: string; canCancel: boolean }) {
 
 function Launcher({ analysisId, runId: initialRunId, canRun, canCancel, reloadWhenDone }: Props) {
   const [runId, setRunId] = useState(initialRunId ?? null);
+  // One key per intent to run: reused if the request must be retried, renewed once a run is queued.
+  const intentKey = useRef<string | null>(null);
+  const sending = useRef(false);
   const start = useMutation({
-    mutationFn: () => apiFetch<{ runId: string }>(`/api/analyses/${analysisId}/runs`, { method: 'POST', body: {} }),
-    onSuccess: ({ runId: started }) => setRunId(started),
+    mutationFn: (key: string) =>
+      apiFetch<{ runId: string }>(`/api/analyses/${analysisId}/runs`, { method: 'POST', body: {}, headers: { 'Idempotency-Key': key } }),
+    onSuccess: ({ runId: started }) => {
+      intentKey.current = null;
+      setRunId(started);
+      void refreshRunsTable();
+    },
+    onSettled: () => {
+      sending.current = false;
+    },
   });
+  const run = () => {
+    if (sending.current) return;
+    sending.current = true;
+    intentKey.current ??= crypto.randomUUID();
+    start.mutate(intentKey.current);
+  };
+  const hydrated = useHydrated();
   return (
-    <div className="space-y-3">
+    <div className="space-y-3" data-testid="run-watcher" data-hydrated={hydrated ? 'true' : 'false'}>
       {canRun && analysisId && (
-        <button type="button" className="btn btn-primary" onClick={() => start.mutate()} disabled={start.isPending}>
+        <button type="button" className="btn btn-primary" data-testid="run-button" onClick={run} disabled={start.isPending}>
           {start.isPending ? 'Queuing…' : runId ? 'Run again' : 'Run this analysis'}
         </button>
       )}

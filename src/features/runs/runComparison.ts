@@ -1,90 +1,207 @@
 /**
- * Two runs side by side: what changed in the specification (field by field, in words) and
- * how the key estimates moved (within-stratum effects or simple slopes, RERI, the
- * multiplicative interaction, the omnibus p-value), all taken from the two results.
+ * Up to four runs side by side: what differs in their specifications (field by field, in
+ * the form's words), warnings when they use different references, and every figure the
+ * runs estimated (within-stratum effects matched by level name, simple slopes, RERI, AP,
+ * S, the multiplicative interaction, the omnibus p-value) with each run's change from the
+ * first run, computed from the results whenever both runs have the figure.
  */
 import type { Result, Spec } from '../../engine/boundary/schemas';
+import { CI_METHOD_LABEL, MEASURE_LABEL, MODEL_LABEL, MULTIPLICITY_LABEL } from '../analyses/specRules';
 import { formatInterval, formatP, measureInfo, type NumberKind } from './resultFormat';
 
-export interface SpecChange {
-  /** Dotted path of the changed field, e.g. "modifier.reference" or "covariates". */
+/** The most runs one comparison shows. */
+export const MAX_COMPARED_RUNS = 4;
+
+/** "Run A", "Run B", … */
+export const runLetter = (index: number): string => String.fromCharCode(65 + index);
+
+export interface ComparedRun {
+  id: string;
+  spec: Spec;
+  result: Result | null;
+}
+
+/** Human names of specification fields (the analysis form's labels). */
+export const SPEC_FIELD_LABEL: Record<string, string> = {
+  'outcome.column': 'Outcome',
+  'outcome.type': 'Outcome type',
+  'outcome.event': 'Event level of the outcome',
+  'exposure.column': 'Intervention',
+  'exposure.reference': 'Reference level of the intervention',
+  'modifier.column': 'Modifier',
+  'modifier.type': 'Modifier enters as',
+  'modifier.reference': 'Reference level of the modifier',
+  'modifier.centre': 'Centre of the modifier',
+  'modifier.slopesAt': 'Simple slopes at',
+  covariates: 'Adjusted for',
+  model: 'Model',
+  effectMeasure: 'Effect measure',
+  'ci.level': 'Interval level',
+  'ci.method': 'Interval method',
+  'ci.replicates': 'Bootstrap replicates',
+  'ci.seed': 'Random seed',
+  alpha: 'Level of tests (α)',
+  multiplicity: 'Adjustment across strata',
+  preventive: 'Preventive recoding',
+  standardErrors: 'Standard errors',
+  'planning.interaction': 'Planning: interaction size',
+  'planning.power': 'Planning: target power',
+};
+
+/** Each specification field in words, by the path SPEC_FIELD_LABEL names. */
+function specFields(spec: Spec): Map<string, string> {
+  const slopes = spec.modifier.slopesAt;
+  const entries: [string, string | undefined][] = [
+    ['outcome.column', spec.outcome.column],
+    ['outcome.type', spec.outcome.type],
+    ['outcome.event', spec.outcome.event],
+    ['exposure.column', spec.exposure.column],
+    ['exposure.reference', spec.exposure.reference],
+    ['modifier.column', spec.modifier.column],
+    ['modifier.type', spec.modifier.type],
+    ['modifier.reference', spec.modifier.reference],
+    ['modifier.centre', spec.modifier.centre === undefined ? undefined : String(spec.modifier.centre)],
+    ['modifier.slopesAt', !slopes ? undefined : slopes.kind === 'sd' ? 'mean and ± 1 SD' : slopes.kind === 'percentiles' ? `percentiles ${slopes.percentiles.join(', ')}` : `values ${slopes.values.join(', ')}`],
+    ['covariates', spec.covariates.length === 0 ? 'nothing' : spec.covariates.map((c) => (c.type === 'categorical' ? `${c.column} (reference ${c.reference ?? 'first level'})` : c.column)).join(', ')],
+    ['model', MODEL_LABEL[spec.model]],
+    ['effectMeasure', spec.effectMeasure && MEASURE_LABEL[spec.effectMeasure]],
+    ['ci.level', `${Number((spec.ci.level * 100).toPrecision(12))} %`],
+    ['ci.method', CI_METHOD_LABEL[spec.ci.method]],
+    ['ci.replicates', spec.ci.replicates === undefined ? undefined : String(spec.ci.replicates)],
+    ['ci.seed', spec.ci.seed === undefined ? undefined : String(spec.ci.seed)],
+    ['alpha', spec.alpha === undefined ? undefined : String(spec.alpha)],
+    ['multiplicity', spec.multiplicity && MULTIPLICITY_LABEL[spec.multiplicity]],
+    ['preventive', spec.preventive === undefined ? undefined : spec.preventive ? 'yes' : 'no'],
+    ['standardErrors', spec.standardErrors],
+    ['planning.interaction', spec.planning?.interaction === undefined ? undefined : String(spec.planning.interaction)],
+    ['planning.power', spec.planning?.power === undefined ? undefined : String(spec.planning.power)],
+  ];
+  return new Map(entries.filter((entry): entry is [string, string] => entry[1] !== undefined));
+}
+
+export interface SpecDifference {
   path: string;
-  before: string;
-  after: string;
-}
-
-function flatten(value: unknown, prefix: string, into: Map<string, string>): void {
-  if (Array.isArray(value)) {
-    // Arrays compare as wholes (covariates, percentiles): their order is part of the meaning.
-    into.set(prefix, value.map((item) => (typeof item === 'object' && item !== null ? Object.values(item).join(' ') : String(item))).join(', '));
-    return;
-  }
-  if (value !== null && typeof value === 'object') {
-    for (const [key, inner] of Object.entries(value)) flatten(inner, prefix ? `${prefix}.${key}` : key, into);
-    return;
-  }
-  if (value !== undefined) into.set(prefix, String(value));
-}
-
-/** The fields whose values differ between two specifications ("(default)" where a field is left out). */
-export function specChanges(before: Spec, after: Spec): SpecChange[] {
-  const a = new Map<string, string>();
-  const b = new Map<string, string>();
-  flatten(before, '', a);
-  flatten(after, '', b);
-  const paths = [...new Set([...a.keys(), ...b.keys()])].sort();
-  return paths
-    .filter((path) => a.get(path) !== b.get(path))
-    .map((path) => ({ path, before: a.get(path) ?? '(default)', after: b.get(path) ?? '(default)' }));
-}
-
-export interface EstimateMove {
-  /** What the row is, e.g. "Effect in 80+", "RERI, 80+", "Omnibus test p". */
+  /** The field's human name. */
   label: string;
-  before: string;
-  after: string;
-  /** after − before of the point estimates (same scale), null when either is missing or the scales differ. */
-  change: number | null;
+  /** One value per run ("(default)" where a run leaves the field out). */
+  values: string[];
 }
 
-interface Keyed {
+/** The specification fields whose values differ among the runs. */
+export function specDifferences(specs: readonly Spec[]): SpecDifference[] {
+  const fields = specs.map(specFields);
+  return Object.keys(SPEC_FIELD_LABEL)
+    .map((path) => ({ path, label: SPEC_FIELD_LABEL[path], values: fields.map((f) => f.get(path) ?? '(default)') }))
+    .filter((row) => new Set(row.values).size > 1);
+}
+
+/**
+ * Warnings when runs compare against different references: another intervention or
+ * modifier reference level (from the results where they exist, else the specifications),
+ * or another modifier or intervention column. Each names the runs.
+ */
+export function referenceWarnings(runs: readonly ComparedRun[]): string[] {
+  const warnings: string[] = [];
+  const first = runs[0];
+  if (!first) return warnings;
+  const exposureReference = (run: ComparedRun) => run.result?.exposure.reference ?? run.spec.exposure.reference;
+  const modifierReference = (run: ComparedRun) => run.result?.modifier.reference ?? run.spec.modifier.reference ?? null;
+  runs.slice(1).forEach((run, offset) => {
+    const these = `run ${runLetter(0)} and run ${runLetter(offset + 1)}`;
+    if (run.spec.exposure.column !== first.spec.exposure.column) {
+      warnings.push(`${capital(these)} study different interventions (${first.spec.exposure.column}, ${run.spec.exposure.column}).`);
+    } else if (exposureReference(run) !== exposureReference(first)) {
+      warnings.push(`${capital(these)} use different reference levels of the intervention ${run.spec.exposure.column} (${exposureReference(first)}, ${exposureReference(run)}): their effects point in different directions.`);
+    }
+    if (run.spec.modifier.column !== first.spec.modifier.column) {
+      warnings.push(`${capital(these)} use different modifiers (${first.spec.modifier.column}, ${run.spec.modifier.column}): strata are matched by level name only.`);
+    } else {
+      const a = modifierReference(first);
+      const b = modifierReference(run);
+      if (a !== null && b !== null && a !== b) {
+        warnings.push(`${capital(these)} use different reference levels of the modifier ${run.spec.modifier.column} (${a}, ${b}): RERI, AP, S and the interaction ratios are against different strata.`);
+      }
+    }
+  });
+  return warnings;
+}
+
+function capital(text: string): string {
+  return text.charAt(0).toUpperCase() + text.slice(1);
+}
+
+interface Figure {
+  key: string;
   label: string;
   estimate: number | null;
   text: string;
+  /** The effect measure the figure is on, when it is one (effects, multiplicative interaction). */
+  measure: Result['effectMeasure'] | null;
 }
 
-function keyEstimates(result: Result): Keyed[] {
+function figures(result: Result): Figure[] {
   const measure = measureInfo(result);
   const kind: NumberKind = measure.kind;
-  const rows: Keyed[] = [];
-  for (const stratum of result.strata) {
-    rows.push({ label: `${measure.code} in ${result.modifier.column} = ${stratum.level}`, estimate: stratum.effect.estimate, text: formatInterval(stratum.effect.estimate, stratum.effect.lower, stratum.effect.upper, kind) });
-  }
-  for (const slope of result.slopes ?? []) {
-    rows.push({ label: `${measure.code} at ${slope.label}`, estimate: slope.estimate, text: formatInterval(slope.estimate, slope.lower, slope.upper, kind) });
-  }
+  const column = result.modifier.column;
+  const rows: Figure[] = [];
+  const add = (key: string, label: string, value: { estimate: number | null; lower: number | null; upper: number | null } | null, k: NumberKind, on: Result['effectMeasure'] | null) => {
+    if (value) rows.push({ key, label, estimate: value.estimate, text: `${on ? `${on} ` : ''}${formatInterval(value.estimate, value.lower, value.upper, k)}`, measure: on });
+  };
+  for (const stratum of result.strata) add(`effect:${stratum.level}`, `Effect in ${column} = ${stratum.level}`, stratum.effect, kind, measure.code);
+  for (const slope of result.slopes ?? []) add(`slope:${slope.label}`, `Effect at ${slope.label} of ${column}`, slope, kind, measure.code);
   for (const entry of result.interaction.additive) {
-    if (entry.reri) rows.push({ label: `RERI, ${entry.level}`, estimate: entry.reri.estimate, text: formatInterval(entry.reri.estimate, entry.reri.lower, entry.reri.upper, 'difference') });
-    const did = entry.differenceInDifferences;
-    if (did) rows.push({ label: `Difference in differences, ${entry.level}`, estimate: did.estimate, text: formatInterval(did.estimate, did.lower, did.upper, kind) });
+    add(`reri:${entry.level}`, `RERI, ${entry.level}`, entry.reri, 'difference', null);
+    add(`ap:${entry.level}`, `AP, ${entry.level}`, entry.ap, 'difference', null);
+    add(`s:${entry.level}`, `S, ${entry.level}`, entry.s, 'ratio', null);
+    add(`did:${entry.level}`, `Difference in differences, ${entry.level}`, entry.differenceInDifferences, kind, measure.code);
   }
-  for (const entry of result.interaction.multiplicative) {
-    rows.push({ label: `${measure.interactionName[0].toUpperCase()}${measure.interactionName.slice(1)}, ${entry.level}`, estimate: entry.estimate, text: formatInterval(entry.estimate, entry.lower, entry.upper, 'ratio') });
-  }
-  rows.push({ label: 'Omnibus test p', estimate: result.interaction.omnibus.p, text: formatP(result.interaction.omnibus.p) });
+  for (const entry of result.interaction.multiplicative) add(`product:${entry.level}`, `Interaction on the ${measure.ratio ? 'ratio' : 'difference'} scale, ${entry.level}`, entry, measure.ratio ? 'ratio' : kind, measure.code);
+  const p = result.interaction.omnibus.p;
+  rows.push({ key: 'omnibus-p', label: 'Omnibus test of effect modification, p', estimate: p, text: formatP(p), measure: null });
   return rows;
 }
 
-/** The key estimates of two runs, matched by label, in the order of the first (then new rows of the second). */
-export function estimateMoves(before: Result, after: Result): EstimateMove[] {
-  const a = keyEstimates(before);
-  const b = keyEstimates(after);
-  const sameScale = before.effectMeasure === after.effectMeasure;
-  const labels = [...new Set([...a.map((row) => row.label), ...b.map((row) => row.label)])];
-  return labels.map((label) => {
-    const x = a.find((row) => row.label === label);
-    const y = b.find((row) => row.label === label);
-    const change = sameScale && x?.estimate != null && y?.estimate != null ? y.estimate - x.estimate : null;
-    return { label, before: x?.text ?? 'not estimated', after: y?.text ?? 'not estimated', change };
+export interface FigureRow {
+  key: string;
+  label: string;
+  /** One text per run ("not estimated" where a run lacks the figure). */
+  values: string[];
+  /** Per run: its point estimate minus the first run's; null for the first run and where either lacks the figure. */
+  changes: (number | null)[];
+  /** Per run: why its change needs care (another effect measure), or null. */
+  notes: (string | null)[];
+}
+
+/**
+ * Every figure any of the runs estimated, matched by what it is (stratum level names,
+ * slope labels, interaction levels), in the order first seen; runs without a result
+ * show "no result".
+ */
+export function figureRows(runs: readonly ComparedRun[]): FigureRow[] {
+  const perRun = runs.map((run) => (run.result ? figures(run.result) : null));
+  const order: { key: string; label: string }[] = [];
+  for (const list of perRun) for (const figure of list ?? []) if (!order.some((o) => o.key === figure.key)) order.push(figure);
+  return order.map(({ key, label }) => {
+    const found = perRun.map((list) => list?.find((figure) => figure.key === key) ?? null);
+    const base = found[0];
+    return {
+      key,
+      label,
+      values: found.map((figure, i) => (perRun[i] === null ? 'no result' : (figure?.text ?? 'not estimated'))),
+      changes: found.map((figure, i) => (i === 0 || base?.estimate == null || figure?.estimate == null ? null : figure.estimate - base.estimate)),
+      notes: found.map((figure, i) =>
+        i > 0 && base?.measure && figure?.measure && base.measure !== figure.measure ? `${base.measure} → ${figure.measure}: different measures` : null,
+      ),
+    };
   });
+}
+
+/** The whole comparison of up to four runs, as the page and the API show it. */
+export function compareRuns(runs: readonly ComparedRun[]) {
+  return {
+    runs: runs.map((run, i) => ({ id: run.id, letter: runLetter(i) })),
+    specDifferences: specDifferences(runs.map((run) => run.spec)),
+    referenceWarnings: referenceWarnings(runs),
+    figures: figureRows(runs),
+  };
 }

@@ -19,11 +19,17 @@ export class ApiError extends Error {
   }
 }
 
-export async function apiFetch<T>(path: string, options: { method?: string; body?: unknown; signal?: AbortSignal } = {}): Promise<T> {
+export async function apiFetch<T>(
+  path: string,
+  options: { method?: string; body?: unknown; signal?: AbortSignal; headers?: Record<string, string> } = {},
+): Promise<T> {
   const response = await fetch(path, {
     method: options.method ?? 'GET',
     credentials: 'same-origin',
-    headers: options.body === undefined ? { Accept: 'application/json' } : { 'Content-Type': 'application/json', Accept: 'application/json' },
+    headers: {
+      ...(options.body === undefined ? { Accept: 'application/json' } : { 'Content-Type': 'application/json', Accept: 'application/json' }),
+      ...options.headers,
+    },
     body: options.body === undefined ? undefined : JSON.stringify(options.body),
     signal: options.signal,
   });

@@ -51,7 +51,7 @@ export const PLOT_CONFIG = {
   modeBarButtonsToRemove: ['select2d', 'lasso2d', 'sendChartToCloud', 'sendDataToCloud', 'editInChartStudio', 'downloadJson'],
 } as const;
 
-function baseLayout(): Record<string, unknown> {
+export function baseLayout(): Record<string, unknown> {
   return {
     font: { family: "'Noto Sans', ui-sans-serif, system-ui, sans-serif", size: 13, color: PLOT_COLOURS.ink },
     paper_bgcolor: '#ffffff',
@@ -62,7 +62,7 @@ function baseLayout(): Record<string, unknown> {
   };
 }
 
-function axis(title: string, extra: Record<string, unknown> = {}): Record<string, unknown> {
+export function axis(title: string, extra: Record<string, unknown> = {}): Record<string, unknown> {
   return {
     title: { text: title, standoff: 8 },
     showgrid: false,
@@ -76,7 +76,7 @@ function axis(title: string, extra: Record<string, unknown> = {}): Record<string
   };
 }
 
-function nullLine(orientation: 'vertical' | 'horizontal', value: number): PlotShape {
+export function nullLine(orientation: 'vertical' | 'horizontal', value: number): PlotShape {
   const line = { color: PLOT_COLOURS.inkMuted, width: 1, dash: 'dot' };
   return orientation === 'vertical'
     ? { type: 'line', xref: 'x', yref: 'paper', x0: value, x1: value, y0: 0, y1: 1, line, layer: 'below' }
@@ -88,7 +88,7 @@ function effectName(result: PlotInput): string {
   return `${measureInfo(result).name} of ${result.exposure.column} = ${result.exposure.level} against ${result.exposure.reference}`;
 }
 
-function capitalise(text: string): string {
+export function capitalise(text: string): string {
   return text.charAt(0).toUpperCase() + text.slice(1);
 }
 
