@@ -94,7 +94,7 @@ export async function storeVersion(
     action: start.newExtract ? 'extract.uploaded' : 'extract.version-added',
     actorId: uploader.id, subjectType: 'extract', subjectId: start.extractId, initiativeId: start.initiativeId,
     clientAddress: uploader.clientAddress,
-    details: { versionId: start.versionId, version: next, name: start.name, sha256: read.read.sha256, rows: read.read.recordCount, columns: kept.length },
+    details: { versionId: start.versionId, version: next, name: start.name, sha256: read.read.sha256, rows: read.read.recordCount, columns: kept.length, droppedColumns: [...read.droppedColumns] },
   });
   return true;
 }

@@ -89,7 +89,7 @@ async function addStep(
   await ReviewStep.create({ runId: run.id, initiativeId: run.initiativeId, kind, actorId: reviewer.id, note: note.trim() }, { transaction });
   await recordAudit(transaction, {
     action: `review.${kind}`, actorId: reviewer.id, subjectType: 'run', subjectId: run.id, initiativeId: run.initiativeId,
-    clientAddress: reviewer.clientAddress, details: { from: state, to: kind, noteLength: note.trim().length },
+    clientAddress: reviewer.clientAddress, details: { from: state, to: kind, noteLength: note.trim().length, note: note.trim() },
   });
   return kind;
 }
@@ -120,7 +120,7 @@ export async function addComment(transaction: Transaction, author: Reviewer, run
   );
   await recordAudit(transaction, {
     action: 'review.commented', actorId: author.id, subjectType: 'run', subjectId: run.id, initiativeId: run.initiativeId,
-    clientAddress: author.clientAddress, details: { commentId: created.id, inReplyTo: threadId, length: body.trim().length },
+    clientAddress: author.clientAddress, details: { commentId: created.id, inReplyTo: threadId, length: body.trim().length, body: body.trim() },
   });
   return created.id;
 }
