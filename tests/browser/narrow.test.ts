@@ -81,7 +81,16 @@ async function visitAll(page: Page, paths: [string, string][]): Promise<string[]
   for (const [name, path] of paths) {
     const response = await page.goto(path);
     expect(response?.status(), path).toBe(200);
-    if (path === `/runs/${runId}`) await page.getByTestId('plot-stratum-forest').locator('.main-svg').first().waitFor();
+    if (path === `/runs/${runId}`) {
+      // The plot fills the card's width and lays its legend under the plot.
+      const plot = page.getByTestId('plot-stratum-forest');
+      await plot.locator('.main-svg').first().waitFor();
+      await plot.scrollIntoViewIfNeeded();
+      await plot.screenshot({ path: await saveScreenshot(page, 'narrow-results-page').then((file) => file.replace('-page.png', '-plot.png')) });
+      const [svgWidth, cardWidth] = await plot.evaluate((el) => [el.querySelector('.main-svg')!.getBoundingClientRect().width, el.getBoundingClientRect().width]);
+      expect(svgWidth).toBeLessThanOrEqual(cardWidth);
+      expect(svgWidth).toBeGreaterThan(cardWidth * 0.8);
+    }
     await page.waitForLoadState('networkidle');
     await saveScreenshot(page, `narrow-${name}`);
     const by = await overflow(page);

@@ -13,7 +13,12 @@ import { conflict, notFound } from '../../lib/server/errors';
 import { renderEmail, sendMail } from '../../lib/server/mail';
 import { recordAudit } from '../audit/audit.server';
 import { issueToken } from '../auth/auth.server';
-import type { Actor } from './admin.server';
+
+/** The administrator acting, and the address they act from. */
+interface Actor {
+  id: string;
+  address: string;
+}
 
 /** The invitation e-mail, sent after the transaction commits. */
 export function invitationMail(to: { email: string; displayName: string }, token: string): () => Promise<unknown> {
