@@ -8,10 +8,21 @@ export const NARROW_PLOT_WIDTH = 640;
 export function narrowLayout(layout: Record<string, unknown>): Record<string, unknown> {
   const font = (layout.font ?? {}) as Record<string, unknown>;
   const height = Number(layout.height ?? 360);
+  // Axis titles in a smaller type, so a long one ("Odds ratio (95 % CI), log scale") fits the narrow plot.
+  const axes = Object.fromEntries(
+    Object.entries(layout)
+      .filter(([key, value]) => /^[xy]axis\d*$/.test(key) && typeof value === 'object' && value !== null)
+      .map(([key, value]) => {
+        const axis = value as Record<string, unknown>;
+        const title = (axis.title ?? {}) as Record<string, unknown>;
+        return [key, { ...axis, tickfont: { size: 10 }, title: { ...title, font: { size: 10 } } }];
+      }),
+  );
   return {
     ...layout,
     font: { ...font, size: 11 },
-    margin: { l: 44, r: 8, t: 28, b: 48 },
+    ...axes,
+    margin: { l: 44, r: 20, t: 28, b: 48 },
     legend: { orientation: 'h', x: 0, xanchor: 'left', y: -0.22, yanchor: 'top', font: { size: 11 } },
     // Room for a legend of two or three rows below the axis title.
     height: height + 40,

@@ -98,12 +98,13 @@ describe('plot figures from real engine results', () => {
 
 describe('narrowLayout', () => {
   it('lays the legend flat under the plot, slims the margins and adds room below', () => {
-    const wide = { height: 360, font: { family: 'Noto Sans', size: 13 }, legend: { orientation: 'h', y: 1.02, yanchor: 'bottom' }, margin: { l: 72, r: 24, t: 40, b: 64 } };
+    const wide = { height: 360, xaxis: { title: { text: 'Odds ratio', standoff: 8 }, type: 'log' }, font: { family: 'Noto Sans', size: 13 }, legend: { orientation: 'h', y: 1.02, yanchor: 'bottom' }, margin: { l: 72, r: 24, t: 40, b: 64 } };
     const narrow = narrowLayout(wide);
     expect(narrow.legend).toMatchObject({ orientation: 'h', y: -0.22, yanchor: 'top' });
-    expect(narrow.margin).toEqual({ l: 44, r: 8, t: 28, b: 48 });
+    expect(narrow.margin).toEqual({ l: 44, r: 20, t: 28, b: 48 });
     expect(narrow.font).toEqual({ family: 'Noto Sans', size: 11 });
     expect(narrow.height).toBe(400);
+    expect(narrow.xaxis).toEqual({ title: { text: 'Odds ratio', standoff: 8, font: { size: 10 } }, type: 'log', tickfont: { size: 10 } });
     // The wide layout is left as it was.
     expect(wide.legend.y).toBe(1.02);
   });
