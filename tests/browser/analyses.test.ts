@@ -236,7 +236,7 @@ describe('the demo auditor', () => {
     await waitForHydrated(page, 'chain-check');
     await page.getByRole('button', { name: 'Verify the audit trail' }).click();
     await page.getByTestId('chain-report').waitFor();
-    await expect(page.getByTestId('chain-report').textContent()).resolves.toMatch(/^Intact: all [\d,]+ events link up/);
+    await expect(page.getByTestId('chain-report').textContent()).resolves.toMatch(/^Intact: all [\d,]+ events in Crossgrain’s trail link up/);
 
     // Save a checkpoint as a file, then check the trail against it: it holds.
     const [download] = await Promise.all([page.waitForEvent('download'), page.getByTestId('checkpoint-download').click()]);

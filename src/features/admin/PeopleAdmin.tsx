@@ -97,7 +97,7 @@ function StatusAction({ user, currentUserId }: { user: UserListItem; currentUser
     onSuccess: () => void client.invalidateQueries({ queryKey: ['admin-users'] }),
   });
   if (user.id === currentUserId) return <span className="text-xs text-ink-500">You</span>;
-  if (user.status === 'invited') return <span className="text-xs text-ink-500">Awaiting acceptance</span>;
+  if (!user.activated) return <InvitationActions user={user} />;
   const deactivate = user.status === 'active';
   return (
     <span className="inline-flex items-center gap-2">
@@ -117,6 +117,48 @@ function StatusAction({ user, currentUserId }: { user: UserListItem; currentUser
   );
 }
 
+/**
+ * For a person who never accepted: send a new link (the old one stops working), or revoke
+ * the invitation (the link stops working; the person stays listed as "invitation revoked").
+ */
+function InvitationActions({ user }: { user: UserListItem }) {
+  const client = useQueryClient();
+  const refresh = () => void client.invalidateQueries({ queryKey: ['admin-users'] });
+  const resend = useMutation({
+    mutationFn: () => apiFetch<{ mailed: boolean }>(`/api/admin/users/${user.id}/invitation`, { method: 'POST', body: {} }),
+    onSuccess: refresh,
+  });
+  const revoke = useMutation({ mutationFn: () => apiFetch(`/api/admin/users/${user.id}/invitation`, { method: 'DELETE' }), onSuccess: refresh });
+  const open = user.status === 'invited';
+  return (
+    <span className="inline-flex flex-wrap items-center gap-2">
+      <button type="button" className="btn btn-secondary" disabled={resend.isPending} onClick={() => resend.mutate()} aria-label={`Send ${user.displayName} a new invitation link`}>
+        {open ? 'Send a new link' : 'Invite again'}
+      </button>
+      {open && (
+        <button
+          type="button"
+          className="btn btn-secondary"
+          disabled={revoke.isPending}
+          aria-label={`Revoke ${user.displayName}’s invitation`}
+          onClick={() => {
+            if (!window.confirm(`Revoke the invitation of ${user.displayName}? Their link stops working at once.`)) return;
+            revoke.mutate();
+          }}
+        >
+          Revoke
+        </button>
+      )}
+      {resend.isSuccess && (
+        <span role="status" className="text-xs text-reed-700">
+          {resend.data.mailed ? 'New link sent; the old one no longer works.' : 'New link made, but the e-mail could not be sent.'}
+        </span>
+      )}
+      {(resend.error ?? revoke.error) && <span role="alert" className="text-xs text-brick-700">{(resend.error ?? revoke.error)?.message}</span>}
+    </span>
+  );
+}
+
 function People({ currentUserId }: { currentUserId: string }) {
   const users = useQuery({ queryKey: ['admin-users'], queryFn: () => apiFetch<UserListItem[]>('/api/admin/users') });
   const initiatives = useQuery({ queryKey: ['admin-initiatives'], queryFn: () => apiFetch<InitiativeItem[]>('/api/admin/initiatives') });
@@ -129,7 +171,8 @@ function People({ currentUserId }: { currentUserId: string }) {
         header: 'Status',
         cell: (info) => {
           const status = info.getValue() as UserListItem['status'];
-          return <span className={`badge ${STATUS_STYLE[status]}`}>{status}</span>;
+          const revoked = status === 'deactivated' && !info.row.original.activated;
+          return <span className={`badge ${STATUS_STYLE[status]}`}>{revoked ? 'invitation revoked' : status}</span>;
         },
       },
       {

@@ -24,6 +24,8 @@ export const UserListItem = z
     email: z.string(),
     displayName: z.string(),
     status: z.enum(['invited', 'active', 'deactivated']),
+    /** Whether the person ever set a password; a deactivated account that never did is a revoked invitation. */
+    activated: z.boolean(),
     isAdmin: z.boolean(),
     lastSignInAt: z.string().nullable(),
     createdAt: z.string(),

@@ -6,13 +6,12 @@
 import { Op, QueryTypes, type Transaction } from 'sequelize';
 import { Initiative, Membership, User } from '../../../db/models';
 import { sequelize } from '../../lib/server/db';
-import { publicUrl } from '../../lib/server/env';
 import { conflict, notFound, unprocessable } from '../../lib/server/errors';
-import { renderEmail, sendMail } from '../../lib/server/mail';
 import { endAllSessions } from '../../lib/server/session';
 import { recordAudit } from '../audit/audit.server';
 import { issueToken } from '../auth/auth.server';
 import { revokeAllApiTokens } from '../auth/apiTokens.server';
+import { invitationMail } from './invitations.server';
 import type { CreateInitiativeBody, InitiativeItem, InviteUserBody, UpdateInitiativeBody, UserListItem } from './admin.schema';
 
 export interface Actor {
@@ -25,7 +24,7 @@ const iso = (value: Date | string | null) => (value === null ? null : new Date(v
 /** Every account with its memberships, for the people list. */
 export async function listUsers(transaction: Transaction): Promise<UserListItem[]> {
   const users = await User.findAll({
-    attributes: ['id', 'email', 'displayName', 'status', 'isAdmin', 'lastSignInAt', 'createdAt'],
+    attributes: ['id', 'email', 'displayName', 'status', 'isAdmin', 'lastSignInAt', 'createdAt', 'passwordHash'],
     include: [{
       model: Membership, as: 'memberships', attributes: ['id', 'role'], required: false,
       include: [{ model: Initiative, as: 'initiative', attributes: ['id', 'name'], required: true }],
@@ -38,6 +37,7 @@ export async function listUsers(transaction: Transaction): Promise<UserListItem[
     email: u.email,
     displayName: u.displayName,
     status: u.status,
+    activated: Boolean(u.passwordHash),
     isAdmin: u.isAdmin,
     lastSignInAt: iso(u.lastSignInAt),
     createdAt: iso(u.createdAt) ?? '',
@@ -71,17 +71,7 @@ export async function inviteUser(transaction: Transaction, actor: Actor, body: I
     clientAddress: actor.address,
     details: { resent: Boolean(existing), isAdmin: body.isAdmin, membership: body.membership ?? null },
   });
-  const link = `${publicUrl()}/invitation?token=${encodeURIComponent(token)}`;
-  const email = renderEmail({
-    heading: "You're invited to Crossgrain",
-    paragraphs: [
-      `Hello ${body.displayName},`,
-      'You have been invited to Crossgrain, the effect-modification review board of your quality-improvement team.',
-      'Set your password to finish. The link works once, for 7 days.',
-    ],
-    action: { label: 'Set your password', url: link },
-  });
-  const send = () => sendMail({ to: body.email, subject: "You're invited to Crossgrain", ...email });
+  const send = invitationMail(body, token);
   return { userId, send };
 }
 

@@ -21,7 +21,7 @@ function chainSentence(report: ChainReport): string {
   if (report.broken) {
     return `Broken at position ${report.broken.position} (event ${report.broken.eventId}): ${report.broken.reason}. ${report.checked.toLocaleString('en-GB')} events before it are intact.`;
   }
-  return `Intact: all ${report.checked.toLocaleString('en-GB')} events link up and match their hashes. Head at position ${report.headPosition}, hash ${report.headHash?.slice(0, 16)}…`;
+  return `Intact: all ${report.checked.toLocaleString('en-GB')} events in Crossgrain’s trail link up and match their hashes. The check covers every event in the product (every initiative’s and the account events), so it counts more than the list below, which shows only this trail’s. Head at position ${report.headPosition}, hash ${report.headHash?.slice(0, 16)}…`;
 }
 
 function Check() {

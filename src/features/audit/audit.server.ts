@@ -15,6 +15,8 @@ export const AUDIT_ACTIONS = [
   'auth.sign-in-failed',
   'auth.sign-out',
   'auth.invitation-sent',
+  'auth.invitation-resent',
+  'auth.invitation-revoked',
   'auth.invitation-accepted',
   'auth.password-reset-requested',
   'auth.password-reset',

@@ -215,7 +215,7 @@ export async function correctBrief(transaction: Transaction, actor: Actor, brief
   const { note, ...changes } = body;
   const changed = await applyChanges(transaction, actor, brief, changes);
   const { version, sha256 } = await freezeVersion(transaction, actor, changed, note);
-  await recordAudit(transaction, { action: 'brief.corrected', actorId: actor.id, subjectType: 'brief', subjectId: brief.id, initiativeId: brief.initiativeId, clientAddress: actor.clientAddress, details: { version, sha256, noteLength: note.trim().length } });
+  await recordAudit(transaction, { action: 'brief.corrected', actorId: actor.id, subjectType: 'brief', subjectId: brief.id, initiativeId: brief.initiativeId, clientAddress: actor.clientAddress, details: { version, sha256, noteLength: note.trim().length, note: note.trim() } });
   return version;
 }
 
@@ -238,7 +238,7 @@ export async function retractBrief(transaction: Transaction, actor: Actor, brief
     });
     await sequelize.query('UPDATE brief_versions SET retracted_pdf = :pdf WHERE brief_id = :id AND version = :version', { replacements: { pdf, id: brief.id, version: version.version }, transaction });
   }
-  await recordAudit(transaction, { action: 'brief.retracted', actorId: actor.id, subjectType: 'brief', subjectId: brief.id, initiativeId: brief.initiativeId, clientAddress: actor.clientAddress, details: { versions: versions.length, reasonLength: reason.trim().length } });
+  await recordAudit(transaction, { action: 'brief.retracted', actorId: actor.id, subjectType: 'brief', subjectId: brief.id, initiativeId: brief.initiativeId, clientAddress: actor.clientAddress, details: { versions: versions.length, reasonLength: reason.trim().length, reason: reason.trim() } });
 }
 
 export interface StoredVersion { version: number; content: BriefContent; html: string; pdf: Buffer; sha256: string; publishedAt: string }

@@ -100,7 +100,7 @@ async function addStep(
   await recordAudit(transaction, {
     action: `review.${kind}`, actorId: reviewer.id, subjectType: 'run', subjectId: run.id, initiativeId: run.initiativeId,
     clientAddress: reviewer.clientAddress,
-    details: { from: state, to: kind, noteLength: note.trim().length, ...(signature ? signed : {}) },
+    details: { from: state, to: kind, noteLength: note.trim().length, note: note.trim(), ...(signature ? signed : {}) },
   });
   return kind;
 }
@@ -135,7 +135,7 @@ export async function addComment(transaction: Transaction, author: Reviewer, run
   );
   await recordAudit(transaction, {
     action: 'review.commented', actorId: author.id, subjectType: 'run', subjectId: run.id, initiativeId: run.initiativeId,
-    clientAddress: author.clientAddress, details: { commentId: created.id, inReplyTo: threadId, length: body.trim().length },
+    clientAddress: author.clientAddress, details: { commentId: created.id, inReplyTo: threadId, length: body.trim().length, body: body.trim() },
   });
   return created.id;
 }

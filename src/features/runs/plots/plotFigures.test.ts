@@ -2,6 +2,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import type { Result } from '../../../engine/boundary/schemas';
 import { CALL_BACK_SPEC, engineResult, UP_AND_ABOUT_SPEC } from '../testSupport';
 import { PLOT_CONFIG, profileFigure, significanceBandFigure, stratumForestFigure } from './plotFigures';
+import { narrowLayout } from './narrowLayout';
 
 type Trace = { type: string; x: (number | string | null)[]; y: (number | string | null)[]; error_x?: { array: number[]; arrayminus: number[] }; fill?: string };
 
@@ -92,5 +93,19 @@ describe('plot figures from real engine results', () => {
     for (const figure of figures) for (const trace of figure.data) expect(BASIC_TRACE_TYPES).toContain(trace.type);
     expect(PLOT_CONFIG).toMatchObject({ displaylogo: false, responsive: true, showLink: false, showSendToCloud: false, showEditInChartStudio: false, plotlyServerURL: '' });
     expect(PLOT_CONFIG.modeBarButtonsToRemove).toContain('sendChartToCloud');
+  });
+});
+
+describe('narrowLayout', () => {
+  it('lays the legend flat under the plot, slims the margins and adds room below', () => {
+    const wide = { height: 360, xaxis: { title: { text: 'Odds ratio', standoff: 8 }, type: 'log' }, font: { family: 'Noto Sans', size: 13 }, legend: { orientation: 'h', y: 1.02, yanchor: 'bottom' }, margin: { l: 72, r: 24, t: 40, b: 64 } };
+    const narrow = narrowLayout(wide);
+    expect(narrow.legend).toMatchObject({ orientation: 'h', y: -0.22, yanchor: 'top' });
+    expect(narrow.margin).toEqual({ l: 44, r: 20, t: 28, b: 48 });
+    expect(narrow.font).toEqual({ family: 'Noto Sans', size: 11 });
+    expect(narrow.height).toBe(400);
+    expect(narrow.xaxis).toEqual({ title: { text: 'Odds ratio', standoff: 8, font: { size: 10 } }, type: 'log', tickfont: { size: 10 } });
+    // The wide layout is left as it was.
+    expect(wide.legend.y).toBe(1.02);
   });
 });
