@@ -43,8 +43,16 @@ export default function NotificationBell() {
     const outside = (event: MouseEvent) => {
       if (!panel.current?.contains(event.target as Node) && !button.current?.contains(event.target as Node)) setOpen(false);
     };
+    // Escape closes wherever focus is (a "Mark read" button that vanished leaves it on the page).
+    const escape = (event: KeyboardEvent) => {
+      if (event.key === 'Escape') { setOpen(false); button.current?.focus(); }
+    };
     document.addEventListener('mousedown', outside);
-    return () => document.removeEventListener('mousedown', outside);
+    document.addEventListener('keydown', escape);
+    return () => {
+      document.removeEventListener('mousedown', outside);
+      document.removeEventListener('keydown', escape);
+    };
   }, [open]);
 
   const mark = async (body: { ids: string[] } | { all: true }) => {
@@ -58,10 +66,7 @@ export default function NotificationBell() {
   const unread = inbox?.unread ?? 0;
   const label = unread === 0 ? 'Notifications, none unread' : `Notifications, ${unread} unread`;
   return (
-    <div className="relative" data-testid="notification-bell" data-hydrated={inbox ? 'true' : undefined}
-      onKeyDown={(event) => {
-        if (event.key === 'Escape' && open) { setOpen(false); button.current?.focus(); }
-      }}>
+    <div className="relative" data-testid="notification-bell" data-hydrated={inbox ? 'true' : undefined}>
       <button ref={button} type="button" aria-label={label} aria-expanded={open} aria-controls={listId}
         className="relative flex items-center rounded-sm px-1.5 py-1 text-estuary-100 hover:text-white focus-visible:outline-2 focus-visible:outline-white cursor-pointer"
         onClick={() => { setOpen(!open); if (!open) void load(); }}>
