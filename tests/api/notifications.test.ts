@@ -6,6 +6,8 @@
  * (another person's notifications are invisible and cannot be marked); and e-mail as each
  * person chose it (immediately, a daily digest, or none) through the fake mail server.
  */
+import { readFileSync } from 'node:fs';
+import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
 import { listMessages, readMessage } from '../../src/features/admin/outbox';
@@ -218,5 +220,23 @@ describe('e-mail', () => {
     const response = await people.analyst.client.request('PUT', '/api/me/notifications/settings', { mail: 'weekly' });
     expect(response.status).toBe(400);
     expect(await (await people.analyst.client.request('GET', '/api/me/notifications/settings')).json()).toEqual({ mail: 'immediate' });
+  });
+});
+
+describe('when the mail server is down', () => {
+  it('still records the comment and its notification, and answers as usual', async () => {
+    const log = path.join(process.env.CROSSGRAIN_ARTIFACTS_DIR ?? path.resolve(import.meta.dirname, '../../.test-artifacts'), 'test-server.log');
+    const failures = () => readFileSync(log, 'utf8').split('\n').filter((line) => line.includes('notification e-mail not sent') && line.includes('ECONNREFUSED')).length;
+    const failedBefore = failures();
+    await server.mail.close();
+    const before = (await inbox('analyst')).unread;
+    const response = await people.clinicianB.client.request('POST', `/api/runs/${runId}/comments`, { body: '@Amara Quist one more question on the 75+ band.' });
+    expect(response.status).toBe(201);
+    const after = await inbox('analyst');
+    expect(after.unread).toBe(before + 1);
+    expect(after.items[0]).toMatchObject({ kind: 'mention', excerpt: '@Amara Quist one more question on the 75+ band.' });
+    // The send is tried after the commit, fails, and is logged (recipient's domain only).
+    await expect.poll(failures, { timeout: 5_000 }).toBe(failedBefore + 1);
+    expect((await people.analyst.client.request('GET', '/api/me/notifications')).status).toBe(200);
   });
 });
