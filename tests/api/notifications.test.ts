@@ -132,6 +132,10 @@ describe('who hears of what', () => {
     expect((await people.clinicianB.client.request('POST', `/api/runs/${runId}/review/decision`, { decision: 'sign-off', note: 'Plausible.' })).status).toBe(200);
     expect(await kinds('analyst')).toEqual(['sent-back', 'signed-off']);
     expect(await kinds('clinicianA')).toEqual(['reply', 'submitted', 'submitted']);
+    // Run lists name the run by short id with its review state (the overview's latest runs).
+    const overview = await (await people.auditor.client.request('GET', `/initiatives/${initiativeId}`)).text();
+    expect(overview).toContain(`run ${runId.slice(0, 8)}`);
+    expect(overview).toMatch(/data-testid="recent-run-review"[^>]*>Signed off</);
     const drafted = await people.analyst.client.request('POST', `/api/runs/${runId}/briefs`, { title: 'Call-back and age', summary: 'An exploratory look.' });
     expect(drafted.status).toBe(201);
     const briefId = (await drafted.json()).id;
