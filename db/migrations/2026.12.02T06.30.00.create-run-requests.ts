@@ -6,7 +6,7 @@ import type { Migration } from '../migrate';
  * run it started, so the same key within 24 hours answers with the same run instead of
  * queuing another. A table of its own (not a column on runs) because a key belongs to the
  * request, not to the run: it expires, and a later request may reuse it after 24 hours.
- * Policies in policies/rls/011_run_requests.sql.
+ * Policies in policies/rls/012_run_requests.sql.
  */
 export const up: Migration = async ({ context }) => {
   await context.sql(`
@@ -20,7 +20,7 @@ export const up: Migration = async ({ context }) => {
       PRIMARY KEY (user_id, analysis_id, idempotency_key)
     );
   `);
-  await context.applyPolicyFile('011_run_requests.sql');
+  await context.applyPolicyFile('012_run_requests.sql');
 };
 
 export const down: Migration = async ({ context }) => {

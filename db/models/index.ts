@@ -10,6 +10,7 @@ import { Extract, ExtractColumn, ExtractIntake, ExtractVersion, initExtracts } f
 import { Initiative, Membership, Session, User, initIdentity } from './identity';
 import { ReviewStep, RunComment, initReview } from './review';
 import { initBriefModels } from './briefs';
+import { initNotifications } from './notifications';
 
 export * from './access';
 export * from './analyses';
@@ -17,6 +18,7 @@ export * from './audit';
 export * from './extracts';
 export * from './identity';
 export * from './review';
+export * from './notifications';
 
 /** Binds every model to one Sequelize instance (the app's, src/lib/server/db.ts). */
 export function initModels(sequelize: Sequelize) {
@@ -30,5 +32,6 @@ export function initModels(sequelize: Sequelize) {
     User, Initiative, Membership, Session, AuthToken, SigninAttempt, ApiToken, AuditEvent,
     Extract, ExtractVersion, ExtractColumn, ExtractIntake, Analysis, Run, ReviewStep, RunComment,
     ...initBriefModels(sequelize),
+    ...initNotifications(sequelize),
   };
 }

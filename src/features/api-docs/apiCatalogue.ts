@@ -15,6 +15,7 @@ import { AuditCheckpoint, AuditEventPage, AuditEventsQuery, AuditExportQuery, Ch
 import { BoardView, CommentBody, DecisionBody, ReviewView, SubmitBody } from '../review/review.schema';
 import { OutboxQuery } from '../admin/outbox';
 import { BRIEF_OPERATIONS } from './briefOperations';
+import { NOTIFICATION_OPERATIONS } from './notificationOperations';
 import type { Operation } from './operation';
 
 export type { Auth, Operation } from './operation';
@@ -121,4 +122,5 @@ export const OPERATIONS: Operation[] = [
 
   // Briefs
   ...BRIEF_OPERATIONS,
+  ...NOTIFICATION_OPERATIONS,
 ];

@@ -17,6 +17,7 @@ import { buildBriefContent, type BriefContent, type BriefFacts, type PlotChoice 
 import { renderBriefHtml } from './briefHtml';
 import { renderBriefPdf, type PageSize } from './briefPdf';
 import type { BriefState, BriefView, CorrectionBody, NewBriefBody, UpdateBriefBody } from './briefs.schema';
+import { notifyBriefPublished } from '../notifications/notifications.server';
 
 export interface Actor {
   id: string;
@@ -206,6 +207,7 @@ export async function publishBrief(transaction: Transaction, actor: Actor, brief
   const { version, sha256 } = await freezeVersion(transaction, actor, brief, '');
   await sequelize.query(`UPDATE briefs SET state = 'published', updated_by = :actor, updated_at = now() WHERE id = :id`, { replacements: { actor: actor.id, id: brief.id }, transaction });
   await recordAudit(transaction, { action: 'brief.published', actorId: actor.id, subjectType: 'brief', subjectId: brief.id, initiativeId: brief.initiativeId, clientAddress: actor.clientAddress, details: { version, sha256, runId: brief.runId } });
+  await notifyBriefPublished(transaction, actor.id, brief);
   return version;
 }
 

@@ -10,6 +10,7 @@ import { ReviewStep, RunComment, User } from '../../../db/models';
 import { sequelize } from '../../lib/server/db';
 import { conflict, notFound } from '../../lib/server/errors';
 import { recordAudit } from '../audit/audit.server';
+import { notifyComment, notifyReviewStep } from '../notifications/notifications.server';
 import { REVIEW_STATES, type BoardView, type ReviewState, type ReviewView } from './review.schema';
 
 export interface Reviewer {
@@ -102,6 +103,7 @@ async function addStep(
     clientAddress: reviewer.clientAddress,
     details: { from: state, to: kind, noteLength: note.trim().length, note: note.trim(), ...(signature ? signed : {}) },
   });
+  await notifyReviewStep(transaction, reviewer.id, run, kind, note);
   return kind;
 }
 
@@ -137,6 +139,7 @@ export async function addComment(transaction: Transaction, author: Reviewer, run
     action: 'review.commented', actorId: author.id, subjectType: 'run', subjectId: run.id, initiativeId: run.initiativeId,
     clientAddress: author.clientAddress, details: { commentId: created.id, inReplyTo: threadId, length: body.trim().length, body: body.trim() },
   });
+  await notifyComment(transaction, author.id, run, body, parentId);
   return created.id;
 }
 

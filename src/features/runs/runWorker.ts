@@ -11,8 +11,11 @@ import { createQueue, startWhenReachable } from '../../lib/server/queue';
 import { executeRun } from './executeRun';
 import { RUN_QUEUE, type RunJob } from './runQueue';
 import { sweepStaleRuns } from './runs.server';
+import { sendDigests } from '../notifications/notificationMail.server';
 
 const SWEEP_MS = 15_000;
+/** How often the worker looks for daily notification digests that are due (each person's gap is a day). */
+const DIGEST_CHECK_MS = 15 * 60_000;
 const name = `${hostname()}:${process.pid}`;
 
 export async function startWorker(): Promise<{ stop: () => Promise<void> }> {
@@ -28,10 +31,16 @@ export async function startWorker(): Promise<{ stop: () => Promise<void> }> {
       if (ids.length) logger.warn({ runs: ids }, 'runs whose worker stopped or whose job was gone were marked failed');
     }).catch((error: unknown) => logger.warn({ err: error }, 'stale-run sweep failed'));
   }, SWEEP_MS);
+  const digests = setInterval(() => {
+    sendDigests().then((sent) => {
+      if (sent) logger.info({ sent }, 'notification digests sent');
+    }).catch((error: unknown) => logger.warn({ err: error }, 'notification digests failed'));
+  }, DIGEST_CHECK_MS);
   logger.info({ worker: name }, 'worker ready');
   return {
     stop: async () => {
       clearInterval(sweep);
+      clearInterval(digests);
       await boss.stop({ graceful: true, timeout: 5_000 });
       await sequelize.close();
     },
