@@ -5,11 +5,11 @@
  * the first render in a fresh process (fonts loaded, code not yet warm) and the median
  * and slowest of 20 renders after it, plus the suppression plan and the content alone.
  */
-import { buildBriefContent } from '../src/features/briefs/briefContent';
-import { briefCounts } from '../src/features/briefs/briefCounts';
-import { renderBriefPdf } from '../src/features/briefs/briefPdf';
-import { FACTS, smallStratumResult } from '../src/features/briefs/briefTestSupport';
-import { CALL_BACK_SPEC } from '../src/features/runs/testSupport';
+import { buildBriefContent } from '@/features/briefs/briefContent';
+import { briefCounts } from '@/features/briefs/briefCounts';
+import { renderBriefPdf } from '@/features/briefs/briefPdf';
+import { FACTS, smallStratumResult } from '@/features/briefs/briefTestSupport';
+import { CALL_BACK_SPEC } from '@/features/runs/testSupport';
 
 const RENDERS = 20;
 const result = await smallStratumResult();

@@ -24,8 +24,8 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { parse } from 'csv-parse/sync';
-import { ColumnSet } from '../src/features/extracts/columnAccumulator';
-import { readCsv } from '../src/features/extracts/csvReader';
+import { ColumnSet } from '@/features/extracts/columnAccumulator';
+import { readCsv } from '@/features/extracts/csvReader';
 import { readCsvFile as readWithFormerReader } from './support/formerCsvReader';
 import { generateSyntheticExtract } from './support/syntheticExtract';
 

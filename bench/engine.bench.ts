@@ -18,14 +18,14 @@ import { execFileSync } from 'node:child_process';
 import { closeSync, mkdtempSync, openSync, writeSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { buildAnalysisFrame } from '../src/engine/design/analysisFrame.js';
-import { buildDesignMatrix, type DesignMatrix } from '../src/engine/design/designMatrix.js';
-import { fitModel } from '../src/engine/fit/fitModel.js';
-import { fitOrdinaryLeastSquares } from '../src/engine/fit/ordinaryLeastSquares.js';
-import { runAnalysis } from '../src/engine/index.js';
-import { Xoshiro128StarStar } from '../src/engine/random/xoshiro128StarStar.js';
-import { passPool } from '../src/engine/threads/passPool.js';
-import type { AnalysisSpec, EngineData } from '../src/engine/types.js';
+import { buildAnalysisFrame } from '@/engine/design/analysisFrame.js';
+import { buildDesignMatrix, type DesignMatrix } from '@/engine/design/designMatrix.js';
+import { fitModel } from '@/engine/fit/fitModel.js';
+import { fitOrdinaryLeastSquares } from '@/engine/fit/ordinaryLeastSquares.js';
+import { runAnalysis } from '@/engine/index.js';
+import { Xoshiro128StarStar } from '@/engine/random/xoshiro128StarStar.js';
+import { passPool } from '@/engine/threads/passPool.js';
+import type { AnalysisSpec, EngineData } from '@/engine/types.js';
 
 const folder = mkdtempSync(join(tmpdir(), 'engine-bench-'));
 

@@ -12,7 +12,7 @@ import { createReadStream } from 'node:fs';
 import { mkdtemp, rm, stat } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { ingestExtract } from '../src/features/extracts/extracts';
+import { ingestExtract } from '@/features/extracts/extracts';
 import { generateSyntheticExtract } from './support/syntheticExtract';
 
 const args = process.argv.slice(2);

@@ -53,9 +53,9 @@ try {
   if (once.status !== 0) throw new Error(once.stderr);
   const ingest = JSON.parse(once.stdout.trim().split('\n').pop() ?? '{}');
 
-  const { withIdentity, sequelize } = await import('../src/lib/server/db');
-  const { loadColumns } = await import('../src/features/extracts/columns.server');
-  const { toEngineData } = await import('../src/features/extracts/engineData');
+  const { withIdentity, sequelize } = await import('@/lib/server/db');
+  const { loadColumns } = await import('@/features/extracts/columns.server');
+  const { toEngineData } = await import('@/features/extracts/engineData');
   const names = ['readmitted_30d', 'call_back', 'age_band', 'sex', 'comorbidity_score', 'prior_admissions'];
   const roles = { readmitted_30d: 'continuous', call_back: 'categorical', age_band: 'categorical', sex: 'categorical', comorbidity_score: 'continuous', prior_admissions: 'continuous' } as const;
   const loads: number[] = [];

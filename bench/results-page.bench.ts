@@ -31,11 +31,11 @@ try {
   const { seedDemo } = await import('../db/seed');
   const { seedDemoExtracts } = await import('../db/seeds/demoExtracts');
   const { ownerDb, closeOwnerDb } = await import('../tests/support/factories');
-  const { sequelize, withIdentity } = await import('../src/lib/server/db');
-  const { createAnalysis, analysableVersions } = await import('../src/features/analyses/analyses.server');
-  const { startRun } = await import('../src/features/runs/runs.server');
-  const { executeRun } = await import('../src/features/runs/executeRun');
-  const { CALL_BACK_DEMO_SPEC } = await import('../src/features/analyses/demoSpecs');
+  const { sequelize, withIdentity } = await import('@/lib/server/db');
+  const { createAnalysis, analysableVersions } = await import('@/features/analyses/analyses.server');
+  const { startRun } = await import('@/features/runs/runs.server');
+  const { executeRun } = await import('@/features/runs/executeRun');
+  const { CALL_BACK_DEMO_SPEC } = await import('@/features/analyses/demoSpecs');
   const { QueryTypes } = await import('sequelize');
   await seedDemo(ownerDb());
   await seedDemoExtracts();

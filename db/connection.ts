@@ -1,7 +1,7 @@
 import pg from 'pg';
 import { Sequelize } from 'sequelize';
-import { env } from '../src/lib/server/env';
-import { logger } from '../src/lib/server/logger';
+import { env } from '@/lib/server/env';
+import { logger } from '@/lib/server/logger';
 
 type Role = 'app' | 'owner';
 

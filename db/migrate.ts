@@ -3,7 +3,7 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { QueryInterface, Sequelize } from 'sequelize';
 import { SequelizeStorage, Umzug } from 'umzug';
-import { env } from '../src/lib/server/env';
+import { env } from '@/lib/server/env';
 import { createSequelize } from './connection';
 
 const here = path.dirname(fileURLToPath(import.meta.url));

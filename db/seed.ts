@@ -1,10 +1,10 @@
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { QueryTypes, type Sequelize } from 'sequelize';
-import { env } from '../src/lib/server/env';
-import { hashPassword } from '../src/lib/server/passwords';
+import { env } from '@/lib/server/env';
+import { hashPassword } from '@/lib/server/passwords';
 import { createSequelize } from './connection';
-import { sequelize as appSequelize } from '../src/lib/server/db';
+import { sequelize as appSequelize } from '@/lib/server/db';
 import { seedDemoAnalyses } from './seeds/demoAnalyses';
 import { seedDemoExtracts } from './seeds/demoExtracts';
 import { DEMO_INITIATIVES, DEMO_ORGANISATION, DEMO_PASSWORD, DEMO_USERS, demoEmail } from './seeds/demo';

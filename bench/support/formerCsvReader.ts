@@ -4,8 +4,8 @@
  */
 import { readFile } from 'node:fs/promises';
 import { parse } from 'csv-parse/sync';
-import { InvalidDataError } from '../../src/engine/errors.js';
-import type { EngineColumn, EngineData } from '../../src/engine/types.js';
+import { InvalidDataError } from '@/engine/errors.js';
+import type { EngineColumn, EngineData } from '@/engine/types.js';
 
 const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
 

@@ -6,9 +6,9 @@
  */
 import { randomUUID } from 'node:crypto';
 import { createReadStream } from 'node:fs';
-import { readExtractColumns, reviewExtractColumns } from '../../src/features/extracts/extracts';
-import { storeVersion } from '../../src/features/extracts/extracts.server';
-import { sequelize, withIdentity } from '../../src/lib/server/db';
+import { readExtractColumns, reviewExtractColumns } from '@/features/extracts/extracts';
+import { storeVersion } from '@/features/extracts/extracts.server';
+import { sequelize, withIdentity } from '@/lib/server/db';
 
 const [file, userId, initiativeId] = process.argv.slice(2);
 const start = { initiativeId, extractId: randomUUID(), versionId: randomUUID(), name: 'Benchmark extract (synthetic)', newExtract: true };

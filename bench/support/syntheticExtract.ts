@@ -4,7 +4,7 @@
  */
 import { createWriteStream } from 'node:fs';
 import { once } from 'node:events';
-import { SeededRandom } from '../../src/features/extracts/seededRandom';
+import { SeededRandom } from '@/features/extracts/seededRandom';
 
 const SEED = 20260501;
 

@@ -1,5 +1,5 @@
 import PgBoss from 'pg-boss';
-import { env } from '../../src/lib/server/env';
+import { env } from '@/lib/server/env';
 import type { Migration } from '../migrate';
 
 // Frozen as this migration created them: a migration never follows live constants.

@@ -1,7 +1,7 @@
 /** Analyses and their runs (…create-analyses-and-runs, …add-run-verification). */
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type NonAttribute, type Sequelize } from 'sequelize';
 import { filledByDatabase, stamps, tableOptions, uuidKey } from './common';
-import type { Spec } from '../../src/engine/boundary/schemas';
+import type { Spec } from '@/engine/boundary/schemas';
 import { ExtractVersion } from './extracts';
 import { User } from './identity';
 

@@ -8,13 +8,13 @@
  * suite does not (its tests create their own analyses).
  */
 import { QueryTypes } from 'sequelize';
-import { createAnalysis } from '../../src/features/analyses/analyses.server';
-import { CALL_BACK_DEMO_SPEC, UP_AND_ABOUT_DEMO_SPEC } from '../../src/features/analyses/demoSpecs';
-import { reviewedRun, submitForReview } from '../../src/features/review/review.server';
-import { executeRun } from '../../src/features/runs/executeRun';
-import { getRun, startRun } from '../../src/features/runs/runs.server';
-import { sequelize, withIdentity } from '../../src/lib/server/db';
-import type { Spec } from '../../src/engine/boundary/schemas';
+import { createAnalysis } from '@/features/analyses/analyses.server';
+import { CALL_BACK_DEMO_SPEC, UP_AND_ABOUT_DEMO_SPEC } from '@/features/analyses/demoSpecs';
+import { reviewedRun, submitForReview } from '@/features/review/review.server';
+import { executeRun } from '@/features/runs/executeRun';
+import { getRun, startRun } from '@/features/runs/runs.server';
+import { sequelize, withIdentity } from '@/lib/server/db';
+import type { Spec } from '@/engine/boundary/schemas';
 import { DEMO_USERS, demoEmail } from './demo';
 
 interface DemoAnalysis {

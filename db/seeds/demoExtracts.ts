@@ -5,10 +5,10 @@
  */
 import { randomUUID } from 'node:crypto';
 import { QueryTypes } from 'sequelize';
-import { generateDemoCohorts } from '../../src/features/extracts/demoCohorts';
-import { readExtractColumns, reviewExtractColumns } from '../../src/features/extracts/extracts';
-import { confirmVersion, storeVersion } from '../../src/features/extracts/extracts.server';
-import { sequelize, withIdentity } from '../../src/lib/server/db';
+import { generateDemoCohorts } from '@/features/extracts/demoCohorts';
+import { readExtractColumns, reviewExtractColumns } from '@/features/extracts/extracts';
+import { confirmVersion, storeVersion } from '@/features/extracts/extracts.server';
+import { sequelize, withIdentity } from '@/lib/server/db';
 import { DEMO_USERS, demoEmail } from './demo';
 
 /** What each demo column holds, for the confirmed data dictionary. */

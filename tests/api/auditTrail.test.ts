@@ -8,10 +8,10 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { parse } from 'csv-parse/sync';
 import { QueryTypes } from 'sequelize';
-import { recordAudit } from '../../src/features/audit/audit.server';
-import { STANDING_CAUTION } from '../../src/lib/cautions';
-import { withIdentity } from '../../src/lib/server/db';
-import { hashPassword } from '../../src/lib/server/passwords';
+import { recordAudit } from '@/features/audit/audit.server';
+import { STANDING_CAUTION } from '@/lib/cautions';
+import { withIdentity } from '@/lib/server/db';
+import { hashPassword } from '@/lib/server/passwords';
 import { startServer, type ServerHandle } from '../browser/harness';
 import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
 import { ApiClient } from '../support/http';

@@ -6,8 +6,8 @@
 import { readdirSync, readFileSync, statSync } from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { OPERATIONS } from '../../src/features/api-docs/apiCatalogue';
-import { openApiDocument } from '../../src/features/api-docs/openapi';
+import { OPERATIONS } from '@/features/api-docs/apiCatalogue';
+import { openApiDocument } from '@/features/api-docs/openapi';
 
 const apiRoot = path.resolve(import.meta.dirname, '../../src/pages/api');
 

@@ -6,8 +6,8 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
-import { hashPassword } from '../../src/lib/server/passwords';
-import { SESSION_COOKIE } from '../../src/lib/server/session';
+import { hashPassword } from '@/lib/server/passwords';
+import { SESSION_COOKIE } from '@/lib/server/session';
 import { startServer, type ServerHandle } from '../browser/harness';
 import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
 import { ApiClient } from '../support/http';

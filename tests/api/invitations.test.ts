@@ -7,7 +7,7 @@ import { readdirSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
-import { hashPassword } from '../../src/lib/server/passwords';
+import { hashPassword } from '@/lib/server/passwords';
 import { mailDir, startServer, type ServerHandle } from '../browser/harness';
 import { closeOwnerDb, makeUser, ownerDb } from '../support/factories';
 import { ApiClient } from '../support/http';

@@ -7,10 +7,10 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
-import { generateCallBackCohort } from '../../src/features/extracts/demoCohorts';
-import { executeRun } from '../../src/features/runs/executeRun';
-import { sequelize, withIdentity } from '../../src/lib/server/db';
-import { hashPassword } from '../../src/lib/server/passwords';
+import { generateCallBackCohort } from '@/features/extracts/demoCohorts';
+import { executeRun } from '@/features/runs/executeRun';
+import { sequelize, withIdentity } from '@/lib/server/db';
+import { hashPassword } from '@/lib/server/passwords';
 import { startServer, type ServerHandle } from '../browser/harness';
 import { makeReadyExtract } from '../support/extractFactory';
 import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';

@@ -6,8 +6,8 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
-import { hashPassword } from '../../src/lib/server/passwords';
-import { hashToken, SESSION_COOKIE } from '../../src/lib/server/session';
+import { hashPassword } from '@/lib/server/passwords';
+import { hashToken, SESSION_COOKIE } from '@/lib/server/session';
 import { readdirSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { appUrl, mailDir, startServer, type ServerHandle } from '../browser/harness';

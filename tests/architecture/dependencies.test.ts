@@ -54,6 +54,9 @@ describe('the dependency checker itself', () => {
     expect(resolveSpecifier('src/x/m.ts', './c', exists)).toBe('src/x/c/index.ts');
     expect(resolveSpecifier('src/y/m.ts', '../x/D.astro', exists)).toBe('src/x/D.astro');
     expect(resolveSpecifier('src/x/m.ts', 'zod', exists)).toBeNull();
+    // The tsconfig alias: @/ is src/.
+    expect(resolveSpecifier('tests/t.test.ts', '@/x/b', exists)).toBe('src/x/b.tsx');
+    expect(resolveSpecifier('src/y/m.ts', '@/x/c', exists)).toBe('src/x/c/index.ts');
   });
 
   const graph = (edges: Record<string, string[]>): ImportGraph => new Map(Object.entries(edges).map(([k, v]) => [k, new Set(v)]));

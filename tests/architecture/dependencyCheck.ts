@@ -42,10 +42,14 @@ export function importSpecifiers(text: string): string[] {
   return [...new Set(found)];
 }
 
-/** A relative specifier resolved to a file of the graph, or null (packages, assets, missing). */
+/** A relative or `@/` specifier resolved to a file of the graph, or null (packages, assets, missing). */
 export function resolveSpecifier(fromFile: string, specifier: string, exists: (file: string) => boolean): string | null {
-  if (!specifier.startsWith('.')) return null;
-  const base = path.posix.normalize(path.posix.join(path.posix.dirname(fromFile), specifier));
+  // `@/` is the tsconfig alias of src/.
+  const aliased = specifier.startsWith('@/');
+  if (!specifier.startsWith('.') && !aliased) return null;
+  const base = aliased
+    ? path.posix.normalize(`src/${specifier.slice(2)}`)
+    : path.posix.normalize(path.posix.join(path.posix.dirname(fromFile), specifier));
   const stripped = base.replace(/\.js$/, '');
   for (const candidate of [base, ...EXTENSIONS.map((ext) => stripped + ext)]) {
     if (SOURCE.test(candidate) && exists(candidate)) return candidate;

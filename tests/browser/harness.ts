@@ -7,7 +7,7 @@ import { spawn, type ChildProcess } from 'node:child_process';
 import { mkdirSync, openSync } from 'node:fs';
 import path from 'node:path';
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
-import { startMailServer, type MailServerHandle } from '../../src/lib/server/mailServer';
+import { startMailServer, type MailServerHandle } from '@/lib/server/mailServer';
 
 const root = path.resolve(import.meta.dirname, '../..');
 export const appUrl = process.env.CROSSGRAIN_TEST_APP_URL ?? 'http://127.0.0.1:4329';

@@ -10,11 +10,11 @@ import { QueryTypes } from 'sequelize';
 import { seedDemo } from '../../db/seed';
 import { seedDemoExtracts } from '../../db/seeds/demoExtracts';
 import { DEMO_PASSWORD, demoEmail } from '../../db/seeds/demo';
-import { CALL_BACK_DEMO_SPEC } from '../../src/features/analyses/demoSpecs';
-import { createAnalysis } from '../../src/features/analyses/analyses.server';
-import { executeRun } from '../../src/features/runs/executeRun';
-import { startRun } from '../../src/features/runs/runs.server';
-import { withIdentity } from '../../src/lib/server/db';
+import { CALL_BACK_DEMO_SPEC } from '@/features/analyses/demoSpecs';
+import { createAnalysis } from '@/features/analyses/analyses.server';
+import { executeRun } from '@/features/runs/executeRun';
+import { startRun } from '@/features/runs/runs.server';
+import { withIdentity } from '@/lib/server/db';
 import { saveScreenshot, signInThroughPage, startHarness, type Harness } from './harness';
 import { closeOwnerDb, ownerDb } from '../support/factories';
 

@@ -5,9 +5,9 @@
  * the run as sent back with the clinician's note.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { generateCallBackCohort } from '../../src/features/extracts/demoCohorts';
-import { executeRun } from '../../src/features/runs/executeRun';
-import { hashPassword } from '../../src/lib/server/passwords';
+import { generateCallBackCohort } from '@/features/extracts/demoCohorts';
+import { executeRun } from '@/features/runs/executeRun';
+import { hashPassword } from '@/lib/server/passwords';
 import { saveScreenshot, signInThroughPage, startHarness, type Harness } from './harness';
 import { makeReadyExtract } from '../support/extractFactory';
 import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';

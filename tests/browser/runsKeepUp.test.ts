@@ -8,7 +8,7 @@ import { QueryTypes } from 'sequelize';
 import { seedDemo } from '../../db/seed';
 import { seedDemoExtracts } from '../../db/seeds/demoExtracts';
 import { DEMO_PASSWORD, demoEmail } from '../../db/seeds/demo';
-import { CALL_BACK_DEMO_SPEC } from '../../src/features/analyses/demoSpecs';
+import { CALL_BACK_DEMO_SPEC } from '@/features/analyses/demoSpecs';
 import { saveScreenshot, signInThroughPage, startHarness, startWorker, waitForHydrated, type Harness } from './harness';
 import { closeOwnerDb, ownerDb } from '../support/factories';
 

@@ -4,8 +4,8 @@
  * and the plots' toolbar offers no share button, no hosted editor and no logo link.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { executeRun } from '../../src/features/runs/executeRun';
-import { hashPassword } from '../../src/lib/server/passwords';
+import { executeRun } from '@/features/runs/executeRun';
+import { hashPassword } from '@/lib/server/passwords';
 import { addMember, closeOwnerDb, makeUser } from '../support/factories';
 import { createAnalysis, makeWorld, queueRun, signedInAnalyst, WORLD_PASSWORD, type World } from '../support/runWorld';
 import { signInThroughPage, startHarness, type Harness } from './harness';

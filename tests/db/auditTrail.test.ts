@@ -9,9 +9,9 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
-import { recordAudit, takeCheckpoint, verifyAuditChain } from '../../src/features/audit/audit.server';
-import type { AuditCheckpoint } from '../../src/features/audit/audit.schema';
-import { sequelize, withIdentity } from '../../src/lib/server/db';
+import { recordAudit, takeCheckpoint, verifyAuditChain } from '@/features/audit/audit.server';
+import type { AuditCheckpoint } from '@/features/audit/audit.schema';
+import { sequelize, withIdentity } from '@/lib/server/db';
 import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
 
 afterAll(async () => {

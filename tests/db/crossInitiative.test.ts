@@ -5,8 +5,8 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
-import { recordAudit } from '../../src/features/audit/audit.server';
-import { sequelize, withIdentity } from '../../src/lib/server/db';
+import { recordAudit } from '@/features/audit/audit.server';
+import { sequelize, withIdentity } from '@/lib/server/db';
 import { addMember, closeOwnerDb, makeInitiative, makeUser } from '../support/factories';
 
 interface Team {

@@ -7,10 +7,10 @@ import { randomUUID } from 'node:crypto';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
-import { readExtractColumns, reviewExtractColumns } from '../../src/features/extracts/extracts';
-import { getExtract, storeVersion } from '../../src/features/extracts/extracts.server';
-import { cancelIntake } from '../../src/features/extracts/intake.server';
-import { sequelize, withIdentity } from '../../src/lib/server/db';
+import { readExtractColumns, reviewExtractColumns } from '@/features/extracts/extracts';
+import { getExtract, storeVersion } from '@/features/extracts/extracts.server';
+import { cancelIntake } from '@/features/extracts/intake.server';
+import { sequelize, withIdentity } from '@/lib/server/db';
 import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
 
 afterAll(async () => {

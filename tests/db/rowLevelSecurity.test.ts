@@ -5,8 +5,8 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
-import { sequelize, withIdentity } from '../../src/lib/server/db';
-import { env } from '../../src/lib/server/env';
+import { sequelize, withIdentity } from '@/lib/server/db';
+import { env } from '@/lib/server/env';
 import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
 
 /** Tables with no initiative data, read before an identity exists (documented in SECURITY.md). */
@@ -118,7 +118,7 @@ describe('initiatives under row-level security', () => {
 describe('the one-round-trip membership read of every request', () => {
   it('reads only the user’s memberships, and leaves no identity on the connection, even when it fails', async () => {
     const { default: pg } = await import('pg');
-    const { loadMemberships, membershipsQuery } = await import('../../src/lib/server/session');
+    const { loadMemberships, membershipsQuery } = await import('@/lib/server/session');
     const user = await makeUser();
     const mine = await makeInitiative();
     await makeInitiative();

@@ -6,15 +6,15 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
-import type { Spec } from '../../src/engine/boundary/schemas';
-import { createAnalysis } from '../../src/features/analyses/analyses.server';
-import { CALL_BACK_DEMO_SPEC } from '../../src/features/analyses/demoSpecs';
-import { generateCallBackCohort } from '../../src/features/extracts/demoCohorts';
-import { executeRun } from '../../src/features/runs/executeRun';
-import { RUN_QUEUE } from '../../src/features/runs/runQueue';
-import { getRun, startRun, type StartOptions } from '../../src/features/runs/runs.server';
-import { withIdentity } from '../../src/lib/server/db';
-import { AppError } from '../../src/lib/server/errors';
+import type { Spec } from '@/engine/boundary/schemas';
+import { createAnalysis } from '@/features/analyses/analyses.server';
+import { CALL_BACK_DEMO_SPEC } from '@/features/analyses/demoSpecs';
+import { generateCallBackCohort } from '@/features/extracts/demoCohorts';
+import { executeRun } from '@/features/runs/executeRun';
+import { RUN_QUEUE } from '@/features/runs/runQueue';
+import { getRun, startRun, type StartOptions } from '@/features/runs/runs.server';
+import { withIdentity } from '@/lib/server/db';
+import { AppError } from '@/lib/server/errors';
 import { makeReadyExtract } from '../support/extractFactory';
 import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
 
@@ -87,7 +87,7 @@ describe('starting a run', () => {
 
   it('rolls back as well when the job itself cannot be written (no such queue)', async () => {
     const analysisId = await newAnalysis();
-    const { sendInTransaction } = await import('../../src/lib/server/queue');
+    const { sendInTransaction } = await import('@/lib/server/queue');
     const attempt = start(analysisId, { enqueue: (t, job) => sendInTransaction(t, 'no-such-queue', job).then(() => undefined) });
     await expect(attempt).rejects.toMatchObject({ code: 'queue-unavailable' });
     expect(await runsOf(analysisId)).toEqual([]);

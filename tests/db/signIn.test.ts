@@ -7,9 +7,9 @@
 import type { AstroCookies } from 'astro';
 import { afterAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
-import { SIGN_IN_REFUSED, signIn } from '../../src/features/auth/auth.server';
-import { env } from '../../src/lib/server/env';
-import { hashPassword } from '../../src/lib/server/passwords';
+import { SIGN_IN_REFUSED, signIn } from '@/features/auth/auth.server';
+import { env } from '@/lib/server/env';
+import { hashPassword } from '@/lib/server/passwords';
 import { closeOwnerDb, makeUser, ownerDb } from '../support/factories';
 
 afterAll(async () => {

@@ -9,7 +9,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
 import { startCluster, stopCluster } from '../../db/scripts/postgres.mjs';
-import { RUN_QUEUE } from '../../src/features/runs/runQueue';
+import { RUN_QUEUE } from '@/features/runs/runQueue';
 import { testSettings } from '../../scripts/lib/testEnv.mjs';
 import { startServer, startWorker, type ServerHandle } from '../browser/harness';
 import { closeOwnerDb, ownerDb } from '../support/factories';

@@ -8,7 +8,7 @@ import { spawn, type ChildProcess } from 'node:child_process';
 import { createServer } from 'node:net';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { hashPassword } from '../../src/lib/server/passwords';
+import { hashPassword } from '@/lib/server/passwords';
 import { closeOwnerDb, makeUser } from '../support/factories';
 
 const root = path.resolve(import.meta.dirname, '../..');

@@ -6,10 +6,10 @@
  * only 58.4, smoking only 122.6, both 601.6.
  */
 import { describe, expect, it } from 'vitest';
-import { attributableProportion, attributableProportionOfJointEffect } from '../../src/engine/measures/attributableProportion.js';
-import { jointLogRatios, recodeForPreventive } from '../../src/engine/measures/jointLogRatios.js';
-import { relativeExcessRiskDueToInteraction } from '../../src/engine/measures/relativeExcessRiskDueToInteraction.js';
-import { synergyIndex } from '../../src/engine/measures/synergyIndex.js';
+import { attributableProportion, attributableProportionOfJointEffect } from '@/engine/measures/attributableProportion.js';
+import { jointLogRatios, recodeForPreventive } from '@/engine/measures/jointLogRatios.js';
+import { relativeExcessRiskDueToInteraction } from '@/engine/measures/relativeExcessRiskDueToInteraction.js';
+import { synergyIndex } from '@/engine/measures/synergyIndex.js';
 import { expectClose } from './support/tolerance.js';
 
 const neither = 11.3; // from memory (Hammond et al. 1979)

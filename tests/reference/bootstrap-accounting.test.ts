@@ -9,10 +9,10 @@
  * Xoshiro128StarStar.forStream(seed, r)), independently of the fitting code.
  */
 import { describe, expect, it } from 'vitest';
-import { runAnalysis } from '../../src/engine/index.js';
-import { resampleCounts, Xoshiro128StarStar } from '../../src/engine/random/xoshiro128StarStar.js';
-import type { AnalysisSpec, EngineData } from '../../src/engine/types.js';
-import { ResultSchema } from '../../src/engine/boundary/schemas.js';
+import { runAnalysis } from '@/engine/index.js';
+import { resampleCounts, Xoshiro128StarStar } from '@/engine/random/xoshiro128StarStar.js';
+import type { AnalysisSpec, EngineData } from '@/engine/types.js';
+import { ResultSchema } from '@/engine/boundary/schemas.js';
 
 /** [treated, level, rows, events] per joint cell. */
 const CELLS: [number, number, number, number][] = [

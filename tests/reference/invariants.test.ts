@@ -5,8 +5,8 @@
  * gives the same bits in-process and on worker threads.
  */
 import { describe, expect, it } from 'vitest';
-import { runAnalysis } from '../../src/engine/index.js';
-import type { AnalysisResult, AnalysisSpec, EngineData } from '../../src/engine/types.js';
+import { runAnalysis } from '@/engine/index.js';
+import type { AnalysisResult, AnalysisSpec, EngineData } from '@/engine/types.js';
 import { binaryCohort, continuousCohort, shuffleRows } from './support/synthetic.js';
 import { expectClose } from './support/tolerance.js';
 

@@ -11,11 +11,11 @@ import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { runAnalysis } from '../../src/engine/index.js';
-import type { AnalysisSpec } from '../../src/engine/types.js';
-import { readExtractColumns } from '../../src/features/extracts/extracts.js';
-import { toEngineData, type StoredColumn } from '../../src/features/extracts/engineData.js';
-import type { ColumnData } from '../../src/features/extracts/columnAccumulator.js';
+import { runAnalysis } from '@/engine/index.js';
+import type { AnalysisSpec } from '@/engine/types.js';
+import { readExtractColumns } from '@/features/extracts/extracts.js';
+import { toEngineData, type StoredColumn } from '@/features/extracts/engineData.js';
+import type { ColumnData } from '@/features/extracts/columnAccumulator.js';
 import { referenceRoot } from './support/loadFixtures.js';
 import { expectClose } from './support/tolerance.js';
 

@@ -11,9 +11,9 @@
  * Tolerance: 1e-8 relative unless a line says otherwise.
  */
 import { describe, expect, it } from 'vitest';
-import { runAnalysis } from '../../src/engine/index.js';
-import type { AnalysisResult, EngineData } from '../../src/engine/types.js';
-import { ResultSchema } from '../../src/engine/boundary/schemas.js';
+import { runAnalysis } from '@/engine/index.js';
+import type { AnalysisResult, EngineData } from '@/engine/types.js';
+import { ResultSchema } from '@/engine/boundary/schemas.js';
 import { expectClose } from './support/tolerance.js';
 import { datasetOf, fixtureNames, loadDataset, loadFixture, type Fixture, type RAdditive, type RInterval } from './support/loadFixtures.js';
 

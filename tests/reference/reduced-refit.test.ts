@@ -6,12 +6,12 @@
  * path, so any difference is a defect of the shortcut).
  */
 import { describe, expect, it } from 'vitest';
-import { buildAnalysisFrame } from '../../src/engine/design/analysisFrame.js';
-import { buildDesignMatrix, type DesignMatrix } from '../../src/engine/design/designMatrix.js';
-import { designWithoutProducts } from '../../src/engine/design/designWithoutProducts.js';
-import { fitModel } from '../../src/engine/fit/fitModel.js';
-import { restrictedStart } from '../../src/engine/fit/restrictedStart.js';
-import type { AnalysisSpec } from '../../src/engine/types.js';
+import { buildAnalysisFrame } from '@/engine/design/analysisFrame.js';
+import { buildDesignMatrix, type DesignMatrix } from '@/engine/design/designMatrix.js';
+import { designWithoutProducts } from '@/engine/design/designWithoutProducts.js';
+import { fitModel } from '@/engine/fit/fitModel.js';
+import { restrictedStart } from '@/engine/fit/restrictedStart.js';
+import type { AnalysisSpec } from '@/engine/types.js';
 import { binaryCohort, continuousCohort } from './support/synthetic.js';
 
 const spec: AnalysisSpec = {

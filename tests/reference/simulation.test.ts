@@ -4,16 +4,16 @@
  * from the true coefficients, no tables or bootstrap.
  */
 import { describe, expect, it } from 'vitest';
-import { buildAnalysisFrame } from '../../src/engine/design/analysisFrame.js';
-import { buildDesignMatrix } from '../../src/engine/design/designMatrix.js';
-import { fitGeneralizedLinearModel } from '../../src/engine/fit/iterativelyReweightedLeastSquares.js';
-import { jointLogRatios } from '../../src/engine/measures/jointLogRatios.js';
+import { buildAnalysisFrame } from '@/engine/design/analysisFrame.js';
+import { buildDesignMatrix } from '@/engine/design/designMatrix.js';
+import { fitGeneralizedLinearModel } from '@/engine/fit/iterativelyReweightedLeastSquares.js';
+import { jointLogRatios } from '@/engine/measures/jointLogRatios.js';
 import {
   relativeExcessRiskDueToInteraction,
   relativeExcessRiskDueToInteractionMover,
-} from '../../src/engine/measures/relativeExcessRiskDueToInteraction.js';
-import { runAnalysis } from '../../src/engine/index.js';
-import type { AnalysisSpec } from '../../src/engine/types.js';
+} from '@/engine/measures/relativeExcessRiskDueToInteraction.js';
+import { runAnalysis } from '@/engine/index.js';
+import type { AnalysisSpec } from '@/engine/types.js';
 import { binaryCohort, type BinaryTruth } from './support/synthetic.js';
 
 const z95 = 1.959963984540054; // R 4.2.2: qnorm(0.975)

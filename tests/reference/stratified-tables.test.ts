@@ -14,13 +14,13 @@ import { execFileSync } from 'node:child_process';
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
-import { breslowDayTest } from '../../src/engine/strata/breslowDayTest.js';
-import { cochranMantelHaenszelTest } from '../../src/engine/strata/cochranMantelHaenszelTest.js';
-import { mantelHaenszelOddsRatio } from '../../src/engine/strata/mantelHaenszelOddsRatio.js';
-import { mantelHaenszelRiskDifference } from '../../src/engine/strata/mantelHaenszelRiskDifference.js';
-import { mantelHaenszelRiskRatio } from '../../src/engine/strata/mantelHaenszelRiskRatio.js';
-import type { TwoByTwoCounts } from '../../src/engine/strata/twoByTwoTable.js';
-import { woolfHomogeneityTest } from '../../src/engine/strata/woolfHomogeneityTest.js';
+import { breslowDayTest } from '@/engine/strata/breslowDayTest.js';
+import { cochranMantelHaenszelTest } from '@/engine/strata/cochranMantelHaenszelTest.js';
+import { mantelHaenszelOddsRatio } from '@/engine/strata/mantelHaenszelOddsRatio.js';
+import { mantelHaenszelRiskDifference } from '@/engine/strata/mantelHaenszelRiskDifference.js';
+import { mantelHaenszelRiskRatio } from '@/engine/strata/mantelHaenszelRiskRatio.js';
+import type { TwoByTwoCounts } from '@/engine/strata/twoByTwoTable.js';
+import { woolfHomogeneityTest } from '@/engine/strata/woolfHomogeneityTest.js';
 import { expectClose } from './support/tolerance.js';
 
 const z95 = 1.959963984540054; // R 4.2.2: qnorm(0.975)

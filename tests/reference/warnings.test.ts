@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { ResultSchema } from '../../src/engine/boundary/schemas.js';
-import { runAnalysis } from '../../src/engine/index.js';
-import type { AnalysisSpec } from '../../src/engine/types.js';
+import { ResultSchema } from '@/engine/boundary/schemas.js';
+import { runAnalysis } from '@/engine/index.js';
+import type { AnalysisSpec } from '@/engine/types.js';
 import { loadDataset } from './support/loadFixtures.js';
 
 const infert = loadDataset('infert');

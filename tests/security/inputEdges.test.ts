@@ -4,9 +4,9 @@
  */
 import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import { resolveClientAddress } from '../../src/lib/server/forwarded';
-import { parseBody, parseQuery } from '../../src/lib/server/http';
-import { field, safeNext } from '../../src/lib/server/pageHelpers';
+import { resolveClientAddress } from '@/lib/server/forwarded';
+import { parseBody, parseQuery } from '@/lib/server/http';
+import { field, safeNext } from '@/lib/server/pageHelpers';
 
 describe('the address to go to after signing in', () => {
   it.each([

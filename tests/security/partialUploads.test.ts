@@ -6,8 +6,8 @@
 import { existsSync, mkdirSync, readdirSync, utimesSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { receiveUpload, sweepPartialUploads } from '../../src/features/extracts/intake.server';
-import { env } from '../../src/lib/server/env';
+import { receiveUpload, sweepPartialUploads } from '@/features/extracts/intake.server';
+import { env } from '@/lib/server/env';
 import { addMember, closeOwnerDb, makeInitiative, makeUser } from '../support/factories';
 
 const uploads = path.resolve(env.CROSSGRAIN_DATA_DIR, 'uploads');

@@ -5,9 +5,9 @@
  * not say whether the account exists. Timing itself is measured only in benches.
  */
 import { afterAll, describe, expect, it } from 'vitest';
-import { requestPasswordReset } from '../../src/features/auth/auth.server';
-import { sequelize } from '../../src/lib/server/db';
-import { env } from '../../src/lib/server/env';
+import { requestPasswordReset } from '@/features/auth/auth.server';
+import { sequelize } from '@/lib/server/db';
+import { env } from '@/lib/server/env';
 import { closeOwnerDb, makeUser } from '../support/factories';
 
 afterAll(async () => {

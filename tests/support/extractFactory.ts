@@ -3,10 +3,10 @@
  * (read, screen, profile, store, confirm), as the given analyst.
  */
 import { randomUUID } from 'node:crypto';
-import { readExtractColumns, reviewExtractColumns } from '../../src/features/extracts/extracts';
-import type { DictionaryEntry } from '../../src/features/extracts/extracts.schema';
-import { confirmVersion, storeVersion } from '../../src/features/extracts/extracts.server';
-import { sequelize, withIdentity } from '../../src/lib/server/db';
+import { readExtractColumns, reviewExtractColumns } from '@/features/extracts/extracts';
+import type { DictionaryEntry } from '@/features/extracts/extracts.schema';
+import { confirmVersion, storeVersion } from '@/features/extracts/extracts.server';
+import { sequelize, withIdentity } from '@/lib/server/db';
 
 export async function makeReadyExtract(
   analystId: string,

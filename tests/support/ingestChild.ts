@@ -5,9 +5,9 @@
  * and then waits to be killed.
  */
 import { randomUUID } from 'node:crypto';
-import { sequelize, withIdentity } from '../../src/lib/server/db';
-import { readExtractColumns, reviewExtractColumns } from '../../src/features/extracts/extracts';
-import { storeVersion } from '../../src/features/extracts/extracts.server';
+import { sequelize, withIdentity } from '@/lib/server/db';
+import { readExtractColumns, reviewExtractColumns } from '@/features/extracts/extracts';
+import { storeVersion } from '@/features/extracts/extracts.server';
 
 const [userId, initiativeId, extractId, versionId] = process.argv.slice(2);
 const csv = ['a,b,c', ...Array.from({ length: 200 }, (_, i) => `${i % 2},${i % 7},${(i * 3) % 11}`)].join('\n');

@@ -4,11 +4,11 @@
  * (as the auditor), and prints one JSON line with what it found.
  * Usage: tsx restoredChecks.ts <checkpoint JSON> <auditorId> <runId>
  */
-import { verifyAuditChain } from '../../src/features/audit/audit.server';
-import { parseCheckpointText } from '../../src/features/audit/audit.schema';
-import { executeRun } from '../../src/features/runs/executeRun';
-import { getRun, startVerification } from '../../src/features/runs/runs.server';
-import { sequelize, withIdentity } from '../../src/lib/server/db';
+import { verifyAuditChain } from '@/features/audit/audit.server';
+import { parseCheckpointText } from '@/features/audit/audit.schema';
+import { executeRun } from '@/features/runs/executeRun';
+import { getRun, startVerification } from '@/features/runs/runs.server';
+import { sequelize, withIdentity } from '@/lib/server/db';
 
 const [checkpointText, auditorId, runId] = process.argv.slice(2);
 const read = parseCheckpointText(checkpointText);

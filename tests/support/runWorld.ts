@@ -4,9 +4,9 @@
  * and helpers to create an analysis and queue a run over HTTP.
  */
 import { expect } from 'vitest';
-import { SpecSchema, type Spec } from '../../src/engine/boundary/schemas';
-import { generateCallBackCohort } from '../../src/features/extracts/demoCohorts';
-import { hashPassword } from '../../src/lib/server/passwords';
+import { SpecSchema, type Spec } from '@/engine/boundary/schemas';
+import { generateCallBackCohort } from '@/features/extracts/demoCohorts';
+import { hashPassword } from '@/lib/server/passwords';
 import { makeReadyExtract } from './extractFactory';
 import { addMember, makeInitiative, makeUser } from './factories';
 import { ApiClient } from './http';

@@ -1,5 +1,5 @@
 import type { ReactNode } from 'react';
-import { useHydrated } from '../../lib/client/useHydrated';
+import { useHydrated } from '@/lib/client/useHydrated';
 
 /**
  * Wraps a form's controls: disabled until the island has hydrated, so input typed into

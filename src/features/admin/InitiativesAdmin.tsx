@@ -1,10 +1,10 @@
 /** The administrators' initiatives page: the list and the form that creates one. */
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useMemo, useState, type SyntheticEvent } from 'react';
-import { ApiError, apiFetch } from '../../lib/client/api';
-import { DataTable, type DataColumn } from '../../components/ui/DataTable';
-import { QueryRoot } from '../../components/ui/QueryRoot';
-import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
+import { ApiError, apiFetch } from '@/lib/client/api';
+import { DataTable, type DataColumn } from '@/components/ui/DataTable';
+import { QueryRoot } from '@/components/ui/QueryRoot';
+import { HydratedFieldset } from '@/components/ui/HydratedFieldset';
 import type { InitiativeItem } from './admin.schema';
 
 function CreateForm({ defaultOrganisation }: { defaultOrganisation: string }) {

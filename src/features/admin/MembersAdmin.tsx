@@ -1,9 +1,9 @@
 /** Members of one initiative: add a person with a role, change a role, remove. */
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState } from 'react';
-import { apiFetch } from '../../lib/client/api';
-import { QueryRoot } from '../../components/ui/QueryRoot';
-import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
+import { apiFetch } from '@/lib/client/api';
+import { QueryRoot } from '@/components/ui/QueryRoot';
+import { HydratedFieldset } from '@/components/ui/HydratedFieldset';
 import type { MemberItem } from './admin.server';
 import type { UserListItem } from './admin.schema';
 

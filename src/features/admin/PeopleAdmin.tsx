@@ -1,10 +1,10 @@
 /** The administrators' people page: a sortable, filterable list, invitations, deactivation. */
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useMemo, useState, type SyntheticEvent } from 'react';
-import { ApiError, apiFetch } from '../../lib/client/api';
-import { DataTable, type DataColumn } from '../../components/ui/DataTable';
-import { QueryRoot } from '../../components/ui/QueryRoot';
-import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
+import { ApiError, apiFetch } from '@/lib/client/api';
+import { DataTable, type DataColumn } from '@/components/ui/DataTable';
+import { QueryRoot } from '@/components/ui/QueryRoot';
+import { HydratedFieldset } from '@/components/ui/HydratedFieldset';
 import type { InitiativeItem, UserListItem } from './admin.schema';
 
 const ROLE_LABEL = { analyst: 'Analyst', clinician: 'Clinician', auditor: 'Auditor' } as const;

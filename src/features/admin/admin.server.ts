@@ -5,9 +5,9 @@
  */
 import { Op, QueryTypes, type Transaction } from 'sequelize';
 import { Initiative, Membership, User } from '../../../db/models';
-import { sequelize } from '../../lib/server/db';
-import { conflict, notFound, unprocessable } from '../../lib/server/errors';
-import { endAllSessions } from '../../lib/server/session';
+import { sequelize } from '@/lib/server/db';
+import { conflict, notFound, unprocessable } from '@/lib/server/errors';
+import { endAllSessions } from '@/lib/server/session';
 import { recordAudit } from '../audit/audit.server';
 import { issueToken } from '../auth/auth.server';
 import { revokeAllApiTokens } from '../auth/apiTokens.server';

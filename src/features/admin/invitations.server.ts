@@ -8,9 +8,9 @@
 import type { Transaction } from 'sequelize';
 import { fn } from 'sequelize';
 import { AuthToken, User } from '../../../db/models';
-import { publicUrl } from '../../lib/server/env';
-import { conflict, notFound } from '../../lib/server/errors';
-import { renderEmail, sendMail } from '../../lib/server/mail';
+import { publicUrl } from '@/lib/server/env';
+import { conflict, notFound } from '@/lib/server/errors';
+import { renderEmail, sendMail } from '@/lib/server/mail';
 import { recordAudit } from '../audit/audit.server';
 import { issueToken } from '../auth/auth.server';
 

@@ -13,8 +13,8 @@ import type { APIContext } from 'astro';
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 
 type OutboxModule = typeof import('./outbox');
-type ListEndpoint = typeof import('../../pages/api/admin/outbox/index');
-type OneEndpoint = typeof import('../../pages/api/admin/outbox/[id]');
+type ListEndpoint = typeof import('@/pages/api/admin/outbox/index');
+type OneEndpoint = typeof import('@/pages/api/admin/outbox/[id]');
 
 let dataDir: string;
 let outbox: OutboxModule;
@@ -45,11 +45,11 @@ beforeAll(async () => {
   process.env.CROSSGRAIN_MAIL_MODE = 'local';
   process.env.CROSSGRAIN_DATA_DIR = path.join(dataDir, 'data');
   outbox = await import('./outbox');
-  listEndpoint = await import('../../pages/api/admin/outbox/index');
-  oneEndpoint = await import('../../pages/api/admin/outbox/[id]');
-  const { startMailServer } = await import('../../lib/server/mailServer');
-  const { createMailTransport, sendMail } = await import('../../lib/server/mail');
-  const { env } = await import('../../lib/server/env');
+  listEndpoint = await import('@/pages/api/admin/outbox/index');
+  oneEndpoint = await import('@/pages/api/admin/outbox/[id]');
+  const { startMailServer } = await import('@/lib/server/mailServer');
+  const { createMailTransport, sendMail } = await import('@/lib/server/mail');
+  const { env } = await import('@/lib/server/env');
   const handle = await startMailServer({ port: 0, dir: outbox.mailStoreDir() });
   close = handle.close;
   const transport = createMailTransport({ ...env, CROSSGRAIN_SMTP_PORT: handle.port });
@@ -118,7 +118,7 @@ describe('the HTML preview', () => {
     '<script>document.title="taken"</script><a href="https://x.example/?q=<script>">x</a>';
 
   it('keeps the whole body inside a sandboxed srcdoc, even after the nonce middleware', async () => {
-    const { addNonceToScripts } = await import('../../lib/server/securityHeaders');
+    const { addNonceToScripts } = await import('@/lib/server/securityHeaders');
     const frame = outbox.previewFrame(hostile, { title: 'Preview "x" <b>', className: 'w-full', testId: 'message-html' });
     // The middleware stamps a nonce onto every <script it finds in a page; none may be found here.
     expect(addNonceToScripts(frame, '0123456789abcdef0123456789abcdef')).toBe(frame);
@@ -213,8 +213,8 @@ describe('in smtp mail mode', () => {
     vi.resetModules();
     process.env.CROSSGRAIN_MAIL_MODE = 'smtp';
     try {
-      const list = await import('../../pages/api/admin/outbox/index');
-      const one = await import('../../pages/api/admin/outbox/[id]');
+      const list = await import('@/pages/api/admin/outbox/index');
+      const one = await import('@/pages/api/admin/outbox/[id]');
       expect((await call(list.GET, context(admin, '/api/admin/outbox'))).status).toBe(404);
       expect((await call(one.GET, context(admin, `/api/admin/outbox/${storedId}`, { id: storedId }))).status).toBe(404);
       expect((await call(list.GET, context(null, '/api/admin/outbox'))).status).toBe(401);

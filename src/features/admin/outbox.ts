@@ -5,12 +5,12 @@
 import { readdir, readFile } from 'node:fs/promises';
 import { simpleParser } from 'mailparser';
 import { z } from 'zod';
-import { env } from '../../lib/server/env';
-import { badRequest, notFound } from '../../lib/server/errors';
-import { logger } from '../../lib/server/logger';
-import { addressText, isMessageId, mailStoreDir, MessageSummary, messagePaths, SUMMARY_FILE } from '../../lib/server/mailStore';
+import { env } from '@/lib/server/env';
+import { badRequest, notFound } from '@/lib/server/errors';
+import { logger } from '@/lib/server/logger';
+import { addressText, isMessageId, mailStoreDir, MessageSummary, messagePaths, SUMMARY_FILE } from '@/lib/server/mailStore';
 
-export { isMessageId, mailStoreDir, MessageSummary, messagePaths, newMessageId } from '../../lib/server/mailStore';
+export { isMessageId, mailStoreDir, MessageSummary, messagePaths, newMessageId } from '@/lib/server/mailStore';
 
 /** One message as the recipient would see it. */
 export interface OutboxMessage {

@@ -8,10 +8,10 @@
  */
 import { useMutation } from '@tanstack/react-query';
 import { useId, useMemo, useState, type SubmitEvent } from 'react';
-import type { Spec } from '../../engine/boundary/schemas';
-import { ApiError, apiFetch } from '../../lib/client/api';
-import { useHydrated } from '../../lib/client/useHydrated';
-import { QueryRoot } from '../../components/ui/QueryRoot';
+import type { Spec } from '@/engine/boundary/schemas';
+import { ApiError, apiFetch } from '@/lib/client/api';
+import { useHydrated } from '@/lib/client/useHydrated';
+import { QueryRoot } from '@/components/ui/QueryRoot';
 import { CovariatesPicker } from './CovariatesPicker';
 import type { FormColumn } from './formColumns';
 import type { SectionProps } from './formFields';

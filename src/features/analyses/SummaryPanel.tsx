@@ -2,7 +2,7 @@
  * The analysis form's live summary: the model equation and what a run will compute (the
  * specification in words and the list of results), once the specification is complete.
  */
-import type { Spec } from '../../engine/boundary/schemas';
+import type { Spec } from '@/engine/boundary/schemas';
 import type { FormColumn } from './formColumns';
 import { modelEquation } from './modelEquation';
 import { ModelEquationView } from './ModelEquationView';

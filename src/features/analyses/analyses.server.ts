@@ -4,9 +4,9 @@
  */
 import { QueryTypes, type Transaction } from 'sequelize';
 import { Analysis, Extract, ExtractVersion } from '../../../db/models';
-import type { Spec } from '../../engine/boundary/schemas';
-import { sequelize } from '../../lib/server/db';
-import { conflict, notFound, unprocessable } from '../../lib/server/errors';
+import type { Spec } from '@/engine/boundary/schemas';
+import { sequelize } from '@/lib/server/db';
+import { conflict, notFound, unprocessable } from '@/lib/server/errors';
 import { recordAudit } from '../audit/audit.server';
 import { levelsLeftIn } from '../extracts/engineData';
 import type { ColumnProfile, DictionaryEntry } from '../extracts/extracts.schema';

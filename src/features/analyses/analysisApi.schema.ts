@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { SpecSchema } from '../../engine/boundary/schemas';
+import { SpecSchema } from '@/engine/boundary/schemas';
 
 /** Body of POST /api/analyses (and PATCH /api/analyses/{id}, where every field is required too). */
 export const AnalysisBody = z

@@ -4,7 +4,7 @@
  * creates its analyses with them, the runs tests compute their engine results with them
  * (src/features/runs/testSupport.ts), and the benchmarks run them.
  */
-import type { Spec } from '../../engine/boundary/schemas';
+import type { Spec } from '@/engine/boundary/schemas';
 
 /** Call-back: 30-day readmission on the 72-hour call-back by age band, adjusted for sex, comorbidity, prior admissions and site. */
 export const CALL_BACK_DEMO_SPEC: Spec = {

@@ -3,7 +3,7 @@
  * with reference (treatment) coding as the engine uses it, and the equation as one line
  * of text.
  */
-import type { Spec } from '../../engine/boundary/schemas';
+import type { Spec } from '@/engine/boundary/schemas';
 import { defaultReference, levelsFromReference, type FormColumn } from './formColumns';
 
 /** A factor of one equation term: a variable, or an indicator of one of its levels. */

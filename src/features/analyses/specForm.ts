@@ -4,7 +4,7 @@
  * rest consistent, and a draft from a stored specification. Validation and conversion to
  * the engine's specification are in specValidation.ts.
  */
-import type { Spec } from '../../engine/boundary/schemas';
+import type { Spec } from '@/engine/boundary/schemas';
 import { defaultReference, entryKind, naturalOrder, needsEventLevel, type ColumnKind, type FormColumn } from './formColumns';
 import {
   DEFAULT_REPLICATES, DEFAULT_SEED, MEASURES, MODELS, measureFor, measureRefusal, modelRefusal,

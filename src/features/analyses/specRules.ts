@@ -4,7 +4,7 @@
  * exist, the bootstrap defaults, and the names of each choice. A choice never changes
  * another field: the form disables what does not fit, with the reason.
  */
-import type { Spec } from '../../engine/boundary/schemas';
+import type { Spec } from '@/engine/boundary/schemas';
 
 export type OutcomeType = Spec['outcome']['type'];
 export type ModelFamily = Spec['model'];

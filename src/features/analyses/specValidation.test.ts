@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { SpecSchema } from '../../engine/boundary/schemas';
+import { SpecSchema } from '@/engine/boundary/schemas';
 import { defaultDraft, reviseDraft, specToDraft } from './specForm';
 import { draftToSpec, fieldForServerPath, validateAnalysis } from './specValidation';
 import { CALL_BACK, callBackDraft } from './testSupport';

@@ -3,7 +3,7 @@
  * specification (SpecSchema), with each message under the field it concerns, and the
  * form field a server validation path belongs to.
  */
-import { SpecSchema, type Spec } from '../../engine/boundary/schemas';
+import { SpecSchema, type Spec } from '@/engine/boundary/schemas';
 import { entryKind, needsEventLevel, type FormColumn } from './formColumns';
 import type { AnalysisDraft, SpecDraft } from './specForm';
 import { specRuleProblems } from './specRules';

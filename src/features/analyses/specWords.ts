@@ -2,7 +2,7 @@
  * The specification in plain English (shown on the analysis and run pages and in the
  * result tables) and the list of what a run will compute, shown before running.
  */
-import type { Spec } from '../../engine/boundary/schemas';
+import type { Spec } from '@/engine/boundary/schemas';
 import { defaultReference, levelsFromReference, type FormColumn } from './formColumns';
 import { CI_METHOD_LABEL, DEFAULT_REPLICATES, DEFAULT_SEED, MEASURE_LABEL, MODEL_LABEL, MULTIPLICITY_LABEL, isRatioModel, measureFor } from './specRules';
 

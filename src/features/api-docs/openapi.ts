@@ -1,7 +1,7 @@
 /** Builds the OpenAPI 3.1 document from the endpoint catalogue's zod schemas. */
 import { z, type ZodType } from 'zod';
 import { OPERATIONS, type Operation } from './apiCatalogue';
-import { APP_VERSION } from '../../lib/server/version';
+import { APP_VERSION } from '@/lib/server/version';
 
 type JsonSchema = Record<string, unknown>;
 

@@ -5,9 +5,9 @@
  */
 import { useMutation } from '@tanstack/react-query';
 import { useRef, useState, type ChangeEvent } from 'react';
-import { apiFetch } from '../../lib/client/api';
-import { useHydrated } from '../../lib/client/useHydrated';
-import { QueryRoot } from '../../components/ui/QueryRoot';
+import { apiFetch } from '@/lib/client/api';
+import { useHydrated } from '@/lib/client/useHydrated';
+import { QueryRoot } from '@/components/ui/QueryRoot';
 import { parseCheckpointText, type AuditCheckpoint, type ChainReport } from './audit.schema';
 
 /** Reads a checkpoint file chosen in the browser. */

@@ -6,7 +6,7 @@
  */
 import { Op, QueryTypes, type Order, type Transaction, type WhereOptions } from 'sequelize';
 import { AuditEvent, User } from '../../../db/models';
-import { sequelize } from '../../lib/server/db';
+import { sequelize } from '@/lib/server/db';
 import { CHECKPOINT_FORMAT, type AuditCheckpoint, type AuditEventsFilter, type AuditEventView, type ChainReport } from './audit.schema';
 
 /** Every kind of event, as `area.verb`. */

@@ -4,8 +4,8 @@
  * match it against the database or a checkpoint; an export filtered to one initiative is
  * not itself a contiguous chain (other initiatives' events sit between its positions).
  */
-import { CAUTION_VERSION, STANDING_CAUTION } from '../../lib/cautions';
-import { csvRecord } from '../../lib/csv';
+import { CAUTION_VERSION, STANDING_CAUTION } from '@/lib/cautions';
+import { csvRecord } from '@/lib/csv';
 import type { AuditEventsFilter, AuditEventView } from './audit.schema';
 
 export interface AuditExportMeta {

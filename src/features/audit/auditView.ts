@@ -3,7 +3,7 @@
  * for it, and its details as short "name: value" pairs (hashes cut to 12 digits, ids to 8, the
  * caution text named rather than repeated). The export carries everything in full.
  */
-import { flattenIssues } from '../../lib/server/http';
+import { flattenIssues } from '@/lib/server/http';
 import { AuditEventsQuery, type AuditEventView, type AuditEventsFilter } from './audit.schema';
 
 /**

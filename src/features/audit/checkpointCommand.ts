@@ -9,7 +9,7 @@
  * Both are audit events without an actor (the operator acts outside the application).
  */
 import { readFileSync } from 'node:fs';
-import { sequelize, withIdentity } from '../../lib/server/db';
+import { sequelize, withIdentity } from '@/lib/server/db';
 import { recordAudit, takeCheckpoint, verifyAuditChain } from './audit.server';
 import { parseCheckpointText, type AuditCheckpoint } from './audit.schema';
 

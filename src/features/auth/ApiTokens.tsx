@@ -1,9 +1,9 @@
 /** Personal API tokens on the profile page: create (the secret is shown once), list, revoke. */
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState, type SyntheticEvent } from 'react';
-import { ApiError, apiFetch } from '../../lib/client/api';
-import { QueryRoot } from '../../components/ui/QueryRoot';
-import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
+import { ApiError, apiFetch } from '@/lib/client/api';
+import { QueryRoot } from '@/components/ui/QueryRoot';
+import { HydratedFieldset } from '@/components/ui/HydratedFieldset';
 import type { ApiTokenItem } from './apiTokens.server';
 
 function Tokens() {

@@ -6,9 +6,9 @@
 import { fn, type Transaction } from 'sequelize';
 import { ApiToken, User } from '../../../db/models';
 import { recordAudit } from '../audit/audit.server';
-import { withIdentity } from '../../lib/server/db';
-import { notFound } from '../../lib/server/errors';
-import { hashToken, loadMemberships, newToken, type SessionInfo, type SessionUser } from '../../lib/server/session';
+import { withIdentity } from '@/lib/server/db';
+import { notFound } from '@/lib/server/errors';
+import { hashToken, loadMemberships, newToken, type SessionInfo, type SessionUser } from '@/lib/server/session';
 
 export const API_TOKEN_PREFIX = 'cgt_';
 

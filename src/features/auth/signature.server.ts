@@ -6,10 +6,10 @@
  * transaction of its own so that the refusal stays recorded while the decision is not.
  */
 import { User } from '../../../db/models';
-import { withIdentity } from '../../lib/server/db';
-import { AppError, forbidden, tooManyRequests } from '../../lib/server/errors';
-import { verifyPassword } from '../../lib/server/passwords';
-import type { SessionInfo } from '../../lib/server/session';
+import { withIdentity } from '@/lib/server/db';
+import { AppError, forbidden, tooManyRequests } from '@/lib/server/errors';
+import { verifyPassword } from '@/lib/server/passwords';
+import type { SessionInfo } from '@/lib/server/session';
 import { recordAudit } from '../audit/audit.server';
 import { recordAttempt, throttleState } from './throttle.server';
 

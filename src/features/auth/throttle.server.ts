@@ -6,8 +6,8 @@
 import { createHash } from 'node:crypto';
 import { QueryTypes, type Transaction } from 'sequelize';
 import { SigninAttempt } from '../../../db/models';
-import { sequelize } from '../../lib/server/db';
-import { env } from '../../lib/server/env';
+import { sequelize } from '@/lib/server/db';
+import { env } from '@/lib/server/env';
 
 export function accountKey(email: string): string {
   return createHash('sha256').update(`crossgrain-signin:${email.trim().toLowerCase()}`).digest('hex');

@@ -6,9 +6,9 @@
  */
 import { useMutation } from '@tanstack/react-query';
 import { useState, type SubmitEvent } from 'react';
-import { QueryRoot } from '../../components/ui/QueryRoot';
-import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
-import { apiFetch } from '../../lib/client/api';
+import { QueryRoot } from '@/components/ui/QueryRoot';
+import { HydratedFieldset } from '@/components/ui/HydratedFieldset';
+import { apiFetch } from '@/lib/client/api';
 import { errorText } from './errorText';
 
 interface Props {

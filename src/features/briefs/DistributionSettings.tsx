@@ -4,9 +4,9 @@
  */
 import { useMutation } from '@tanstack/react-query';
 import { useState, type SubmitEvent } from 'react';
-import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
-import { QueryRoot } from '../../components/ui/QueryRoot';
-import { apiFetch } from '../../lib/client/api';
+import { HydratedFieldset } from '@/components/ui/HydratedFieldset';
+import { QueryRoot } from '@/components/ui/QueryRoot';
+import { apiFetch } from '@/lib/client/api';
 import { errorText } from './errorText';
 
 interface Props {

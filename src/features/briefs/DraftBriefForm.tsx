@@ -1,9 +1,9 @@
 /** "Draft a brief" on a signed-off run's results page (analysts): title and summary, then the brief's page. */
 import { useMutation } from '@tanstack/react-query';
 import { useState, type SubmitEvent } from 'react';
-import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
-import { QueryRoot } from '../../components/ui/QueryRoot';
-import { apiFetch } from '../../lib/client/api';
+import { HydratedFieldset } from '@/components/ui/HydratedFieldset';
+import { QueryRoot } from '@/components/ui/QueryRoot';
+import { apiFetch } from '@/lib/client/api';
 import { errorText } from './errorText';
 
 function Form({ runId }: { runId: string }) {

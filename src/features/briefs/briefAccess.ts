@@ -5,10 +5,10 @@
  */
 import type { APIContext } from 'astro';
 import type { Transaction } from 'sequelize';
-import { authorize } from '../../lib/server/authorize';
-import { notFound } from '../../lib/server/errors';
-import { clientAddress } from '../../lib/server/http';
-import type { SessionUser } from '../../lib/server/session';
+import { authorize } from '@/lib/server/authorize';
+import { notFound } from '@/lib/server/errors';
+import { clientAddress } from '@/lib/server/http';
+import type { SessionUser } from '@/lib/server/session';
 import { getBriefRecord, type Actor, type BriefRecord } from './briefs.server';
 
 export async function readableBrief(transaction: Transaction, user: SessionUser, briefId: string, options: { lock?: boolean } = {}): Promise<BriefRecord> {

@@ -5,7 +5,7 @@
  * and the key numbers are the results page's own (buildResultTables).
  */
 import { beforeAll, describe, expect, it } from 'vitest';
-import type { Result } from '../../engine/boundary/schemas';
+import type { Result } from '@/engine/boundary/schemas';
 import { buildResultTables } from '../runs/resultTables';
 import { CALL_BACK_SPEC } from '../runs/testSupport';
 import { buildBriefContent, type BriefContent } from './briefContent';

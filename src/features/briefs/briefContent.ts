@@ -6,8 +6,8 @@
  * threshold − 1. The key table follows Knol and VanderWeele (Int J Epidemiol
  * 2012;41:514-520) through the results page's own builder (buildResultTables).
  */
-import type { Result, Spec } from '../../engine/boundary/schemas';
-import { RESULT_CAUTIONS } from '../../lib/cautions';
+import type { Result, Spec } from '@/engine/boundary/schemas';
+import { RESULT_CAUTIONS } from '@/lib/cautions';
 import { MODEL_LABEL } from '../analyses/specRules';
 import { percentText } from '../analyses/specWords';
 import { formatNumber } from '../runs/resultFormat';

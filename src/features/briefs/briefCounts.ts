@@ -9,7 +9,7 @@
  * - rows left out for missing values `dropped` (its own count; the extract's size is not
  *   part of a brief).
  */
-import type { Result } from '../../engine/boundary/schemas';
+import type { Result } from '@/engine/boundary/schemas';
 import { formatCount } from '../runs/resultFormat';
 import { planSuppression, smallCountText, WITHHELD_TEXT, type CountCell, type Relation, type SuppressionPlan } from './suppression';
 

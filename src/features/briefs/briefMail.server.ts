@@ -7,11 +7,11 @@
  */
 import { randomUUID } from 'node:crypto';
 import { QueryTypes, type Transaction } from 'sequelize';
-import { sequelize } from '../../lib/server/db';
-import { publicUrl } from '../../lib/server/env';
-import { conflict, notFound } from '../../lib/server/errors';
-import { logger } from '../../lib/server/logger';
-import { recipientDomain, renderEmail, sendMail } from '../../lib/server/mail';
+import { sequelize } from '@/lib/server/db';
+import { publicUrl } from '@/lib/server/env';
+import { conflict, notFound } from '@/lib/server/errors';
+import { logger } from '@/lib/server/logger';
+import { recipientDomain, renderEmail, sendMail } from '@/lib/server/mail';
 import { recordAudit } from '../audit/audit.server';
 import { storedVersion, type Actor, type BriefRecord } from './briefs.server';
 

@@ -7,7 +7,7 @@
  */
 import { createRequire } from 'node:module';
 import PDFDocument from 'pdfkit';
-import { STANDING_CAUTION } from '../../lib/cautions';
+import { STANDING_CAUTION } from '@/lib/cautions';
 import type { BriefContent } from './briefContent';
 import { plotLayout } from './briefPlot';
 import { fontFromWoff } from './woffFont';

@@ -4,8 +4,8 @@
  * rows in an extra age band "90+". Not imported by product code.
  */
 import { engineDataOfCsv } from '../runs/engineInput';
-import { ResultSchema, type Result } from '../../engine/boundary/schemas';
-import { runAnalysis } from '../../engine/index';
+import { ResultSchema, type Result } from '@/engine/boundary/schemas';
+import { runAnalysis } from '@/engine/index';
 import { generateCallBackCohort } from '../extracts/demoCohorts';
 import { CALL_BACK_SPEC } from '../runs/testSupport';
 import type { BriefFacts } from './briefContent';

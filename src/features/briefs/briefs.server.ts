@@ -7,9 +7,9 @@
  */
 import { createHash } from 'node:crypto';
 import { QueryTypes, type Transaction } from 'sequelize';
-import type { Result, Spec } from '../../engine/boundary/schemas';
-import { sequelize } from '../../lib/server/db';
-import { conflict, notFound } from '../../lib/server/errors';
+import type { Result, Spec } from '@/engine/boundary/schemas';
+import { sequelize } from '@/lib/server/db';
+import { conflict, notFound } from '@/lib/server/errors';
 import { recordAudit } from '../audit/audit.server';
 import { reviewOf } from '../review/review.server';
 import { getRun } from '../runs/runs.server';

@@ -1,7 +1,7 @@
 /** Archive or restore an extract; archiving hides it from new analyses and deletes nothing. */
 import { useMutation } from '@tanstack/react-query';
-import { apiFetch } from '../../lib/client/api';
-import { QueryRoot } from '../../components/ui/QueryRoot';
+import { apiFetch } from '@/lib/client/api';
+import { QueryRoot } from '@/components/ui/QueryRoot';
 
 function Toggle({ extractId, archived }: { extractId: string; archived: boolean }) {
   const change = useMutation({

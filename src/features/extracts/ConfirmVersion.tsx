@@ -4,9 +4,9 @@
  */
 import { useMutation } from '@tanstack/react-query';
 import { useState, type SyntheticEvent } from 'react';
-import { ApiError, apiFetch } from '../../lib/client/api';
-import { QueryRoot } from '../../components/ui/QueryRoot';
-import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
+import { ApiError, apiFetch } from '@/lib/client/api';
+import { QueryRoot } from '@/components/ui/QueryRoot';
+import { HydratedFieldset } from '@/components/ui/HydratedFieldset';
 import type { AnalysableColumnType } from './extracts.schema';
 
 interface ColumnChoice {

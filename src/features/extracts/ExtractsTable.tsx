@@ -4,9 +4,9 @@
  */
 import { useQuery } from '@tanstack/react-query';
 import { useEffect } from 'react';
-import { apiFetch } from '../../lib/client/api';
-import { useHydrated } from '../../lib/client/useHydrated';
-import { QueryRoot } from '../../components/ui/QueryRoot';
+import { apiFetch } from '@/lib/client/api';
+import { useHydrated } from '@/lib/client/useHydrated';
+import { QueryRoot } from '@/components/ui/QueryRoot';
 import type { ExtractListItem } from './extracts.server';
 import { EXTRACTS_CHANGED_EVENT } from './extractsEvents';
 

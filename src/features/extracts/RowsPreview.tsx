@@ -15,9 +15,9 @@ import {
   type SortingState,
 } from '@tanstack/react-table';
 import { useMemo, useState } from 'react';
-import { apiFetch } from '../../lib/client/api';
-import { QueryRoot } from '../../components/ui/QueryRoot';
-import { SortableHeader } from '../../components/ui/SortableHeader';
+import { apiFetch } from '@/lib/client/api';
+import { QueryRoot } from '@/components/ui/QueryRoot';
+import { SortableHeader } from '@/components/ui/SortableHeader';
 import type { RowsPage } from './columns.server';
 
 const features = tableFeatures({ rowSortingFeature, rowPaginationFeature });

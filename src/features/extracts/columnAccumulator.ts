@@ -19,7 +19,7 @@
  * at the end; its numeric values then become levels in JavaScript's shortest round-trip
  * form (`007` -> `7`), while the raw digits were already screened as they passed.
  */
-import { MISSING_TOKENS } from '../../engine/design/missingValues';
+import { MISSING_TOKENS } from '@/engine/design/missingValues';
 import { growInt32 } from './byteDictionary';
 import { CapacityPlan, ColumnBuilder } from './columnBuilder';
 import type { ColumnData, ColumnSetOptions } from './columnTypes';

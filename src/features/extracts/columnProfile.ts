@@ -13,7 +13,7 @@
  * with a known number of places, over a range of at most 2^24 steps (that is how a
  * million-row column is profiled in milliseconds); otherwise from a sorted copy.
  */
-import { suspectMissingLevels } from '../../engine/design/missingValues';
+import { suspectMissingLevels } from '@/engine/design/missingValues';
 import type { ColumnData, NumericColumnData, TextColumnData } from './columnAccumulator';
 import type { Finding } from './identifierFindings';
 import type { ColumnProfile, ColumnType, LevelCount, NumericSummary } from './extracts.schema';

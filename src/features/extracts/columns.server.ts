@@ -5,9 +5,9 @@
  */
 import { QueryTypes, type Transaction } from 'sequelize';
 import { ExtractVersion } from '../../../db/models';
-import type { EngineData } from '../../engine';
-import { sequelize as appSequelize } from '../../lib/server/db';
-import { badRequest } from '../../lib/server/errors';
+import type { EngineData } from '@/engine';
+import { sequelize as appSequelize } from '@/lib/server/db';
+import { badRequest } from '@/lib/server/errors';
 import { decodeCodes, decodeNumericValues } from './columnStore';
 import { toEngineData, type StoredColumn } from './engineData';
 import type { DictionaryEntry } from './extracts.schema';

@@ -6,8 +6,8 @@
  * make those values missing, and the shared tokens are never levels (the engine also
  * drops token levels of its own accord).
  */
-import type { EngineColumn, EngineData } from '../../engine';
-import { isMissingToken } from '../../engine/design/missingValues';
+import type { EngineColumn, EngineData } from '@/engine';
+import { isMissingToken } from '@/engine/design/missingValues';
 import type { ColumnData } from './columnAccumulator';
 
 /** A column as stored: numbers (NaN where missing) or level codes (-1 where missing). */

@@ -5,11 +5,11 @@
  */
 import { QueryTypes, fn, type Sequelize, type Transaction } from 'sequelize';
 import { Extract, ExtractIntake, ExtractVersion, User } from '../../../db/models';
-import { sequelize as appSequelize } from '../../lib/server/db';
-import { conflict, notFound, unprocessable } from '../../lib/server/errors';
+import { sequelize as appSequelize } from '@/lib/server/db';
+import { conflict, notFound, unprocessable } from '@/lib/server/errors';
 import { recordAudit } from '../audit/audit.server';
 import { encodeColumn } from './columnStore';
-import { isMissingToken } from '../../engine/design/missingValues';
+import { isMissingToken } from '@/engine/design/missingValues';
 import { levelsLeftIn, missingCodeKey } from './engineData';
 import type { ReadExtract } from './extracts';
 import type { ColumnProfile, DictionaryEntry, KeptColumn } from './extracts.schema';

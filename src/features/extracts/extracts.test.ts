@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { runAnalysis, type AnalysisSpec } from '../../engine';
+import { runAnalysis, type AnalysisSpec } from '@/engine';
 import { toEngineData } from './engineData';
 import { ExtractRefusalError, ingestExtract, readExtractColumns, reviewExtractColumns } from './extracts';
 import { chunked } from './testSupport';

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { Xoshiro128StarStar } from '../../engine/random/xoshiro128StarStar';
+import { Xoshiro128StarStar } from '@/engine/random/xoshiro128StarStar';
 import { SeededRandom } from './seededRandom';
 
 describe('SeededRandom', () => {

@@ -10,7 +10,7 @@
  * Same seed, same numbers, on every platform (integer arithmetic and exact conversions to
  * doubles, apart from the normal and Poisson deviates' Math.log/sqrt/cos/exp).
  */
-import { Xoshiro128StarStar } from '../../engine/random/xoshiro128StarStar';
+import { Xoshiro128StarStar } from '@/engine/random/xoshiro128StarStar';
 
 /** A seeded stream of pseudo-random numbers. */
 export class SeededRandom {

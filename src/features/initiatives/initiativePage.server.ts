@@ -7,9 +7,9 @@ import type { AstroGlobal } from 'astro';
 import type { Transaction } from 'sequelize';
 import type { Role } from '../../../db/models';
 import type { Action, SubjectName } from '../../../policies/abilities';
-import { can } from '../../lib/server/authorize';
-import { signInRedirect } from '../../lib/server/pageHelpers';
-import type { SessionUser } from '../../lib/server/session';
+import { can } from '@/lib/server/authorize';
+import { signInRedirect } from '@/lib/server/pageHelpers';
+import type { SessionUser } from '@/lib/server/session';
 import { getInitiative, type InitiativeOverview } from './initiatives.server';
 
 /** Who may see the page: any member of the initiative, or whoever may perform an action on a subject in it. */

@@ -2,7 +2,7 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import { z } from 'zod';
 import { Analysis, Initiative, Membership, Run, User } from '../../../db/models';
-import { sequelize } from '../../lib/server/db';
+import { sequelize } from '@/lib/server/db';
 
 export interface InitiativeOverview {
   id: string;

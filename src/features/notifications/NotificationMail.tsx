@@ -1,7 +1,7 @@
 /** On the profile page: how Crossgrain e-mails the person their notifications (immediately, a daily digest, or none). */
 import { useState } from 'react';
-import { ApiError, apiFetch } from '../../lib/client/api';
-import { HydratedFieldset } from '../../components/ui/HydratedFieldset';
+import { ApiError, apiFetch } from '@/lib/client/api';
+import { HydratedFieldset } from '@/components/ui/HydratedFieldset';
 import { MAIL_CHOICES, MAIL_CHOICE_LABEL, type MailChoice } from './notifications.schema';
 
 export default function NotificationMail({ initial }: { initial: MailChoice }) {

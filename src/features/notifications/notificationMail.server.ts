@@ -8,10 +8,10 @@
  */
 import { Op, QueryTypes, type Transaction } from 'sequelize';
 import { Notification, NotificationSetting, User, type NotificationKind } from '../../../db/models';
-import { sequelize, withIdentity } from '../../lib/server/db';
-import { publicUrl } from '../../lib/server/env';
-import { logger } from '../../lib/server/logger';
-import { recipientDomain, renderEmail, sendMail, type MailTransport } from '../../lib/server/mail';
+import { sequelize, withIdentity } from '@/lib/server/db';
+import { publicUrl } from '@/lib/server/env';
+import { logger } from '@/lib/server/logger';
+import { recipientDomain, renderEmail, sendMail, type MailTransport } from '@/lib/server/mail';
 import { notificationLink, notificationText } from './notifications';
 import type { MailChoice } from './notifications.schema';
 

@@ -4,7 +4,7 @@
  * review state is a run's latest review step, 'draft' when it has none.
  */
 import { QueryTypes, type Transaction } from 'sequelize';
-import { sequelize } from '../../lib/server/db';
+import { sequelize } from '@/lib/server/db';
 
 export type FollowedState = 'draft' | 'submitted' | 'sent-back' | 'signed-off';
 

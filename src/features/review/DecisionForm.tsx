@@ -5,7 +5,7 @@
  * Opened from "Sign off…" or "Send back…"; Escape or "Cancel" closes it.
  */
 import { useEffect, useId, useRef, useState, type KeyboardEvent, type SyntheticEvent } from 'react';
-import { ApiError } from '../../lib/client/api';
+import { ApiError } from '@/lib/client/api';
 import { SEND_BACK_MEANINGS, SIGN_OFF_MEANINGS } from './review.schema';
 
 export type Decision = 'sign-off' | 'send-back';

@@ -6,9 +6,9 @@
  */
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useEffect, useRef, useState, type SyntheticEvent } from 'react';
-import { apiFetch } from '../../lib/client/api';
-import { useHydrated } from '../../lib/client/useHydrated';
-import { QueryRoot } from '../../components/ui/QueryRoot';
+import { apiFetch } from '@/lib/client/api';
+import { useHydrated } from '@/lib/client/useHydrated';
+import { QueryRoot } from '@/components/ui/QueryRoot';
 import { DecisionForm, type Decision, type DecisionRequest } from './DecisionForm';
 import { REVIEW_STATE_LABEL, type ReviewView } from './review.schema';
 

@@ -7,8 +7,8 @@
  */
 import { QueryTypes, type Transaction } from 'sequelize';
 import { ReviewStep, RunComment, User } from '../../../db/models';
-import { sequelize } from '../../lib/server/db';
-import { conflict, notFound } from '../../lib/server/errors';
+import { sequelize } from '@/lib/server/db';
+import { conflict, notFound } from '@/lib/server/errors';
 import { recordAudit } from '../audit/audit.server';
 import { notifyComment, notifyReviewStep } from '../notifications/notifications.server';
 import { REVIEW_STATES, type BoardView, type ReviewState, type ReviewView } from './review.schema';

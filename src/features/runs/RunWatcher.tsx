@@ -9,9 +9,9 @@
 import { useMutation, useQuery } from '@tanstack/react-query';
 import { useEffect, useRef, useState } from 'react';
 import { refreshRunsTable } from './refreshRunsTable';
-import { apiFetch } from '../../lib/client/api';
-import { useHydrated } from '../../lib/client/useHydrated';
-import { QueryRoot } from '../../components/ui/QueryRoot';
+import { apiFetch } from '@/lib/client/api';
+import { useHydrated } from '@/lib/client/useHydrated';
+import { QueryRoot } from '@/components/ui/QueryRoot';
 import type { RunStatus } from './runs.schema';
 
 interface RunStatusView {

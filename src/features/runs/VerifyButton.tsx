@@ -1,8 +1,8 @@
 /** The auditor's "Re-run to verify" button on a finished run's page. */
 import { useMutation } from '@tanstack/react-query';
-import { apiFetch } from '../../lib/client/api';
-import { useHydrated } from '../../lib/client/useHydrated';
-import { QueryRoot } from '../../components/ui/QueryRoot';
+import { apiFetch } from '@/lib/client/api';
+import { useHydrated } from '@/lib/client/useHydrated';
+import { QueryRoot } from '@/components/ui/QueryRoot';
 
 function Button({ runId }: { runId: string }) {
   const hydrated = useHydrated();

@@ -3,7 +3,7 @@
  * run) and a result's digest (compared when a run is re-run to verify it).
  */
 import { createHash } from 'node:crypto';
-import type { Spec } from '../../engine/boundary/schemas';
+import type { Spec } from '@/engine/boundary/schemas';
 
 /**
  * JSON with object keys sorted at every level: equal values serialise equally whatever

@@ -1,4 +1,4 @@
-import type { Spec } from '../../engine/boundary/schemas';
+import type { Spec } from '@/engine/boundary/schemas';
 
 /** The roles the engine needs for each column a specification uses. */
 export function columnRoles(spec: Spec): Record<string, 'categorical' | 'continuous'> {

@@ -4,7 +4,7 @@
  * distinct run ids, in the order given; anything else is a clear 400.
  */
 import { z } from 'zod';
-import { badRequest } from '../../lib/server/errors';
+import { badRequest } from '@/lib/server/errors';
 import { MAX_COMPARED_RUNS } from './runComparison';
 
 /** The run ids asked for, or an empty list when the query names none (the how-to page). */

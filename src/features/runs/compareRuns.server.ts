@@ -1,7 +1,7 @@
 /** Loads the runs a comparison names (each readable by the caller, else 404) and compares them. */
 import type { Transaction } from 'sequelize';
-import { cautionText } from '../../lib/cautions';
-import type { SessionUser } from '../../lib/server/session';
+import { cautionText } from '@/lib/cautions';
+import type { SessionUser } from '@/lib/server/session';
 import { comparedRunIds } from './compareQuery';
 import { readableRun } from './runAccess';
 import { compareRuns } from './runComparison';

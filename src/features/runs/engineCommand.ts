@@ -13,10 +13,10 @@
  */
 import { readFile, stat } from 'node:fs/promises';
 import { resolve } from 'node:path';
-import { EngineError, runAnalysis } from '../../engine';
-import { defaultThreadCount } from '../../engine/bootstrap/percentileBootstrap';
-import { SpecSchema } from '../../engine/boundary/schemas';
-import { passPool } from '../../engine/threads/passPool';
+import { EngineError, runAnalysis } from '@/engine';
+import { defaultThreadCount } from '@/engine/bootstrap/percentileBootstrap';
+import { SpecSchema } from '@/engine/boundary/schemas';
+import { passPool } from '@/engine/threads/passPool';
 import { ExtractRefusalError } from '../extracts/extractRefusal';
 import { columnRoles } from './columnRoles';
 import { EngineInputError, readEngineData } from './engineInput';

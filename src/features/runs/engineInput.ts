@@ -8,7 +8,7 @@
  */
 import { createReadStream } from 'node:fs';
 import { stat } from 'node:fs/promises';
-import type { EngineData } from '../../engine';
+import type { EngineData } from '@/engine';
 import { ColumnSet } from '../extracts/columnAccumulator';
 import { CsvChunkReader, readCsv, type CsvSink } from '../extracts/csvReader';
 import { storedColumn, toEngineData, type StoredColumn } from '../extracts/engineData';

@@ -7,11 +7,11 @@
 import { hostname } from 'node:os';
 import { QueryTypes, fn, type Transaction } from 'sequelize';
 import { Run } from '../../../db/models';
-import { AnalysisCancelledError, ENGINE_VERSION, runAnalysis } from '../../engine';
-import type { Spec } from '../../engine/boundary/schemas';
-import { sequelize, withIdentity } from '../../lib/server/db';
-import { env } from '../../lib/server/env';
-import { logger } from '../../lib/server/logger';
+import { AnalysisCancelledError, ENGINE_VERSION, runAnalysis } from '@/engine';
+import type { Spec } from '@/engine/boundary/schemas';
+import { sequelize, withIdentity } from '@/lib/server/db';
+import { env } from '@/lib/server/env';
+import { logger } from '@/lib/server/logger';
 import { recordAudit } from '../audit/audit.server';
 import { loadRunData } from './runInputs';
 import { isRefusal, runFailure } from './runFailure';

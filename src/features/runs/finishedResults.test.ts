@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import type { Result } from '../../engine/boundary/schemas';
+import type { Result } from '@/engine/boundary/schemas';
 import { cachedResult, keepResult, perResult } from './finishedResults';
 
 // Stand-ins: the cache holds results by identity and never looks inside them.

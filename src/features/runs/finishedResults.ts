@@ -5,7 +5,7 @@
  * row-level security on each request, and only its result comes from here.
  * Verification re-runs compare the stored bytes themselves, never this copy.
  */
-import type { Result } from '../../engine/boundary/schemas';
+import type { Result } from '@/engine/boundary/schemas';
 
 /** Enough for the runs people are reading now; each entry is one parsed result. */
 const CAPACITY = 64;

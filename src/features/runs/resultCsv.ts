@@ -4,9 +4,9 @@
  * per estimate, with unrounded numbers. Fields go through src/lib/csv.ts (RFC 4180,
  * formula-injection safe), which the audit export uses too.
  */
-import type { Result, Spec } from '../../engine/boundary/schemas';
-import { CAUTION_VERSION, RESULT_CAUTIONS } from '../../lib/cautions';
-import { csvRecord } from '../../lib/csv';
+import type { Result, Spec } from '@/engine/boundary/schemas';
+import { CAUTION_VERSION, RESULT_CAUTIONS } from '@/lib/cautions';
+import { csvRecord } from '@/lib/csv';
 import { specInWords } from '../analyses/specWords';
 import { displayLevels, measureInfo, type MeasureInfo } from './resultFormat';
 import { johnsonNeymanSentence, multiplicityNote, OMNIBUS_LABEL } from './resultWords';

@@ -6,7 +6,7 @@
  * number it shows. Also how the result's effect measure is named and the order in which
  * its modifier levels are shown.
  */
-import type { Result } from '../../engine/boundary/schemas';
+import type { Result } from '@/engine/boundary/schemas';
 import { naturalOrder } from '../analyses/formColumns';
 import { MEASURE_LABEL } from '../analyses/specRules';
 

@@ -1,8 +1,8 @@
 import { parse } from 'csv-parse/sync';
 import { beforeAll, describe, expect, it } from 'vitest';
-import type { Result } from '../../engine/boundary/schemas';
-import { CAUTION_VERSION, RESULT_CAUTIONS } from '../../lib/cautions';
-import { csvField, csvRecord } from '../../lib/csv';
+import type { Result } from '@/engine/boundary/schemas';
+import { CAUTION_VERSION, RESULT_CAUTIONS } from '@/lib/cautions';
+import { csvField, csvRecord } from '@/lib/csv';
 import { CSV_COLUMNS, resultCsv } from './resultCsv';
 import { fixed, formatInterval, formatP, formatRatio, MINUS, type IntervalCell } from './resultFormat';
 import { buildResultTables } from './resultTables';

@@ -8,7 +8,7 @@
  * Number formats are in resultFormat.ts, the sentences in resultWords.ts and the CSV in
  * resultCsv.ts.
  */
-import type { Result, Spec } from '../../engine/boundary/schemas';
+import type { Result, Spec } from '@/engine/boundary/schemas';
 import { MODEL_LABEL } from '../analyses/specRules';
 import { percentText, specInWords } from '../analyses/specWords';
 import {

@@ -1,7 +1,7 @@
 import { experimental_AstroContainer as AstroContainer } from 'astro/container';
 import { beforeAll, describe, expect, it } from 'vitest';
-import type { Result } from '../../engine/boundary/schemas';
-import { CAUTION_VERSION, RESULT_CAUTIONS } from '../../lib/cautions';
+import type { Result } from '@/engine/boundary/schemas';
+import { CAUTION_VERSION, RESULT_CAUTIONS } from '@/lib/cautions';
 import ResultTables from './ResultTables.astro';
 import { CALL_BACK_SPEC, engineResult, UP_AND_ABOUT_SPEC } from './testSupport';
 

@@ -3,7 +3,7 @@
  * out and why, the multiplicity note, the Johnson-Neyman boundaries and the smallest
  * detectable interaction in words, and the names of the omnibus tests.
  */
-import type { Result } from '../../engine/boundary/schemas';
+import type { Result } from '@/engine/boundary/schemas';
 import { MULTIPLICITY_LABEL } from '../analyses/specRules';
 import { percentText } from '../analyses/specWords';
 import { fixed, formatCount, formatNumber, modifierDecimals, type MeasureInfo } from './resultFormat';

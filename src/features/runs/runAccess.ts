@@ -5,9 +5,9 @@
  */
 import type { Transaction } from 'sequelize';
 import { Run } from '../../../db/models';
-import { authorize } from '../../lib/server/authorize';
-import { notFound } from '../../lib/server/errors';
-import type { SessionUser } from '../../lib/server/session';
+import { authorize } from '@/lib/server/authorize';
+import { notFound } from '@/lib/server/errors';
+import type { SessionUser } from '@/lib/server/session';
 import { resultDigest } from './canonical';
 import { getRun, type RunView } from './runs.server';
 

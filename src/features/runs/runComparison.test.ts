@@ -1,5 +1,5 @@
 import { beforeAll, describe, expect, it } from 'vitest';
-import type { Result, Spec } from '../../engine/boundary/schemas';
+import type { Result, Spec } from '@/engine/boundary/schemas';
 import { compareRuns, figureRows, referenceWarnings, specDifferences, type ComparedRun } from './runComparison';
 import { comparisonForestFigure, comparisonForestInput } from './plots/comparisonForest';
 import { CALL_BACK_SPEC, engineResult } from './testSupport';

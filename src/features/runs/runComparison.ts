@@ -5,7 +5,7 @@
  * S, the multiplicative interaction, the omnibus p-value) with each run's change from the
  * first run, computed from the results whenever both runs have the figure.
  */
-import type { Result, Spec } from '../../engine/boundary/schemas';
+import type { Result, Spec } from '@/engine/boundary/schemas';
 import { CI_METHOD_LABEL, MEASURE_LABEL, MODEL_LABEL, MULTIPLICITY_LABEL } from '../analyses/specRules';
 import { formatInterval, formatP, measureInfo, type NumberKind } from './resultFormat';
 

@@ -3,8 +3,8 @@
  * kebab-case code of its own and keeps the engine's words; anything else is generic.
  */
 import { describe, expect, it } from 'vitest';
-import { ColumnNotFoundError, EngineError, type EngineErrorCode } from '../../engine';
-import { ERROR_CODE } from '../../lib/server/errors';
+import { ColumnNotFoundError, EngineError, type EngineErrorCode } from '@/engine';
+import { ERROR_CODE } from '@/lib/server/errors';
 import { EXTRACT_REFUSAL_CODES } from '../extracts/extractRefusal';
 import { isRefusal, runFailure } from './runFailure';
 

@@ -5,7 +5,7 @@
  * an engine refusal (a database error, a bug) is never shown as it is: the run stores a
  * generic message with a reference, and the worker logs the error with its stack.
  */
-import { EngineError, type EngineErrorCode } from '../../engine';
+import { EngineError, type EngineErrorCode } from '@/engine';
 
 export interface RunFailure {
   code: string;

@@ -2,9 +2,9 @@
  * What a run reads before the engine starts: the columns its specification uses, as
  * engine-ready data, through the extracts area's one public loader.
  */
-import type { EngineData } from '../../engine';
-import type { Spec } from '../../engine/boundary/schemas';
-import { withIdentity } from '../../lib/server/db';
+import type { EngineData } from '@/engine';
+import type { Spec } from '@/engine/boundary/schemas';
+import { withIdentity } from '@/lib/server/db';
 import { loadAnalysisData } from '../extracts/columns.server';
 import { columnRoles } from './columnRoles';
 

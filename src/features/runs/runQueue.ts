@@ -4,7 +4,7 @@
  * neither). The queue itself is created by a migration (create-analyses-and-runs).
  */
 import type { Transaction } from 'sequelize';
-import { sendInTransaction } from '../../lib/server/queue';
+import { sendInTransaction } from '@/lib/server/queue';
 
 export const RUN_QUEUE = 'analysis-run';
 

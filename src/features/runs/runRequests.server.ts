@@ -8,8 +8,8 @@
  */
 import { createHash } from 'node:crypto';
 import { QueryTypes, type Transaction } from 'sequelize';
-import { sequelize } from '../../lib/server/db';
-import { badRequest, unprocessable } from '../../lib/server/errors';
+import { sequelize } from '@/lib/server/db';
+import { badRequest, unprocessable } from '@/lib/server/errors';
 import { canonicalJson } from './canonical';
 
 /** How long a key keeps answering with its run. */

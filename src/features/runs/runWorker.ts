@@ -5,9 +5,9 @@
  * of machines can share the queue.
  */
 import { hostname } from 'node:os';
-import { sequelize } from '../../lib/server/db';
-import { logger } from '../../lib/server/logger';
-import { createQueue, startWhenReachable } from '../../lib/server/queue';
+import { sequelize } from '@/lib/server/db';
+import { logger } from '@/lib/server/logger';
+import { createQueue, startWhenReachable } from '@/lib/server/queue';
 import { executeRun } from './executeRun';
 import { RUN_QUEUE, type RunJob } from './runQueue';
 import { sweepStaleRuns } from './runs.server';

@@ -9,13 +9,13 @@
  */
 import { QueryTypes, fn, type Transaction } from 'sequelize';
 import { Analysis, ExtractVersion, Run } from '../../../db/models';
-import { ENGINE_VERSION } from '../../engine';
-import type { Result, Spec } from '../../engine/boundary/schemas';
-import { CAUTION_VERSION, cautionText } from '../../lib/cautions';
-import { sequelize } from '../../lib/server/db';
-import { env } from '../../lib/server/env';
-import { AppError, conflict, notFound } from '../../lib/server/errors';
-import { logger } from '../../lib/server/logger';
+import { ENGINE_VERSION } from '@/engine';
+import type { Result, Spec } from '@/engine/boundary/schemas';
+import { CAUTION_VERSION, cautionText } from '@/lib/cautions';
+import { sequelize } from '@/lib/server/db';
+import { env } from '@/lib/server/env';
+import { AppError, conflict, notFound } from '@/lib/server/errors';
+import { logger } from '@/lib/server/logger';
 import { recordAudit, type AuditAction } from '../audit/audit.server';
 import { specHash } from './canonical';
 import type { ReviewState } from '../review/review.schema';

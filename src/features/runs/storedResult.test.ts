@@ -1,6 +1,6 @@
 import { beforeAll, describe, expect, it } from 'vitest';
-import type { Result } from '../../engine/boundary/schemas';
-import { AppError } from '../../lib/server/errors';
+import type { Result } from '@/engine/boundary/schemas';
+import { AppError } from '@/lib/server/errors';
 import { parseStoredResult } from './storedResult';
 import { CALL_BACK_SPEC, engineResult } from './testSupport';
 

@@ -8,8 +8,8 @@
  * it", and still displays. A stored value that does not have the result's shape is
  * refused with a message rather than shown wrong.
  */
-import { ResultSchema, type Result } from '../../engine/boundary/schemas';
-import { AppError } from '../../lib/server/errors';
+import { ResultSchema, type Result } from '@/engine/boundary/schemas';
+import { AppError } from '@/lib/server/errors';
 
 /** The stored result as a Result, or null when the run has none (not finished, or not read). */
 export function parseStoredResult(stored: unknown): Result | null {

@@ -3,9 +3,9 @@
  * cohorts (src/features/extracts/demoCohorts.ts), read as an upload is (engineInput.ts).
  * Each result is computed once per test file. Not imported by product code.
  */
-import { ResultSchema, SpecSchema, type Result, type Spec } from '../../engine/boundary/schemas';
-import { runAnalysis } from '../../engine/index';
-import type { EngineData } from '../../engine/types';
+import { ResultSchema, SpecSchema, type Result, type Spec } from '@/engine/boundary/schemas';
+import { runAnalysis } from '@/engine/index';
+import type { EngineData } from '@/engine/types';
 import { CALL_BACK_DEMO_SPEC, UP_AND_ABOUT_DEMO_SPEC } from '../analyses/demoSpecs';
 import { generateCallBackCohort, generateUpAndAboutCohort } from '../extracts/demoCohorts';
 import { engineDataOfCsv } from './engineInput';

@@ -14,7 +14,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 
 type MailModule = typeof import('./mail');
-type OutboxModule = typeof import('../../features/admin/outbox');
+type OutboxModule = typeof import('@/features/admin/outbox');
 type ServerModule = typeof import('./mailServer');
 
 /** A TCP port that was free a moment ago on 127.0.0.1. */
@@ -65,7 +65,7 @@ beforeAll(async () => {
   process.env.CROSSGRAIN_SMTP_PORT = String(port);
   process.env.CROSSGRAIN_DATA_DIR = dataDir;
   mail = await import('./mail');
-  outbox = await import('../../features/admin/outbox');
+  outbox = await import('@/features/admin/outbox');
   mailServer = await import('./mailServer');
   storeDir = outbox.mailStoreDir();
   handle = await mailServer.startMailServer({ port, dir: storeDir });

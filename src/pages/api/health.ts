@@ -1,6 +1,6 @@
-import { databaseAnswers } from '../../lib/server/db';
-import { endpoint, json } from '../../lib/server/http';
-import { APP_VERSION } from '../../lib/server/version';
+import { databaseAnswers } from '@/lib/server/db';
+import { endpoint, json } from '@/lib/server/http';
+import { APP_VERSION } from '@/lib/server/version';
 
 /** GET /api/health: the app's version and whether the database answers. */
 export const GET = endpoint(async () => {

@@ -1,7 +1,7 @@
 import { readFileSync, readdirSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
-import { engineDataOfCsv } from '../../../src/features/runs/engineInput.js';
-import type { AnalysisSpec, EngineData } from '../../../src/engine/types.js';
+import { engineDataOfCsv } from '@/features/runs/engineInput.js';
+import type { AnalysisSpec, EngineData } from '@/engine/types.js';
 
 export const referenceRoot = fileURLToPath(new URL('..', import.meta.url));
 

@@ -4,8 +4,8 @@
  * reference), covariate x ~ N(0, 1); the outcome follows the chosen link with
  * g(μ) = b0 + b1·a + b2[m] + b3[m]·a + bx·x.
  */
-import { Xoshiro128StarStar } from '../../../src/engine/random/xoshiro128StarStar.js';
-import type { EngineData } from '../../../src/engine/types.js';
+import { Xoshiro128StarStar } from '@/engine/random/xoshiro128StarStar.js';
+import type { EngineData } from '@/engine/types.js';
 
 export interface BinaryTruth {
   readonly n: number;

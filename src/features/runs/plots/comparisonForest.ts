@@ -5,7 +5,7 @@
  * effect measure is on another scale than the first run's (a ratio against a difference)
  * cannot share its axis: they are left out of the plot and the caption says so.
  */
-import { percentText } from '../../analyses/specWords';
+import { percentText } from '@/features/analyses/specWords';
 import { displayLevels, formatInterval, measureInfo } from '../resultFormat';
 import type { PlotInput } from './plotInput';
 import { PLOT_COLOURS, axis, baseLayout, capitalise, nullLine, type PlotFigure, type PlotTrace } from './plotFigures';

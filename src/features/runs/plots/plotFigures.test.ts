@@ -1,5 +1,5 @@
 import { beforeAll, describe, expect, it } from 'vitest';
-import type { Result } from '../../../engine/boundary/schemas';
+import type { Result } from '@/engine/boundary/schemas';
 import { CALL_BACK_SPEC, engineResult, UP_AND_ABOUT_SPEC } from '../testSupport';
 import { PLOT_CONFIG, profileFigure, significanceBandFigure, stratumForestFigure } from './plotFigures';
 import { narrowLayout } from './narrowLayout';

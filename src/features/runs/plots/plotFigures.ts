@@ -5,7 +5,7 @@
  * fill "tonexty" for bands, layout shapes for the null line, boundaries and ranges.
  */
 import type { PlotInput } from './plotInput';
-import { percentText } from '../../analyses/specWords';
+import { percentText } from '@/features/analyses/specWords';
 import { displayLevels, fixed, formatInterval, formatNumber, measureInfo, modifierDecimals } from '../resultFormat';
 import { johnsonNeymanSentence } from '../resultWords';
 

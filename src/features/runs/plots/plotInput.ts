@@ -1,4 +1,4 @@
-import type { Result } from '../../../engine/boundary/schemas';
+import type { Result } from '@/engine/boundary/schemas';
 import { perResult } from '../finishedResults';
 
 /**

@@ -1,7 +1,7 @@
-import { AnalysisBody } from '../../../features/analyses/analysisApi.schema';
-import { createAnalysis } from '../../../features/analyses/analyses.server';
-import { authorize, requireMember } from '../../../lib/server/authorize';
-import { clientAddress, endpoint, json, parseBody, requireUser } from '../../../lib/server/http';
+import { AnalysisBody } from '@/features/analyses/analysisApi.schema';
+import { createAnalysis } from '@/features/analyses/analyses.server';
+import { authorize, requireMember } from '@/lib/server/authorize';
+import { clientAddress, endpoint, json, parseBody, requireUser } from '@/lib/server/http';
 
 /** POST /api/analyses: creates an analysis pinned to one confirmed extract version (201 with its id). */
 export const POST = endpoint(async (context) => {

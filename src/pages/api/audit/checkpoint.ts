@@ -1,7 +1,7 @@
-import { mayCheckChain, recordAudit, takeCheckpoint } from '../../../features/audit/audit.server';
-import { CheckpointQuery } from '../../../features/audit/audit.schema';
-import { conflict, forbidden } from '../../../lib/server/errors';
-import { clientAddress, endpoint, parseQuery, requireUser } from '../../../lib/server/http';
+import { mayCheckChain, recordAudit, takeCheckpoint } from '@/features/audit/audit.server';
+import { CheckpointQuery } from '@/features/audit/audit.schema';
+import { conflict, forbidden } from '@/lib/server/errors';
+import { clientAddress, endpoint, parseQuery, requireUser } from '@/lib/server/http';
 
 /**
  * GET /api/audit/checkpoint: the chain's head now (position, hash, times) as a checkpoint

@@ -1,7 +1,7 @@
-import { mayCheckChain, recordAudit, verifyAuditChain } from '../../../features/audit/audit.server';
-import { VerifyBody } from '../../../features/audit/audit.schema';
-import { forbidden } from '../../../lib/server/errors';
-import { clientAddress, endpoint, json, parseBody, requireUser } from '../../../lib/server/http';
+import { mayCheckChain, recordAudit, verifyAuditChain } from '@/features/audit/audit.server';
+import { VerifyBody } from '@/features/audit/audit.schema';
+import { forbidden } from '@/lib/server/errors';
+import { clientAddress, endpoint, json, parseBody, requireUser } from '@/lib/server/http';
 
 /**
  * POST /api/audit/verify: recomputes the whole hash chain and reports the first broken

@@ -1,6 +1,6 @@
-import { SetPasswordBody } from '../../../features/auth/auth.schema';
-import { acceptInvitation } from '../../../features/auth/auth.server';
-import { clientAddress, endpoint, noContent, parseBody } from '../../../lib/server/http';
+import { SetPasswordBody } from '@/features/auth/auth.schema';
+import { acceptInvitation } from '@/features/auth/auth.server';
+import { clientAddress, endpoint, noContent, parseBody } from '@/lib/server/http';
 
 /** POST /api/auth/accept-invitation: sets the password, activates and signs in (204). */
 export const POST = endpoint(async (context) => {

@@ -1,6 +1,6 @@
-import { ForgotPasswordBody } from '../../../features/auth/auth.schema';
-import { requestPasswordReset } from '../../../features/auth/auth.server';
-import { clientAddress, endpoint, json, parseBody } from '../../../lib/server/http';
+import { ForgotPasswordBody } from '@/features/auth/auth.schema';
+import { requestPasswordReset } from '@/features/auth/auth.server';
+import { clientAddress, endpoint, json, parseBody } from '@/lib/server/http';
 
 /** POST /api/auth/forgot-password: e-mails a reset link if the account exists; always 202. */
 export const POST = endpoint(async (context) => {

@@ -1,6 +1,6 @@
-import { SetPasswordBody } from '../../../features/auth/auth.schema';
-import { resetPassword } from '../../../features/auth/auth.server';
-import { clientAddress, endpoint, noContent, parseBody } from '../../../lib/server/http';
+import { SetPasswordBody } from '@/features/auth/auth.schema';
+import { resetPassword } from '@/features/auth/auth.server';
+import { clientAddress, endpoint, noContent, parseBody } from '@/lib/server/http';
 
 /** POST /api/auth/reset-password: sets a new password from a reset link (204). */
 export const POST = endpoint(async (context) => {

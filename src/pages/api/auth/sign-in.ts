@@ -1,6 +1,6 @@
-import { SignInBody } from '../../../features/auth/auth.schema';
-import { signIn } from '../../../features/auth/auth.server';
-import { clientAddress, endpoint, noContent, parseBody } from '../../../lib/server/http';
+import { SignInBody } from '@/features/auth/auth.schema';
+import { signIn } from '@/features/auth/auth.server';
+import { clientAddress, endpoint, noContent, parseBody } from '@/lib/server/http';
 
 /** POST /api/auth/sign-in: checks the credentials and sets the session cookie (204). */
 export const POST = endpoint(async (context) => {

@@ -1,5 +1,5 @@
-import { signOut } from '../../../features/auth/auth.server';
-import { clientAddress, endpoint, noContent } from '../../../lib/server/http';
+import { signOut } from '@/features/auth/auth.server';
+import { clientAddress, endpoint, noContent } from '@/lib/server/http';
 
 /** POST /api/auth/sign-out: ends the current session (204, also when signed out). */
 export const POST = endpoint(async ({ cookies, locals, ...context }) => {

@@ -1,5 +1,5 @@
-import type { MeResponse } from '../../../features/auth/auth.schema';
-import { endpoint, json, requireUser } from '../../../lib/server/http';
+import type { MeResponse } from '@/features/auth/auth.schema';
+import { endpoint, json, requireUser } from '@/lib/server/http';
 
 /** GET /api/me: the signed-in user and their memberships. */
 export const GET = endpoint(({ locals }) => {

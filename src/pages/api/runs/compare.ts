@@ -1,5 +1,5 @@
-import { compareQueryRuns } from '../../../features/runs/compareRuns.server';
-import { endpoint, json, requireUser } from '../../../lib/server/http';
+import { compareQueryRuns } from '@/features/runs/compareRuns.server';
+import { endpoint, json, requireUser } from '@/lib/server/http';
 
 /**
  * GET /api/runs/compare?runs=ID,ID[,ID,ID]: two to four runs side by side: the differing

@@ -1,8 +1,8 @@
-import { exportAuditEvents, recordAudit } from '../../../../features/audit/audit.server';
-import { AuditExportQuery } from '../../../../features/audit/audit.schema';
-import { auditCsv, auditJson } from '../../../../features/audit/auditExport';
-import { authorize } from '../../../../lib/server/authorize';
-import { attachment, clientAddress, endpoint, parseQuery, requireUser } from '../../../../lib/server/http';
+import { exportAuditEvents, recordAudit } from '@/features/audit/audit.server';
+import { AuditExportQuery } from '@/features/audit/audit.schema';
+import { auditCsv, auditJson } from '@/features/audit/auditExport';
+import { authorize } from '@/lib/server/authorize';
+import { attachment, clientAddress, endpoint, parseQuery, requireUser } from '@/lib/server/http';
 
 /**
  * GET /api/admin/audit-events/export?format=csv|json: every matching event outside any

@@ -1,7 +1,7 @@
-import { listAuditEvents } from '../../../../features/audit/audit.server';
-import { AuditEventsQuery } from '../../../../features/audit/audit.schema';
-import { authorize } from '../../../../lib/server/authorize';
-import { endpoint, json, parseQuery, requireUser } from '../../../../lib/server/http';
+import { listAuditEvents } from '@/features/audit/audit.server';
+import { AuditEventsQuery } from '@/features/audit/audit.schema';
+import { authorize } from '@/lib/server/authorize';
+import { endpoint, json, parseQuery, requireUser } from '@/lib/server/http';
 
 /**
  * GET /api/admin/audit-events: one page of the events outside any initiative (sign-ins and

@@ -1,7 +1,7 @@
-import { CreateInitiativeBody } from '../../../../features/admin/admin.schema';
-import { createInitiative, listInitiatives } from '../../../../features/admin/admin.server';
-import { authorize } from '../../../../lib/server/authorize';
-import { clientAddress, endpoint, json, parseBody, requireUser } from '../../../../lib/server/http';
+import { CreateInitiativeBody } from '@/features/admin/admin.schema';
+import { createInitiative, listInitiatives } from '@/features/admin/admin.server';
+import { authorize } from '@/lib/server/authorize';
+import { clientAddress, endpoint, json, parseBody, requireUser } from '@/lib/server/http';
 
 /** GET /api/admin/initiatives: every initiative (administrators). */
 export const GET = endpoint(async ({ locals }) => {

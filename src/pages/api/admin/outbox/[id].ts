@@ -1,6 +1,6 @@
-import { notFound, unauthenticated } from '../../../../lib/server/errors';
-import { endpoint, json } from '../../../../lib/server/http';
-import { outboxAccess, readMessage } from '../../../../features/admin/outbox';
+import { notFound, unauthenticated } from '@/lib/server/errors';
+import { endpoint, json } from '@/lib/server/http';
+import { outboxAccess, readMessage } from '@/features/admin/outbox';
 
 /**
  * GET /api/admin/outbox/:id: one kept message, parsed (from, to, subject, date, text,

@@ -1,6 +1,6 @@
-import { notFound, unauthenticated } from '../../../../lib/server/errors';
-import { endpoint, json, parseQuery } from '../../../../lib/server/http';
-import { listMessages, outboxAccess, OutboxQuery } from '../../../../features/admin/outbox';
+import { notFound, unauthenticated } from '@/lib/server/errors';
+import { endpoint, json, parseQuery } from '@/lib/server/http';
+import { listMessages, outboxAccess, OutboxQuery } from '@/features/admin/outbox';
 
 /**
  * GET /api/admin/outbox?page=&pageSize=: the messages the local mail server has kept,

@@ -1,7 +1,7 @@
-import { UpdateUserBody } from '../../../../features/admin/admin.schema';
-import { setUserStatus } from '../../../../features/admin/admin.server';
-import { authorize } from '../../../../lib/server/authorize';
-import { clientAddress, endpoint, noContent, parseBody, requireUser, uuidParam } from '../../../../lib/server/http';
+import { UpdateUserBody } from '@/features/admin/admin.schema';
+import { setUserStatus } from '@/features/admin/admin.server';
+import { authorize } from '@/lib/server/authorize';
+import { clientAddress, endpoint, noContent, parseBody, requireUser, uuidParam } from '@/lib/server/http';
 
 /** PATCH /api/admin/users/{id}: deactivates (ending all sessions) or reactivates (204). */
 export const PATCH = endpoint(async (context) => {

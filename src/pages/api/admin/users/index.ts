@@ -1,8 +1,8 @@
-import { InviteUserBody } from '../../../../features/admin/admin.schema';
-import { inviteUser, listUsers } from '../../../../features/admin/admin.server';
-import { authorize } from '../../../../lib/server/authorize';
-import { clientAddress, endpoint, json, parseBody, requireUser } from '../../../../lib/server/http';
-import { logger } from '../../../../lib/server/logger';
+import { InviteUserBody } from '@/features/admin/admin.schema';
+import { inviteUser, listUsers } from '@/features/admin/admin.server';
+import { authorize } from '@/lib/server/authorize';
+import { clientAddress, endpoint, json, parseBody, requireUser } from '@/lib/server/http';
+import { logger } from '@/lib/server/logger';
 
 /** GET /api/admin/users: every account with its memberships (administrators). */
 export const GET = endpoint(async ({ locals }) => {

@@ -1,8 +1,8 @@
-import { AnalysisBody } from '../../../../features/analyses/analysisApi.schema';
-import { getAnalysis, updateAnalysis } from '../../../../features/analyses/analyses.server';
-import { authorize } from '../../../../lib/server/authorize';
-import { notFound } from '../../../../lib/server/errors';
-import { clientAddress, endpoint, json, noContent, parseBody, requireUser, uuidParam } from '../../../../lib/server/http';
+import { AnalysisBody } from '@/features/analyses/analysisApi.schema';
+import { getAnalysis, updateAnalysis } from '@/features/analyses/analyses.server';
+import { authorize } from '@/lib/server/authorize';
+import { notFound } from '@/lib/server/errors';
+import { clientAddress, endpoint, json, noContent, parseBody, requireUser, uuidParam } from '@/lib/server/http';
 
 /** GET /api/analyses/{id}: the analysis, its specification and its latest run. */
 export const GET = endpoint(async ({ locals, params }) => {

@@ -1,9 +1,9 @@
-import { getAnalysis } from '../../../../features/analyses/analyses.server';
-import { bodyHashOf, claimKey, idempotencyKeyOf, settleKey } from '../../../../features/runs/runRequests.server';
-import { listRuns, startRun } from '../../../../features/runs/runs.server';
-import { authorize } from '../../../../lib/server/authorize';
-import { notFound } from '../../../../lib/server/errors';
-import { clientAddress, endpoint, json, requireUser, uuidParam } from '../../../../lib/server/http';
+import { getAnalysis } from '@/features/analyses/analyses.server';
+import { bodyHashOf, claimKey, idempotencyKeyOf, settleKey } from '@/features/runs/runRequests.server';
+import { listRuns, startRun } from '@/features/runs/runs.server';
+import { authorize } from '@/lib/server/authorize';
+import { notFound } from '@/lib/server/errors';
+import { clientAddress, endpoint, json, requireUser, uuidParam } from '@/lib/server/http';
 
 /** GET /api/analyses/{id}/runs: the analysis's runs, newest first, without results. */
 export const GET = endpoint(async ({ locals, params }) => {

@@ -1,8 +1,8 @@
-import { actorOf, readableBrief } from '../../../../features/briefs/briefAccess';
-import { correctBrief } from '../../../../features/briefs/briefs.server';
-import { CorrectionBody } from '../../../../features/briefs/briefs.schema';
-import { authorize } from '../../../../lib/server/authorize';
-import { endpoint, json, parseBody, requireUser, uuidParam } from '../../../../lib/server/http';
+import { actorOf, readableBrief } from '@/features/briefs/briefAccess';
+import { correctBrief } from '@/features/briefs/briefs.server';
+import { CorrectionBody } from '@/features/briefs/briefs.schema';
+import { authorize } from '@/lib/server/authorize';
+import { endpoint, json, parseBody, requireUser, uuidParam } from '@/lib/server/http';
 
 /** POST /api/briefs/{briefId}/corrections: publish the next version with a note saying what changed (analysts). */
 export const POST = endpoint(async (context) => {

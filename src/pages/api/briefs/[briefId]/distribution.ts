@@ -1,8 +1,8 @@
-import { actorOf, readableBrief } from '../../../../features/briefs/briefAccess';
-import { distributeBrief } from '../../../../features/briefs/briefMail.server';
-import { DistributionBody } from '../../../../features/briefs/briefs.schema';
-import { authorize } from '../../../../lib/server/authorize';
-import { endpoint, json, parseBody, requireUser, uuidParam } from '../../../../lib/server/http';
+import { actorOf, readableBrief } from '@/features/briefs/briefAccess';
+import { distributeBrief } from '@/features/briefs/briefMail.server';
+import { DistributionBody } from '@/features/briefs/briefs.schema';
+import { authorize } from '@/lib/server/authorize';
+import { endpoint, json, parseBody, requireUser, uuidParam } from '@/lib/server/http';
 
 /**
  * POST /api/briefs/{briefId}/distribution: e-mail the latest version, PDF attached, to the

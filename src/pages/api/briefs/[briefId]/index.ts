@@ -1,9 +1,9 @@
-import { actorOf, readableBrief } from '../../../../features/briefs/briefAccess';
-import { briefView, updateDraft } from '../../../../features/briefs/briefs.server';
-import { UpdateBriefBody } from '../../../../features/briefs/briefs.schema';
-import { authorize } from '../../../../lib/server/authorize';
-import { notFound } from '../../../../lib/server/errors';
-import { endpoint, json, parseBody, requireUser, uuidParam } from '../../../../lib/server/http';
+import { actorOf, readableBrief } from '@/features/briefs/briefAccess';
+import { briefView, updateDraft } from '@/features/briefs/briefs.server';
+import { UpdateBriefBody } from '@/features/briefs/briefs.schema';
+import { authorize } from '@/lib/server/authorize';
+import { notFound } from '@/lib/server/errors';
+import { endpoint, json, parseBody, requireUser, uuidParam } from '@/lib/server/http';
 
 /** GET /api/briefs/{briefId}: the brief, its versions, retraction and newer work. Every member. */
 export const GET = endpoint(async ({ locals, params }) => {

@@ -1,9 +1,9 @@
-import { actorOf, readableBrief } from '../../../../features/briefs/briefAccess';
-import { recordDownload, storedVersion } from '../../../../features/briefs/briefs.server';
-import { PdfQuery } from '../../../../features/briefs/briefs.schema';
-import { authorize } from '../../../../lib/server/authorize';
-import { notFound } from '../../../../lib/server/errors';
-import { endpoint, parseQuery, requireUser, uuidParam } from '../../../../lib/server/http';
+import { actorOf, readableBrief } from '@/features/briefs/briefAccess';
+import { recordDownload, storedVersion } from '@/features/briefs/briefs.server';
+import { PdfQuery } from '@/features/briefs/briefs.schema';
+import { authorize } from '@/lib/server/authorize';
+import { notFound } from '@/lib/server/errors';
+import { endpoint, parseQuery, requireUser, uuidParam } from '@/lib/server/http';
 
 /**
  * GET /api/briefs/{briefId}/pdf[?version=N]: the latest published version as a PDF, or an

@@ -1,7 +1,7 @@
-import { actorOf, readableBrief } from '../../../../features/briefs/briefAccess';
-import { publishBrief } from '../../../../features/briefs/briefs.server';
-import { authorize } from '../../../../lib/server/authorize';
-import { endpoint, json, requireUser, uuidParam } from '../../../../lib/server/http';
+import { actorOf, readableBrief } from '@/features/briefs/briefAccess';
+import { publishBrief } from '@/features/briefs/briefs.server';
+import { authorize } from '@/lib/server/authorize';
+import { endpoint, json, requireUser, uuidParam } from '@/lib/server/http';
 
 /** POST /api/briefs/{briefId}/publish: freeze the draft as version 1 (analysts). Audited as `brief.published`. */
 export const POST = endpoint(async (context) => {

@@ -1,8 +1,8 @@
-import { actorOf, readableBrief } from '../../../../features/briefs/briefAccess';
-import { briefView, retractBrief } from '../../../../features/briefs/briefs.server';
-import { RetractionBody } from '../../../../features/briefs/briefs.schema';
-import { authorize } from '../../../../lib/server/authorize';
-import { endpoint, json, parseBody, requireUser, uuidParam } from '../../../../lib/server/http';
+import { actorOf, readableBrief } from '@/features/briefs/briefAccess';
+import { briefView, retractBrief } from '@/features/briefs/briefs.server';
+import { RetractionBody } from '@/features/briefs/briefs.schema';
+import { authorize } from '@/lib/server/authorize';
+import { endpoint, json, parseBody, requireUser, uuidParam } from '@/lib/server/http';
 
 /** POST /api/briefs/{briefId}/retraction: retract a published brief with a reason (analysts); every version is marked. */
 export const POST = endpoint(async (context) => {

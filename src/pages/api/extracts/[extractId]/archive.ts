@@ -1,8 +1,8 @@
-import { ArchiveBody } from '../../../../features/extracts/extracts.schema';
-import { extractScope, setArchived } from '../../../../features/extracts/extracts.server';
-import { authorize } from '../../../../lib/server/authorize';
-import { notFound } from '../../../../lib/server/errors';
-import { clientAddress, endpoint, noContent, parseBody, requireUser, uuidParam } from '../../../../lib/server/http';
+import { ArchiveBody } from '@/features/extracts/extracts.schema';
+import { extractScope, setArchived } from '@/features/extracts/extracts.server';
+import { authorize } from '@/lib/server/authorize';
+import { notFound } from '@/lib/server/errors';
+import { clientAddress, endpoint, noContent, parseBody, requireUser, uuidParam } from '@/lib/server/http';
 
 /** POST /api/extracts/{extractId}/archive: `{ "archived": true }` hides it from new analyses; false restores it (204). */
 export const POST = endpoint(async (context) => {

@@ -1,7 +1,7 @@
-import { getExtract } from '../../../../features/extracts/extracts.server';
-import { authorize } from '../../../../lib/server/authorize';
-import { notFound } from '../../../../lib/server/errors';
-import { endpoint, json, requireUser, uuidParam } from '../../../../lib/server/http';
+import { getExtract } from '@/features/extracts/extracts.server';
+import { authorize } from '@/lib/server/authorize';
+import { notFound } from '@/lib/server/errors';
+import { endpoint, json, requireUser, uuidParam } from '@/lib/server/http';
 
 /** GET /api/extracts/{extractId}: the extract and the status of each version and upload. */
 export const GET = endpoint(async ({ locals, params }) => {

@@ -1,6 +1,6 @@
-import { listAnalyses } from '../../../../features/analyses/analyses.server';
-import { authorize, requireMember } from '../../../../lib/server/authorize';
-import { endpoint, json, uuidParam } from '../../../../lib/server/http';
+import { listAnalyses } from '@/features/analyses/analyses.server';
+import { authorize, requireMember } from '@/lib/server/authorize';
+import { endpoint, json, uuidParam } from '@/lib/server/http';
 
 /** GET /api/initiatives/{initiativeId}/analyses: the initiative's analyses, newest first. */
 export const GET = endpoint(async ({ locals, params }) => {

@@ -1,7 +1,7 @@
-import { listAuditEvents } from '../../../../features/audit/audit.server';
-import { AuditEventsQuery } from '../../../../features/audit/audit.schema';
-import { authorize, requireMember } from '../../../../lib/server/authorize';
-import { endpoint, json, parseQuery, uuidParam } from '../../../../lib/server/http';
+import { listAuditEvents } from '@/features/audit/audit.server';
+import { AuditEventsQuery } from '@/features/audit/audit.schema';
+import { authorize, requireMember } from '@/lib/server/authorize';
+import { endpoint, json, parseQuery, uuidParam } from '@/lib/server/http';
 
 /**
  * GET /api/initiatives/{initiativeId}/audit-events: one page of the initiative's audit

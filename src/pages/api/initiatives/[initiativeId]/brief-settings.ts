@@ -1,8 +1,8 @@
-import { actorOf } from '../../../../features/briefs/briefAccess';
-import { briefSettings, saveBriefSettings } from '../../../../features/briefs/briefs.server';
-import { BriefSettingsBody } from '../../../../features/briefs/briefs.schema';
-import { authorize, requireMember } from '../../../../lib/server/authorize';
-import { endpoint, json, parseBody, requireUser, uuidParam } from '../../../../lib/server/http';
+import { actorOf } from '@/features/briefs/briefAccess';
+import { briefSettings, saveBriefSettings } from '@/features/briefs/briefs.server';
+import { BriefSettingsBody } from '@/features/briefs/briefs.schema';
+import { authorize, requireMember } from '@/lib/server/authorize';
+import { endpoint, json, parseBody, requireUser, uuidParam } from '@/lib/server/http';
 
 /** GET /api/initiatives/{initiativeId}/brief-settings: the small-cell threshold and paper size. Every member. */
 export const GET = endpoint(async ({ locals, params }) => {

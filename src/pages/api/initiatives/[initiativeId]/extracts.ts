@@ -1,8 +1,8 @@
-import { NewExtractQuery } from '../../../../features/extracts/extracts.schema';
-import { listExtracts } from '../../../../features/extracts/extracts.server';
-import { keepAsked, receiveUpload } from '../../../../features/extracts/intake.server';
-import { authorize, requireMember } from '../../../../lib/server/authorize';
-import { clientAddress, endpoint, json, parseQuery, requireUser, uuidParam } from '../../../../lib/server/http';
+import { NewExtractQuery } from '@/features/extracts/extracts.schema';
+import { listExtracts } from '@/features/extracts/extracts.server';
+import { keepAsked, receiveUpload } from '@/features/extracts/intake.server';
+import { authorize, requireMember } from '@/lib/server/authorize';
+import { clientAddress, endpoint, json, parseQuery, requireUser, uuidParam } from '@/lib/server/http';
 
 /** GET /api/initiatives/{initiativeId}/extracts: the initiative's extracts. */
 export const GET = endpoint(async ({ locals, params }) => {

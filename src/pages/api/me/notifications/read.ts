@@ -1,6 +1,6 @@
-import { markRead } from '../../../../features/notifications/notifications.server';
-import { MarkReadBody } from '../../../../features/notifications/notifications.schema';
-import { endpoint, json, parseBody, requireUser } from '../../../../lib/server/http';
+import { markRead } from '@/features/notifications/notifications.server';
+import { MarkReadBody } from '@/features/notifications/notifications.schema';
+import { endpoint, json, parseBody, requireUser } from '@/lib/server/http';
 
 /** POST /api/me/notifications/read: marks the named notifications (`ids`) or all (`all: true`) read. */
 export const POST = endpoint(async (context) => {

@@ -1,6 +1,6 @@
-import { mailChoiceOf, setMailChoice } from '../../../../features/notifications/notificationMail.server';
-import { MailSettingBody } from '../../../../features/notifications/notifications.schema';
-import { endpoint, json, parseBody, requireUser } from '../../../../lib/server/http';
+import { mailChoiceOf, setMailChoice } from '@/features/notifications/notificationMail.server';
+import { MailSettingBody } from '@/features/notifications/notifications.schema';
+import { endpoint, json, parseBody, requireUser } from '@/lib/server/http';
 
 /** GET /api/me/notifications/settings: how the caller wants notification e-mail. */
 export const GET = endpoint(async ({ locals }) => {

@@ -1,5 +1,5 @@
-import { revokeApiToken } from '../../../../features/auth/apiTokens.server';
-import { clientAddress, endpoint, noContent, requireUser, uuidParam } from '../../../../lib/server/http';
+import { revokeApiToken } from '@/features/auth/apiTokens.server';
+import { clientAddress, endpoint, noContent, requireUser, uuidParam } from '@/lib/server/http';
 
 /** DELETE /api/me/tokens/{id}: revokes one of the caller's tokens (204). */
 export const DELETE = endpoint(async (context) => {

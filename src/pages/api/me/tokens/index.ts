@@ -1,7 +1,7 @@
-import { CreateApiTokenBody } from '../../../../features/auth/auth.schema';
-import { createApiToken, listApiTokens } from '../../../../features/auth/apiTokens.server';
-import { forbidden } from '../../../../lib/server/errors';
-import { clientAddress, endpoint, json, parseBody, requireUser } from '../../../../lib/server/http';
+import { CreateApiTokenBody } from '@/features/auth/auth.schema';
+import { createApiToken, listApiTokens } from '@/features/auth/apiTokens.server';
+import { forbidden } from '@/lib/server/errors';
+import { clientAddress, endpoint, json, parseBody, requireUser } from '@/lib/server/http';
 
 /** GET /api/me/tokens: the caller's personal API tokens (never their secrets). */
 export const GET = endpoint(async ({ locals }) => {

@@ -1,9 +1,9 @@
-import { actorOf } from '../../../../features/briefs/briefAccess';
-import { draftBrief, listBriefs } from '../../../../features/briefs/briefs.server';
-import { NewBriefBody } from '../../../../features/briefs/briefs.schema';
-import { readableRun } from '../../../../features/runs/runAccess';
-import { authorize } from '../../../../lib/server/authorize';
-import { endpoint, json, parseBody, requireUser, uuidParam } from '../../../../lib/server/http';
+import { actorOf } from '@/features/briefs/briefAccess';
+import { draftBrief, listBriefs } from '@/features/briefs/briefs.server';
+import { NewBriefBody } from '@/features/briefs/briefs.schema';
+import { readableRun } from '@/features/runs/runAccess';
+import { authorize } from '@/lib/server/authorize';
+import { endpoint, json, parseBody, requireUser, uuidParam } from '@/lib/server/http';
 
 /** GET /api/runs/{runId}/briefs: the briefs drafted from a run. Every member. */
 export const GET = endpoint(async ({ locals, params }) => {

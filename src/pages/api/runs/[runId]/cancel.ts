@@ -1,7 +1,7 @@
-import { requestCancel } from '../../../../features/runs/runs.server';
-import { readableRun } from '../../../../features/runs/runAccess';
-import { authorize } from '../../../../lib/server/authorize';
-import { clientAddress, endpoint, json, requireUser, uuidParam } from '../../../../lib/server/http';
+import { requestCancel } from '@/features/runs/runs.server';
+import { readableRun } from '@/features/runs/runAccess';
+import { authorize } from '@/lib/server/authorize';
+import { clientAddress, endpoint, json, requireUser, uuidParam } from '@/lib/server/http';
 
 /** POST /api/runs/{runId}/cancel: stops a queued or running run; answers its status. */
 export const POST = endpoint(async (context) => {

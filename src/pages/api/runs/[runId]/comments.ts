@@ -1,8 +1,8 @@
-import { addComment, reviewedRun } from '../../../../features/review/review.server';
-import { CommentBody } from '../../../../features/review/review.schema';
-import { readableRun } from '../../../../features/runs/runAccess';
-import { authorize } from '../../../../lib/server/authorize';
-import { clientAddress, endpoint, json, parseBody, requireUser, uuidParam } from '../../../../lib/server/http';
+import { addComment, reviewedRun } from '@/features/review/review.server';
+import { CommentBody } from '@/features/review/review.schema';
+import { readableRun } from '@/features/runs/runAccess';
+import { authorize } from '@/lib/server/authorize';
+import { clientAddress, endpoint, json, parseBody, requireUser, uuidParam } from '@/lib/server/http';
 
 /**
  * POST /api/runs/{runId}/comments: a comment on a run, or a reply (`parentId`); analysts

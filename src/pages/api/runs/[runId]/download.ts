@@ -1,11 +1,11 @@
-import { recordAudit } from '../../../../features/audit/audit.server';
-import { resultCsv } from '../../../../features/runs/resultCsv';
-import { DownloadQuery } from '../../../../features/analyses/analysisApi.schema';
-import { readableRun } from '../../../../features/runs/runAccess';
-import { authorize } from '../../../../lib/server/authorize';
-import { cautionText } from '../../../../lib/cautions';
-import { conflict } from '../../../../lib/server/errors';
-import { attachment, clientAddress, endpoint, parseQuery, requireUser, uuidParam } from '../../../../lib/server/http';
+import { recordAudit } from '@/features/audit/audit.server';
+import { resultCsv } from '@/features/runs/resultCsv';
+import { DownloadQuery } from '@/features/analyses/analysisApi.schema';
+import { readableRun } from '@/features/runs/runAccess';
+import { authorize } from '@/lib/server/authorize';
+import { cautionText } from '@/lib/cautions';
+import { conflict } from '@/lib/server/errors';
+import { attachment, clientAddress, endpoint, parseQuery, requireUser, uuidParam } from '@/lib/server/http';
 
 /**
  * GET /api/runs/{runId}/download?format=json|csv: the result as JSON (with its provenance

@@ -1,5 +1,5 @@
-import { readableRun } from '../../../../features/runs/runAccess';
-import { endpoint, json, requireUser, uuidParam } from '../../../../lib/server/http';
+import { readableRun } from '@/features/runs/runAccess';
+import { endpoint, json, requireUser, uuidParam } from '@/lib/server/http';
 
 /**
  * GET /api/runs/{runId}: `{ status, progress, result, ... }` where `result` is the engine's

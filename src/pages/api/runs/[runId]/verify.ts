@@ -1,7 +1,7 @@
-import { startVerification } from '../../../../features/runs/runs.server';
-import { readableRun } from '../../../../features/runs/runAccess';
-import { authorize } from '../../../../lib/server/authorize';
-import { clientAddress, endpoint, json, requireUser, uuidParam } from '../../../../lib/server/http';
+import { startVerification } from '@/features/runs/runs.server';
+import { readableRun } from '@/features/runs/runAccess';
+import { authorize } from '@/lib/server/authorize';
+import { clientAddress, endpoint, json, requireUser, uuidParam } from '@/lib/server/http';
 
 /**
  * POST /api/runs/{runId}/verify: queues a re-run of a finished run (its specification

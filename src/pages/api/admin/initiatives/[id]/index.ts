@@ -1,7 +1,7 @@
-import { UpdateInitiativeBody } from '../../../../../features/admin/admin.schema';
-import { updateInitiative } from '../../../../../features/admin/admin.server';
-import { authorize } from '../../../../../lib/server/authorize';
-import { clientAddress, endpoint, noContent, parseBody, requireUser, uuidParam } from '../../../../../lib/server/http';
+import { UpdateInitiativeBody } from '@/features/admin/admin.schema';
+import { updateInitiative } from '@/features/admin/admin.server';
+import { authorize } from '@/lib/server/authorize';
+import { clientAddress, endpoint, noContent, parseBody, requireUser, uuidParam } from '@/lib/server/http';
 
 /** PATCH /api/admin/initiatives/{id}: changes the description or the row-preview setting (204). */
 export const PATCH = endpoint(async (context) => {

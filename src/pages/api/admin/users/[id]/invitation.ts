@@ -1,7 +1,7 @@
-import { resendInvitation, revokeInvitation } from '../../../../../features/admin/invitations.server';
-import { authorize } from '../../../../../lib/server/authorize';
-import { clientAddress, endpoint, json, noContent, requireUser, uuidParam } from '../../../../../lib/server/http';
-import { logger } from '../../../../../lib/server/logger';
+import { resendInvitation, revokeInvitation } from '@/features/admin/invitations.server';
+import { authorize } from '@/lib/server/authorize';
+import { clientAddress, endpoint, json, noContent, requireUser, uuidParam } from '@/lib/server/http';
+import { logger } from '@/lib/server/logger';
 
 /** POST /api/admin/users/{id}/invitation: sends a new invitation link; the old one stops working (200). */
 export const POST = endpoint(async (context) => {

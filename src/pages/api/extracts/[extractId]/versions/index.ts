@@ -1,9 +1,9 @@
-import { NewVersionQuery } from '../../../../../features/extracts/extracts.schema';
-import { extractScope } from '../../../../../features/extracts/extracts.server';
-import { keepAsked, receiveUpload } from '../../../../../features/extracts/intake.server';
-import { authorize } from '../../../../../lib/server/authorize';
-import { notFound } from '../../../../../lib/server/errors';
-import { clientAddress, endpoint, json, parseQuery, requireUser, uuidParam } from '../../../../../lib/server/http';
+import { NewVersionQuery } from '@/features/extracts/extracts.schema';
+import { extractScope } from '@/features/extracts/extracts.server';
+import { keepAsked, receiveUpload } from '@/features/extracts/intake.server';
+import { authorize } from '@/lib/server/authorize';
+import { notFound } from '@/lib/server/errors';
+import { clientAddress, endpoint, json, parseQuery, requireUser, uuidParam } from '@/lib/server/http';
 
 /** POST /api/extracts/{extractId}/versions: uploads version n+1 of an extract (202). */
 export const POST = endpoint(async (context) => {

@@ -1,10 +1,10 @@
-import { exportAuditEvents, recordAudit } from '../../../../../features/audit/audit.server';
-import { AuditExportQuery } from '../../../../../features/audit/audit.schema';
-import { auditCsv, auditJson } from '../../../../../features/audit/auditExport';
-import { getInitiative } from '../../../../../features/initiatives/initiatives.server';
-import { authorize, requireMember } from '../../../../../lib/server/authorize';
-import { notFound } from '../../../../../lib/server/errors';
-import { attachment, clientAddress, endpoint, parseQuery, requireUser, uuidParam } from '../../../../../lib/server/http';
+import { exportAuditEvents, recordAudit } from '@/features/audit/audit.server';
+import { AuditExportQuery } from '@/features/audit/audit.schema';
+import { auditCsv, auditJson } from '@/features/audit/auditExport';
+import { getInitiative } from '@/features/initiatives/initiatives.server';
+import { authorize, requireMember } from '@/lib/server/authorize';
+import { notFound } from '@/lib/server/errors';
+import { attachment, clientAddress, endpoint, parseQuery, requireUser, uuidParam } from '@/lib/server/http';
 
 /**
  * GET /api/initiatives/{initiativeId}/audit-events/export?format=csv|json (and the list's

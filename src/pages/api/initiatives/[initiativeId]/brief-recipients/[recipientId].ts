@@ -1,7 +1,7 @@
-import { actorOf } from '../../../../../features/briefs/briefAccess';
-import { removeRecipient } from '../../../../../features/briefs/briefMail.server';
-import { authorize, requireMember } from '../../../../../lib/server/authorize';
-import { endpoint, noContent, requireUser, uuidParam } from '../../../../../lib/server/http';
+import { actorOf } from '@/features/briefs/briefAccess';
+import { removeRecipient } from '@/features/briefs/briefMail.server';
+import { authorize, requireMember } from '@/lib/server/authorize';
+import { endpoint, noContent, requireUser, uuidParam } from '@/lib/server/http';
 
 /** DELETE /api/initiatives/{initiativeId}/brief-recipients/{recipientId}: take someone off the list (analysts). */
 export const DELETE = endpoint(async (context) => {

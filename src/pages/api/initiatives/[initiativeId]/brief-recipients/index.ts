@@ -1,8 +1,8 @@
-import { actorOf } from '../../../../../features/briefs/briefAccess';
-import { addRecipient, listRecipients } from '../../../../../features/briefs/briefMail.server';
-import { RecipientBody } from '../../../../../features/briefs/briefs.schema';
-import { authorize, requireMember } from '../../../../../lib/server/authorize';
-import { endpoint, json, parseBody, requireUser, uuidParam } from '../../../../../lib/server/http';
+import { actorOf } from '@/features/briefs/briefAccess';
+import { addRecipient, listRecipients } from '@/features/briefs/briefMail.server';
+import { RecipientBody } from '@/features/briefs/briefs.schema';
+import { authorize, requireMember } from '@/lib/server/authorize';
+import { endpoint, json, parseBody, requireUser, uuidParam } from '@/lib/server/http';
 
 /** GET /api/initiatives/{initiativeId}/brief-recipients: the distribution list. Every member. */
 export const GET = endpoint(async ({ locals, params }) => {

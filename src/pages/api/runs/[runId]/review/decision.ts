@@ -1,10 +1,10 @@
-import { confirmSigner } from '../../../../../features/auth/signature.server';
-import { decideReview, reviewedRun, reviewOf } from '../../../../../features/review/review.server';
-import { DecisionBody } from '../../../../../features/review/review.schema';
-import { readableRun, storedResultDigest } from '../../../../../features/runs/runAccess';
-import { authorize } from '../../../../../lib/server/authorize';
-import { conflict } from '../../../../../lib/server/errors';
-import { clientAddress, endpoint, json, parseBody, requireUser, uuidParam } from '../../../../../lib/server/http';
+import { confirmSigner } from '@/features/auth/signature.server';
+import { decideReview, reviewedRun, reviewOf } from '@/features/review/review.server';
+import { DecisionBody } from '@/features/review/review.schema';
+import { readableRun, storedResultDigest } from '@/features/runs/runAccess';
+import { authorize } from '@/lib/server/authorize';
+import { conflict } from '@/lib/server/errors';
+import { clientAddress, endpoint, json, parseBody, requireUser, uuidParam } from '@/lib/server/http';
 
 /**
  * POST /api/runs/{runId}/review/decision: a clinician signs a submitted run off or sends it

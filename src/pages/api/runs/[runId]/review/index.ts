@@ -1,6 +1,6 @@
-import { reviewOf } from '../../../../../features/review/review.server';
-import { readableRun } from '../../../../../features/runs/runAccess';
-import { endpoint, json, requireUser, uuidParam } from '../../../../../lib/server/http';
+import { reviewOf } from '@/features/review/review.server';
+import { readableRun } from '@/features/runs/runAccess';
+import { endpoint, json, requireUser, uuidParam } from '@/lib/server/http';
 
 /** GET /api/runs/{runId}/review: the run's review state, its steps and its comments. Every member. */
 export const GET = endpoint(async ({ locals, params }) => {

@@ -1,8 +1,8 @@
-import { reviewedRun, reviewOf, submitForReview } from '../../../../../features/review/review.server';
-import { SubmitBody } from '../../../../../features/review/review.schema';
-import { readableRun } from '../../../../../features/runs/runAccess';
-import { authorize } from '../../../../../lib/server/authorize';
-import { clientAddress, endpoint, json, parseBody, requireUser, uuidParam } from '../../../../../lib/server/http';
+import { reviewedRun, reviewOf, submitForReview } from '@/features/review/review.server';
+import { SubmitBody } from '@/features/review/review.schema';
+import { readableRun } from '@/features/runs/runAccess';
+import { authorize } from '@/lib/server/authorize';
+import { clientAddress, endpoint, json, parseBody, requireUser, uuidParam } from '@/lib/server/http';
 
 /**
  * POST /api/runs/{runId}/review/submit: an analyst submits a finished run for review, the

@@ -1,6 +1,6 @@
-import { removeMembership } from '../../../../../../features/admin/admin.server';
-import { authorize } from '../../../../../../lib/server/authorize';
-import { clientAddress, endpoint, noContent, requireUser, uuidParam } from '../../../../../../lib/server/http';
+import { removeMembership } from '@/features/admin/admin.server';
+import { authorize } from '@/lib/server/authorize';
+import { clientAddress, endpoint, noContent, requireUser, uuidParam } from '@/lib/server/http';
 
 /** DELETE /api/admin/initiatives/{id}/members/{userId}: removes a person from the initiative (204). */
 export const DELETE = endpoint(async (context) => {

@@ -1,7 +1,7 @@
-import { SetMembershipBody } from '../../../../../../features/admin/admin.schema';
-import { listMembers, setMembership } from '../../../../../../features/admin/admin.server';
-import { authorize } from '../../../../../../lib/server/authorize';
-import { clientAddress, endpoint, json, noContent, parseBody, requireUser, uuidParam } from '../../../../../../lib/server/http';
+import { SetMembershipBody } from '@/features/admin/admin.schema';
+import { listMembers, setMembership } from '@/features/admin/admin.server';
+import { authorize } from '@/lib/server/authorize';
+import { clientAddress, endpoint, json, noContent, parseBody, requireUser, uuidParam } from '@/lib/server/http';
 
 /** GET /api/admin/initiatives/{id}/members: the initiative's members and roles. */
 export const GET = endpoint(async (context) => {

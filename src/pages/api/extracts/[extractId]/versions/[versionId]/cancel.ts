@@ -1,8 +1,8 @@
-import { extractScope } from '../../../../../../features/extracts/extracts.server';
-import { cancelIntake } from '../../../../../../features/extracts/intake.server';
-import { authorize } from '../../../../../../lib/server/authorize';
-import { notFound } from '../../../../../../lib/server/errors';
-import { clientAddress, endpoint, json, requireUser, uuidParam } from '../../../../../../lib/server/http';
+import { extractScope } from '@/features/extracts/extracts.server';
+import { cancelIntake } from '@/features/extracts/intake.server';
+import { authorize } from '@/lib/server/authorize';
+import { notFound } from '@/lib/server/errors';
+import { clientAddress, endpoint, json, requireUser, uuidParam } from '@/lib/server/http';
 
 /** POST /api/extracts/{extractId}/versions/{versionId}/cancel: stops an upload still being processed; nothing is kept. */
 export const POST = endpoint(async (context) => {

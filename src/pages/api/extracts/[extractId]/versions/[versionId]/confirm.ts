@@ -1,8 +1,8 @@
-import { ConfirmVersionBody } from '../../../../../../features/extracts/extracts.schema';
-import { confirmVersion, extractScope } from '../../../../../../features/extracts/extracts.server';
-import { authorize } from '../../../../../../lib/server/authorize';
-import { notFound } from '../../../../../../lib/server/errors';
-import { clientAddress, endpoint, noContent, parseBody, requireUser, uuidParam } from '../../../../../../lib/server/http';
+import { ConfirmVersionBody } from '@/features/extracts/extracts.schema';
+import { confirmVersion, extractScope } from '@/features/extracts/extracts.server';
+import { authorize } from '@/lib/server/authorize';
+import { notFound } from '@/lib/server/errors';
+import { clientAddress, endpoint, noContent, parseBody, requireUser, uuidParam } from '@/lib/server/http';
 
 /**
  * POST /api/extracts/{extractId}/versions/{versionId}/confirm: signs the de-identification

@@ -1,10 +1,10 @@
-import { recordAudit } from '../../../../../../features/audit/audit.server';
-import { RowsQuery } from '../../../../../../features/extracts/extracts.schema';
-import { previewRows } from '../../../../../../features/extracts/columns.server';
-import { authorize } from '../../../../../../lib/server/authorize';
+import { recordAudit } from '@/features/audit/audit.server';
+import { RowsQuery } from '@/features/extracts/extracts.schema';
+import { previewRows } from '@/features/extracts/columns.server';
+import { authorize } from '@/lib/server/authorize';
 import { ExtractVersion, Initiative } from '../../../../../../../db/models';
-import { notFound } from '../../../../../../lib/server/errors';
-import { clientAddress, endpoint, json, parseQuery, requireUser, uuidParam } from '../../../../../../lib/server/http';
+import { notFound } from '@/lib/server/errors';
+import { clientAddress, endpoint, json, parseQuery, requireUser, uuidParam } from '@/lib/server/http';
 
 /**
  * GET /api/extracts/{extractId}/versions/{versionId}/rows?page=&pageSize=&sort=&direction=:
