@@ -22,6 +22,8 @@ let analysisId: string;
 let admin: ApiClient;
 const clients = {} as Record<(typeof ROLES)[number], ApiClient>;
 const ids = {} as Record<(typeof ROLES)[number], string>;
+const names = {} as Record<(typeof ROLES)[number], string>;
+let signedRunId: string;
 
 beforeAll(async () => {
   server = await startServer();
@@ -31,6 +33,7 @@ beforeAll(async () => {
     const user = await makeUser({ passwordHash: hash });
     await addMember(initiativeId, user.id, role === 'analyst' ? 'analyst' : 'clinician');
     ids[role] = user.id;
+    names[role] = (await ownerDb().query<{ name: string }>('SELECT display_name AS name FROM users WHERE id = :id', { replacements: { id: user.id }, type: QueryTypes.SELECT }))[0].name;
     clients[role] = new ApiClient();
     expect((await clients[role].signIn(user.email, password)).status).toBe(204);
   }
@@ -123,16 +126,28 @@ describe('a run that needs two sign-offs', () => {
 
     const third = await signOff(clients.third, runId);
     expect(third.status).toBe(409);
+    signedRunId = runId;
   });
 
-  it('tells the analyst only of the sign-off that completes the round', async () => {
+  it('names both signers on a brief drafted from the run', async () => {
+    const drafted = await clients.analyst.request('POST', `/api/runs/${signedRunId}/briefs`, { title: 'Two signers', summary: 'Signed by two clinicians.' });
+    expect(drafted.status).toBe(201);
+    const page = await (await clients.analyst.request('GET', `/briefs/${(await drafted.json()).id}`)).text();
+    expect(page).toContain(`${names.first} and ${names.second}`);
+  });
+
+  it('tells the analyst only of the sign-off that completes the round, and keeps it waiting only for those yet to sign', async () => {
     const runId = await submittedRun();
     const count = async () => Number((await ownerDb().query<{ n: string }>(
       "SELECT count(*) AS n FROM notifications WHERE recipient_id = :analyst AND run_id = :runId AND kind = 'signed-off'",
       { replacements: { analyst: ids.analyst, runId }, type: QueryTypes.SELECT },
     ))[0].n);
+    const home = async (client: ApiClient) => (await client.request('GET', '/')).text();
+    expect(await home(clients.first)).toContain('1 run waiting for your review');
     expect((await signOff(clients.first, runId)).status).toBe(200);
     expect(await count()).toBe(0);
+    expect(await home(clients.first)).not.toContain('waiting for your review');
+    expect(await home(clients.second)).toContain('1 run waiting for your review');
     expect((await signOff(clients.second, runId)).status).toBe(200);
     expect(await count()).toBe(1);
   });
