@@ -27,6 +27,8 @@ export class Initiative extends Model<InferAttributes<Initiative>, InferCreation
   declare organisation: string;
   declare description: CreationOptional<string>;
   declare readersSeeRows: CreationOptional<boolean>;
+  /** Distinct clinicians whose sign-offs a run needs, 1 to 5 (…add-required-sign-offs). */
+  declare requiredSignOffs: CreationOptional<number>;
   declare archivedAt: CreationOptional<Date | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -77,6 +79,7 @@ export function initIdentity(sequelize: Sequelize): void {
       organisation: { type: DataTypes.TEXT, allowNull: false },
       description: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' },
       readersSeeRows: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+      requiredSignOffs: { type: DataTypes.SMALLINT, allowNull: false, defaultValue: 1 },
       archivedAt: { type: DataTypes.DATE, allowNull: true },
       ...stamps,
     },

@@ -1,9 +1,10 @@
-/** The review of runs: its append-only steps and comments (…create-review, …add-review-signatures). */
+/** The review of runs: its append-only steps and comments (…create-review, …add-review-signatures, …add-required-sign-offs). */
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type NonAttribute, type Sequelize } from 'sequelize';
 import { filledByDatabase, tableOptions, uuidKey } from './common';
 import { User } from './identity';
 
-export type ReviewStepKind = 'submitted' | 'signed-off' | 'sent-back';
+/** 'co-signed': a signature short of the sign-offs the initiative requires; it leaves the state as it was. */
+export type ReviewStepKind = 'submitted' | 'co-signed' | 'signed-off' | 'sent-back';
 
 export class ReviewStep extends Model<InferAttributes<ReviewStep>, InferCreationAttributes<ReviewStep>> {
   declare id: CreationOptional<string>;

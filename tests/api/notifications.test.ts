@@ -100,7 +100,7 @@ describe('who hears of what', () => {
 
   it('tells the analyst that the run was sent back, with the note', async () => {
     const note = 'Please adjust for comorbidity before we brief this.';
-    expect((await people.clinicianA.client.request('POST', `/api/runs/${runId}/review/decision`, { decision: 'send-back', note })).status).toBe(200);
+    expect((await people.clinicianA.client.request('POST', `/api/runs/${runId}/review/decision`, { decision: 'send-back', note, meaning: 'returned for changes', password })).status).toBe(200);
     const { unread, items } = await inbox('analyst');
     expect(unread).toBe(1);
     expect(items[0]).toMatchObject({ kind: 'sent-back', excerpt: note, text: `Dr Ines Okafor sent back “Call-back by age band” (run ${runId.slice(0, 8)})` });
@@ -129,7 +129,7 @@ describe('who hears of what', () => {
 
   it('tells the analyst that the run was signed off, and the members that a brief was published', async () => {
     expect((await people.analyst.client.request('POST', `/api/runs/${runId}/review/submit`, {})).status).toBe(200);
-    expect((await people.clinicianB.client.request('POST', `/api/runs/${runId}/review/decision`, { decision: 'sign-off', note: 'Plausible.' })).status).toBe(200);
+    expect((await people.clinicianB.client.request('POST', `/api/runs/${runId}/review/decision`, { decision: 'sign-off', note: 'Plausible.', meaning: 'reviewed, no objection', password })).status).toBe(200);
     expect(await kinds('analyst')).toEqual(['sent-back', 'signed-off']);
     expect(await kinds('clinicianA')).toEqual(['reply', 'submitted', 'submitted']);
     // Run lists name the run by short id with its review state (the overview's latest runs).

@@ -14,7 +14,7 @@ const ROLES = [
 ] as const;
 type RoleValue = (typeof ROLES)[number][0];
 
-function Members({ initiativeId, initiativeName, readersSeeRows }: Props) {
+function Members({ initiativeId, initiativeName, readersSeeRows, requiredSignOffs }: Props) {
   const client = useQueryClient();
   const key = ['admin-members', initiativeId];
   const members = useQuery({ queryKey: key, queryFn: () => apiFetch<MemberItem[]>(`/api/admin/initiatives/${initiativeId}/members`) });
@@ -34,11 +34,16 @@ function Members({ initiativeId, initiativeName, readersSeeRows }: Props) {
     mutationFn: (value: boolean) => apiFetch(`/api/admin/initiatives/${initiativeId}`, { method: 'PATCH', body: { readersSeeRows: value } }),
     onSuccess: (_data, value) => setRows(value),
   });
+  const [signOffs, setSignOffs] = useState(requiredSignOffs);
+  const changeSignOffs = useMutation({
+    mutationFn: (value: number) => apiFetch(`/api/admin/initiatives/${initiativeId}`, { method: 'PATCH', body: { requiredSignOffs: value } }),
+    onSuccess: (_data, value) => setSignOffs(value),
+  });
   const [newUserId, setNewUserId] = useState('');
   const [newRole, setNewRole] = useState<RoleValue>('analyst');
   const memberIds = new Set((members.data ?? []).map((m) => m.userId));
   const candidates = (users.data ?? []).filter((u) => !memberIds.has(u.id) && u.status !== 'deactivated');
-  const problem = setRole.error ?? remove.error ?? toggleRows.error;
+  const problem = setRole.error ?? remove.error ?? toggleRows.error ?? changeSignOffs.error;
 
   return (
     <div className="space-y-6">
@@ -49,6 +54,18 @@ function Members({ initiativeId, initiativeName, readersSeeRows }: Props) {
           <span>
             Clinicians and auditors may preview extract rows. Off by default: they see profiles and data dictionaries only.
           </span>
+        </label>
+        <label className="flex flex-wrap items-center gap-2 mt-3 text-sm">
+          <span>Sign-offs a run needs, from distinct clinicians other than its analyst:</span>
+          <select
+            className="field-input w-auto"
+            value={signOffs}
+            disabled={changeSignOffs.isPending}
+            onChange={(e) => changeSignOffs.mutate(Number(e.target.value))}
+            data-testid="required-sign-offs"
+          >
+            {[1, 2, 3, 4, 5].map((n) => <option key={n} value={n}>{n}</option>)}
+          </select>
         </label>
       </section>
       <section className="card p-5" aria-labelledby="members-heading">
@@ -127,6 +144,7 @@ interface Props {
   initiativeId: string;
   initiativeName: string;
   readersSeeRows: boolean;
+  requiredSignOffs: number;
 }
 
 export default function MembersAdmin(props: Props) {

@@ -52,6 +52,8 @@ export const InitiativeItem = z
     organisation: z.string(),
     description: z.string(),
     readersSeeRows: z.boolean(),
+    /** Distinct clinicians whose sign-offs a run needs before it is signed off. */
+    requiredSignOffs: z.number().int(),
     memberCount: z.number().int(),
     createdAt: z.string(),
   })
@@ -64,6 +66,16 @@ export const SetMembershipBody = z
 export type SetMembershipBody = z.infer<typeof SetMembershipBody>;
 
 export const UpdateInitiativeBody = z
-  .object({ readersSeeRows: z.boolean().optional(), description: z.string().trim().max(2000).optional() })
+  .object({
+    readersSeeRows: z.boolean().optional(),
+    description: z.string().trim().max(2000).optional(),
+    /** Distinct clinicians (never the run's starter) whose sign-offs a run needs: 1 to 5. */
+    requiredSignOffs: z
+      .number({ message: 'Give the number of sign-offs as a whole number from 1 to 5.' })
+      .int('Give the number of sign-offs as a whole number from 1 to 5.')
+      .min(1, 'A run needs at least 1 sign-off.')
+      .max(5, 'A run can need at most 5 sign-offs.')
+      .optional(),
+  })
   .meta({ id: 'UpdateInitiativeBody' });
 export type UpdateInitiativeBody = z.infer<typeof UpdateInitiativeBody>;

@@ -104,7 +104,7 @@ export async function setUserStatus(transaction: Transaction, actor: Actor, user
 
 interface InitiativeRow {
   id: string; name: string; slug: string; organisation: string; description: string;
-  readers_see_rows: boolean; member_count: string; created_at: Date;
+  readers_see_rows: boolean; required_sign_offs: number; member_count: string; created_at: Date;
 }
 
 const toInitiative = (r: InitiativeRow): InitiativeItem => ({
@@ -114,6 +114,7 @@ const toInitiative = (r: InitiativeRow): InitiativeItem => ({
   organisation: r.organisation,
   description: r.description,
   readersSeeRows: r.readers_see_rows,
+  requiredSignOffs: Number(r.required_sign_offs),
   memberCount: Number(r.member_count),
   createdAt: iso(r.created_at) ?? '',
 });
@@ -144,7 +145,7 @@ export async function createInitiative(transaction: Transaction, actor: Actor, b
   );
   const row: InitiativeRow = {
     id: created.id, name: created.name, slug: created.slug, organisation: created.organisation, description: created.description,
-    readers_see_rows: created.readersSeeRows, member_count: '0', created_at: created.createdAt,
+    readers_see_rows: created.readersSeeRows, required_sign_offs: created.requiredSignOffs ?? 1, member_count: '0', created_at: created.createdAt,
   };
   await recordAudit(transaction, {
     action: 'initiative.created', actorId: actor.id, subjectType: 'initiative', subjectId: row.id,
@@ -154,17 +155,19 @@ export async function createInitiative(transaction: Transaction, actor: Actor, b
 }
 
 export async function updateInitiative(transaction: Transaction, actor: Actor, initiativeId: string, body: UpdateInitiativeBody): Promise<void> {
-  const initiative = await Initiative.findByPk(initiativeId, { attributes: ['id', 'readersSeeRows', 'description'], lock: transaction.LOCK.UPDATE, transaction });
+  const initiative = await Initiative.findByPk(initiativeId, { attributes: ['id', 'readersSeeRows', 'description', 'requiredSignOffs'], lock: transaction.LOCK.UPDATE, transaction });
   if (!initiative) throw notFound('That initiative');
   const previousReadersSeeRows = initiative.readersSeeRows;
+  const previousRequiredSignOffs = initiative.requiredSignOffs;
   initiative.readersSeeRows = body.readersSeeRows ?? initiative.readersSeeRows;
   initiative.description = body.description ?? initiative.description;
+  initiative.requiredSignOffs = body.requiredSignOffs ?? initiative.requiredSignOffs;
   // updated_at changes on every update, as before, even when nothing else did.
   initiative.changed('updatedAt', true);
   await initiative.save({ transaction });
   await recordAudit(transaction, {
     action: 'initiative.updated', actorId: actor.id, subjectType: 'initiative', subjectId: initiativeId,
-    initiativeId, clientAddress: actor.address, details: { ...body, previousReadersSeeRows },
+    initiativeId, clientAddress: actor.address, details: { ...body, previousReadersSeeRows, previousRequiredSignOffs },
   });
 }
 

@@ -34,6 +34,7 @@ export const AUDIT_ACTIONS = [
   'audit.checkpoint-exported',
   'audit.exported',
   'review.submitted',
+  'review.co-signed',
   'review.signed-off',
   'review.sent-back',
   'review.signature-refused',

@@ -107,6 +107,7 @@ const quoted = (note: string | null) => (note ? `: “${note}”` : '');
 
 const REVIEW: Record<string, string> = {
   'review.submitted': 'submitted the run for review',
+  'review.co-signed': 'signed off, short of the sign-offs the initiative requires',
   'review.signed-off': 'signed off',
   'review.sent-back': 'sent the run back',
 };

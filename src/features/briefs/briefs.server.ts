@@ -147,6 +147,9 @@ export async function composeContent(transaction: Transaction, brief: BriefRecor
   if (!facts) throw notFound('The analysis of this brief');
   const review = await reviewOf(transaction, run.id);
   const signed = review.steps.filter((step) => step.kind === 'signed-off').at(-1);
+  // Every clinician who signed the round the sign-off completed (several when the initiative requires them).
+  const roundStart = review.steps.findLastIndex((step) => step.kind === 'submitted');
+  const signers = review.steps.slice(roundStart + 1).filter((step) => step.kind === 'co-signed' || step.kind === 'signed-off').map((step) => step.actor.name);
   const settings = await briefSettings(transaction, brief.initiativeId);
   const result = run.result as Result;
   const briefFacts: BriefFacts = {
@@ -155,7 +158,7 @@ export async function composeContent(transaction: Transaction, brief: BriefRecor
     runId: run.id, extract: { name: facts.extract_name, version: facts.version_number, sha256: run.extractSha256 },
     engineVersion: run.engineVersion ?? result.engineVersion, seed: run.seed, specHash: run.specHash,
     prespecifiedAt: facts.prespecified_at ? iso(facts.prespecified_at) : null, exploratory: run.exploratory, analysesInInitiative: Number(facts.analyses),
-    signOff: signed ? { by: signed.actor.name, at: signed.at, meaning: signed.meaning ?? signed.note } : null, threshold: settings.cellThreshold,
+    signOff: signed ? { by: signers.length > 1 ? signers.join(' and ') : signed.actor.name, at: signed.at, meaning: signed.meaning ?? signed.note } : null, threshold: settings.cellThreshold,
   };
   return buildBriefContent(result, run.spec as Spec, briefFacts, { title: brief.title, summary: brief.summary, plot: brief.plot, ownCautions: brief.ownCautions });
 }

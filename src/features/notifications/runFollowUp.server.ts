@@ -33,7 +33,7 @@ export async function ownRuns(transaction: Transaction, userId: string, limit = 
        FROM runs r
        JOIN analyses a ON a.id = r.analysis_id
        JOIN initiatives i ON i.id = r.initiative_id
-       LEFT JOIN LATERAL (SELECT kind, note, actor_id, created_at FROM review_steps WHERE run_id = r.id ORDER BY id DESC LIMIT 1) s ON true
+       LEFT JOIN LATERAL (SELECT kind, note, actor_id, created_at FROM review_steps WHERE run_id = r.id AND kind <> 'co-signed' ORDER BY id DESC LIMIT 1) s ON true
        LEFT JOIN users u ON u.id = s.actor_id
       WHERE r.started_by = :userId AND r.verifies_run_id IS NULL
       ORDER BY coalesce(s.created_at, r.queued_at) DESC
@@ -54,7 +54,7 @@ export async function latestSteps(transaction: Transaction, runIds: readonly str
   const rows = await sequelize.query<{ run_id: string; kind: FollowedState; note: string; by: string; created_at: Date }>(
     `SELECT DISTINCT ON (s.run_id) s.run_id, s.kind, s.note, u.display_name AS by, s.created_at
        FROM review_steps s JOIN users u ON u.id = s.actor_id
-      WHERE s.run_id = ANY($1::uuid[]) ORDER BY s.run_id, s.id DESC`,
+      WHERE s.run_id = ANY($1::uuid[]) AND s.kind <> 'co-signed' ORDER BY s.run_id, s.id DESC`,
     { bind: [runIds], type: QueryTypes.SELECT, transaction },
   );
   const found = new Map(rows.map((row) => [row.run_id, { state: row.kind, note: row.note, by: row.by, at: iso(row.created_at) }]));

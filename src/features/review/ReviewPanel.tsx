@@ -19,7 +19,9 @@ interface Props {
   canComment: boolean;
 }
 
-const STEP_WORDS = { submitted: 'submitted it for review', 'signed-off': 'signed it off', 'sent-back': 'sent it back' } as const;
+const STEP_WORDS = {
+  submitted: 'submitted it for review', 'co-signed': 'signed it off', 'signed-off': 'signed it off', 'sent-back': 'sent it back',
+} as const;
 const STATE_CLASS = {
   draft: 'bg-linen-100 text-ink-700 border-linen-300',
   submitted: 'bg-ochre-50 text-ochre-700 border-ochre-100',
@@ -153,6 +155,11 @@ function Panel({ runId, canSubmit, canDecide, canComment }: Props) {
           {REVIEW_STATE_LABEL[data.state]}
         </span>
         {data.state === 'draft' && <span className="ml-2 text-ink-700">Not submitted for review yet.</span>}
+        {data.signOffs.required > 1 && (data.state === 'submitted' || data.state === 'signed-off') && (
+          <span className="ml-2 text-ink-700" data-testid="review-sign-offs">
+            {data.signOffs.given} of {data.signOffs.required} sign-offs{data.state === 'submitted' ? ' from distinct clinicians' : ''}
+          </span>
+        )}
       </p>
       {data.steps.length > 0 && (
         <ol className="list-none p-0 m-0 mt-3 grid gap-1.5 text-sm" data-testid="review-history">

@@ -1,7 +1,7 @@
 /**
  * The review of runs: request bodies and the shapes the API answers with. A run's review
- * state is its latest step: `draft` (never submitted), `submitted`, `sent-back` or
- * `signed-off`.
+ * state is its latest step other than a co-signature: `draft` (never submitted),
+ * `submitted`, `sent-back` or `signed-off`.
  */
 import { z } from 'zod';
 
@@ -61,9 +61,12 @@ export const ReviewView = z
   .object({
     runId: z.uuid(),
     state: z.enum(REVIEW_STATES),
+    /** Sign-offs the initiative requires from distinct clinicians, and how many signed since the latest submission. */
+    signOffs: z.object({ required: z.number().int().min(1), given: z.number().int().min(0) }),
     steps: z.array(
       z.object({
-        kind: z.enum(['submitted', 'signed-off', 'sent-back']), actor: Person, note: z.string(), at: z.string(),
+        /** `co-signed`: a sign-off short of those the initiative requires; it leaves the state as it was. */
+        kind: z.enum(['submitted', 'co-signed', 'signed-off', 'sent-back']), actor: Person, note: z.string(), at: z.string(),
         /** A decision's stated meaning; null on submissions (and on decisions from before signatures). */
         meaning: z.string().nullable(),
         /** SHA-256 of the canonical result the decision signed (the digest verification re-runs compare). */

@@ -5,8 +5,8 @@
  * append-only; the state machine is enforced here and, for who may record what, by the
  * row-level security policies in policies/rls/007_review.sql.
  */
-import { QueryTypes, type Transaction } from 'sequelize';
-import { ReviewStep, RunComment, User } from '../../../db/models';
+import { Op, QueryTypes, type Transaction } from 'sequelize';
+import { Initiative, ReviewStep, Run, RunComment, User } from '../../../db/models';
 import { sequelize } from '@/lib/server/db';
 import { conflict, notFound } from '@/lib/server/errors';
 import { recordAudit } from '../audit/audit.server';
@@ -47,10 +47,33 @@ const STATE_WORDS: Record<ReviewState, string> = {
 };
 const STEP_WORDS = { submitted: 'submitted', 'signed-off': 'signed off', 'sent-back': 'sent back' } as const;
 
+/** A co-signature leaves the state as it was: the state is the latest step of any other kind. */
+const stateOfSteps = (steps: readonly { kind: ReviewStep['kind'] }[]): ReviewState => {
+  const latest = steps.findLast((step) => step.kind !== 'co-signed');
+  return latest && latest.kind !== 'co-signed' ? latest.kind : 'draft';
+};
+
 async function stateOf(transaction: Transaction, runId: string): Promise<ReviewState> {
-  const latest = await ReviewStep.findOne({ attributes: ['kind'], where: { runId }, order: [['id', 'DESC']], transaction });
-  return latest?.kind ?? 'draft';
+  const latest = await ReviewStep.findOne({ attributes: ['kind'], where: { runId, kind: { [Op.ne]: 'co-signed' } }, order: [['id', 'DESC']], transaction });
+  return latest && latest.kind !== 'co-signed' ? latest.kind : 'draft';
 }
+
+/** How many distinct clinicians a run of the initiative needs to sign it off (1 unless the initiative asks for more). */
+async function requiredSignOffsOf(transaction: Transaction, initiativeId: string): Promise<number> {
+  const initiative = await Initiative.findByPk(initiativeId, { attributes: ['id', 'requiredSignOffs'], transaction });
+  return initiative?.requiredSignOffs ?? 1;
+}
+
+/**
+ * The distinct clinicians who signed since the latest submission: none once the round ended
+ * with a send-back (or before any submission).
+ */
+const signersOfRound = (steps: readonly { kind: ReviewStep['kind']; actorId: string }[]): Set<string> => {
+  const start = steps.findLastIndex((step) => step.kind === 'submitted');
+  const round = start < 0 ? [] : steps.slice(start + 1);
+  if (round.some((step) => step.kind === 'sent-back')) return new Set();
+  return new Set(round.filter((step) => step.kind === 'co-signed' || step.kind === 'signed-off').map((step) => step.actorId));
+};
 
 /** A run's review: its state, every step and every comment, oldest first. */
 export async function reviewOf(transaction: Transaction, runId: string): Promise<ReviewView> {
@@ -68,9 +91,12 @@ export async function reviewOf(transaction: Transaction, runId: string): Promise
     order: [['createdAt', 'ASC'], ['id', 'ASC']],
     transaction,
   });
+  const run = await Run.findByPk(runId, { attributes: ['id', 'initiativeId'], transaction });
+  const required = run ? await requiredSignOffsOf(transaction, run.initiativeId) : 1;
   return {
     runId,
-    state: steps.at(-1)?.kind ?? 'draft',
+    state: stateOfSteps(steps),
+    signOffs: { required, given: signersOfRound(steps).size },
     steps: steps.map((s) => ({
       kind: s.kind, actor: { id: s.actorId, name: s.actor?.displayName ?? '' }, note: s.note, at: iso(s.createdAt), meaning: s.meaning, resultDigest: s.resultDigest,
     })),
@@ -87,7 +113,7 @@ export interface Signature {
 }
 
 async function addStep(
-  transaction: Transaction, reviewer: Reviewer, run: ReviewedRun, kind: 'submitted' | 'signed-off' | 'sent-back', note: string,
+  transaction: Transaction, reviewer: Reviewer, run: ReviewedRun, requested: 'submitted' | 'signed-off' | 'sent-back', note: string,
   signature: Signature | null = null,
 ): Promise<ReviewState> {
   if (run.status !== 'succeeded') throw conflict('Only a run that finished with results can be reviewed.');
@@ -95,16 +121,33 @@ async function addStep(
   // Serialise steps on one run, so two reviewers cannot both act on the same state (an advisory lock: raw SQL).
   await sequelize.query('SELECT pg_advisory_xact_lock(hashtext(:key))', { replacements: { key: `review:${run.id}` }, transaction });
   const state = await stateOf(transaction, run.id);
-  if (!NEXT[state].includes(kind)) throw conflict(`This run is ${STATE_WORDS[state]}, so it cannot be ${STEP_WORDS[kind]} now.`);
+  if (!NEXT[state].includes(requested)) throw conflict(`This run is ${STATE_WORDS[state]}, so it cannot be ${STEP_WORDS[requested]} now.`);
+  const kind = requested === 'signed-off' ? await signOffKind(transaction, reviewer, run) : requested;
   const signed = signature ? { meaning: signature.meaning.trim(), resultDigest: signature.resultDigest } : { meaning: null, resultDigest: null };
   await ReviewStep.create({ runId: run.id, initiativeId: run.initiativeId, kind, actorId: reviewer.id, note: note.trim(), ...signed }, { transaction });
   await recordAudit(transaction, {
     action: `review.${kind}`, actorId: reviewer.id, subjectType: 'run', subjectId: run.id, initiativeId: run.initiativeId,
     clientAddress: reviewer.clientAddress,
-    details: { from: state, to: kind, noteLength: note.trim().length, note: note.trim(), ...(signature ? signed : {}) },
+    details: { from: state, to: kind === 'co-signed' ? state : kind, noteLength: note.trim().length, note: note.trim(), ...(signature ? signed : {}) },
   });
-  await notifyReviewStep(transaction, reviewer.id, run, kind, note);
-  return kind;
+  // A co-signature tells no one: the analyst hears of the sign-off that completes the round.
+  if (kind !== 'co-signed') await notifyReviewStep(transaction, reviewer.id, run, kind, note);
+  return kind === 'co-signed' ? state : kind;
+}
+
+/**
+ * A sign-off of a submitted run: 'signed-off' when it is the last the initiative requires
+ * (counting distinct clinicians since the latest submission), 'co-signed' before that. A
+ * clinician signs once per submission.
+ */
+async function signOffKind(transaction: Transaction, reviewer: Reviewer, run: ReviewedRun): Promise<'co-signed' | 'signed-off'> {
+  const steps = await ReviewStep.findAll({ attributes: ['id', 'kind', 'actorId'], where: { runId: run.id }, order: [['id', 'ASC']], transaction });
+  const signers = signersOfRound(steps);
+  if (signers.has(reviewer.id)) {
+    throw conflict('You have already signed this submission off; another clinician must add the remaining sign-offs.');
+  }
+  const required = await requiredSignOffsOf(transaction, run.initiativeId);
+  return signers.size + 1 >= required ? 'signed-off' : 'co-signed';
 }
 
 /** An analyst submits a finished run for review (first time, or again after it was sent back). */
@@ -157,7 +200,7 @@ export async function boardOf(transaction: Transaction, initiativeId: string): P
   }>(
     `WITH latest_step AS (
        SELECT DISTINCT ON (s.run_id) s.run_id, s.id, s.kind, s.actor_id, s.note, s.meaning, s.created_at
-         FROM review_steps s WHERE s.initiative_id = :initiativeId ORDER BY s.run_id, s.id DESC
+         FROM review_steps s WHERE s.initiative_id = :initiativeId AND s.kind <> 'co-signed' ORDER BY s.run_id, s.id DESC
      ), reviewed AS (
        SELECT DISTINCT ON (r.analysis_id) r.analysis_id, r.id AS run_id, ls.kind, ls.actor_id, ls.note, ls.meaning, ls.created_at
          FROM runs r JOIN latest_step ls ON ls.run_id = r.id ORDER BY r.analysis_id, ls.id DESC
@@ -191,8 +234,9 @@ export async function boardOf(transaction: Transaction, initiativeId: string): P
 }
 
 /**
- * How many runs wait for a decision in each of the given initiatives (latest step
- * "submitted"), leaving out runs the reader started, on which they may not decide.
+ * How many runs wait for a decision in each of the given initiatives (latest step other
+ * than a co-signature "submitted"), leaving out runs the reader started, on which they may
+ * not decide, and runs whose latest submission they already co-signed.
  */
 export async function waitingForReview(transaction: Transaction, initiativeIds: readonly string[], readerId: string): Promise<Map<string, number>> {
   if (initiativeIds.length === 0) return new Map();
@@ -201,7 +245,10 @@ export async function waitingForReview(transaction: Transaction, initiativeIds: 
     `SELECT r.initiative_id, count(*) AS waiting
        FROM runs r
       WHERE r.initiative_id = ANY($1::uuid[]) AND r.started_by <> $2
-        AND (SELECT s.kind FROM review_steps s WHERE s.run_id = r.id ORDER BY s.id DESC LIMIT 1) = 'submitted'
+        AND (SELECT s.kind FROM review_steps s WHERE s.run_id = r.id AND s.kind <> 'co-signed' ORDER BY s.id DESC LIMIT 1) = 'submitted'
+        -- A clinician who already co-signed the latest submission waits for the others.
+        AND NOT EXISTS (SELECT 1 FROM review_steps c WHERE c.run_id = r.id AND c.kind = 'co-signed' AND c.actor_id = $2
+                          AND c.id > (SELECT max(s.id) FROM review_steps s WHERE s.run_id = r.id AND s.kind = 'submitted'))
       GROUP BY r.initiative_id`,
     { bind: [initiativeIds, readerId], type: QueryTypes.SELECT, transaction },
   );

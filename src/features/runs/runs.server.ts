@@ -159,7 +159,7 @@ export interface RunView {
   /** Set on a re-run that verifies an earlier run: that run's id, and once finished, the comparison. */
   verifiesRunId: string | null;
   verification: Verification | null;
-  /** draft, submitted, sent-back or signed-off (its latest review step). */
+  /** draft, submitted, sent-back or signed-off (its latest review step other than a co-signature). */
   reviewState: ReviewState;
   /** The worker that executed it, as `host:process` (null until one claims it). */
   worker: string | null;
@@ -189,7 +189,7 @@ function toRunView(r: RunRow): RunView {
 
 /** The run's review state: its latest review step, or draft (src/features/review). */
 // Each run's latest review step as a correlated subquery: the run views below are raw SQL for it.
-const REVIEW_STATE_COLUMN = `coalesce((SELECT s.kind FROM review_steps s WHERE s.run_id = r.id ORDER BY s.id DESC LIMIT 1), 'draft') AS review_state`;
+const REVIEW_STATE_COLUMN = `coalesce((SELECT s.kind FROM review_steps s WHERE s.run_id = r.id AND s.kind <> 'co-signed' ORDER BY s.id DESC LIMIT 1), 'draft') AS review_state`;
 
 /** Every column but the result, for listings and progress polling. */
 const RUN_COLUMNS = `r.id, r.analysis_id, r.initiative_id, r.extract_version_id, r.status, r.progress, r.spec, r.spec_hash,
