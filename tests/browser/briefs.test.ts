@@ -87,7 +87,9 @@ describe('a brief from the signed-off demo run', () => {
     await page.locator('[data-testid="brief-draft-form"] fieldset[data-hydrated="true"]').waitFor();
     await page.getByLabel(/Cautions of your own/).fill('Two sites changed their call script during the period.');
     await page.getByTestId('brief-save').click();
-    await page.getByText('Two sites changed their call script during the period.').first().waitFor();
+    // The saved preview (after the page reloads) lists the analyst's own caution in the brief itself.
+    await page.locator('[data-testid="brief-cautions"] [data-own-caution]', { hasText: 'Two sites changed their call script during the period.' }).waitFor();
+    await page.getByTestId('brief-key-table').waitFor();
     expect(await page.getByTestId('brief-cautions').textContent()).toContain('not clinical guidance');
     expect(await page.getByTestId('brief-key-table').count()).toBe(1);
     expect(await page.getByTestId('brief-plot').count()).toBe(1);

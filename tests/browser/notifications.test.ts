@@ -45,7 +45,7 @@ beforeAll(async () => {
   expect((await analystApi.request('POST', `/api/runs/${runId}/review/submit`, {})).status).toBe(200);
   const clinicianApi = new ApiClient();
   expect((await clinicianApi.signIn(clinician.email, password)).status).toBe(204);
-  expect((await clinicianApi.request('POST', `/api/runs/${runId}/review/decision`, { decision: 'send-back', note })).status).toBe(200);
+  expect((await clinicianApi.request('POST', `/api/runs/${runId}/review/decision`, { decision: 'send-back', note, meaning: 'returned for changes', password })).status).toBe(200);
 }, 120_000);
 
 afterAll(async () => {

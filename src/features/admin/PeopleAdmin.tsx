@@ -132,7 +132,7 @@ function InvitationActions({ user }: { user: UserListItem }) {
   const open = user.status === 'invited';
   return (
     <span className="inline-flex flex-wrap items-center gap-2">
-      <button type="button" className="btn btn-secondary" disabled={resend.isPending} onClick={() => resend.mutate()} aria-label={`Send ${user.displayName} a new invitation link`}>
+      <button type="button" className="btn btn-secondary" disabled={resend.isPending} onClick={() => resend.mutate()} aria-label={`${open ? 'Send a new link' : 'Invite again'} to ${user.displayName}`}>
         {open ? 'Send a new link' : 'Invite again'}
       </button>
       {open && (
