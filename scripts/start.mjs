@@ -45,16 +45,6 @@ ensureNodeModules(root);
 const { startCluster, stopCluster } = await import('../db/scripts/postgres.mjs');
 mkdirSync(runDir, { recursive: true });
 endLeftovers();
-startCluster();
-step('Migrating the database');
-run('npx', ['tsx', 'db/migrate.ts', 'up'], { cwd: root, env });
-step('Loading the demo data (once)');
-run('npx', ['tsx', 'db/seed.ts'], { cwd: root, env });
-if (!dev) {
-  step('Building the app');
-  run('npx', ['astro', 'build', '--silent'], { cwd: root, env });
-}
-
 const supervised = [];
 function launch(name, command, args) {
   const pidFile = path.join(runDir, `${name}.pid`);
@@ -87,9 +77,22 @@ async function shutdown(code = 0) {
 process.on('SIGINT', () => shutdown(0));
 process.on('SIGTERM', () => shutdown(0));
 
-for (const [name, script] of [['mail', 'src/lib/server/mailServer.ts'], ['worker', 'src/features/runs/runWorker.ts']]) {
-  if (existsSync(path.join(root, script))) launch(name, 'npx', ['tsx', script]);
+// The mail server first, so that mail the demo seed sends (notifications of the demo
+// review) reaches the local outbox.
+const MAIL_SERVER = 'src/lib/server/mailServer.ts';
+if (existsSync(path.join(root, MAIL_SERVER))) launch('mail', 'npx', ['tsx', MAIL_SERVER]);
+startCluster();
+step('Migrating the database');
+run('npx', ['tsx', 'db/migrate.ts', 'up'], { cwd: root, env });
+step('Loading the demo data (once)');
+run('npx', ['tsx', 'db/seed.ts'], { cwd: root, env });
+if (!dev) {
+  step('Building the app');
+  run('npx', ['astro', 'build', '--silent'], { cwd: root, env });
 }
+
+
+launch('worker', 'npx', ['tsx', 'src/features/runs/runWorker.ts']);
 if (dev) launch('app', 'npx', ['astro', 'dev', '--host', host, '--port', String(port)]);
 else launch('app', process.execPath, [path.join(root, 'dist/server/entry.mjs')]);
 
