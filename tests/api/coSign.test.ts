@@ -99,13 +99,13 @@ describe('a run that needs two sign-offs', () => {
   it('stays submitted after one clinician signs, refuses that clinician again, and is signed off by a second', async () => {
     expect(await requiredInDb()).toBe(2);
     const runId = await submittedRun();
-    expect((await review(runId)).signOffs).toEqual({ required: 2, given: 0 });
+    expect((await review(runId)).signOffs).toEqual({ required: 2, given: 0, signedBy: [] });
 
     const first = await signOff(clients.first, runId);
     expect(first.status).toBe(200);
     const afterFirst = await first.json();
     expect(afterFirst.state).toBe('submitted');
-    expect(afterFirst.signOffs).toEqual({ required: 2, given: 1 });
+    expect(afterFirst.signOffs).toEqual({ required: 2, given: 1, signedBy: [ids.first] });
     const cosigned = afterFirst.steps.at(-1);
     expect(cosigned).toMatchObject({ kind: 'co-signed', actor: { id: ids.first }, meaning: 'reviewed, no objection' });
     expect(cosigned.resultDigest).toMatch(/^[0-9a-f]{64}$/);
@@ -120,7 +120,8 @@ describe('a run that needs two sign-offs', () => {
     expect(second.status).toBe(200);
     const done = await second.json();
     expect(done.state).toBe('signed-off');
-    expect(done.signOffs).toEqual({ required: 2, given: 2 });
+    expect(done.signOffs.given).toBe(2);
+    expect([...done.signOffs.signedBy].sort()).toEqual([ids.first, ids.second].sort());
     expect(done.steps.map((s: { kind: string }) => s.kind)).toEqual(['submitted', 'co-signed', 'signed-off']);
     expect(await runState(runId)).toBe('signed-off');
 
@@ -173,7 +174,7 @@ describe('a run that needs one sign-off', () => {
     const runId = await submittedRun();
     const signed = await (await signOff(clients.third, runId)).json();
     expect(signed.state).toBe('signed-off');
-    expect(signed.signOffs).toEqual({ required: 1, given: 1 });
+    expect(signed.signOffs).toEqual({ required: 1, given: 1, signedBy: [ids.third] });
     expect(signed.steps.map((s: { kind: string }) => s.kind)).toEqual(['submitted', 'signed-off']);
   });
 });

@@ -14,6 +14,8 @@ import { REVIEW_STATE_LABEL, type ReviewView } from './review.schema';
 
 interface Props {
   runId: string;
+  /** The signed-in person: a clinician who already signed this round is not offered the decision again. */
+  viewerId: string;
   canSubmit: boolean;
   canDecide: boolean;
   canComment: boolean;
@@ -102,7 +104,7 @@ function showStateElsewhere(runId: string, state: ReviewView['state']) {
   for (const element of document.querySelectorAll<HTMLElement>(`[data-review-state-for="${runId}"]`)) element.textContent = REVIEW_STATE_LABEL[state];
 }
 
-function Panel({ runId, canSubmit, canDecide, canComment }: Props) {
+function Panel({ runId, viewerId, canSubmit, canDecide, canComment }: Props) {
   const hydrated = useHydrated();
   const client = useQueryClient();
   const [note, setNote] = useState('');
@@ -138,7 +140,8 @@ function Panel({ runId, canSubmit, canDecide, canComment }: Props) {
   if (review.error) return <p role="alert" className="field-error">Could not load the review: {review.error.message}</p>;
   const data = review.data;
   const maySubmit = canSubmit && (data.state === 'draft' || data.state === 'sent-back');
-  const mayDecide = canDecide && data.state === 'submitted';
+  const signedThisRound = data.state === 'submitted' && data.signOffs.signedBy.includes(viewerId);
+  const mayDecide = canDecide && data.state === 'submitted' && !signedThisRound;
   const open = (decision: Decision) => {
     decide.reset();
     setDeciding(decision);
@@ -188,6 +191,12 @@ function Panel({ runId, canSubmit, canDecide, canComment }: Props) {
           </div>
           {submit.error && <p role="alert" className="field-error">{submit.error.message}</p>}
         </div>
+      )}
+      {canDecide && signedThisRound && (
+        <p className="mt-4 text-sm text-ink-700" data-testid="review-waiting">
+          You have signed this submission. It is signed off once {data.signOffs.required - data.signOffs.given} more
+          {data.signOffs.required - data.signOffs.given === 1 ? ' clinician signs' : ' clinicians sign'}.
+        </p>
       )}
       {mayDecide && !deciding && (
         <div className="mt-4 grid gap-2 max-w-2xl">

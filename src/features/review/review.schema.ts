@@ -61,8 +61,11 @@ export const ReviewView = z
   .object({
     runId: z.uuid(),
     state: z.enum(REVIEW_STATES),
-    /** Sign-offs the initiative requires from distinct clinicians, and how many signed since the latest submission. */
-    signOffs: z.object({ required: z.number().int().min(1), given: z.number().int().min(0) }),
+    /**
+     * Sign-offs the initiative requires from distinct clinicians, how many signed since the
+     * latest submission, and who they are (a clinician who signed waits for the others).
+     */
+    signOffs: z.object({ required: z.number().int().min(1), given: z.number().int().min(0), signedBy: z.array(z.uuid()) }),
     steps: z.array(
       z.object({
         /** `co-signed`: a sign-off short of those the initiative requires; it leaves the state as it was. */

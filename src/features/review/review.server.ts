@@ -93,10 +93,11 @@ export async function reviewOf(transaction: Transaction, runId: string): Promise
   });
   const run = await Run.findByPk(runId, { attributes: ['id', 'initiativeId'], transaction });
   const required = run ? await requiredSignOffsOf(transaction, run.initiativeId) : 1;
+  const signers = signersOfRound(steps);
   return {
     runId,
     state: stateOfSteps(steps),
-    signOffs: { required, given: signersOfRound(steps).size },
+    signOffs: { required, given: signers.size, signedBy: [...signers] },
     steps: steps.map((s) => ({
       kind: s.kind, actor: { id: s.actorId, name: s.actor?.displayName ?? '' }, note: s.note, at: iso(s.createdAt), meaning: s.meaning, resultDigest: s.resultDigest,
     })),
