@@ -9,10 +9,11 @@
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { createTransport } from 'nodemailer';
 import { QueryTypes } from 'sequelize';
 import { listMessages, readMessage } from '@/features/admin/outbox';
 import { generateCallBackCohort } from '@/features/extracts/demoCohorts';
-import { sendDigests } from '@/features/notifications/notificationMail.server';
+import { sendDigests, sendOverdueNotificationMail } from '@/features/notifications/notificationMail.server';
 import { executeRun } from '@/features/runs/executeRun';
 import { sequelize, withIdentity } from '@/lib/server/db';
 import { hashPassword } from '@/lib/server/passwords';
@@ -205,6 +206,62 @@ describe('e-mail', () => {
     // Daily and none: nothing right away (clinician B was told of a submission, a mention and a brief).
     expect(await mailTo(people.clinicianB.email, /./, 99)).toHaveLength(0);
     expect((await listMessages({ dir: mailDir, pageSize: 100 })).messages.filter((m) => m.to.includes(people.clinicianA.email))).toHaveLength(0);
+  });
+
+  it('marks immediate mail sent once it is sent, so the sweep sends nothing twice', async () => {
+    await mailTo(people.analyst.email, /sent back/);
+    const [{ pending }] = await ownerDb().query<{ pending: number }>(
+      "SELECT count(*)::int AS pending FROM notifications WHERE recipient_id = :id AND mail_state = 'pending'",
+      { replacements: { id: people.analyst.id }, type: QueryTypes.SELECT },
+    );
+    expect(pending).toBe(0);
+    const before = (await mailTo(people.analyst.email, /./, 99)).length;
+    await sendOverdueNotificationMail({ olderThanSeconds: 0 });
+    expect(await mailTo(people.analyst.email, /./, before + 1)).toHaveLength(before);
+  });
+
+  it('sends, from the sweep, a mail whose sender stopped after the commit, and only once', async () => {
+    // A notification committed with its mail pending and never sent, as when the process
+    // that wrote it stops between the commit and the send.
+    const [{ id }] = await ownerDb().query<{ id: string }>(
+      `INSERT INTO notifications (recipient_id, initiative_id, actor_id, kind, run_id, title, mail_state, created_at)
+       VALUES (:recipient, :initiativeId, :actor, 'signed-off', :runId, 'Stranded sign-off', 'pending', now() - interval '2 minutes') RETURNING id`,
+      { replacements: { recipient: people.analyst.id, actor: people.clinicianA.id, initiativeId, runId }, type: QueryTypes.SELECT },
+    );
+    // Not yet overdue at a ten-minute threshold; overdue at one minute.
+    expect(await sendOverdueNotificationMail({ olderThanSeconds: 600 })).toBe(0);
+    expect(await sendOverdueNotificationMail({ olderThanSeconds: 60 })).toBe(1);
+    const stranded = await mailTo(people.analyst.email, /Stranded sign-off/);
+    expect(stranded).toHaveLength(1);
+    expect(stranded[0].subject).toContain(NAMES.clinicianA);
+    expect(await sendOverdueNotificationMail({ olderThanSeconds: 0 })).toBe(0);
+    expect(await mailTo(people.analyst.email, /Stranded sign-off/, 2)).toHaveLength(1);
+    const [row] = await ownerDb().query<{ mail_state: string; mail_attempts: number }>(
+      'SELECT mail_state, mail_attempts FROM notifications WHERE id = :id', { replacements: { id }, type: QueryTypes.SELECT },
+    );
+    expect(row).toEqual({ mail_state: 'sent', mail_attempts: 1 });
+  });
+
+  it('keeps a mail pending when the mail server refuses it, and gives up after five attempts', async () => {
+    const [{ id }] = await ownerDb().query<{ id: string }>(
+      `INSERT INTO notifications (recipient_id, initiative_id, actor_id, kind, run_id, title, mail_state, created_at)
+       VALUES (:recipient, :initiativeId, :actor, 'signed-off', :runId, 'Refused sign-off', 'pending', now() - interval '2 minutes') RETURNING id`,
+      { replacements: { recipient: people.analyst.id, actor: people.clinicianA.id, initiativeId, runId }, type: QueryTypes.SELECT },
+    );
+    // Nothing listens on port 9 of loopback: every send is refused.
+    const refusing = createTransport({ host: '127.0.0.1', port: 9, connectionTimeout: 2_000 });
+    const state = async () => (await ownerDb().query<{ mail_state: string; mail_attempts: number }>(
+      'SELECT mail_state, mail_attempts FROM notifications WHERE id = :id', { replacements: { id }, type: QueryTypes.SELECT },
+    ))[0];
+    for (let attempt = 1; attempt <= 5; attempt += 1) {
+      // Each attempt holds the mail for a lease; end it, as five minutes passing would.
+      await ownerDb().query('UPDATE notifications SET mail_claimed_at = mail_claimed_at - interval \'10 minutes\' WHERE id = :id', { replacements: { id } });
+      expect(await sendOverdueNotificationMail({ olderThanSeconds: 60, transport: refusing })).toBe(0);
+      expect(await state()).toEqual({ mail_state: 'pending', mail_attempts: attempt });
+    }
+    await ownerDb().query('UPDATE notifications SET mail_claimed_at = mail_claimed_at - interval \'10 minutes\' WHERE id = :id', { replacements: { id } });
+    expect(await sendOverdueNotificationMail({ olderThanSeconds: 60 })).toBe(0);
+    expect(await state()).toEqual({ mail_state: 'failed', mail_attempts: 5 });
   });
 
   it('sends a digest of the unread notifications to those who chose it, once', async () => {

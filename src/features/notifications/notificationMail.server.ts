@@ -1,8 +1,10 @@
 /**
  * Notification e-mail. Each person chooses immediate mail, a daily digest, or none
- * (notification_settings; 'immediate' until they choose). Immediate mail goes after the
- * event's transaction commits and never fails the request that caused it: a failure is
- * logged and the notification stays in the bell. The digest (`sendDigests`, run by the
+ * (notification_settings; 'immediate' until they choose). Immediate mail is marked pending
+ * in the event's transaction and goes after the commit; it never fails the request that
+ * caused it. A mail not sent then (the process stopped, the mail server refused) is sent by
+ * the worker's sweep a minute later; a failure is logged and the notification stays in
+ * the bell. The digest (`sendDigests`, run by the
  * worker's timer and callable in tests) sends each digest person one message listing
  * their unread notifications since their last digest.
  */
@@ -16,6 +18,7 @@ import { notificationLink, notificationText } from './notifications';
 import type { MailChoice } from './notifications.schema';
 
 interface Written {
+  id: string;
   recipientId: string;
   actorId: string;
   kind: NotificationKind;
@@ -25,51 +28,105 @@ interface Written {
   excerpt: string;
 }
 
+interface Message { id: string; to: string; subject: string; text: string; html: string }
+
 const SETTINGS_NOTE = 'You can choose how Crossgrain e-mails you (right away, a daily digest, or not at all) on your profile page.';
 const absolute = (path: string) => `${publicUrl().replace(/\/$/, '')}${path}`;
-const lineOf = (row: Written, actorName: string) => notificationText(row.kind, actorName, row.title, row.runId);
+const lineOf = (row: Omit<Written, 'id'>, actorName: string) => notificationText(row.kind, actorName, row.title, row.runId);
 const linkOf = notificationLink;
+/** How long one sending attempt holds a mail before another sender may try it. */
+const LEASE_SECONDS = 300;
+/** How old a pending mail must be before the sweep sends it (the sender after the commit goes first). */
+export const OVERDUE_SECONDS = 60;
 
-/** How each person wants mail (the sender may not read others' settings: a SECURITY DEFINER function). */
-async function choicesOf(transaction: Transaction, people: readonly string[]): Promise<Map<string, MailChoice>> {
-  const rows = await sequelize.query<{ user_id: string; mail: MailChoice }>(
-    'SELECT user_id, mail FROM app_notification_mail_choices(:people::uuid[])',
-    { replacements: { people: `{${people.join(',')}}` }, type: QueryTypes.SELECT, transaction },
-  );
-  return new Map(rows.map((row) => [row.user_id, row.mail]));
+const uuidArray = (ids: readonly string[]) => `{${ids.join(',')}}`;
+
+function messageOf(row: Written, to: string, actorName: string): Message {
+  const line = lineOf(row, actorName);
+  const body = renderEmail({
+    heading: line,
+    paragraphs: [...(row.excerpt ? [`“${row.excerpt}”`] : []), SETTINGS_NOTE],
+    action: { label: row.briefId ? 'Read the brief' : 'Open the run', url: absolute(linkOf(row)) },
+  });
+  return { id: row.id, to, subject: line.slice(0, 200), text: body.text, html: body.html };
 }
 
-/** Queues, for after the commit, one e-mail per written notification whose recipient chose immediate mail. */
+/**
+ * Sends mails one by one, each claimed first (so two senders never send the same one) and
+ * marked sent after; a failure leaves it pending for the sweep. Answers how many were sent.
+ */
+async function sendClaimed(messages: readonly Message[], transport?: MailTransport): Promise<number> {
+  let sent = 0;
+  for (const message of messages) {
+    const claimed = await sequelize.query<{ id: string }>(
+      'SELECT app_notification_mail_claim AS id FROM app_notification_mail_claim(:ids::uuid[], make_interval(secs => :lease))',
+      { replacements: { ids: uuidArray([message.id]), lease: LEASE_SECONDS }, type: QueryTypes.SELECT },
+    );
+    if (claimed.length === 0) continue;
+    try {
+      await sendMail({ to: message.to, subject: message.subject, text: message.text, html: message.html }, { transport });
+    } catch (error) {
+      logger.warn({ recipientDomain: recipientDomain(message.to), error: error instanceof Error ? error.message : String(error) }, 'notification e-mail not sent; it stays pending');
+      continue;
+    }
+    await sequelize.query('SELECT app_notification_mail_sent(:ids::uuid[])', { replacements: { ids: uuidArray([message.id]) } });
+    sent += 1;
+  }
+  return sent;
+}
+
+/**
+ * Marks pending, in the event's transaction, each written notification whose recipient
+ * chose immediate mail, and sends those mails after the commit. The mark is what makes the
+ * mail durable: if this process stops before sending, the worker's sweep
+ * (`sendOverdueNotificationMail`) sends it.
+ */
 export async function mailAfterCommit(transaction: Transaction, written: readonly Written[], transport?: MailTransport): Promise<void> {
   if (written.length === 0) return;
-  const choices = await choicesOf(transaction, written.map((w) => w.recipientId));
-  const immediate = written.filter((w) => choices.get(w.recipientId) === 'immediate');
-  if (immediate.length === 0) return;
+  const pending = await sequelize.query<{ id: string; recipient_id: string }>(
+    'SELECT id, recipient_id FROM app_notification_mail_pending(:ids::uuid[])',
+    { replacements: { ids: uuidArray(written.map((w) => w.id)) }, type: QueryTypes.SELECT, transaction },
+  );
+  if (pending.length === 0) return;
+  const marked = new Set(pending.map((row) => row.id));
+  const immediate = written.filter((w) => marked.has(w.id));
   const people = await User.findAll({ attributes: ['id', 'email', 'displayName'], where: { id: [...new Set([...immediate.map((w) => w.recipientId), immediate[0].actorId])] }, transaction });
   const byId = new Map(people.map((p) => [p.id, p]));
   const actorName = byId.get(immediate[0].actorId)?.displayName ?? 'Someone';
   const messages = immediate.flatMap((row) => {
     const to = byId.get(row.recipientId)?.email;
-    if (!to) return [];
-    const line = lineOf(row, actorName);
-    const body = renderEmail({
-      heading: line,
-      paragraphs: [...(row.excerpt ? [`“${row.excerpt}”`] : []), SETTINGS_NOTE],
-      action: { label: row.briefId ? 'Read the brief' : 'Open the run', url: absolute(linkOf(row)) },
-    });
-    return [{ to, subject: line.slice(0, 200), text: body.text, html: body.html }];
+    return to ? [messageOf(row, to, actorName)] : [];
   });
   transaction.afterCommit(() => {
-    void (async () => {
-      for (const message of messages) {
-        try {
-          await sendMail(message, { transport });
-        } catch (error) {
-          logger.warn({ recipientDomain: recipientDomain(message.to), error: error instanceof Error ? error.message : String(error) }, 'notification e-mail not sent');
-        }
-      }
-    })();
+    sendClaimed(messages, transport).catch((error: unknown) => logger.warn({ err: error }, 'notification e-mail not sent; it stays pending'));
   });
+}
+
+/**
+ * The worker's sweep: sends immediate mails still pending `olderThanSeconds` after their
+ * event (the process that should have sent them stopped, or the mail server refused).
+ * Each recipient's notifications are read under that recipient's own identity. Answers
+ * how many were sent.
+ */
+export async function sendOverdueNotificationMail(options: { olderThanSeconds?: number; transport?: MailTransport } = {}): Promise<number> {
+  const overdue = await sequelize.query<{ id: string; recipient_id: string }>(
+    'SELECT id, recipient_id FROM app_notification_mail_overdue(make_interval(secs => :age), make_interval(secs => :lease))',
+    { replacements: { age: options.olderThanSeconds ?? OVERDUE_SECONDS, lease: LEASE_SECONDS }, type: QueryTypes.SELECT },
+  );
+  const byRecipient = new Map<string, string[]>();
+  for (const row of overdue) byRecipient.set(row.recipient_id, [...(byRecipient.get(row.recipient_id) ?? []), row.id]);
+  let sent = 0;
+  for (const [recipientId, ids] of byRecipient) {
+    const messages = await withIdentity(recipientId, async (transaction) => {
+      const rows = await Notification.findAll({ where: { id: ids, recipientId }, order: [['createdAt', 'ASC']], transaction });
+      const people = await User.findAll({ attributes: ['id', 'email', 'displayName'], where: { id: [...new Set([recipientId, ...rows.map((r) => r.actorId)])] }, transaction });
+      const byId = new Map(people.map((p) => [p.id, p]));
+      const to = byId.get(recipientId)?.email;
+      return to ? rows.map((row) => messageOf(row, to, byId.get(row.actorId)?.displayName ?? 'Someone')) : [];
+    });
+    sent += await sendClaimed(messages, options.transport);
+  }
+  return sent;
 }
 
 /** The signed-in person's e-mail choice. */

@@ -11,11 +11,13 @@ import { createQueue, startWhenReachable } from '@/lib/server/queue';
 import { executeRun } from './executeRun';
 import { RUN_QUEUE, type RunJob } from './runQueue';
 import { sweepStaleRuns } from './runs.server';
-import { sendDigests } from '../notifications/notificationMail.server';
+import { sendDigests, sendOverdueNotificationMail } from '../notifications/notificationMail.server';
 
 const SWEEP_MS = 15_000;
 /** How often the worker looks for daily notification digests that are due (each person's gap is a day). */
 const DIGEST_CHECK_MS = 15 * 60_000;
+/** How often the worker sends immediate notification mail that its sender did not (see notificationMail.server.ts). */
+const OVERDUE_MAIL_CHECK_MS = 30_000;
 const name = `${hostname()}:${process.pid}`;
 
 export async function startWorker(): Promise<{ stop: () => Promise<void> }> {
@@ -36,11 +38,17 @@ export async function startWorker(): Promise<{ stop: () => Promise<void> }> {
       if (sent) logger.info({ sent }, 'notification digests sent');
     }).catch((error: unknown) => logger.warn({ err: error }, 'notification digests failed'));
   }, DIGEST_CHECK_MS);
+  const overdueMail = setInterval(() => {
+    sendOverdueNotificationMail().then((sent) => {
+      if (sent) logger.info({ sent }, 'overdue notification e-mails sent');
+    }).catch((error: unknown) => logger.warn({ err: error }, 'overdue notification e-mails failed'));
+  }, OVERDUE_MAIL_CHECK_MS);
   logger.info({ worker: name }, 'worker ready');
   return {
     stop: async () => {
       clearInterval(sweep);
       clearInterval(digests);
+      clearInterval(overdueMail);
       await boss.stop({ graceful: true, timeout: 5_000 });
       await sequelize.close();
     },
