@@ -85,6 +85,16 @@ export function renderBriefPdf(content: BriefContent, pageSize: PageSize, meta: 
 
   heading('Key table');
   drawKeyTable(doc, content, width, margin);
+  if (content.absolute) {
+    text(`Absolute effects. ${content.absolute.explanation}${content.absolute.headline ? ` ${content.absolute.headline}` : ''}`, { size: 8.5 });
+    const [header, ...rows] = content.absolute.table;
+    const marked = rows.map((row, index) => (content.absolute?.small[index] ? [`${row[0]} †`, ...row.slice(1)] : row));
+    drawRows(doc, [header, ...marked], [0.16, 0.15, 0.15, 0.2, 0.14, 0.2], width, margin);
+  }
+  if (content.eValues) {
+    text(content.eValues.sentence, { size: 8.5 });
+    for (const line of content.eValues.lines) text(`• ${line}`, { size: 8.5, gap: 0.1 });
+  }
   text(content.interactionTest);
   text(`Adjusted for: ${content.adjustment.length ? content.adjustment.join('; ') : 'nothing (no covariates)'}.`);
   text(content.smallCellNote, { size: 8.5, color: MUTED });
