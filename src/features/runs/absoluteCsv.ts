@@ -4,9 +4,10 @@
  */
 import type { Result } from '@/engine/boundary/schemas';
 import { nntText } from './absoluteEffectsView';
-import type { CSV_COLUMNS } from './resultCsv';
 
-type CsvRow = Partial<Record<(typeof CSV_COLUMNS)[number], string | number | null>>;
+/** A record by the names of resultCsv.ts's CSV_COLUMNS (not imported from there, which imports this file). */
+type CsvColumn = 'section' | 'level' | 'arm' | 'measure' | 'estimate' | 'lower' | 'upper' | 'p' | 'p_holm' | 'p_bh' | 'n' | 'events' | 'statistic' | 'df' | 'note';
+type CsvRow = Partial<Record<CsvColumn, string | number | null>>;
 
 function ordered<T extends { level: string }>(levels: readonly string[], entries: readonly T[]): T[] {
   const rank = (level: string) => (levels.includes(level) ? levels.indexOf(level) : levels.length);
