@@ -29,7 +29,7 @@ export interface PdfMeta {
 }
 
 /** Characters outside the font's Latin set, spelled in ones it has. */
-const SPELLED: Record<string, string> = { 'χ': 'chi', '≥': '>=', '≤': '<=', '→': '->', '±': '+/-', '†': '*' };
+const SPELLED: Record<string, string> = { 'χ': 'chi', '∞': 'infinity', '≥': '>=', '≤': '<=', '→': '->', '±': '+/-', '†': '*' };
 const COVERED = /[\u0000-\u00ff\u0131\u0152\u0153\u02bb\u02bc\u02c6\u02da\u02dc\u2000-\u201f\u2022\u2026\u2030-\u206f\u20ac\u2122\u2191\u2193\u2212\u2215]/;
 
 /** The text with every character the embedded font cannot draw replaced. */

@@ -3,6 +3,10 @@
  * server-rendered table, the plot, the CSV, the brief (small strata) and the audit words,
  * on real engine results of the SYNTHETIC call-back cohort with "standardize" set.
  */
+import { execFileSync } from 'node:child_process';
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { experimental_AstroContainer as AstroContainer } from 'astro/container';
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { Result, Spec } from '@/engine/boundary/schemas';
@@ -11,6 +15,7 @@ import { runAnalysis } from '@/engine/index';
 import { specChanges } from '../audit/auditWords';
 import { buildBriefContent } from '../briefs/briefContent';
 import { renderBriefHtml } from '../briefs/briefHtml';
+import { renderBriefPdf } from '../briefs/briefPdf';
 import { FACTS, smallStratumCsv } from '../briefs/briefTestSupport';
 import { absoluteEffectsView, eValuesView, nntText } from './absoluteEffectsView';
 import { engineDataOfCsv } from './engineInput';
@@ -110,6 +115,15 @@ describe('absolute effects in the CSV, the brief and the audit trail', () => {
     // The absolute table prints no count at all: every cell is an estimate, an interval or an NNT.
     const absoluteHtml = html.slice(html.indexOf('brief-absolute-table'), html.indexOf('</table>', html.indexOf('brief-absolute-table')));
     expect(absoluteHtml).not.toMatch(/\b\d+ (people|rows|events)\b/);
+    // The PDF draws the same table; infinity is spelled out (the embedded font has no ∞).
+    const file = join(mkdtempSync(join(tmpdir(), 'absolute-brief-')), 'brief.pdf');
+    writeFileSync(file, await renderBriefPdf(content, 'A4', { author: 'Test', status: 'Draft preview', createdAt: new Date('2026-12-02T09:00:00Z') }));
+    const text = execFileSync('pdftotext', [file, '-'], { encoding: 'utf8' });
+    expect(text).toContain('Absolute effects.');
+    expect(text).toContain('E-value: how strong');
+    expect(small.standardized!.levels.some((level) => level.nnt.throughInfinity)).toBe(true);
+    expect(text).toContain('infinity');
+    expect(text).not.toContain('∞');
   });
 
   it('audit: names the option when an analysis changes it', () => {
