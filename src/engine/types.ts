@@ -74,6 +74,12 @@ export type {
   PlanningLevel,
   PlanningBlock,
   EngineWarning,
+  StandardizedRisk,
+  NumberNeeded,
+  StandardizedLevel,
+  StandardizedEffects,
+  EValueEntry,
+  EValues,
 } from './boundary/schemas.js';
 
 // ---------------------------------------------------------------------------------------

@@ -37,6 +37,8 @@ export interface StageResults {
   tables: AnalysisResult['stratifiedTables'];
   bootstrap: AnalysisResult['bootstrap'];
   planning: PlanningBlock;
+  standardized: AnalysisResult['standardized'];
+  eValues: AnalysisResult['eValues'];
 }
 
 /** The plain-JSON result (before non-finite numbers are replaced). */
@@ -103,6 +105,8 @@ export function assembleResult(analysis: FittedAnalysis, stages: StageResults): 
     stratifiedTables: stages.tables,
     bootstrap: stages.bootstrap,
     planning: stages.planning,
+    standardized: stages.standardized,
+    eValues: stages.eValues,
     warnings,
   };
 }

@@ -5,11 +5,13 @@ import { additiveInteraction } from './additiveInteraction.js';
 import { assembleResult } from './assembleResult.js';
 import { bootstrapStage } from './bootstrapStage.js';
 import { continuousModifierStage } from './continuousModifier.js';
+import { eValueStage } from './eValueStage.js';
 import { checkCancelled, frameAndFit, type ProgressReporter } from './fitStage.js';
 import { modifierEffectsStage } from './modifierEffects.js';
 import { omnibusTest } from './omnibusTest.js';
 import { planningStage } from './planningStage.js';
 import { sanitizeResult } from './sanitizeResult.js';
+import { standardizedEffectsStage } from './standardizedEffectsStage.js';
 import { validateSpec } from './validateSpec.js';
 
 /** Above this outcome proportion an odds ratio no longer approximates a risk ratio (methods.md: "say over 10 %"). */
@@ -40,6 +42,8 @@ export async function runAnalysis(data: EngineData, spec: AnalysisSpec, options:
   const effects = modifierEffectsStage(analysis);
   const interaction = additiveInteraction(analysis, effects);
   const continuous = frame.modifier.kind === 'continuous' ? continuousModifierStage(analysis) : null;
+  const standardized = standardizedEffectsStage(analysis);
+  const eValues = eValueStage(analysis, effects.strata);
 
   // Outcome-level warnings.
   let outcomeSum = 0;
@@ -62,7 +66,7 @@ export async function runAnalysis(data: EngineData, spec: AnalysisSpec, options:
   const bootstrap = checked.method === 'bootstrap' ? await bootstrapStage(analysis, effects, interaction, signal, progress) : null;
   checkCancelled(signal);
   const planning = planningStage(analysis, effects);
-  const result = assembleResult(analysis, { effects, interaction, omnibus, continuous, outcomeSum, tables, bootstrap, planning });
+  const result = assembleResult(analysis, { effects, interaction, omnibus, continuous, outcomeSum, tables, bootstrap, planning, standardized, eValues });
   progress('done', 1);
   return sanitizeResult(result);
 }

@@ -70,6 +70,19 @@ export function validateSpec(spec: AnalysisSpec): CheckedSpec {
     }
     if (spec.model === 'linear' && interaction === 0) throw new InvalidSpecError('planning.interaction must not be 0.');
   }
+  if (spec.standardize !== undefined && typeof spec.standardize !== 'boolean') throw new InvalidSpecError('standardize must be true or false.');
+  if (spec.standardize === true) {
+    // Standardized risks (methods.md, "Rates, doses, absolute effects") are means of predicted risks.
+    if (spec.outcome.type !== 'binary') {
+      throw new InvalidSpecError('Standardized absolute effects (risks, risk difference, NNT) need a binary outcome; this outcome is continuous.', { column: spec.outcome.column });
+    }
+    if (spec.modifier.type !== 'categorical') {
+      throw new InvalidSpecError(
+        'Standardized absolute effects are given within each level of a categorical modifier; for a continuous modifier, analyse it in bands (a categorical column) or read the conditional effects at chosen values.',
+        { column: spec.modifier.column },
+      );
+    }
+  }
   if (spec.modifier.type === 'continuous') {
     const centre = spec.modifier.centre;
     if (centre !== undefined && !['none', 'mean', 'median'].includes(String(centre)) && !Number.isFinite(centre)) {

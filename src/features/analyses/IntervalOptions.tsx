@@ -86,6 +86,19 @@ export function IntervalOptions({ spec, choices, fieldId, shownError, changeSpec
           <span className="font-semibold">The intervention prevents the outcome</span>: recode each comparison so that the lowest-risk combination is the reference for RERI, AP and S.
         </span>
       </label>
+      <div>
+        <label className="flex items-start gap-2.5 text-sm" htmlFor={fieldId('standardize')}>
+          <input id={fieldId('standardize')} type="checkbox" className="mt-1" checked={spec.standardize} aria-describedby={shownError('standardize') ? `${fieldId('standardize')}-error` : undefined} aria-invalid={Boolean(shownError('standardize'))} onChange={(e) => changeSpec({ standardize: e.target.checked }, 'standardize')} />
+          <span>
+            <span className="font-semibold">Absolute effects</span> (binary outcomes): standardized risks with and without the intervention in each modifier level, their risk difference, the number needed to treat and how the difference varies across levels.
+          </span>
+        </label>
+        {shownError('standardize') && (
+          <p id={`${fieldId('standardize')}-error`} className="field-error" data-field-error={fieldId('standardize')}>
+            {shownError('standardize')}
+          </p>
+        )}
+      </div>
     </Section>
   );
 }

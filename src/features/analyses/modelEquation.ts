@@ -117,6 +117,11 @@ export function modelEquation(spec: Spec, columns: readonly FormColumn[]): Model
       notes.push(`${covariate.column}: reference level ${reference}.`);
     }
   }
+  if (spec.standardize === true && spec.outcome.type === 'binary') {
+    notes.push(
+      `Absolute effects: within each level m of ${spec.modifier.column}, r_a(m) = the mean over its rows of the predicted P(${spec.outcome.column} = ${event}) with ${spec.exposure.column} set to a (reference and other level); RD(m) = r_1(m) − r_0(m), NNT = 1/|RD(m)|, and RD(m) − RD(reference level).`,
+    );
+  }
   return { link, left, terms, notes };
 }
 

@@ -43,6 +43,8 @@ export interface SpecDraft {
   alpha: string;
   multiplicity: Multiplicity;
   preventive: boolean;
+  /** Standardized absolute effects (binary outcome, categorical modifier). */
+  standardize: boolean;
 }
 
 /** The whole form: the words around the specification, and the specification. */
@@ -74,6 +76,7 @@ export function defaultDraft(): AnalysisDraft {
       alpha: '0.05',
       multiplicity: 'holm',
       preventive: false,
+      standardize: false,
     },
   };
 }
@@ -237,5 +240,6 @@ export function specToDraft(spec: Spec, columns: readonly FormColumn[]): SpecDra
     alpha: String(spec.alpha ?? Number((1 - spec.ci.level).toPrecision(12))),
     multiplicity: spec.multiplicity ?? 'holm',
     preventive: spec.preventive ?? false,
+    standardize: spec.standardize ?? false,
   };
 }

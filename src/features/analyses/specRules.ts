@@ -66,8 +66,12 @@ export function measureRefusal(outcome: OutcomeType, model: ModelFamily, measure
  * into the request body: the one check the form's validation, its summary panel and the
  * server's refusal all use, so the summary never calls runnable what saving refuses.
  */
-export function specRuleProblems(spec: Pick<Spec, 'outcome' | 'model' | 'effectMeasure'>): { path: string; message: string }[] {
+export function specRuleProblems(
+  spec: Pick<Spec, 'outcome' | 'model' | 'effectMeasure'> & { standardize?: boolean; modifier?: { type: 'categorical' | 'continuous' } },
+): { path: string; message: string }[] {
   const problems: { path: string; message: string }[] = [];
+  const standardize = spec.standardize === true ? standardizeRefusal(spec.outcome.type, spec.modifier?.type ?? null) : null;
+  if (standardize) problems.push({ path: 'spec.standardize', message: standardize });
   const model = modelRefusal(spec.outcome.type, spec.model);
   if (model) problems.push({ path: 'spec.model', message: model });
   const measure = spec.effectMeasure === undefined ? null : measureRefusal(spec.outcome.type, spec.model, spec.effectMeasure);
@@ -95,4 +99,18 @@ export function measuresFor(outcome: OutcomeType): EffectMeasure[] {
 /** Whether a specification's additive measures (RERI, AP, S) exist: ratio models only. */
 export function isRatioModel(model: ModelFamily): boolean {
   return model !== 'linear';
+}
+
+/**
+ * Why standardized absolute effects (risks under each arm, RD, NNT) cannot be asked for, or
+ * null when they can: they are means of predicted risks, so they need a binary outcome, and
+ * they are given within each level of a categorical modifier (methods.md, "Rates, doses,
+ * absolute effects"). The engine's validateSpec refuses the same.
+ */
+export function standardizeRefusal(outcome: OutcomeType, modifier: 'categorical' | 'continuous' | null): string | null {
+  if (outcome !== 'binary') return 'Standardized risks, risk differences and NNT need a binary outcome; this outcome is continuous.';
+  if (modifier === 'continuous') {
+    return 'Standardized absolute effects are given within each level of a categorical modifier; band the continuous modifier into a categorical column, or read its conditional effects.';
+  }
+  return null;
 }

@@ -117,7 +117,8 @@ export function draftToSpec(columns: readonly FormColumn[], draft: SpecDraft): C
   }
 
   // The same rule check the server applies when saving (specRules.ts).
-  for (const problem of specRuleProblems({ outcome: { column: draft.outcome.column, type: draft.outcome.type }, model: draft.model, effectMeasure: draft.effectMeasure })) {
+  const rules = { outcome: { column: draft.outcome.column, type: draft.outcome.type }, model: draft.model, effectMeasure: draft.effectMeasure };
+  for (const problem of specRuleProblems({ ...rules, standardize: draft.standardize, ...(modifier ? { modifier: { type: modifierType } } : {}) })) {
     errors[fieldForServerPath(problem.path)] = problem.message;
   }
 
@@ -162,6 +163,7 @@ export function draftToSpec(columns: readonly FormColumn[], draft: SpecDraft): C
     alpha: alpha as number,
     multiplicity: draft.multiplicity,
     preventive: draft.preventive,
+    ...(draft.standardize ? { standardize: true } : {}),
   };
   const parsed = SpecSchema.safeParse(spec);
   if (!parsed.success) {

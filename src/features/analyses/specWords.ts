@@ -73,6 +73,7 @@ export function specInWords(spec: Spec, context: WordsContext = {}): string {
     parts.push(`simple slopes at ${slopesInWords(spec.modifier.slopesAt ?? { kind: 'sd' })}, with Johnson-Neyman boundaries`);
   }
   if (spec.preventive) parts.push('additive measures recoded for a preventive intervention');
+  if (spec.standardize) parts.push('standardized risks, risk differences and numbers needed to treat within each level');
   return `${parts.join('; ')}.`;
 }
 
@@ -119,6 +120,12 @@ export function computationSummary(spec: Spec, columns: readonly FormColumn[]): 
       items.push({
         title: 'Interaction on the additive scale',
         detail: `RERI, AP, AP* and S for each level against ${reference}, with ${CI_METHOD_LABEL[spec.ci.method]} intervals${spec.preventive ? ', each recoded so that the lowest-risk combination is the reference' : ''}.`,
+      });
+    }
+    if (spec.outcome.type === 'binary' && spec.standardize) {
+      items.push({
+        title: 'Absolute effects (standardized)',
+        detail: `Within each level of ${spec.modifier.column}, the mean predicted risk with and without ${spec.exposure.column} over that level's patients, the risk difference with its delta-method interval, the number needed to treat (or to harm), and each level's difference from ${reference}'s.`,
       });
     }
     if (spec.outcome.type === 'binary') {

@@ -37,6 +37,7 @@ const SPEC_FIELD: Record<string, string> = {
   multiplicity: 'multiplicity adjustment',
   preventive: 'preventive recoding',
   standardErrors: 'standard errors',
+  standardize: 'absolute effects (standardized risks, risk difference and NNT)',
   'planning.interaction': 'planned interaction size',
   'planning.power': 'planned power',
   extractVersionId: 'extract version',

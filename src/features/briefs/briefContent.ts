@@ -12,6 +12,7 @@ import { MODEL_LABEL } from '../analyses/specRules';
 import { percentText } from '../analyses/specWords';
 import { formatNumber } from '../runs/resultFormat';
 import { buildResultTables } from '../runs/resultTables';
+import { absoluteMethodsSentences, briefAbsolute, briefEValues, type BriefAbsolute, type BriefEValues } from './briefAbsolute';
 import { briefCounts, cellId, countText, isPublished, isSmallStratum, type BriefCounts } from './briefCounts';
 import { smallCountText } from './suppression';
 
@@ -66,6 +67,9 @@ export interface BriefContent {
   outcomeLabel: string;
   keyTable: { referenceLabel: string; rows: KeyRow[] } | null;
   slopes: { label: string; effect: string; p: string }[] | null;
+  /** Standardized absolute effects (binary outcomes, when the run asked for them). */
+  absolute: BriefAbsolute | null;
+  eValues: BriefEValues | null;
   interactionTest: string;
   adjustment: string[];
   plot: BriefPlot | null;
@@ -138,6 +142,8 @@ export function buildBriefContent(result: Result, spec: Spec, facts: BriefFacts,
     outcomeLabel: binary ? 'risk' : 'mean',
     keyTable,
     slopes,
+    absolute: briefAbsolute(result, counts, tables.ciLabel),
+    eValues: briefEValues(result),
     interactionTest: omnibus,
     adjustment: tables.covariates.map((covariate) => covariate.text),
     plot: buildPlot(result, tables, counts, input.plot),
@@ -214,6 +220,7 @@ export function methodsParagraph(result: Result, spec: Spec, facts: BriefFacts, 
       `was fitted to ${countText(counts, 'n')} rows. Intervals are ${percentText(result.ciLevel)} % ${method} intervals; the effect measure is the ${measureWords(result)}.`,
     declared,
     examined,
+    ...absoluteMethodsSentences(result),
     `Data: ${facts.extract.name}, version ${facts.extract.version} (SHA-256 ${facts.extract.sha256}). Engine ${facts.engineVersion}` +
       `${facts.seed !== null ? `, seed ${facts.seed}` : ''}; specification hash ${facts.specHash.slice(0, 16)}.`,
   ].join(' ');

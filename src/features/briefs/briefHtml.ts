@@ -41,6 +41,24 @@ function slopesHtml(content: BriefContent): string {
 <thead><tr><th scope="col">${escapeHtml(content.modifier.column)}</th><th scope="col">${escapeHtml(content.measureName)} (${escapeHtml(content.ciLabel)})</th><th scope="col">p</th></tr></thead><tbody>${rows}</tbody></table></div>`;
 }
 
+function absoluteHtml(content: BriefContent): string {
+  const parts: string[] = [];
+  const absolute = content.absolute;
+  if (absolute) {
+    const [header, ...rows] = absolute.table;
+    const body = rows.map((row, index) => {
+      const caution = absolute.small[index] ? ' <span class="brief-small" title="Small stratum: read with caution">small stratum, read with caution</span>' : '';
+      return `<tr${absolute.small[index] ? ' data-small-stratum' : ''}><th scope="row">${escapeHtml(row[0])}${caution}</th>${row.slice(1).map((cell) => `<td>${escapeHtml(cell)}</td>`).join('')}</tr>`;
+    }).join('');
+    parts.push(`<div class="brief-table-wrap"><table class="brief-table" data-testid="brief-absolute-table"><caption>Absolute effects. ${escapeHtml(absolute.explanation)}${absolute.headline ? ` ${escapeHtml(absolute.headline)}` : ''}</caption>
+<thead><tr>${header.map((cell) => `<th scope="col">${escapeHtml(cell)}</th>`).join('')}</tr></thead><tbody>${body}</tbody></table></div>`);
+  }
+  if (content.eValues) {
+    parts.push(`<p data-testid="brief-evalues">${escapeHtml(content.eValues.sentence)}</p><ul>${content.eValues.lines.map((line) => `<li>${escapeHtml(line)}</li>`).join('')}</ul>`);
+  }
+  return parts.join('');
+}
+
 /** The plot as inline SVG. */
 export function plotSvg(content: BriefContent, width = 640): string {
   const plot = content.plot;
@@ -70,7 +88,7 @@ export function renderBriefHtml(content: BriefContent, meta: BriefHtmlMeta): str
 <p class="brief-question">${escapeHtml(content.question)}</p></header>
 <aside class="brief-cautions" role="note" aria-label="Cautions" data-testid="brief-cautions"><p><strong>Before reading this brief</strong></p><ul>${cautions}</ul></aside>
 ${section('brief-summary', 'Summary', `<p data-testid="brief-summary">${escapeHtml(content.summary)}</p>`)}
-${section('brief-key-table', 'Key table', `${keyTableHtml(content)}${slopesHtml(content)}<p>${escapeHtml(content.interactionTest)}</p>
+${section('brief-key-table', 'Key table', `${keyTableHtml(content)}${slopesHtml(content)}${absoluteHtml(content)}<p>${escapeHtml(content.interactionTest)}</p>
 <p>Adjusted for: ${content.adjustment.length ? escapeHtml(content.adjustment.join('; ')) : 'nothing (no covariates)'}.</p><p class="brief-note" data-testid="brief-small-cell-note">${escapeHtml(content.smallCellNote)}</p>`)}
 ${content.plot ? section('brief-plot-heading', 'Plot', plotSvg(content)) : ''}
 ${section('brief-methods', 'Methods', `<p data-testid="brief-methods">${escapeHtml(content.methods)}</p>`)}

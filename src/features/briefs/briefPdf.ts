@@ -29,7 +29,7 @@ export interface PdfMeta {
 }
 
 /** Characters outside the font's Latin set, spelled in ones it has. */
-const SPELLED: Record<string, string> = { 'χ': 'chi', '≥': '>=', '≤': '<=', '→': '->', '±': '+/-', '†': '*' };
+const SPELLED: Record<string, string> = { 'χ': 'chi', '∞': 'infinity', '≥': '>=', '≤': '<=', '→': '->', '±': '+/-', '†': '*' };
 const COVERED = /[\u0000-\u00ff\u0131\u0152\u0153\u02bb\u02bc\u02c6\u02da\u02dc\u2000-\u201f\u2022\u2026\u2030-\u206f\u20ac\u2122\u2191\u2193\u2212\u2215]/;
 
 /** The text with every character the embedded font cannot draw replaced. */
@@ -85,6 +85,16 @@ export function renderBriefPdf(content: BriefContent, pageSize: PageSize, meta: 
 
   heading('Key table');
   drawKeyTable(doc, content, width, margin);
+  if (content.absolute) {
+    text(`Absolute effects. ${content.absolute.explanation}${content.absolute.headline ? ` ${content.absolute.headline}` : ''}`, { size: 8.5 });
+    const [header, ...rows] = content.absolute.table;
+    const marked = rows.map((row, index) => (content.absolute?.small[index] ? [`${row[0]} †`, ...row.slice(1)] : row));
+    drawRows(doc, [header, ...marked], [0.16, 0.15, 0.15, 0.2, 0.14, 0.2], width, margin);
+  }
+  if (content.eValues) {
+    text(content.eValues.sentence, { size: 8.5 });
+    for (const line of content.eValues.lines) text(`• ${line}`, { size: 8.5, gap: 0.1 });
+  }
   text(content.interactionTest);
   text(`Adjusted for: ${content.adjustment.length ? content.adjustment.join('; ') : 'nothing (no covariates)'}.`);
   text(content.smallCellNote, { size: 8.5, color: MUTED });

@@ -8,6 +8,7 @@ import type { Result, Spec } from '@/engine/boundary/schemas';
 import { CAUTION_VERSION, RESULT_CAUTIONS } from '@/lib/cautions';
 import { csvRecord } from '@/lib/csv';
 import { specInWords } from '../analyses/specWords';
+import { absoluteRows, eValueRows } from './absoluteCsv';
 import { displayLevels, measureInfo, type MeasureInfo } from './resultFormat';
 import { johnsonNeymanSentence, multiplicityNote, OMNIBUS_LABEL } from './resultWords';
 
@@ -201,6 +202,8 @@ export function resultCsv(result: Result, spec: Spec): string {
   const rows = [
     ...jointRows(context),
     ...withinStratumRows(context),
+    ...eValueRows(result, context.levels),
+    ...absoluteRows(result, context.levels),
     ...modifierWithinArmRows(context),
     ...interactionRows(context),
     ...stratifiedRows(context),

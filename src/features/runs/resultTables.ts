@@ -15,6 +15,7 @@ import {
   displayLevels, fixed, formatCount, formatNumber, formatP, intervalCell, measureInfo, modifierDecimals, numberCell, pCell,
   type IntervalCell, type MeasureInfo, type NumberCell,
 } from './resultFormat';
+import { absoluteEffectsView, eValuesView, type AbsoluteEffectsView, type EValuesView } from './absoluteEffectsView';
 import { perResult } from './finishedResults';
 import {
   johnsonNeymanSentence, missingInWords, multiplicityNote, OMNIBUS_LABEL, planningInWords, referenceText, warningsInWords,
@@ -89,6 +90,10 @@ export interface ResultTables {
   warnings: WarningView[];
   /** The minimum detectable interaction in words. */
   powerNote: string | null;
+  /** Standardized risks, RD, NNT and interaction contrasts (binary outcomes, when asked for). */
+  absolute: AbsoluteEffectsView | null;
+  /** E-values of the stratum ratios, by level. */
+  eValues: EValuesView | null;
 }
 
 /** What every table builder reads: the result, how its measure is shown, and its display levels. */
@@ -282,5 +287,7 @@ export function buildResultTables(result: Result, spec: Spec): ResultTables {
     multiplicityNote: multiplicityNote(result),
     warnings: warningsInWords(result),
     powerNote: planningInWords(result, measure),
+    absolute: absoluteEffectsView(result),
+    eValues: eValuesView(result),
   };
 }

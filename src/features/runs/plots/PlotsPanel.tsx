@@ -3,6 +3,7 @@
  * profile plot side by side, and for continuous modifiers the significance band plot
  * below them. Mount with client:only="react" on the results page only.
  */
+import AbsoluteEffectsPlot from './AbsoluteEffectsPlot';
 import type { PlotInput } from './plotInput';
 import ProfilePlot from './ProfilePlot';
 import SignificanceBandPlot from './SignificanceBandPlot';
@@ -22,6 +23,7 @@ export default function PlotsPanel({ result }: PlotsPanelProps) {
         <ProfilePlot result={result} />
       </div>
       {continuous && <SignificanceBandPlot result={result} />}
+      {result.standardized && <AbsoluteEffectsPlot result={result} />}
     </section>
   );
 }
