@@ -1,7 +1,11 @@
 /**
  * Results-page benchmark (issue target, measured, not asserted): the results page of a
  * 12,000-row demo run, and the review board, answer in at most 200 ms at the 95th
- * percentile with 20 and with 50 concurrent readers on loopback; prints p50, p95 and p99. Uses its own cluster (port 54369, .data/bench-results) and the
+ * percentile with 20 and with 50 concurrent readers on loopback; prints p50, p95 and p99,
+ * and first, one reader at a time, each page's size, the server's CPU time per view and the
+ * database statements per view (and the same for the plot data the results page fetches).
+ * CROSSGRAIN_BENCH_LOAD=0 skips the loads; CROSSGRAIN_BENCH_VS measures another build in turn
+ * (see below). Uses its own cluster (port 54369, .data/bench-results) and the
  * built server (built first when dist/ is missing), both removed or stopped at the end.
  */
 import { spawn, spawnSync } from 'node:child_process';
