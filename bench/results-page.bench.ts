@@ -1,11 +1,15 @@
 /**
  * Results-page benchmark (issue target, measured, not asserted): the results page of a
  * 12,000-row demo run, and the review board, answer in at most 200 ms at the 95th
- * percentile with 20 and with 50 concurrent readers on loopback; prints p50, p95 and p99. Uses its own cluster (port 54369, .data/bench-results) and the
+ * percentile with 20 and with 50 concurrent readers on loopback; prints p50, p95 and p99,
+ * and first, one reader at a time, each page's size, the server's CPU time per view and the
+ * database statements per view (and the same for the plot data the results page fetches).
+ * CROSSGRAIN_BENCH_LOAD=0 skips the loads; CROSSGRAIN_BENCH_VS measures another build in turn
+ * (see below). Uses its own cluster (port 54369, .data/bench-results) and the
  * built server (built first when dist/ is missing), both removed or stopped at the end.
  */
 import { spawn, spawnSync } from 'node:child_process';
-import { existsSync } from 'node:fs';
+import { existsSync, readFileSync, statSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 
@@ -18,13 +22,15 @@ Object.assign(process.env, {
 });
 /** The issue's two loads: 20 and 50 concurrent signed-in readers. */
 const READER_COUNTS = [20, 50];
+/** CROSSGRAIN_BENCH_LOAD=0 prints only the one-reader figures (size, CPU, statements) and skips the loads. */
+const withLoad = process.env.CROSSGRAIN_BENCH_LOAD !== '0';
 const REQUESTS = 600;
 
-const { startCluster, destroyCluster } = await import('../db/scripts/postgres.mjs');
+const { startCluster, destroyCluster, runClusterTool, clusterSettings } = await import('../db/scripts/postgres.mjs');
 const cluster = { port: dbPort, dataRoot };
 startCluster(cluster);
 const env = { ...process.env };
-let server: ReturnType<typeof spawn> | null = null;
+const servers: ReturnType<typeof spawn>[] = [];
 try {
   if (spawnSync('npx', ['tsx', 'db/migrate.ts', 'up'], { cwd: root, env }).status !== 0) throw new Error('migration failed');
   if (!existsSync(path.join(root, 'dist/server/entry.mjs'))) spawnSync('npx', ['astro', 'build', '--silent'], { cwd: root, env, stdio: 'inherit' });
@@ -56,32 +62,97 @@ try {
 
   // CROSSGRAIN_BENCH_CPU_PROF=DIR writes the server's CPU profile there (open it in Chrome's DevTools).
   // The profile is written at a normal exit, so SIGTERM is turned into one.
-  const entry = path.join(root, 'dist/server/entry.mjs');
-  const profiled = process.env.CROSSGRAIN_BENCH_CPU_PROF
-    ? ['--cpu-prof', `--cpu-prof-dir=${process.env.CROSSGRAIN_BENCH_CPU_PROF}`, '--input-type=module', '-e',
-       `process.on('SIGTERM', () => process.exit(0)); await import(${JSON.stringify(entry)});`]
-    : [entry];
-  server = spawn(process.execPath, profiled, { cwd: root, env: { ...env, HOST: '127.0.0.1', PORT: String(appPort) }, stdio: 'ignore' });
-  const base = `http://127.0.0.1:${appPort}`;
-  for (let i = 0; i < 100; i += 1) {
-    try {
-      if ((await fetch(`${base}/api/health`)).ok) break;
-    } catch { /* not up yet */ }
-    await new Promise((resolve) => setTimeout(resolve, 100));
-  }
-  const signIn = await fetch(`${base}/api/auth/sign-in`, {
-    method: 'POST', headers: { 'Content-Type': 'application/json' },
-    body: JSON.stringify({ email: 'clinician@tern-valley.example', password: 'tern-valley-demo' }),
-  });
-  const cookie = signIn.headers.getSetCookie()[0].split(';')[0];
-  const pages = [
-    { name: 'results page /runs/{id} (12,000-row demo run)', url: `${base}/runs/${runId}`, mark: 'result-tables' },
-    { name: 'review board /initiatives/{id}/board', url: `${base}/initiatives/${initiative.id}/board`, mark: 'Review board' },
+  // CROSSGRAIN_BENCH_VS=PATH/dist/server/entry.mjs (another build, for instance of the previous
+  // commit) starts that server too, on the same database, and measures the two in turn, A B A B,
+  // so that both meet the same load from the rest of the machine.
+  const builds = [
+    { label: 'this build', entry: path.join(root, 'dist/server/entry.mjs'), port: appPort },
+    ...(process.env.CROSSGRAIN_BENCH_VS ? [{ label: 'other build', entry: path.resolve(process.env.CROSSGRAIN_BENCH_VS), port: appPort + 1 }] : []),
   ];
-  for (const page of pages) for (let i = 0; i < 20; i += 1) await (await fetch(page.url, { headers: { Cookie: cookie } })).text();
+  const targets = [];
+  for (const build of builds) {
+    const args = process.env.CROSSGRAIN_BENCH_CPU_PROF
+      ? ['--cpu-prof', `--cpu-prof-dir=${process.env.CROSSGRAIN_BENCH_CPU_PROF}`, '--input-type=module', '-e',
+         `process.on('SIGTERM', () => process.exit(0)); await import(${JSON.stringify(build.entry)});`]
+      : [build.entry];
+    const child = spawn(process.execPath, args, { cwd: root, env: { ...env, HOST: '127.0.0.1', PORT: String(build.port) }, stdio: 'ignore' });
+    servers.push(child);
+    const base = `http://127.0.0.1:${build.port}`;
+    for (let i = 0; i < 100; i += 1) {
+      try {
+        if ((await fetch(`${base}/api/health`)).ok) break;
+      } catch { /* not up yet */ }
+      await new Promise((resolve) => setTimeout(resolve, 100));
+    }
+    const signIn = await fetch(`${base}/api/auth/sign-in`, {
+      method: 'POST', headers: { 'Content-Type': 'application/json' },
+      body: JSON.stringify({ email: 'clinician@tern-valley.example', password: 'tern-valley-demo' }),
+    });
+    const cookie = signIn.headers.getSetCookie()[0].split(';')[0];
+    const pages = [
+      { name: 'results page /runs/{id} (12,000-row demo run)', url: `${base}/runs/${runId}`, mark: 'result-tables', headers: {} },
+      { name: 'review board /initiatives/{id}/board', url: `${base}/initiatives/${initiative.id}/board`, mark: 'Review board', headers: {} },
+    ];
+    // The plot data the results page's plots fetch (builds that serve it), first and then as a
+    // browser asks again on a later view (304 without a body).
+    const plotUrl = `${base}/api/runs/${runId}/plot-data`;
+    const plotData = await fetch(plotUrl, { headers: { Cookie: cookie } });
+    await plotData.arrayBuffer();
+    const etag = plotData.headers.get('etag');
+    const extras = plotData.ok && etag
+      ? [{ name: 'plot data /api/runs/{id}/plot-data', url: plotUrl, mark: '', headers: {} }, { name: 'plot data, asked again (If-None-Match)', url: plotUrl, mark: '', headers: { 'If-None-Match': etag } }]
+      : [];
+    for (const page of pages) for (let i = 0; i < 20; i += 1) await (await fetch(page.url, { headers: { Cookie: cookie } })).text();
+    targets.push({ label: build.label, pid: child.pid, cookie, pages, extras });
+  }
+
+  // Where one view's time goes, one reader at a time: the page's size, the server's CPU time
+  // per view (user + system from /proc, so other work on the machine does not count), and
+  // the statements the database receives for one view (its statement log, on only here).
+  const serverCpuMs = (pid: number | undefined) => {
+    const fields = readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1].split(' ');
+    return ((Number(fields[11]) + Number(fields[12])) * 1000) / 100;
+  };
+  const psql = (sql: string) => runClusterTool('psql', ['-q', '-d', 'postgres', '-c', sql], { stdio: 'ignore' }, cluster);
+  const logFile = clusterSettings(cluster).logFile;
+  const ROUNDS = 5;
+  const VIEWS = 20;
+  for (let index = 0; index < targets[0].pages.length + targets[0].extras.length; index += 1) {
+    const cpu = targets.map(() => 0);
+    const bytes = targets.map(() => 0);
+    const statuses = targets.map(() => 0);
+    for (let round = 0; round < ROUNDS; round += 1) {
+      for (const [t, target] of targets.entries()) {
+        const page = [...target.pages, ...target.extras][index];
+        if (!page) continue;
+        const cpu0 = serverCpuMs(target.pid);
+        for (let i = 0; i < VIEWS; i += 1) {
+          const response = await fetch(page.url, { headers: { Cookie: target.cookie, ...page.headers } });
+          bytes[t] = (await response.arrayBuffer()).byteLength;
+          statuses[t] = response.status;
+        }
+        cpu[t] += serverCpuMs(target.pid) - cpu0;
+      }
+    }
+    for (const [t, target] of targets.entries()) {
+      const page = [...target.pages, ...target.extras][index];
+      if (!page) continue;
+      psql("ALTER SYSTEM SET log_statement = 'all'");
+      psql('SELECT pg_reload_conf()');
+      await new Promise((resolve) => setTimeout(resolve, 300));
+      const logStart = statSync(logFile).size;
+      await (await fetch(page.url, { headers: { Cookie: target.cookie, ...page.headers } })).arrayBuffer();
+      await new Promise((resolve) => setTimeout(resolve, 300));
+      const logged = readFileSync(logFile).subarray(logStart).toString('utf8');
+      const statements = (logged.match(/LOG: {2}(statement|execute [^:]*):/g) ?? []).length;
+      psql('ALTER SYSTEM RESET log_statement');
+      psql('SELECT pg_reload_conf()');
+      console.log(`[${target.label}] ${page.name}: ${statuses[t]}, ${(bytes[t] / 1024).toFixed(1)} KiB, server CPU ${(cpu[t] / (ROUNDS * VIEWS)).toFixed(1)} ms per view (mean of ${ROUNDS * VIEWS} one at a time), ${statements} database statements per view (BEGIN and COMMIT included)`);
+    }
+  }
 
   /** `requests` loads of `url` by `readers` concurrent readers: latencies in ms, sorted. */
-  async function measure(url: string, mark: string, readers: number, requests: number) {
+  async function measure(url: string, cookie: string, mark: string, readers: number, requests: number) {
     const latencies: number[] = [];
     let next = 0;
     let failures = 0;
@@ -101,20 +172,23 @@ try {
     return { latencies, failures, perSecond: requests / seconds };
   }
 
-  for (const page of pages) {
+  for (const [index, page] of (withLoad ? targets[0].pages : []).entries()) {
     for (const readers of READER_COUNTS) {
-      const { latencies, failures, perSecond } = await measure(page.url, page.mark, readers, REQUESTS);
-      const at = (q: number) => latencies[Math.min(latencies.length - 1, Math.floor(q * latencies.length))];
-      const p95 = at(0.95);
-      console.log(`${page.name}: ${REQUESTS} requests, ${readers} concurrent readers, ${perSecond.toFixed(0)} requests/s, ${failures} failures`);
-      console.log(`  p50 ${at(0.5).toFixed(1)} ms   p95 ${p95.toFixed(1)} ms   p99 ${at(0.99).toFixed(1)} ms   max ${latencies[latencies.length - 1].toFixed(1)} ms   target p95 <= 200 ms: ${p95 <= 200 ? 'met' : 'NOT MET'}`);
+      for (const target of targets) {
+        const loadAverage = readFileSync('/proc/loadavg', 'utf8').split(' ')[0];
+        const { latencies, failures, perSecond } = await measure(target.pages[index].url, target.cookie, page.mark, readers, REQUESTS);
+        const at = (q: number) => latencies[Math.min(latencies.length - 1, Math.floor(q * latencies.length))];
+        const p95 = at(0.95);
+        console.log(`[${target.label}] ${page.name}: ${REQUESTS} requests, ${readers} concurrent readers, ${perSecond.toFixed(0)} requests/s, ${failures} failures (load average ${loadAverage} before)`);
+        console.log(`  p50 ${at(0.5).toFixed(1)} ms   p95 ${p95.toFixed(1)} ms   p99 ${at(0.99).toFixed(1)} ms   max ${latencies[latencies.length - 1].toFixed(1)} ms   target p95 <= 200 ms: ${p95 <= 200 ? 'met' : 'NOT MET'}`);
+      }
     }
   }
 } finally {
-  if (server) {
-    const exited = new Promise((resolve) => server?.once('exit', resolve));
+  await Promise.all(servers.map(async (server) => {
+    const exited = new Promise((resolve) => server.once('exit', resolve));
     server.kill('SIGTERM');
     await exited;
-  }
+  }));
   destroyCluster(cluster);
 }
