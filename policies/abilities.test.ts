@@ -21,6 +21,7 @@ const GRANTS: Record<Role, Partial<Record<SubjectName, Action[]>>> = {
     Run: ['read', 'run', 'submit', 'export', 'comment'],
     Comment: ['read'],
     Brief: ['read', 'create', 'update', 'publish', 'export'],
+    Plan: ['read', 'create', 'update'],
   },
   clinician: {
     Initiative: ['read'],
@@ -29,6 +30,7 @@ const GRANTS: Record<Role, Partial<Record<SubjectName, Action[]>>> = {
     Run: ['read', 'comment', 'decide', 'export'],
     Comment: ['read'],
     Brief: ['read', 'export'],
+    Plan: ['read'],
   },
   auditor: {
     Initiative: ['read'],
@@ -37,6 +39,7 @@ const GRANTS: Record<Role, Partial<Record<SubjectName, Action[]>>> = {
     Run: ['read', 'rerun', 'export'],
     Comment: ['read'],
     Brief: ['read', 'export'],
+    Plan: ['read'],
     AuditTrail: ['read', 'verify', 'export'],
   },
 };

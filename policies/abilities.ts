@@ -19,6 +19,8 @@ export type Action = (typeof ACTIONS)[number];
 
 export const SUBJECTS = [
   'Initiative', 'Extract', 'ExtractRows', 'Analysis', 'Run', 'Comment', 'Brief', 'AuditTrail',
+  // The initiative's plan: its sample-size plan and its register of prespecified modifiers.
+  'Plan',
   'User', 'Membership', 'Outbox',
 ] as const;
 export type SubjectName = (typeof SUBJECTS)[number];
@@ -52,7 +54,8 @@ type Cannot = Builder['cannot'];
 /** What an analyst may do within one initiative. */
 function analystRules(can: Can, initiativeId: string, userId: string): void {
   const scope = { initiativeId };
-  can('read', ['Initiative', 'Extract', 'ExtractRows', 'Analysis', 'Run', 'Comment', 'Brief'], scope);
+  can('read', ['Initiative', 'Extract', 'ExtractRows', 'Analysis', 'Run', 'Comment', 'Brief', 'Plan'], scope);
+  can(['create', 'update'], 'Plan', scope);
   can(['create', 'update', 'archive'], 'Extract', scope);
   can(['create', 'update'], 'Analysis', scope);
   can(['run', 'submit', 'export'], 'Run', scope);
@@ -65,7 +68,7 @@ function analystRules(can: Can, initiativeId: string, userId: string): void {
 /** What a clinician may do within one initiative: read, comment, decide. */
 function clinicianRules(can: Can, cannot: Cannot, initiativeId: string, userId: string): void {
   const scope = { initiativeId };
-  can('read', ['Initiative', 'Extract', 'Analysis', 'Run', 'Comment', 'Brief'], scope);
+  can('read', ['Initiative', 'Extract', 'Analysis', 'Run', 'Comment', 'Brief', 'Plan'], scope);
   const rowsAllowed: MongoQuery = { initiativeId, readersSeeRows: true };
   const ownRun: MongoQuery = { startedBy: userId };
   can('read', 'ExtractRows', rowsAllowed);
@@ -77,7 +80,7 @@ function clinicianRules(can: Can, cannot: Cannot, initiativeId: string, userId: 
 /** What an auditor may do within one initiative: read everything, verify, re-run. */
 function auditorRules(can: Can, initiativeId: string, userId: string): void {
   const scope = { initiativeId };
-  can('read', ['Initiative', 'Extract', 'Analysis', 'Run', 'Comment', 'Brief', 'AuditTrail'], scope);
+  can('read', ['Initiative', 'Extract', 'Analysis', 'Run', 'Comment', 'Brief', 'AuditTrail', 'Plan'], scope);
   const rowsAllowed: MongoQuery = { initiativeId, readersSeeRows: true };
   can('read', 'ExtractRows', rowsAllowed);
   can(['verify', 'export'], 'AuditTrail', scope);

@@ -16,6 +16,7 @@ import { BoardView, CommentBody, DecisionBody, ReviewView, SubmitBody } from '..
 import { OutboxQuery } from '../admin/outbox';
 import { BRIEF_OPERATIONS } from './briefOperations';
 import { NOTIFICATION_OPERATIONS } from './notificationOperations';
+import { PLAN_OPERATIONS } from './planOperations';
 import type { Operation } from './operation';
 
 export type { Auth, Operation } from './operation';
@@ -124,4 +125,5 @@ export const OPERATIONS: Operation[] = [
   // Briefs
   ...BRIEF_OPERATIONS,
   ...NOTIFICATION_OPERATIONS,
+  ...PLAN_OPERATIONS,
 ];

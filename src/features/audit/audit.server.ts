@@ -48,6 +48,9 @@ export const AUDIT_ACTIONS = [
   'brief.settings-changed',
   'brief.recipient-added',
   'brief.recipient-removed',
+  'plan.saved',
+  'prespecification.registered',
+  'prespecification.withdrawn',
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number] | `${string}.${string}`;
 

@@ -9,7 +9,7 @@ import { useState, type SubmitEvent } from 'react';
 import { QueryRoot } from '@/components/ui/QueryRoot';
 import { HydratedFieldset } from '@/components/ui/HydratedFieldset';
 import { apiFetch } from '@/lib/client/api';
-import { errorText } from './errorText';
+import { errorText } from '@/lib/client/errorText';
 
 interface Props {
   briefId: string;

@@ -7,7 +7,7 @@ import { useState, type SubmitEvent } from 'react';
 import { HydratedFieldset } from '@/components/ui/HydratedFieldset';
 import { QueryRoot } from '@/components/ui/QueryRoot';
 import { apiFetch } from '@/lib/client/api';
-import { errorText } from './errorText';
+import { errorText } from '@/lib/client/errorText';
 
 interface Props {
   initiativeId: string;

@@ -24,6 +24,7 @@ import type { RunStatus } from './runs.schema';
 import type { Verification } from './runVerification';
 import { cachedResult, keepResult } from './finishedResults';
 import { parseStoredResult } from './storedResult';
+import { planStanding } from '@/features/planning/planning.server';
 
 export interface Actor {
   id: string;
@@ -39,8 +40,9 @@ export interface StartOptions {
 }
 
 /**
- * Creates a queued run and puts it on the queue. A run is exploratory unless the
- * analysis was prespecified before the pinned extract version was uploaded.
+ * Creates a queued run and puts it on the queue. A run is exploratory unless its modifier
+ * was on the initiative's register of prespecified modifiers (not withdrawn) before the
+ * pinned extract version was uploaded, or the analysis was declared prespecified before then.
  */
 export async function startRun(transaction: Transaction, actor: Actor, analysisId: string, options: StartOptions = {}): Promise<QueuedRun> {
   const analysis = await Analysis.findByPk(analysisId, {
@@ -51,7 +53,13 @@ export async function startRun(transaction: Transaction, actor: Actor, analysisI
   const version = analysis?.extractVersion;
   if (!analysis || !version) throw notFound('That analysis');
   if (version.status !== 'ready') throw conflict('The pinned extract version is not confirmed.');
-  const exploratory = !analysis.prespecifiedAt || new Date(version.uploadedAt) > new Date(analysis.prespecifiedAt);
+  // Planned when the modifier is on the initiative's register from before the data, or the
+  // analysis itself was declared prespecified before the version was uploaded.
+  const standing = await planStanding(transaction, {
+    initiativeId: analysis.initiativeId, modifierColumn: analysis.spec.modifier.column, outcomeColumn: analysis.spec.outcome.column, dataArrivedAt: version.uploadedAt,
+  }, null);
+  const declared = analysis.prespecifiedAt !== null && new Date(version.uploadedAt) <= new Date(analysis.prespecifiedAt);
+  const exploratory = standing.status === 'exploratory' && !declared;
   return queueRun(transaction, actor, {
     analysisId, initiativeId: analysis.initiativeId, extractVersionId: analysis.extractVersionId, extractSha256: version.sha256,
     spec: analysis.spec, exploratory, seed: analysis.spec.ci.seed ?? (analysis.spec.ci.method === 'bootstrap' ? 1 : null), verifiesRunId: null,

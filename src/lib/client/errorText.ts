@@ -1,4 +1,4 @@
-import { ApiError } from '@/lib/client/api';
+import { ApiError } from './api';
 
 /** An API error in words: the field messages when the server named fields, else its message. */
 export function errorText(error: Error): string {
