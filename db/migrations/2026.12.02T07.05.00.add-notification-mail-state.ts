@@ -7,7 +7,7 @@ import type { Migration } from '../migrate';
  * sends what is still pending a minute later, so a process that stops between the commit
  * and the send loses no mail, and a claimed mail is sent once. After five failed attempts a
  * mail is `failed` and stays in the bell. Rows from before stay `none`: they are not sent
- * again. Policies in policies/rls/014_notification_mail.sql.
+ * again. Policies in policies/rls/015_notification_mail.sql.
  */
 export const up: Migration = async ({ context }) => {
   await context.sql(`
@@ -17,7 +17,7 @@ export const up: Migration = async ({ context }) => {
       ADD COLUMN mail_claimed_at timestamptz;
     CREATE INDEX notifications_mail_pending_idx ON notifications (created_at) WHERE mail_state = 'pending';
   `);
-  await context.applyPolicyFile('014_notification_mail.sql');
+  await context.applyPolicyFile('015_notification_mail.sql');
 };
 
 export const down: Migration = async ({ context }) => {
