@@ -1,0 +1,56 @@
+import { existsSync, openSync, readSync, closeSync } from 'node:fs';
+import path from 'node:path';
+import { QueryTypes } from 'sequelize';
+import { env } from '@/lib/server/env';
+import type { Migration } from '../migrate';
+
+/** Bytes per stored chunk of a raw upload file (src/features/extracts/rawFiles.server.ts uses the same). */
+const CHUNK_BYTES = 1024 * 1024;
+
+/**
+ * The raw upload file of each version moves from the receiving server's disk
+ * (`CROSSGRAIN_DATA_DIR/extracts/<initiative>/<version>.csv`) into the database, in
+ * chunks of 1 MiB, so that every app server can serve every request. Existing files are
+ * copied in (chunk by chunk, never held whole); the files themselves are left where they
+ * are, to be removed by hand once the migration has run. A version whose file is not on
+ * this server's disk keeps no raw file (its columns, which analyses use, are unchanged).
+ */
+export const up: Migration = async ({ context }) => {
+  await context.sql(`
+    CREATE TABLE extract_files (
+      version_id uuid NOT NULL REFERENCES extract_versions(id) ON DELETE CASCADE,
+      initiative_id uuid NOT NULL REFERENCES initiatives(id),
+      chunk integer NOT NULL CHECK (chunk >= 0),
+      bytes bytea NOT NULL,
+      PRIMARY KEY (version_id, chunk)
+    );
+  `);
+  const versions = await context.sequelize.query<{ id: string; initiative_id: string }>(
+    'SELECT id, initiative_id FROM extract_versions ORDER BY uploaded_at',
+    { type: QueryTypes.SELECT },
+  );
+  const buffer = Buffer.alloc(CHUNK_BYTES);
+  for (const version of versions) {
+    const file = path.resolve(env.CROSSGRAIN_DATA_DIR, 'extracts', version.initiative_id, `${version.id}.csv`);
+    if (!existsSync(file)) continue;
+    const descriptor = openSync(file, 'r');
+    try {
+      for (let chunk = 0; ; chunk += 1) {
+        const length = readSync(descriptor, buffer, 0, CHUNK_BYTES, null);
+        if (length === 0 && chunk > 0) break;
+        await context.sequelize.query(
+          'INSERT INTO extract_files (version_id, initiative_id, chunk, bytes) VALUES ($1, $2, $3, $4)',
+          { bind: [version.id, version.initiative_id, chunk, Buffer.from(buffer.subarray(0, length))] },
+        );
+        if (length < CHUNK_BYTES) break;
+      }
+    } finally {
+      closeSync(descriptor);
+    }
+  }
+  await context.applyPolicyFile('014_extract_files.sql');
+};
+
+export const down: Migration = async ({ context }) => {
+  await context.sql('DROP TABLE IF EXISTS extract_files;');
+};
