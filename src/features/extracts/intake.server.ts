@@ -62,6 +62,18 @@ export async function sweepPartialUploads(directory = uploadDir(), startedAt = p
 
 let swept: Promise<string[]> | null = null;
 
+/**
+ * Sweeps the partial files of an earlier process once per process: called when the server
+ * loads its request handling, and again (a no-op then) before the first upload.
+ */
+export function sweepOnce(): Promise<string[]> {
+  swept ??= sweepPartialUploads().catch((error: unknown) => {
+    logger.warn({ err: error }, 'could not sweep partial upload files');
+    return [];
+  });
+  return swept;
+}
+
 /** Closes a partial file (waiting for a pending open to settle) and removes it. */
 async function discardPartFile(file: ReturnType<typeof createWriteStream>, partFile: string): Promise<void> {
   if (!file.closed) {
@@ -191,7 +203,7 @@ export async function receiveUpload(
   });
 
   mkdirSync(uploadDir(), { recursive: true, mode: 0o700 });
-  await (swept ??= sweepPartialUploads());
+  await sweepOnce();
   const partFile = path.join(uploadDir(), `${start.versionId}.part`);
   const expectedBytes = Number(request.headers.get('content-length') ?? 0) || undefined;
   if (expectedBytes && expectedBytes > env.CROSSGRAIN_UPLOAD_MAX_BYTES) {
