@@ -1,6 +1,6 @@
 import { existsSync, openSync, readSync, closeSync } from 'node:fs';
 import path from 'node:path';
-import { QueryTypes } from 'sequelize';
+import { QueryTypes, type Sequelize } from 'sequelize';
 import { env } from '@/lib/server/env';
 import type { Migration } from '../migrate';
 
@@ -25,20 +25,36 @@ export const up: Migration = async ({ context }) => {
       PRIMARY KEY (version_id, chunk)
     );
   `);
-  const versions = await context.sequelize.query<{ id: string; initiative_id: string }>(
-    'SELECT id, initiative_id FROM extract_versions ORDER BY uploaded_at',
+  await copyRawFiles(context.sequelize, env.CROSSGRAIN_DATA_DIR);
+  await context.applyPolicyFile('014_extract_files.sql');
+};
+
+export const down: Migration = async ({ context }) => {
+  await context.sql('DROP TABLE IF EXISTS extract_files;');
+};
+
+/**
+ * Copies each version's raw file from `dataDir/extracts/<initiative>/<version>.csv` into
+ * extract_files, chunk by chunk, for the versions that have none yet; returns how many
+ * versions were copied. Runs as the owner (before the policies apply, or bypassing them).
+ */
+export async function copyRawFiles(sequelize: Sequelize, dataDir: string): Promise<number> {
+  const versions = await sequelize.query<{ id: string; initiative_id: string }>(
+    `SELECT v.id, v.initiative_id FROM extract_versions v
+      WHERE NOT EXISTS (SELECT 1 FROM extract_files f WHERE f.version_id = v.id) ORDER BY v.uploaded_at`,
     { type: QueryTypes.SELECT },
   );
   const buffer = Buffer.alloc(CHUNK_BYTES);
+  let copied = 0;
   for (const version of versions) {
-    const file = path.resolve(env.CROSSGRAIN_DATA_DIR, 'extracts', version.initiative_id, `${version.id}.csv`);
+    const file = path.resolve(dataDir, 'extracts', version.initiative_id, `${version.id}.csv`);
     if (!existsSync(file)) continue;
     const descriptor = openSync(file, 'r');
     try {
       for (let chunk = 0; ; chunk += 1) {
         const length = readSync(descriptor, buffer, 0, CHUNK_BYTES, null);
         if (length === 0 && chunk > 0) break;
-        await context.sequelize.query(
+        await sequelize.query(
           'INSERT INTO extract_files (version_id, initiative_id, chunk, bytes) VALUES ($1, $2, $3, $4)',
           { bind: [version.id, version.initiative_id, chunk, Buffer.from(buffer.subarray(0, length))] },
         );
@@ -47,10 +63,7 @@ export const up: Migration = async ({ context }) => {
     } finally {
       closeSync(descriptor);
     }
+    copied += 1;
   }
-  await context.applyPolicyFile('014_extract_files.sql');
-};
-
-export const down: Migration = async ({ context }) => {
-  await context.sql('DROP TABLE IF EXISTS extract_files;');
-};
+  return copied;
+}
