@@ -88,7 +88,9 @@ export async function storeVersion(
  * The first half of storing a version: checks that the intake is still processing
  * (locking it, so a cancel waits for the end), writes the extract when new and the
  * version, and returns the version's number; null (writing nothing) when the intake was
- * cancelled meanwhile. The columns are written next, then {@link closeVersion}.
+ * cancelled meanwhile. The columns are written next, then {@link closeVersion}. With
+ * `checkIntake: false` the caller checks the intake itself, later (see
+ * {@link intakeStillProcessing}), so that the intake is not locked while it stores.
  */
 export async function openVersion(
   transaction: Transaction,
@@ -98,9 +100,9 @@ export async function openVersion(
   profile: ColumnProfile[],
   findings: unknown[],
   columnCount: number,
+  options: { checkIntake?: boolean } = {},
 ): Promise<number | null> {
-  const intake = await ExtractIntake.findByPk(start.versionId, { attributes: ['id', 'status'], lock: transaction.LOCK.UPDATE, transaction });
-  if (!intake || intake.status !== 'processing') return null;
+  if (options.checkIntake !== false && !(await intakeStillProcessing(transaction, start.versionId))) return null;
   if (start.newExtract) {
     await Extract.create({ id: start.extractId, initiativeId: start.initiativeId, name: start.name, createdBy: uploader.id }, { transaction });
   }
@@ -116,6 +118,12 @@ export async function openVersion(
     { transaction },
   );
   return next;
+}
+
+/** Locks the intake record (a cancel then waits for the transaction's end) and tells whether it is still processing. */
+export async function intakeStillProcessing(transaction: Transaction, versionId: string): Promise<boolean> {
+  const intake = await ExtractIntake.findByPk(versionId, { attributes: ['id', 'status'], lock: transaction.LOCK.UPDATE, transaction });
+  return intake?.status === 'processing';
 }
 
 /** The second half of storing a version: marks the intake stored and records the audit event. */

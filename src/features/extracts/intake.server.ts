@@ -377,6 +377,7 @@ async function finishIntake(
     });
     const outcome = await storeStagedVersion(
       appSequelize, (work) => withIdentity(uploader.id, work), uploader, start, read, groups, keeping, partFile,
+      () => void updateIntake(uploader.id, start.versionId, {}).catch(() => {}),
     );
     if (outcome.kind === 'refused') {
       const reasons = outcome.review.refusals.map((r) => ({ code: 'identifier-screen', column: r.column, rules: r.rules, categories: r.categories, message: r.message }));

@@ -12,12 +12,13 @@ import { sequelize as appSequelize, withIdentity } from '@/lib/server/db';
 /** Bytes per stored chunk (the migration that moved the files in uses the same). */
 export const RAW_CHUNK_BYTES = 1024 * 1024;
 
-/** Copies the file at `file` into the database as the raw file of a version, in the caller's transaction. */
+/** Copies the file at `file` into the database as the raw file of a version, in the caller's transaction; `onChunks` is called every 32 chunks. */
 export async function storeRawFile(
   db: Sequelize,
   transaction: Transaction,
   version: { versionId: string; initiativeId: string },
   file: string,
+  onChunks: () => void = () => undefined,
 ): Promise<number> {
   const handle = await open(file, 'r');
   const buffer = Buffer.alloc(RAW_CHUNK_BYTES);
@@ -32,6 +33,7 @@ export async function storeRawFile(
         transaction,
       });
       chunk += 1;
+      if (chunk % 32 === 0) onChunks();
       if (bytesRead < RAW_CHUNK_BYTES) break;
     }
   } finally {

@@ -9,9 +9,10 @@
  * transaction back: the temporary tables go with it and nothing is left.
  */
 import type { Sequelize, Transaction } from 'sequelize';
+import { ExtractIntake } from '../../../db/models';
 import type { ColumnData } from './columnAccumulator';
 import { encodeColumn } from './columnStore';
-import { closeVersion, openVersion, type IntakeStart, type StoredKeep, type Uploader } from './extracts.server';
+import { closeVersion, intakeStillProcessing, openVersion, type IntakeStart, type StoredKeep, type Uploader } from './extracts.server';
 import { mergeReviews } from './columnPasses';
 import { reviewExtractColumns, type ReadExtract, type ReviewedExtract } from './extracts';
 import { storeRawFile } from './rawFiles.server';
@@ -74,6 +75,9 @@ class StagedRefusal extends Error {
   }
 }
 
+/** Thrown inside the transaction when the upload was cancelled while it was being stored. */
+class StagedCancel extends Error {}
+
 /**
  * Screens, profiles and stores an upload whose columns arrive in groups, in the caller's
  * transaction (`run` opens it; a refusal rolls it back): the groups are screened and staged
@@ -88,6 +92,7 @@ export async function storeStagedVersion(
   groups: AsyncIterable<ColumnData[]>,
   keeping: { keep: readonly string[]; reason: string },
   rawFile: string,
+  heartbeat: () => void = () => undefined,
 ): Promise<StagedOutcome> {
   try {
     return await run(async (transaction): Promise<StagedOutcome> => {
@@ -101,12 +106,17 @@ export async function storeStagedVersion(
         if (!reviews.some((r) => r.refused)) {
           for (const column of group) if (await stageColumn(db, transaction, column)) staged += 1;
         }
+        // A cancel between two groups stops the work (without waiting for a lock).
+        const intake = await ExtractIntake.findByPk(start.versionId, { attributes: ['status'], transaction });
+        if (intake?.status !== 'processing') throw new StagedCancel('cancelled while reading');
       }
       const review = mergeReviews(reviews, keeping.keep);
       if (review.refused) throw new StagedRefusal(review);
       const keptAt = new Date().toISOString();
       const kept: StoredKeep[] = review.kept.map((finding) => ({ ...finding, kept: { reason: keeping.reason, by: uploader.id, at: keptAt } }));
-      const version = await openVersion(transaction, uploader, start, read, review.profile, [...review.findings, ...kept], staged);
+      // The intake is locked only at the end, so that progress can still be reported (its
+      // heartbeat) and a cancel is not kept waiting while the columns and the file are written.
+      const version = await openVersion(transaction, uploader, start, read, review.profile, [...review.findings, ...kept], staged, { checkIntake: false });
       if (version === null) return { kind: 'cancelled' };
       // Bulk column storage: the staged slices joined into one bytea per column by PostgreSQL (raw SQL).
       await db.query(
@@ -118,12 +128,15 @@ export async function storeStagedVersion(
            FROM staged_columns c ORDER BY c.position`,
         { bind: { versionId: start.versionId, initiativeId: start.initiativeId }, transaction },
       );
-      await storeRawFile(db, transaction, { versionId: start.versionId, initiativeId: start.initiativeId }, rawFile);
+      heartbeat();
+      await storeRawFile(db, transaction, { versionId: start.versionId, initiativeId: start.initiativeId }, rawFile, heartbeat);
+      if (!(await intakeStillProcessing(transaction, start.versionId))) throw new StagedCancel('cancelled while storing');
       await closeVersion(transaction, uploader, start, read, version, staged, kept);
       return { kind: 'stored' };
     });
   } catch (error) {
     if (error instanceof StagedRefusal) return { kind: 'refused', review: error.review };
+    if (error instanceof StagedCancel) return { kind: 'cancelled' };
     throw error;
   }
 }
