@@ -1,12 +1,12 @@
 /**
  * Receiving an upload: the request body (raw CSV or a multipart form), the intake record
  * (`extract_intakes`) that tracks it, and the background steps that screen it and hand it
- * to storeVersion (extracts.server.ts).
+ * to storeStagedVersion (versionStaging.server.ts).
  *
  * The intake record is committed on its own so that progress and refusals are visible
- * while nothing else exists yet. The extract, its version and its columns are written
- * together in one transaction at the end: a refused, cancelled, failed or killed upload
- * leaves none of them behind.
+ * while nothing else exists yet. The extract, its version, its columns and its raw file
+ * are written together in one transaction at the end: a refused, cancelled, failed or
+ * killed upload leaves none of them behind, and its partial file is removed.
  */
 import { randomUUID } from 'node:crypto';
 import { createWriteStream, mkdirSync } from 'node:fs';
@@ -168,8 +168,10 @@ async function failIntake(uploaderId: string, versionId: string, code: string, m
 
 /**
  * Receives an upload: streams the body through the reader (refusing at once what is not
- * a CSV of acceptable size), keeps the raw bytes under a server-chosen name, answers with
- * the ids, and finishes screening, profiling and storing in the background.
+ * a CSV of acceptable size), writes the raw bytes to a partial file under a server-chosen
+ * name, answers with the ids, and finishes screening, profiling and storing in the
+ * background (a large upload's columns are read again from the partial file a group at a
+ * time: columnPasses.ts).
  */
 export async function receiveUpload(
   uploader: Uploader,
