@@ -45,6 +45,12 @@ function* syntheticCsv(bytes: number): Generator<Buffer> {
   }
 }
 
+/** CPU seconds (user + system) the process has used, from /proc (clock ticks of 1/100 s). */
+function cpuSeconds(pid: number): number {
+  const fields = readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1].split(' ');
+  return (Number(fields[11]) + Number(fields[12])) / 100;
+}
+
 function rssMegabytes(pid: number): number {
   const status = readFileSync(`/proc/${pid}/status`, 'utf8');
   const kilobytes = Number(/VmRSS:\s+(\d+)/.exec(status)?.[1] ?? 0);
@@ -84,6 +90,7 @@ try {
   const cookie = signIn.headers.getSetCookie()[0].split(';')[0];
   const pid = server.pid!;
   const before = rssMegabytes(pid);
+  const cpuBefore = cpuSeconds(pid);
   let peak = before;
   const sampler = setInterval(() => {
     peak = Math.max(peak, rssMegabytes(pid));
@@ -125,10 +132,12 @@ try {
   }
   clearInterval(sampler);
   const total = (performance.now() - started) / 1000;
+  const cpu = cpuSeconds(pid) - cpuBefore;
   console.log(`upload-memory: ${megabytes} MB CSV streamed to the built server; received in ${received.toFixed(1)} s, stored after ${total.toFixed(1)} s (${state})`);
   console.log(`${'rss before'.padEnd(12)} ${before.toFixed(0).padStart(6)} MB`);
   console.log(`${'rss receiving'.padEnd(12)} ${peakWhileReceiving.toFixed(0).padStart(6)} MB   (peak until the 202 answer: reading and typing the columns)`);
   console.log(`${'rss peak'.padEnd(12)} ${peak.toFixed(0).padStart(6)} MB   target < 300 MB   ${peak < 300 ? 'met' : 'NOT MET'}`);
+  console.log(`${'server cpu'.padEnd(12)} ${cpu.toFixed(1).padStart(6)} s    (user + system of the app server from the upload until stored; PostgreSQL not counted)`);
 } finally {
   if (server) {
     const exited = new Promise((resolve) => server?.once('exit', resolve));

@@ -7,6 +7,10 @@ import { logger } from './lib/server/logger';
 import { addNonceToScripts, securityHeaders } from './lib/server/securityHeaders';
 import { resolveSession } from './lib/server/session';
 import { resolveApiToken } from './features/auth/apiTokens.server';
+import { sweepOnce } from './features/extracts/intake.server';
+
+// Partial upload files left by an earlier process (a crash, a kill) go as the server starts serving.
+void sweepOnce();
 
 /** Gives each request an id and a CSP nonce, and logs its outcome (no bodies, no cookies). */
 const requestContext = defineMiddleware(async (context, next) => {

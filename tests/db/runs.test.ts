@@ -198,5 +198,16 @@ describe('verification re-runs under row-level security', () => {
     // The starter can, and an administrator who belongs to the initiative can.
     expect(await withIdentity(auditorId, (t) => requestCancel(t, { id: auditorId, clientAddress: 'test' }, verification.runId))).toBe('cancelled');
     expect(await withIdentity(adminId, (t) => requestCancel(t, { id: adminId, clientAddress: 'test' }, other.runId))).toBe('cancelled');
+    // An administrator outside the initiative sees none of its runs (SECURITY.md, Runs), so cannot cancel one either.
+    const outsiderId = (await makeUser({ isAdmin: true })).id;
+    const third = await queue(id);
+    await expect(withIdentity(outsiderId, (t) => requestCancel(t, { id: outsiderId, clientAddress: 'test' }, third.runId))).rejects.toMatchObject({ status: 404 });
+    const touched = await withIdentity(outsiderId, (t) =>
+      sequelize.query<{ id: string }>('UPDATE runs SET cancel_requested = true WHERE id = :rid RETURNING id', {
+        replacements: { rid: third.runId }, type: QueryTypes.SELECT, transaction: t,
+      }),
+    );
+    expect(touched).toEqual([]);
+    expect(await statusOf(third.runId)).toBe('queued');
   });
 });

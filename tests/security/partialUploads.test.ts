@@ -6,9 +6,11 @@
 import { existsSync, mkdirSync, readdirSync, utimesSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { receiveUpload, sweepPartialUploads } from '@/features/extracts/intake.server';
+import { QueryTypes } from 'sequelize';
+import { cancelIntake, receiveUpload, sweepPartialUploads } from '@/features/extracts/intake.server';
+import { withIdentity } from '@/lib/server/db';
 import { env } from '@/lib/server/env';
-import { addMember, closeOwnerDb, makeInitiative, makeUser } from '../support/factories';
+import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
 
 const uploads = path.resolve(env.CROSSGRAIN_DATA_DIR, 'uploads');
 
@@ -39,6 +41,57 @@ describe('a refused upload', () => {
       const left = readdirSync(uploads).filter((name) => !before.has(name) && name.endsWith('.part'));
       expect(left).toEqual([]);
     }
+  });
+});
+
+describe('an upload that ends', () => {
+  it.each([
+    ['is cancelled while it arrives', true],
+    ['is stored', false],
+  ])('leaves no partial file when it %s, and keeps its raw file only in the database when stored', async (_what, cancel) => {
+    const user = await makeUser();
+    const initiative = await makeInitiative();
+    await addMember(initiative.id, user.id, 'analyst');
+    const name = `Ends ${cancel ? 'cancelled' : 'stored'}`;
+    let release: () => void = () => undefined;
+    const released = new Promise<void>((resolve) => { release = resolve; });
+    const encoder = new TextEncoder();
+    // The body's second half arrives only once the test lets it (after the cancel, when cancelling).
+    const body = new ReadableStream<Uint8Array>({
+      async start(controller) {
+        controller.enqueue(encoder.encode('treated,outcome\n'));
+        await released;
+        for (let i = 0; i < 50; i += 1) controller.enqueue(encoder.encode(`${i % 2},${i % 3 === 0 ? 1 : 0}\n`));
+        controller.close();
+      },
+    });
+    const request = new Request('http://127.0.0.1/upload', { method: 'POST', headers: { 'Content-Type': 'text/csv' }, body, duplex: 'half' } as RequestInit);
+    const receiving = receiveUpload({ id: user.id, clientAddress: 'test' }, { initiativeId: initiative.id, name }, request);
+    let intake: { id: string; extract_id: string } | undefined;
+    for (let i = 0; i < 100 && !intake; i += 1) {
+      await new Promise((resolve) => setTimeout(resolve, 50));
+      [intake] = await ownerDb().query<{ id: string; extract_id: string }>('SELECT id, extract_id FROM extract_intakes WHERE name = :name', {
+        replacements: { name }, type: QueryTypes.SELECT,
+      });
+    }
+    if (!intake) throw new Error('the intake record did not appear');
+    const partFile = path.join(uploads, `${intake.id}.part`);
+    // The partial file exists while the body is still arriving.
+    for (let i = 0; i < 40 && !existsSync(partFile); i += 1) await new Promise((resolve) => setTimeout(resolve, 50));
+    expect(existsSync(partFile)).toBe(true);
+    if (cancel) {
+      expect(await withIdentity(user.id, (t) => cancelIntake(t, { id: user.id, clientAddress: 'test' }, intake.extract_id, intake.id))).toBe(true);
+    }
+    release();
+    const { done } = await receiving;
+    await done;
+    expect(existsSync(partFile)).toBe(false);
+    const [counts] = await ownerDb().query<{ versions: number; files: number }>(
+      `SELECT (SELECT count(*)::int FROM extract_versions WHERE id = :id) AS versions,
+              (SELECT count(*)::int FROM extract_files WHERE version_id = :id) AS files`,
+      { replacements: { id: intake.id }, type: QueryTypes.SELECT },
+    );
+    expect(counts).toEqual(cancel ? { versions: 0, files: 0 } : { versions: 1, files: 1 });
   });
 });
 

@@ -61,14 +61,16 @@ export interface DataCounts {
   extracts: number;
   versions: number;
   columns: number;
+  /** Chunks of raw upload files. */
+  files: number;
 }
 
-/** How many extracts, versions and stored columns exist (as the owner sees them). */
+/** How many extracts, versions, stored columns and raw-file chunks exist (as the owner sees them). */
 export async function dataCounts(): Promise<DataCounts> {
-  const [row] = await ownerDb().query<{ extracts: string; versions: string; columns: string }>(
+  const [row] = await ownerDb().query<{ extracts: string; versions: string; columns: string; files: string }>(
     `SELECT (SELECT count(*) FROM extracts) AS extracts, (SELECT count(*) FROM extract_versions) AS versions,
-            (SELECT count(*) FROM extract_columns) AS columns`,
+            (SELECT count(*) FROM extract_columns) AS columns, (SELECT count(*) FROM extract_files) AS files`,
     { type: QueryTypes.SELECT },
   );
-  return { extracts: Number(row.extracts), versions: Number(row.versions), columns: Number(row.columns) };
+  return { extracts: Number(row.extracts), versions: Number(row.versions), columns: Number(row.columns), files: Number(row.files) };
 }

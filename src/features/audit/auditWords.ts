@@ -143,6 +143,7 @@ const PHRASES: Record<string, Phrase> = {
   'extract.archived': () => 'archived the extract',
   'extract.restored': () => 'restored the extract',
   'extract.rows-viewed': (d) => `viewed ${plural(num(d.rowsShown) ?? 0, 'row')} of version ${num(d.version) ?? '?'}`,
+  'extract.file-downloaded': (d) => `downloaded the original file of version ${num(d.version) ?? '?'}`,
   'run.started': () => 'started a run',
   'run.verification-started': () => 'started a re-run to verify the results',
   'run.finished': (d) => `the run finished${num(d.seed) !== null ? ` (seed ${num(d.seed)})` : ''}`,

@@ -58,8 +58,11 @@ export class ColumnSet {
   constructor(options: ColumnSetOptions = {}) {
     this.options = options;
     this.drop = new Set((options.dropColumns ?? []).map((name) => name.trim().toLowerCase()));
-    this.plan = new CapacityPlan(options.expectedBytes);
+    this.plan = new CapacityPlan(options.expectedBytes, options.expectedRows);
   }
+
+  /** The header's names, in file order (dropped and skipped columns included). */
+  headerNames: string[] = [];
 
   /** Tells the columns how far into the upload the reader is (for sizing their arrays). */
   noteBytesRead(bytesRead: number): void {
@@ -78,6 +81,8 @@ export class ColumnSet {
     const capacity = this.plan.initial(names.length);
     const maxLevels = this.options.maxLevels ?? DEFAULT_MAX_LEVELS;
     const matched = new Set<string>();
+    const only = this.options.onlyColumns;
+    this.headerNames = names.slice();
     this.builders = names.map((name, index) => {
       const key = name.toLowerCase();
       if (this.drop.has(key)) {
@@ -85,6 +90,7 @@ export class ColumnSet {
         this.droppedColumns.push(name);
         return null;
       }
+      if (only && !only(name, index)) return null;
       return new ColumnBuilder(name, index, this.plan, capacity, { decimalByte, missingTokens, tokenNames, maxLevels });
     });
     const unmatched = (this.options.dropColumns ?? []).filter((name) => !matched.has(name.trim().toLowerCase()));

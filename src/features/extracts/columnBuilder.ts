@@ -16,9 +16,13 @@ import { lastParse, parseNumber } from './numberParsing';
  */
 export class CapacityPlan {
   bytesRead = 0;
-  constructor(readonly expectedBytes: number | undefined) {}
+  constructor(
+    readonly expectedBytes: number | undefined,
+    readonly expectedRows?: number,
+  ) {}
 
   initial(columnCount: number): number {
+    if (this.expectedRows !== undefined) return Math.max(8, this.expectedRows);
     if (this.expectedBytes === undefined) return 1024;
     // Every field takes at least 2 bytes (a character and a delimiter or line break), so
     // this is an upper bound for the file's rows; untouched room is never resident.

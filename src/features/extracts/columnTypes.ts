@@ -20,6 +20,16 @@ export interface ColumnSetOptions {
    * seen so far when they must grow, instead of doubling.
    */
   expectedBytes?: number;
+  /**
+   * Rows the file holds when already known (a second read of a stored file): columns then
+   * reserve exactly that many rows and never grow.
+   */
+  expectedRows?: number;
+  /**
+   * Which of the file's columns to build (by header name and 0-based position); the others
+   * are skipped as they pass, like dropped ones, but are not listed as dropped. Default: all.
+   */
+  onlyColumns?: (name: string, index: number) => boolean;
 }
 
 /** A finished column of numbers. */

@@ -60,23 +60,9 @@ export async function storeVersion(
   findings: unknown[],
   hooks: { afterColumn?: (position: number) => Promise<void>; kept?: readonly StoredKeep[] } = {},
 ): Promise<boolean> {
-  const intake = await ExtractIntake.findByPk(start.versionId, { attributes: ['id', 'status'], lock: transaction.LOCK.UPDATE, transaction });
-  if (!intake || intake.status !== 'processing') return false;
-  if (start.newExtract) {
-    await Extract.create({ id: start.extractId, initiativeId: start.initiativeId, name: start.name, createdBy: uploader.id }, { transaction });
-  }
-  // Serialise version numbers per extract.
-  await Extract.findByPk(start.extractId, { attributes: ['id'], lock: transaction.LOCK.UPDATE, transaction });
-  const next = Number((await ExtractVersion.max<number | null, ExtractVersion>('versionNumber', { where: { extractId: start.extractId }, transaction })) ?? 0) + 1;
   const kept = read.columns.filter((c) => c.kind === 'numeric' || !c.levelsOverflowed);
-  await ExtractVersion.create(
-    {
-      id: start.versionId, extractId: start.extractId, initiativeId: start.initiativeId, versionNumber: next, status: 'needs-review',
-      sha256: read.read.sha256, byteCount: read.read.byteCount, rowCount: read.read.recordCount, columnCount: kept.length,
-      delimiter: read.read.delimiter, uploadedBy: uploader.id, profile, findings, droppedColumns: [...read.droppedColumns],
-    },
-    { transaction },
-  );
+  const next = await openVersion(transaction, uploader, start, read, profile, findings, kept.length);
+  if (next === null) return false;
   // Bulk column storage: each column's values as one bytea, bound as it is (raw SQL on the caller's connection).
   for (const column of kept) {
     const encoded = encodeColumn(column);
@@ -94,6 +80,62 @@ export async function storeVersion(
     );
     await hooks.afterColumn?.(encoded.position);
   }
+  await closeVersion(transaction, uploader, start, read, next, kept.length, hooks.kept ?? []);
+  return true;
+}
+
+/**
+ * The first half of storing a version: checks that the intake is still processing
+ * (locking it, so a cancel waits for the end), writes the extract when new and the
+ * version, and returns the version's number; null (writing nothing) when the intake was
+ * cancelled meanwhile. The columns are written next, then {@link closeVersion}. With
+ * `checkIntake: false` the caller checks the intake itself, later (see
+ * {@link intakeStillProcessing}), so that the intake is not locked while it stores.
+ */
+export async function openVersion(
+  transaction: Transaction,
+  uploader: Uploader,
+  start: IntakeStart,
+  read: ReadExtract,
+  profile: ColumnProfile[],
+  findings: unknown[],
+  columnCount: number,
+  options: { checkIntake?: boolean } = {},
+): Promise<number | null> {
+  if (options.checkIntake !== false && !(await intakeStillProcessing(transaction, start.versionId))) return null;
+  if (start.newExtract) {
+    await Extract.create({ id: start.extractId, initiativeId: start.initiativeId, name: start.name, createdBy: uploader.id }, { transaction });
+  }
+  // Serialise version numbers per extract.
+  await Extract.findByPk(start.extractId, { attributes: ['id'], lock: transaction.LOCK.UPDATE, transaction });
+  const next = Number((await ExtractVersion.max<number | null, ExtractVersion>('versionNumber', { where: { extractId: start.extractId }, transaction })) ?? 0) + 1;
+  await ExtractVersion.create(
+    {
+      id: start.versionId, extractId: start.extractId, initiativeId: start.initiativeId, versionNumber: next, status: 'needs-review',
+      sha256: read.read.sha256, byteCount: read.read.byteCount, rowCount: read.read.recordCount, columnCount,
+      delimiter: read.read.delimiter, uploadedBy: uploader.id, profile, findings, droppedColumns: [...read.droppedColumns],
+    },
+    { transaction },
+  );
+  return next;
+}
+
+/** Locks the intake record (a cancel then waits for the transaction's end) and tells whether it is still processing. */
+export async function intakeStillProcessing(transaction: Transaction, versionId: string): Promise<boolean> {
+  const intake = await ExtractIntake.findByPk(versionId, { attributes: ['id', 'status'], lock: transaction.LOCK.UPDATE, transaction });
+  return intake?.status === 'processing';
+}
+
+/** The second half of storing a version: marks the intake stored and records the audit event. */
+export async function closeVersion(
+  transaction: Transaction,
+  uploader: Uploader,
+  start: IntakeStart,
+  read: ReadExtract,
+  version: number,
+  columnCount: number,
+  kept: readonly StoredKeep[],
+): Promise<void> {
   await ExtractIntake.update(
     { status: 'stored', stage: 'storing', percent: 100, byteCount: read.read.byteCount, finishedAt: fn('now'), heartbeatAt: fn('now') },
     { where: { id: start.versionId }, transaction },
@@ -103,12 +145,11 @@ export async function storeVersion(
     actorId: uploader.id, subjectType: 'extract', subjectId: start.extractId, initiativeId: start.initiativeId,
     clientAddress: uploader.clientAddress,
     details: {
-      versionId: start.versionId, version: next, name: start.name, sha256: read.read.sha256, rows: read.read.recordCount, columns: kept.length,
+      versionId: start.versionId, version, name: start.name, sha256: read.read.sha256, rows: read.read.recordCount, columns: columnCount,
       droppedColumns: [...read.droppedColumns],
-      keptColumns: (hooks.kept ?? []).map((k) => ({ column: k.column, rule: k.rule, category: k.category, reason: k.kept.reason })),
+      keptColumns: kept.map((k) => ({ column: k.column, rule: k.rule, category: k.category, reason: k.kept.reason })),
     },
   });
-  return true;
 }
 
 export interface VersionView {

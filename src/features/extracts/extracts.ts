@@ -47,6 +47,8 @@ export interface ReadExtract {
   read: CsvReadSummary;
   columns: ColumnData[];
   droppedColumns: string[];
+  /** Every name of the file's header, in order (dropped and skipped columns included). */
+  header: string[];
   /** The file line (header on line 1) of data row `row` (0-based); give it to the engine as `lineOfRow`. */
   lineOfRow: (row: number) => number;
 }
@@ -94,7 +96,10 @@ export async function readExtractColumns(source: ChunkSource, options: IngestOpt
       onProgress({ stage: 'reading', percent, bytesRead, rows: recordsRead });
     },
   });
-  return { read, columns: sink.finish(), droppedColumns: sink.droppedColumns.slice(), lineOfRow: (row) => sink.lineOfRow(row) };
+  return {
+    read, columns: sink.finish(), droppedColumns: sink.droppedColumns.slice(), header: sink.headerNames.slice(),
+    lineOfRow: (row) => sink.lineOfRow(row),
+  };
 }
 
 /**

@@ -1,16 +1,16 @@
 /**
  * Receiving an upload: the request body (raw CSV or a multipart form), the intake record
  * (`extract_intakes`) that tracks it, and the background steps that screen it and hand it
- * to storeVersion (extracts.server.ts).
+ * to storeStagedVersion (versionStaging.server.ts).
  *
  * The intake record is committed on its own so that progress and refusals are visible
- * while nothing else exists yet. The extract, its version and its columns are written
- * together in one transaction at the end: a refused, cancelled, failed or killed upload
- * leaves none of them behind.
+ * while nothing else exists yet. The extract, its version, its columns and its raw file
+ * are written together in one transaction at the end: a refused, cancelled, failed or
+ * killed upload leaves none of them behind, and its partial file is removed.
  */
 import { randomUUID } from 'node:crypto';
 import { createWriteStream, mkdirSync } from 'node:fs';
-import { readdir, rename, rm, stat } from 'node:fs/promises';
+import { readdir, rm, stat } from 'node:fs/promises';
 import path from 'node:path';
 import { Readable } from 'node:stream';
 import Busboy from 'busboy';
@@ -23,13 +23,13 @@ import { logger } from '@/lib/server/logger';
 import { bodyChunks } from '@/lib/server/requestBody';
 import { recordAudit } from '../audit/audit.server';
 import { ExtractRefusalError } from './extractRefusal';
+import { columnGroups, ONE_PASS_BYTES, rereadColumns } from './columnPasses';
 import { readExtractColumns, reviewExtractColumns, type ReadExtract, type ReviewedExtract } from './extracts';
 import { KeepRequest, type ProcessingStage } from './extracts.schema';
-import { storeVersion, type IntakeStart, type StoredKeep, type Uploader } from './extracts.server';
+import type { IntakeStart, Uploader } from './extracts.server';
+import { storeStagedVersion } from './versionStaging.server';
 
 const uploadDir = () => path.resolve(env.CROSSGRAIN_DATA_DIR, 'uploads');
-const storedFile = (initiativeId: string, versionId: string) =>
-  path.resolve(env.CROSSGRAIN_DATA_DIR, 'extracts', initiativeId, `${versionId}.csv`);
 
 type ChunkSource = AsyncIterable<Uint8Array>;
 
@@ -61,6 +61,18 @@ export async function sweepPartialUploads(directory = uploadDir(), startedAt = p
 }
 
 let swept: Promise<string[]> | null = null;
+
+/**
+ * Sweeps the partial files of an earlier process once per process: called when the server
+ * loads its request handling, and again (a no-op then) before the first upload.
+ */
+export function sweepOnce(): Promise<string[]> {
+  swept ??= sweepPartialUploads().catch((error: unknown) => {
+    logger.warn({ err: error }, 'could not sweep partial upload files');
+    return [];
+  });
+  return swept;
+}
 
 /** Closes a partial file (waiting for a pending open to settle) and removes it. */
 async function discardPartFile(file: ReturnType<typeof createWriteStream>, partFile: string): Promise<void> {
@@ -156,8 +168,10 @@ async function failIntake(uploaderId: string, versionId: string, code: string, m
 
 /**
  * Receives an upload: streams the body through the reader (refusing at once what is not
- * a CSV of acceptable size), keeps the raw bytes under a server-chosen name, answers with
- * the ids, and finishes screening, profiling and storing in the background.
+ * a CSV of acceptable size), writes the raw bytes to a partial file under a server-chosen
+ * name, answers with the ids, and finishes screening, profiling and storing in the
+ * background (a large upload's columns are read again from the partial file a group at a
+ * time: columnPasses.ts).
  */
 export async function receiveUpload(
   uploader: Uploader,
@@ -191,7 +205,7 @@ export async function receiveUpload(
   });
 
   mkdirSync(uploadDir(), { recursive: true, mode: 0o700 });
-  await (swept ??= sweepPartialUploads());
+  await sweepOnce();
   const partFile = path.join(uploadDir(), `${start.versionId}.part`);
   const expectedBytes = Number(request.headers.get('content-length') ?? 0) || undefined;
   if (expectedBytes && expectedBytes > env.CROSSGRAIN_UPLOAD_MAX_BYTES) {
@@ -206,10 +220,15 @@ export async function receiveUpload(
   file.on('error', (error) => logger.debug({ err: error, versionId: start.versionId }, 'raw upload file closed early'));
   let lastReport = 0;
   const fields: FormFields = new Map();
+  const keepNames = () => [...(options.keep ?? []), ...(fields.get('keep') ?? [])];
+  // A large upload keeps no columns while it arrives (only those it asks to keep, for the
+  // keep check below): they are read again from the file a few at a time (columnPasses.ts).
+  const onePass = expectedBytes !== undefined && expectedBytes <= ONE_PASS_BYTES;
   try {
     read = await readExtractColumns(keepWhileReading(uploadSource(request, fields), file), {
       expectedBytes,
       dropColumns: options.dropColumns,
+      onlyColumns: onePass ? undefined : (name) => keepNames().includes(name),
       maxBytes: env.CROSSGRAIN_UPLOAD_MAX_BYTES,
       onProgress: ({ percent }) => {
         if (Date.now() - lastReport < 500) return;
@@ -236,14 +255,14 @@ export async function receiveUpload(
 
   let keeping: Keeping;
   try {
-    keeping = keptColumnsOf(read, { keep: [...(options.keep ?? []), ...(fields.get('keep') ?? [])], keepReason: options.keepReason ?? fields.get('keepReason')?.[0] });
+    keeping = await keptColumnsOf(read, partFile, { keep: keepNames(), keepReason: options.keepReason ?? fields.get('keepReason')?.[0] }, options.dropColumns);
   } catch (error) {
     await rm(partFile, { force: true });
     if (error instanceof AppError) await refuseIntake(uploader, start, [{ code: error.code, message: error.message, line: null }], 'screening');
     throw error;
   }
 
-  const done = finishIntake(uploader, start, read, partFile, keeping).catch(async (error: unknown) => {
+  const done = finishIntake(uploader, start, read, partFile, keeping, options.dropColumns).catch(async (error: unknown) => {
     logger.error({ err: error, versionId: start.versionId }, 'extract processing failed');
     await rm(partFile, { force: true });
     await failIntake(uploader.id, start.versionId, 'processing-failed', 'Processing stopped with an error. Nothing was kept; upload the file again.');
@@ -305,7 +324,12 @@ interface Keeping {
  * the screen. A 400 otherwise. A kept column with a value-based finding passes here and is
  * refused by the screen, with the same message as without `keep`.
  */
-function keptColumnsOf(read: ReadExtract, request: { keep: string[]; keepReason?: string }): Keeping {
+async function keptColumnsOf(
+  read: ReadExtract,
+  partFile: string,
+  request: { keep: string[]; keepReason?: string },
+  dropColumns: readonly string[] | undefined,
+): Promise<Keeping> {
   const parsed = parseKeepRequest(request);
   const keep = [...new Set(parsed.keep)];
   if (keep.length === 0) return { keep, reason: '', review: null };
@@ -313,10 +337,17 @@ function keptColumnsOf(read: ReadExtract, request: { keep: string[]; keepReason?
   if (dropped.length > 0) {
     throw new AppError(400, 'keep-invalid', `Column "${dropped[0]}" cannot be both left out and kept.`, [{ path: 'keep', message: dropped[0] }]);
   }
-  const review = reviewExtractColumns(read.columns, {}, keep);
+  // Kept columns named only in form fields after the file were not built while it arrived.
+  const held = new Set(read.columns.map((c) => c.index));
+  const wanted = new Set(read.header.flatMap((name, index) => (keep.includes(name) && !held.has(index) ? [index] : [])));
+  if (wanted.size > 0) {
+    const more = await rereadColumns(partFile, read, wanted, { dropColumns, maxBytes: env.CROSSGRAIN_UPLOAD_MAX_BYTES });
+    read.columns = [...read.columns, ...more].sort((a, b) => a.index - b.index);
+  }
+  const review = reviewExtractColumns(read.columns.filter((c) => keep.includes(c.name)), {}, keep);
   if (review.keptButNotFlagged.length > 0) {
     const name = review.keptButNotFlagged[0];
-    const present = read.columns.some((c) => c.name === name);
+    const present = read.header.includes(name);
     const message = present
       ? `Column "${name}" was not flagged by the identifier screen, so there is nothing to keep. Only a column flagged by its name alone can be kept.`
       : `There is no column "${name}" in the file, so it cannot be kept. Only a column flagged by its name alone can be kept.`;
@@ -325,29 +356,39 @@ function keptColumnsOf(read: ReadExtract, request: { keep: string[]; keepReason?
   return { keep, reason: parsed.keepReason ?? '', review };
 }
 
-/** Stage two, after the answer has gone: screen, profile, and store in one transaction. */
-async function finishIntake(uploader: Uploader, start: IntakeStart, read: ReadExtract, partFile: string, keeping: Keeping): Promise<void> {
-  await updateIntake(uploader.id, start.versionId, { stage: 'screening', percent: 90 });
-  const review = keeping.review ?? reviewExtractColumns(read.columns);
-  if (review.refused) {
+/**
+ * Stage two, after the answer has gone: screen, profile and store in one transaction,
+ * the columns a group at a time (versionStaging.server.ts), the raw file with them.
+ */
+async function finishIntake(
+  uploader: Uploader,
+  start: IntakeStart,
+  read: ReadExtract,
+  partFile: string,
+  keeping: Keeping,
+  dropColumns: readonly string[] | undefined,
+): Promise<void> {
+  try {
+    await updateIntake(uploader.id, start.versionId, { stage: 'screening', percent: 90 });
+    const groups = columnGroups(partFile, read, {
+      dropColumns,
+      maxBytes: env.CROSSGRAIN_UPLOAD_MAX_BYTES,
+      onGroup: (done, total) => {
+        void updateIntake(uploader.id, start.versionId, { stage: 'storing', percent: 90 + Math.floor((done / total) * 9) }).catch(() => {});
+      },
+    });
+    const outcome = await storeStagedVersion(
+      appSequelize, (work) => withIdentity(uploader.id, work), uploader, start, read, groups, keeping, partFile,
+      () => void updateIntake(uploader.id, start.versionId, {}).catch(() => {}),
+    );
+    if (outcome.kind === 'refused') {
+      const reasons = outcome.review.refusals.map((r) => ({ code: 'identifier-screen', column: r.column, rules: r.rules, categories: r.categories, message: r.message }));
+      await refuseIntake(uploader, start, reasons, 'screening', { droppedColumns: read.droppedColumns, keep: keeping.keep, keepReason: keeping.reason });
+    }
+  } finally {
+    // The raw bytes are in the database now, or nothing was kept: either way the partial file goes.
     await rm(partFile, { force: true });
-    const reasons = review.refusals.map((r) => ({ code: 'identifier-screen', column: r.column, rules: r.rules, categories: r.categories, message: r.message }));
-    await refuseIntake(uploader, start, reasons, 'screening', { droppedColumns: read.droppedColumns, keep: keeping.keep, keepReason: keeping.reason });
-    return;
   }
-  await updateIntake(uploader.id, start.versionId, { stage: 'storing', percent: 95 });
-  const keptAt = new Date().toISOString();
-  const kept: StoredKeep[] = review.kept.map((finding) => ({ ...finding, kept: { reason: keeping.reason, by: uploader.id, at: keptAt } }));
-  const stored = await withIdentity(uploader.id, (transaction) =>
-    storeVersion(appSequelize, transaction, uploader, start, read, review.profile, [...review.findings, ...kept], { kept }),
-  );
-  if (!stored) {
-    await rm(partFile, { force: true });
-    return;
-  }
-  const finalPath = storedFile(start.initiativeId, start.versionId);
-  mkdirSync(path.dirname(finalPath), { recursive: true, mode: 0o700 });
-  await rename(partFile, finalPath);
 }
 
 /** Cancels an upload that is still being processed; a no-op answer when it already ended. */
