@@ -1,6 +1,7 @@
 import { normalQuantile } from '../distributions/normal.js';
 import { studentTQuantile } from '../distributions/studentT.js';
 import { johnsonNeyman } from '../measures/johnsonNeyman.js';
+import { modifierSpread } from '../measures/modifierSpread.js';
 import { significanceBand } from '../measures/significanceBand.js';
 import { quantileType7, simpleSlopes, type SlopePoint } from '../measures/simpleSlopes.js';
 import type { AnalysisResult } from '../types.js';
@@ -11,6 +12,16 @@ export interface ContinuousModifierResults {
   slopes: NonNullable<AnalysisResult['slopes']>;
   johnsonNeyman: NonNullable<AnalysisResult['johnsonNeyman']>;
   band: NonNullable<AnalysisResult['band']>;
+  spread: NonNullable<AnalysisResult['spread']>;
+}
+
+/** "5th", "21st", "42nd", "33rd", "12.5th" */
+export function ordinal(value: number): string {
+  const whole = Number.isInteger(value) ? value : null;
+  if (whole === null) return `${value}th`;
+  const tens = whole % 100;
+  const suffix = tens >= 11 && tens <= 13 ? 'th' : whole % 10 === 1 ? 'st' : whole % 10 === 2 ? 'nd' : whole % 10 === 3 ? 'rd' : 'th';
+  return `${whole}${suffix}`;
 }
 
 /** Continuous modifiers only: the intervention's effect at chosen modifier values, where it is significant, and the band. */
@@ -29,8 +40,8 @@ export function continuousModifierStage(analysis: FittedAnalysis): ContinuousMod
           { label: 'mean + 1 SD', at: mean + sd },
         ]
       : requested.kind === 'percentiles'
-        ? requested.percentiles.map((percentile) => ({ label: `${percentile}th percentile`, at: quantileType7(summary.sorted as Float64Array, percentile / 100) }))
-        : requested.values.map((value) => ({ label: `at ${value}`, at: value }));
+        ? requested.percentiles.map((percentile) => ({ label: `${ordinal(percentile)} percentile`, at: quantileType7(summary.sorted as Float64Array, percentile / 100) }))
+        : requested.values.map((value, index) => ({ label: requested.names?.[index]?.trim() || `at ${value}`, at: value }));
   const slopes = simpleSlopes(coefficients, covariance, design.exposureIndex, product, summary.centre, points, reference, scale);
   const jnCritical = ratio ? normalQuantile(1 - checked.alpha / 2) : studentTQuantile(1 - checked.alpha / 2, fit.residualDf);
   const a = design.exposureIndex;
@@ -41,5 +52,5 @@ export function continuousModifierStage(analysis: FittedAnalysis): ContinuousMod
     summary.centre,
   );
   const band = significanceBand(coefficients, covariance, a, product, summary.centre, summary.observed as [number, number], reference, scale);
-  return { slopes, johnsonNeyman: boundaries, band };
+  return { slopes, johnsonNeyman: boundaries, band, spread: modifierSpread(summary.sorted as Float64Array) };
 }
