@@ -6,6 +6,7 @@ import { significanceBand } from '../measures/significanceBand.js';
 import { quantileType7, simpleSlopes, type SlopePoint } from '../measures/simpleSlopes.js';
 import type { AnalysisResult } from '../types.js';
 import type { FittedAnalysis } from './fittedAnalysis.js';
+import { ordinal } from './pointLabels.js';
 
 /** Simple slopes, Johnson-Neyman boundaries and band data of a continuous modifier. */
 export interface ContinuousModifierResults {
@@ -15,14 +16,6 @@ export interface ContinuousModifierResults {
   spread: NonNullable<AnalysisResult['spread']>;
 }
 
-/** "5th", "21st", "42nd", "33rd", "12.5th" */
-export function ordinal(value: number): string {
-  const whole = Number.isInteger(value) ? value : null;
-  if (whole === null) return `${value}th`;
-  const tens = whole % 100;
-  const suffix = tens >= 11 && tens <= 13 ? 'th' : whole % 10 === 1 ? 'st' : whole % 10 === 2 ? 'nd' : whole % 10 === 3 ? 'rd' : 'th';
-  return `${whole}${suffix}`;
-}
 
 /** Continuous modifiers only: the intervention's effect at chosen modifier values, where it is significant, and the band. */
 export function continuousModifierStage(analysis: FittedAnalysis): ContinuousModifierResults {

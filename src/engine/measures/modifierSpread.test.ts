@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { ordinal } from '../analysis/continuousModifier.js';
+import { ordinal } from '../analysis/pointLabels.js';
 import { modifierSpread } from './modifierSpread.js';
 
 const sample = [1.2, 3.7, 2.2, 9.1, 4.4, 4.4, 5.0, 6.3, 2.9, 7.75, 1.9, 3.3, 8.05, 4.8, 5.5, 2.6, 3.05, 6.8, 4.1, 5.9];

@@ -4,6 +4,7 @@
  */
 import type { Spec } from '@/engine/boundary/schemas';
 import { defaultReference, levelsFromReference, type FormColumn } from './formColumns';
+import { ordinal } from '@/engine/analysis/pointLabels';
 import { CI_METHOD_LABEL, DEFAULT_REPLICATES, DEFAULT_SEED, MEASURE_LABEL, MODEL_LABEL, MULTIPLICITY_LABEL, isRatioModel, measureFor } from './specRules';
 
 /** How a column is named in prose: its short description where it has one, else its name. */
@@ -31,8 +32,8 @@ export interface WordsContext {
 
 function slopesInWords(slopes: NonNullable<Spec['modifier']['slopesAt']>): string {
   if (slopes.kind === 'sd') return 'the mean and one standard deviation either side';
-  if (slopes.kind === 'percentiles') return `the ${listInWords(slopes.percentiles.map((p) => `${p}th`))} percentiles`;
-  return listInWords(slopes.values.map(String));
+  if (slopes.kind === 'percentiles') return `the ${listInWords(slopes.percentiles.map(ordinal))} percentiles`;
+  return listInWords(slopes.values.map((value, index) => (slopes.names?.[index] ? `${value} (${slopes.names[index]})` : String(value))));
 }
 
 /**
