@@ -54,7 +54,7 @@ export function crudeCrossCheck(result: Result, measure: MeasureInfo, levels: re
   if (!stratified) return null;
   const omnibus = result.interaction.omnibus;
   const adjustedTest: CrudeTestView = {
-    name: `Adjusted model: ${OMNIBUS_LABEL[omnibus.test].toLowerCase()}`,
+    name: `Adjusted model (${OMNIBUS_LABEL[omnibus.test].toLowerCase()})`,
     text: `${omnibus.test === 'F' ? 'F' : 'χ²'} = ${formatNumber(omnibus.statistic, 'statistic')} on ${omnibus.df} df`,
     p: pCell(omnibus.p, 'crude-check-adjusted-p'),
   };

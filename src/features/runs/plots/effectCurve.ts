@@ -3,7 +3,7 @@
  * observed range with its pointwise band (solid where the band leaves out no effect,
  * dotted where it does not), the points clinicians name (or percentiles) marked on it,
  * the stretches where the data are thin shaded, and both Johnson-Neyman boundaries, each
- * drawn where it falls in view or named at the edge when it lies beyond the data.
+ * drawn where it falls within the observed range or named at the edge when it lies beyond the data.
  */
 import type { PlotInput } from './plotInput';
 import { percentText } from '@/features/analyses/specWords';
@@ -67,23 +67,23 @@ export function effectCurveFigure(result: PlotInput): PlotFigure | null {
   const annotations: Record<string, unknown>[] = [];
   if (words.thin.length > 0) {
     const [from, to] = words.thin[0];
-    annotations.push({ xref: 'x', yref: 'paper', x: (from + to) / 2, y: 1, yanchor: 'bottom', text: 'thin data', showarrow: false, font: { size: 10, color: PLOT_COLOURS.inkMuted } });
+    annotations.push({ xref: 'x', yref: 'paper', x: (from + to) / 2, y: 0.98, yanchor: 'top', text: 'thin data', showarrow: false, font: { size: 10, color: PLOT_COLOURS.inkMuted } });
   }
   const bounds = jn.bounds ?? [];
   bounds.forEach((bound, index) => {
     const which = bounds.length === 2 ? (index === 0 ? 'lower boundary' : 'upper boundary') : 'boundary';
-    if (bound >= view[0] && bound <= view[1]) {
+    if (bound >= min && bound <= max) {
       shapes.push({ type: 'line', xref: 'x', yref: 'paper', x0: bound, x1: bound, y0: 0, y1: 1, line: { color: PLOT_COLOURS.boundary, width: 1.5, dash: 'dash' } });
       annotations.push({ xref: 'x', yref: 'paper', x: bound, y: index === 0 ? 0.02 : 0.1, xanchor: 'left', yanchor: 'bottom', text: ` ${which} ${show(bound)}`, showarrow: false, font: { size: 11, color: PLOT_COLOURS.boundary } });
     } else {
-      const below = bound < view[0];
+      const below = bound < min;
       annotations.push({
         xref: 'paper', yref: 'paper', x: below ? 0 : 1, y: index === 0 ? 0.02 : 0.1, xanchor: below ? 'left' : 'right', yanchor: 'bottom',
         text: below ? `← ${which} at ${show(bound)}, below the data` : `${which} at ${show(bound)}, beyond the data →`, showarrow: false, font: { size: 11, color: PLOT_COLOURS.boundary },
       });
     }
   });
-  if (bounds.some((bound) => bound >= view[0] && bound <= view[1])) {
+  if (bounds.some((bound) => bound >= min && bound <= max)) {
     data.push({ type: 'scatter', mode: 'lines', name: 'Johnson-Neyman boundary', x: [null], y: [null], line: { color: PLOT_COLOURS.boundary, dash: 'dash', width: 1.5 }, hoverinfo: 'skip' });
   }
   const layout = {
