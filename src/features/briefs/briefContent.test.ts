@@ -99,5 +99,13 @@ describe('brief content of a continuous modifier', () => {
     const html = renderBriefHtml(brief, { status: 'Draft preview' });
     expect(html).toContain('data-testid="brief-effect-range"');
     expect(brief.cautions.length).toBeGreaterThan(0);
+    // The PDF carries the same words: its text, read back with poppler's pdftotext.
+    const { renderBriefPdf } = await import('./briefPdf');
+    const { execFileSync } = await import('node:child_process');
+    const pdf = await renderBriefPdf(brief, 'A4', { author: 'Test analyst', status: 'Draft preview', createdAt: new Date('2026-12-02T08:00:00Z') });
+    const text = execFileSync('pdftotext', ['-layout', '-', '-'], { input: pdf }).toString().replace(/\s+/g, ' ');
+    expect(text).toContain('marked point');
+    expect(text).toContain('mild');
+    expect(text).toContain('distinguishable from no effect');
   }, 60_000);
 });
