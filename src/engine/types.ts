@@ -68,6 +68,7 @@ export type {
   SlopeEntry,
   JohnsonNeymanResult,
   BandPoint,
+  ModifierSpread,
   StratifiedTableRow,
   StratifiedTables,
   BootstrapAccount,

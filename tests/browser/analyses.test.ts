@@ -96,7 +96,32 @@ describe('an analysis by age band', () => {
     const cautionTop = (await page.getByTestId('result-cautions').first().boundingBox())!.y;
     const tablesTop = (await page.getByTestId('result-tables').boundingBox())!.y;
     expect(cautionTop).toBeLessThan(tablesTop);
+    // The specification is said once; the extract's hash is short, with a Copy button for the whole of it.
+    const specSentence = (await page.getByTestId('spec-in-words').textContent())!;
+    expect(await page.getByText(specSentence, { exact: true }).count()).toBe(1);
+    const hash = page.getByTestId('run-extract-sha');
+    expect((await hash.locator('[data-hash]').textContent())!.length).toBeLessThan(20);
+    expect(await hash.locator('[data-hash]').getAttribute('data-hash')).toMatch(/^[0-9a-f]{64}$/);
+    await expect(hash.getByRole('button', { name: 'Copy the whole SHA-256 of the extract' }).count()).resolves.toBe(1);
+    // The crude cross-check, the reading line above the joint effects, and the reference per interaction row.
+    await expect(page.getByTestId('crude-comparison').textContent()).resolves.toMatch(/adjusted model/);
+    await expect(page.getByTestId('joint-reading').textContent()).resolves.toMatch(/^The highlighted column answers the question/);
+    for (const row of stored.result.interaction.additive) await page.getByTestId(`interaction-reference-${row.level}`).waitFor();
+    // Our own plot controls, reachable from the keyboard; no plotly toolbar.
+    const tools = page.getByTestId('plot-stratum-forest').getByRole('toolbar');
+    await expect(tools.getByRole('button').allTextContents()).resolves.toEqual(['Download PNG', 'Download SVG', 'Reset view']);
+    expect(await page.locator('.modebar-container .modebar').count()).toBe(0);
+    await tools.getByRole('button', { name: 'Reset view' }).focus();
+    await page.keyboard.press('Enter');
+    await page.getByTestId('plot-stratum-forest').locator('.main-svg').first().waitFor();
+    const [download] = await Promise.all([page.waitForEvent('download'), tools.getByRole('button', { name: 'Download SVG' }).click()]);
+    expect(download.suggestedFilename()).toMatch(/^effect-of-call_back-by-age_band\.svg$/);
     await saveScreenshot(page, 'run-results');
+    await page.setViewportSize({ width: 1366, height: 900 });
+    await saveScreenshot(page, 'run-results-categorical-1366');
+    await page.setViewportSize({ width: 390, height: 844 });
+    await page.getByTestId('plot-stratum-forest').locator('.main-svg').first().waitFor();
+    await saveScreenshot(page, 'run-results-categorical-390');
     expect(consoleErrors).toEqual([]);
     await context.close();
   });
@@ -189,7 +214,7 @@ describe('the review of the age-band run', () => {
 });
 
 describe('an analysis with a continuous modifier', () => {
-  it('shows the significance band plot with its boundaries', async () => {
+  it('leads with the effect curve, marks the named points and says where the effect is distinguishable from none', async () => {
     const { page, context, consoleErrors } = await harness.newPage();
     await signInThroughPage(page, demoEmail('analyst'), DEMO_PASSWORD);
     const me = await (await page.request.get('/api/me')).json();
@@ -206,7 +231,7 @@ describe('an analysis with a continuous modifier', () => {
         spec: {
           outcome: { column: 'length_of_stay_days', type: 'continuous' },
           exposure: { column: 'early_mobility', reference: '0' },
-          modifier: { column: 'frailty_score', type: 'continuous' },
+          modifier: { column: 'frailty_score', type: 'continuous', slopesAt: { kind: 'values', values: [3, 5, 7], names: ['mild', 'moderate', 'severe'] } },
           covariates: [{ column: 'sex', type: 'categorical', reference: 'F' }, { column: 'comorbidity_score', type: 'continuous' }],
           model: 'linear',
           ci: { level: 0.95, method: 'delta' },
@@ -219,10 +244,23 @@ describe('an analysis with a continuous modifier', () => {
     expect(started.status()).toBe(202);
     const { runId } = await started.json();
     await page.goto(`/runs/${runId}`);
-    await page.getByTestId('plot-significance-band').locator('.main-svg').first().waitFor({ timeout: 60_000 });
-    await expect(page.getByTestId('jn-sentence').first().textContent()).resolves.toMatch(/frailty_score/);
+    const curve = page.getByTestId('plot-effect-curve');
+    await curve.locator('.main-svg').first().waitFor({ timeout: 60_000 });
+    await expect(page.getByTestId('jn-sentence').first().textContent()).resolves.toMatch(/^The intervention's effect (is distinguishable from|cannot be told apart from) no effect .*frailty_score/);
+    // The curve leads: it sits above the table of marked points, which names them as the analyst did.
+    expect((await curve.boundingBox())!.y).toBeLessThan((await page.getByTestId('slopes-table').boundingBox())!.y);
+    const named = (await page.getByTestId('slopes-table').locator('tbody th').allTextContents()).map((text) => text.trim().split(/\s+/)[0]);
+    expect(named).toEqual(['mild', 'moderate', 'severe']);
+    await expect(curve.locator('.textpoint').allTextContents()).resolves.toEqual(['mild', 'moderate', 'severe']);
+    await expect(page.getByTestId('interaction-heading').textContent()).resolves.toBe('Does the effect differ? The difference in mean differences');
     await expect(page.getByTestId('exploratory-label').textContent()).resolves.toContain('Exploratory');
+    await expect(page.getByTestId('result-cautions').count()).resolves.toBeGreaterThan(0);
     await saveScreenshot(page, 'run-results-continuous');
+    await page.setViewportSize({ width: 1366, height: 900 });
+    await saveScreenshot(page, 'run-results-continuous-1366');
+    await page.setViewportSize({ width: 390, height: 844 });
+    await curve.locator('.main-svg').first().waitFor();
+    await saveScreenshot(page, 'run-results-continuous-390');
     expect(consoleErrors).toEqual([]);
     await context.close();
   });

@@ -47,8 +47,12 @@ describe('the main pages', () => {
     await page.getByTestId('plot-profile').locator('.main-svg').first().waitFor();
     const plots = page.locator('.js-plotly-plot');
     expect(await plots.count()).toBeGreaterThan(0);
-    // The toolbar is there (image export stays) but holds no share or hosted-editor button and no logo.
-    expect(await page.locator('.modebar-btn[data-title="Download plot as a PNG"]').count()).toBeGreaterThan(0);
+    // Our own plot controls (image export, reset) are there; plotly's toolbar is not, and nothing offers to share.
+    expect(await page.getByRole('button', { name: 'Download PNG' }).count()).toBeGreaterThan(0);
+    expect(await page.locator('.modebar-btn').count()).toBe(0);
+    expect(await page.getByRole('button', { name: /share|cloud|chart studio|publish/i }).count()).toBe(0);
+    // Saving an image stays in the browser: a download, and no request leaves the machine (checked below).
+    await Promise.all([page.waitForEvent('download'), page.getByRole('button', { name: 'Download PNG' }).first().click()]);
     for (const selector of ['[data-attr="sendChartToCloud"]', '.modebar-btn[data-title*="Share"]', '.modebar-btn[data-title*="Chart Studio"]', '.modebar-btn[data-title*="cloud" i]', 'a.modebar-btn[href]', '.modebar .plotlyjsicon']) {
       expect(await page.locator(selector).count(), selector).toBe(0);
     }

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { ResultSchema } from '@/engine/boundary/schemas.js';
+import { ResultSchema, SpecSchema } from '@/engine/boundary/schemas.js';
 import { runAnalysis } from '@/engine/index.js';
 import type { AnalysisSpec } from '@/engine/types.js';
 import { loadDataset } from './support/loadFixtures.js';
@@ -53,5 +53,23 @@ describe('warnings with stable codes', () => {
     expect(result.johnsonNeyman!.observed).toEqual(result.modifier.observed);
     expect(result.strata).toEqual([]);
     expect(ResultSchema.safeParse(result).success).toBe(true);
+  });
+  it('continuous modifier: named values keep their names, and the spread says where the data lie', async () => {
+    const result = await runAnalysis(infert, {
+      ...spec,
+      modifier: { column: 'age', type: 'continuous', slopesAt: { kind: 'values', values: [25, 31, 38], names: ['young', '', 'older'] } },
+      covariates: [{ column: 'parity', type: 'continuous' }],
+    });
+    expect(result.slopes!.map((s) => [s.label, s.at])).toEqual([['young', 25], ['at 31', 31], ['older', 38]]);
+    // R 4.2.2: quantile(infert$age, c(0.05, 0.95), type = 7) → 24, 40
+    expect(result.spread!.p5).toBe(24);
+    expect(result.spread!.p95).toBe(40);
+    // R 4.2.2: as.vector(table(cut(infert$age, seq(min(infert$age), max(infert$age), length.out = 11), right = FALSE, include.lowest = TRUE)))
+    expect(result.spread!.bins.map((bin) => bin.n)).toEqual([12, 18, 30, 54, 36, 18, 45, 17, 9, 9]);
+    expect(ResultSchema.safeParse(result).success).toBe(true);
+  });
+  it('refuses a list of names that does not match the values', () => {
+    const parsed = SpecSchema.safeParse({ ...spec, modifier: { column: 'age', type: 'continuous', slopesAt: { kind: 'values', values: [25, 31], names: ['young'] } } });
+    expect(parsed.success).toBe(false);
   });
 });

@@ -101,7 +101,7 @@ export function assembleResult(analysis: FittedAnalysis, stages: StageResults): 
     modifierEffects: effects.modifierEffects,
     joint: effects.joint,
     interaction: { multiplicative: effects.multiplicative, additive: interaction.additive, omnibus: stages.omnibus },
-    ...(continuous !== null ? { slopes: continuous.slopes, johnsonNeyman: continuous.johnsonNeyman, band: continuous.band } : {}),
+    ...(continuous !== null ? { slopes: continuous.slopes, johnsonNeyman: continuous.johnsonNeyman, band: continuous.band, spread: continuous.spread } : {}),
     stratifiedTables: stages.tables,
     bootstrap: stages.bootstrap,
     planning: stages.planning,

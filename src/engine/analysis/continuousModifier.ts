@@ -1,17 +1,21 @@
 import { normalQuantile } from '../distributions/normal.js';
 import { studentTQuantile } from '../distributions/studentT.js';
 import { johnsonNeyman } from '../measures/johnsonNeyman.js';
+import { modifierSpread } from '../measures/modifierSpread.js';
 import { significanceBand } from '../measures/significanceBand.js';
 import { quantileType7, simpleSlopes, type SlopePoint } from '../measures/simpleSlopes.js';
 import type { AnalysisResult } from '../types.js';
 import type { FittedAnalysis } from './fittedAnalysis.js';
+import { ordinal } from './pointLabels.js';
 
 /** Simple slopes, Johnson-Neyman boundaries and band data of a continuous modifier. */
 export interface ContinuousModifierResults {
   slopes: NonNullable<AnalysisResult['slopes']>;
   johnsonNeyman: NonNullable<AnalysisResult['johnsonNeyman']>;
   band: NonNullable<AnalysisResult['band']>;
+  spread: NonNullable<AnalysisResult['spread']>;
 }
+
 
 /** Continuous modifiers only: the intervention's effect at chosen modifier values, where it is significant, and the band. */
 export function continuousModifierStage(analysis: FittedAnalysis): ContinuousModifierResults {
@@ -29,8 +33,8 @@ export function continuousModifierStage(analysis: FittedAnalysis): ContinuousMod
           { label: 'mean + 1 SD', at: mean + sd },
         ]
       : requested.kind === 'percentiles'
-        ? requested.percentiles.map((percentile) => ({ label: `${percentile}th percentile`, at: quantileType7(summary.sorted as Float64Array, percentile / 100) }))
-        : requested.values.map((value) => ({ label: `at ${value}`, at: value }));
+        ? requested.percentiles.map((percentile) => ({ label: `${ordinal(percentile)} percentile`, at: quantileType7(summary.sorted as Float64Array, percentile / 100) }))
+        : requested.values.map((value, index) => ({ label: requested.names?.[index]?.trim() || `at ${value}`, at: value }));
   const slopes = simpleSlopes(coefficients, covariance, design.exposureIndex, product, summary.centre, points, reference, scale);
   const jnCritical = ratio ? normalQuantile(1 - checked.alpha / 2) : studentTQuantile(1 - checked.alpha / 2, fit.residualDf);
   const a = design.exposureIndex;
@@ -41,5 +45,5 @@ export function continuousModifierStage(analysis: FittedAnalysis): ContinuousMod
     summary.centre,
   );
   const band = significanceBand(coefficients, covariance, a, product, summary.centre, summary.observed as [number, number], reference, scale);
-  return { slopes, johnsonNeyman: boundaries, band };
+  return { slopes, johnsonNeyman: boundaries, band, spread: modifierSpread(summary.sorted as Float64Array) };
 }

@@ -19,7 +19,17 @@ const multiplicity = z.enum(['none', 'holm', 'bh']);
 const slopePoints = z.discriminatedUnion('kind', [
   z.object({ kind: z.literal('sd') }),
   z.object({ kind: z.literal('percentiles'), percentiles: z.array(z.number().min(0).max(100)).min(1).max(20) }),
-  z.object({ kind: z.literal('values'), values: z.array(z.number()).min(1).max(20) }),
+  z
+    .object({
+      kind: z.literal('values'),
+      values: z.array(z.number()).min(1).max(20),
+      names: z
+        .array(z.string().trim().max(40))
+        .max(20)
+        .optional()
+        .describe('Names clinicians give these values, in the same order ("" for none), e.g. "mild", "moderate", "severe".'),
+    })
+    .refine((points) => !points.names || points.names.length === points.values.length, { message: 'Give one name per value (an empty name for none).', path: ['names'] }),
 ]);
 
 // ---------------------------------------------------------------------------------------
@@ -182,6 +192,13 @@ const johnsonNeymanResult = z.strictObject({
 });
 
 const bandPoint = z.strictObject({ x: z.number(), estimate: num, lower: num, upper: num });
+
+/** Where a continuous modifier's values lie: the 5th and 95th percentiles (R's type 7) and counts in ten equal-width bins. */
+const modifierSpread = z.strictObject({
+  p5: z.number(),
+  p95: z.number(),
+  bins: z.array(z.strictObject({ from: z.number(), to: z.number(), n: z.number().int() })).describe('Each bin holds from ≤ x < to; the last also holds x = to.'),
+});
 
 const stratifiedTableRow = z.strictObject({
   level: z.string(),
@@ -354,6 +371,7 @@ export const ResultSchema = z
     slopes: z.array(slopeEntry).optional(),
     johnsonNeyman: johnsonNeymanResult.optional(),
     band: z.array(bandPoint).optional(),
+    spread: modifierSpread.optional().describe('Continuous modifiers: where the observed values lie, to say where the data are thin.'),
     stratifiedTables: stratifiedTables.nullable(),
     bootstrap: bootstrapAccount
       .nullable()
@@ -387,6 +405,7 @@ export type OmnibusTest = z.output<typeof omnibusTest>;
 export type SlopeEntry = z.output<typeof slopeEntry>;
 export type JohnsonNeymanResult = z.output<typeof johnsonNeymanResult>;
 export type BandPoint = z.output<typeof bandPoint>;
+export type ModifierSpread = z.output<typeof modifierSpread>;
 export type StratifiedTableRow = z.output<typeof stratifiedTableRow>;
 export type StratifiedTables = z.output<typeof stratifiedTables>;
 export type BootstrapAccount = z.output<typeof bootstrapAccount>;

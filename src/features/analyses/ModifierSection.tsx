@@ -4,7 +4,7 @@
  */
 import type { FormColumn } from './formColumns';
 import { ColumnOptions, Field, LevelSelect, Section, type SectionProps } from './formFields';
-import type { SpecDraft } from './specForm';
+import { DEFAULT_PERCENTILES, type SpecDraft } from './specForm';
 
 export function ModifierSection({ spec, choices, fieldId, shownError, changeSpec, modifierRange }: SectionProps & { modifierRange: FormColumn['numeric'] | undefined }) {
   return (
@@ -47,16 +47,16 @@ export function ModifierSection({ spec, choices, fieldId, shownError, changeSpec
               </div>
             )}
           </Field>
-          <Field id={fieldId('modifier.slopesAt')} label="Report the effect at" error={shownError('modifier.slopesAt')} hint={spec.modifier.slopes === 'sd' ? undefined : `Separate with commas, e.g. ${spec.modifier.slopes === 'percentiles' ? '10, 50, 90' : modifierRange ? `${modifierRange.min}, ${modifierRange.median}, ${modifierRange.max}` : '2, 5, 8'}.`}>
+          <Field id={fieldId('modifier.slopesAt')} label="Report the effect at" error={shownError('modifier.slopesAt')} hint={slopeHint(spec.modifier.slopes, modifierRange)}>
             {(describedBy, invalid) => (
               <div className="flex gap-2">
-                <select id={fieldId('modifier.slopesAt')} className="field-input" value={spec.modifier.slopes} aria-describedby={describedBy} aria-invalid={invalid} onChange={(e) => changeSpec({ modifier: { ...spec.modifier, slopes: e.target.value as SpecDraft['modifier']['slopes'] } }, 'modifier.slopesAt')}>
-                  <option value="sd">Mean and ± 1 SD</option>
+                <select id={fieldId('modifier.slopesAt')} className="field-input" value={spec.modifier.slopes} aria-describedby={describedBy} aria-invalid={invalid} onChange={(e) => changeSpec({ modifier: { ...spec.modifier, slopes: e.target.value as SpecDraft['modifier']['slopes'], slopeList: e.target.value === 'percentiles' ? DEFAULT_PERCENTILES : e.target.value === 'values' ? '' : spec.modifier.slopeList } }, 'modifier.slopesAt')}>
                   <option value="percentiles">Percentiles</option>
-                  <option value="values">Values</option>
+                  <option value="values">Values clinicians name</option>
+                  <option value="sd">Mean and ± 1 SD</option>
                 </select>
                 {spec.modifier.slopes !== 'sd' && (
-                  <input className="field-input" aria-label={spec.modifier.slopes === 'percentiles' ? 'Percentiles' : 'Values'} value={spec.modifier.slopeList} aria-invalid={invalid} aria-describedby={describedBy} onChange={(e) => changeSpec({ modifier: { ...spec.modifier, slopeList: e.target.value } }, 'modifier.slopesAt')} />
+                  <input className="field-input" aria-label={spec.modifier.slopes === 'percentiles' ? 'Percentiles' : 'Values and their names'} data-testid="slope-points" value={spec.modifier.slopeList} aria-invalid={invalid} aria-describedby={describedBy} onChange={(e) => changeSpec({ modifier: { ...spec.modifier, slopeList: e.target.value } }, 'modifier.slopesAt')} />
                 )}
               </div>
             )}
@@ -65,4 +65,14 @@ export function ModifierSection({ spec, choices, fieldId, shownError, changeSpec
       )}
     </Section>
   );
+}
+
+/** The hint under "Report the effect at", by choice. */
+function slopeHint(choice: SpecDraft['modifier']['slopes'], range: FormColumn['numeric'] | undefined): string {
+  if (choice === 'percentiles') return 'Separate with commas, e.g. 10, 25, 50, 75, 90.';
+  if (choice === 'values') {
+    const example = range ? `${range.min} = low, ${range.median} = typical, ${range.max} = high` : '3 = mild, 5 = moderate, 7 = severe';
+    return `Values with the names clinicians use, separated by commas, e.g. ${example}. A name is optional.`;
+  }
+  return 'The mean, and one standard deviation below and above it.';
 }

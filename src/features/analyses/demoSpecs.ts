@@ -28,7 +28,8 @@ export const CALL_BACK_DEMO_SPEC: Spec = {
 export const UP_AND_ABOUT_DEMO_SPEC: Spec = {
   outcome: { column: 'length_of_stay_days', type: 'continuous' },
   exposure: { column: 'early_mobility', reference: '0' },
-  modifier: { column: 'frailty_score', type: 'continuous' },
+  // The effect is marked at the frailty scores clinicians name.
+  modifier: { column: 'frailty_score', type: 'continuous', slopesAt: { kind: 'values', values: [3, 5, 7], names: ['mild', 'moderate', 'severe'] } },
   covariates: [
     { column: 'age_band', type: 'categorical', reference: '18-64' },
     { column: 'sex', type: 'categorical', reference: 'F' },

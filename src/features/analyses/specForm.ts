@@ -13,6 +13,8 @@ import {
 
 export type CentreChoice = 'none' | 'mean' | 'median' | 'value';
 export type SlopeChoice = 'sd' | 'percentiles' | 'values';
+/** Where a new analysis reports a continuous modifier's effect: percentiles across the range. */
+export const DEFAULT_PERCENTILES = '10, 25, 50, 75, 90';
 
 /**
  * The specification as the form holds it: numbers as the text the analyst typed (so a
@@ -27,7 +29,7 @@ export interface SpecDraft {
     centre: CentreChoice;
     centreValue: string;
     slopes: SlopeChoice;
-    /** Comma-separated percentiles or values. */
+    /** Comma-separated percentiles, or values each with an optional name ("3 = mild, 5 = moderate"). */
     slopeList: string;
   };
   covariates: string[];
@@ -64,7 +66,7 @@ export function defaultDraft(): AnalysisDraft {
     spec: {
       outcome: { type: 'binary', column: '', event: '' },
       exposure: { column: '', reference: '' },
-      modifier: { column: '', reference: '', centre: 'none', centreValue: '', slopes: 'sd', slopeList: '' },
+      modifier: { column: '', reference: '', centre: 'none', centreValue: '', slopes: 'percentiles', slopeList: DEFAULT_PERCENTILES },
       covariates: [],
       covariateReferences: {},
       model: 'logistic',
@@ -227,7 +229,12 @@ export function specToDraft(spec: Spec, columns: readonly FormColumn[]): SpecDra
       centre: typeof centre === 'number' ? 'value' : centre,
       centreValue: typeof centre === 'number' ? String(centre) : '',
       slopes: slopes.kind,
-      slopeList: slopes.kind === 'percentiles' ? slopes.percentiles.join(', ') : slopes.kind === 'values' ? slopes.values.join(', ') : '',
+      slopeList:
+        slopes.kind === 'percentiles'
+          ? slopes.percentiles.join(', ')
+          : slopes.kind === 'values'
+            ? slopes.values.map((value, index) => (slopes.names?.[index] ? `${value} = ${slopes.names[index]}` : String(value))).join(', ')
+            : '',
     },
     covariates: spec.covariates.map((covariate) => covariate.column),
     covariateReferences,

@@ -42,6 +42,21 @@ describe('validation', () => {
     expect(!slopeResult.ok && slopeResult.errors['modifier.slopesAt']).toBe('12 lies outside the observed range (0 to 10).');
   });
 
+  it('writes values clinicians name, keeps the names through editing, and refuses an item without a number', () => {
+    const draft = callBackDraft();
+    const named = reviseDraft(CALL_BACK, draft, { modifier: { ...draft.modifier, column: 'comorbidity_score', slopes: 'values', slopeList: '2 = mild, 5 = moderate; 8' } });
+    const result = draftToSpec(CALL_BACK, named);
+    expect(result.ok && result.spec.modifier.slopesAt).toEqual({ kind: 'values', values: [2, 5, 8], names: ['mild', 'moderate', ''] });
+    if (result.ok) {
+      expect(SpecSchema.safeParse(result.spec).success).toBe(true);
+      expect(specToDraft(result.spec, CALL_BACK).modifier.slopeList).toBe('2 = mild, 5 = moderate, 8');
+    }
+    const unnamed = draftToSpec(CALL_BACK, { ...named, modifier: { ...named.modifier, slopeList: '2, 5' } });
+    expect(unnamed.ok && unnamed.spec.modifier.slopesAt).toEqual({ kind: 'values', values: [2, 5] });
+    const bad = draftToSpec(CALL_BACK, { ...named, modifier: { ...named.modifier, slopeList: 'mild, 5 = moderate' } });
+    expect(!bad.ok && bad.errors['modifier.slopesAt']).toBe('Start each item with a number, e.g. 3 = mild, 5 = moderate.');
+  });
+
   it('needs the event level of a text-coded binary outcome', () => {
     const draft = reviseDraft(CALL_BACK, callBackDraft(), { outcome: { type: 'binary', column: 'discharged_home', event: '' } });
     const result = draftToSpec(CALL_BACK, draft);

@@ -25,6 +25,21 @@ function parseList(text: string): (number | null)[] {
     .map(parseNumber);
 }
 
+/**
+ * Named values: "3 = mild, 5 = moderate, 7" → values [3, 5, 7] and names ["mild", "moderate", ""].
+ * A value without a number is null. Items are separated by commas or semicolons.
+ */
+export function parseNamedValues(text: string): { value: number | null; name: string }[] {
+  return text
+    .split(/[,;]/)
+    .map((part) => part.trim())
+    .filter((part) => part !== '')
+    .map((part) => {
+      const [number, ...rest] = part.split(/[=:]/);
+      return { value: parseNumber(number), name: rest.join(' ').trim() };
+    });
+}
+
 export type ConversionResult = { ok: true; spec: Spec } | { ok: false; errors: FieldErrors };
 
 /**
@@ -77,7 +92,18 @@ export function draftToSpec(columns: readonly FormColumn[], draft: SpecDraft): C
       if (value === null) errors['modifier.centre'] = 'Type the value to centre on, e.g. 5.';
       else centre = value;
     }
-    if (draft.modifier.slopes !== 'sd') {
+    if (draft.modifier.slopes === 'values') {
+      const items = parseNamedValues(draft.modifier.slopeList);
+      const numbers = items.flatMap((item) => (item.value === null ? [] : [item.value]));
+      const range = modifier.numeric;
+      const outside = range ? numbers.filter((value) => value < range.min || value > range.max) : [];
+      if (items.length === 0) errors['modifier.slopesAt'] = 'List the values, separated by commas, each with an optional name: 3 = mild.';
+      else if (numbers.length !== items.length) errors['modifier.slopesAt'] = 'Start each item with a number, e.g. 3 = mild, 5 = moderate.';
+      else if (items.length > 20) errors['modifier.slopesAt'] = 'List at most 20.';
+      else if (items.some((item) => item.name.length > 40)) errors['modifier.slopesAt'] = 'Keep each name to 40 characters.';
+      else if (outside.length > 0 && range) errors['modifier.slopesAt'] = `${outside.join(', ')} lies outside the observed range (${range.min} to ${range.max}).`;
+      else slopesAt = items.some((item) => item.name !== '') ? { kind: 'values', values: numbers, names: items.map((item) => item.name) } : { kind: 'values', values: numbers };
+    } else if (draft.modifier.slopes !== 'sd') {
       const list = parseList(draft.modifier.slopeList);
       const numbers = list.filter((value): value is number => value !== null);
       if (list.length === 0) errors['modifier.slopesAt'] = `List the ${draft.modifier.slopes === 'percentiles' ? 'percentiles' : 'values'}, separated by commas.`;

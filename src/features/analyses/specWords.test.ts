@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { draftToSpec } from './specValidation';
 import { computationSummary, specInWords } from './specWords';
 import { CALL_BACK, callBackDraft } from './testSupport';
+import { CALL_BACK_DEMO_SPEC as CALL_BACK_SPEC_FOR_WORDS } from './demoSpecs';
 
 describe('words', () => {
   it('says the specification in plain English with the short descriptions', () => {
@@ -26,7 +27,7 @@ describe('words', () => {
     expect(words).toBe(
       'Linear regression of y on x (reference no), its product with m as a continuous modifier, with no adjustment for other covariates; ' +
         'effects as mean differences; 90 % percentile-bootstrap intervals from 5,000 replicates (seed 42); tests at the 10 % level; ' +
-        'simple slopes at the mean and one standard deviation either side, with Johnson-Neyman boundaries.',
+        'the effect across m, marked at the mean and one standard deviation either side, with Johnson-Neyman boundaries.',
     );
   });
 
@@ -40,6 +41,15 @@ describe('words', () => {
     expect(byTitle['Effect within each stratum']).toContain('the 4 levels of age_band (18-44, 45-64, 65-79, 80+)');
     expect(byTitle['Interaction on the additive scale']).toContain('percentile bootstrap');
     expect(byTitle.Bootstrap).toContain('2,000 resamples with seed 1');
-    expect(byTitle['Stratified tables']).toContain('Mantel-Haenszel');
+    expect(byTitle['Crude cross-check']).toContain('Mantel-Haenszel');
+    expect(byTitle['Crude cross-check']).toContain('2 × 2 table of each level');
+    expect(byTitle.Power).toBe('The smallest interaction these data could detect with 80 % power, and the power for an interaction as large as the main effect.');
+  });
+
+  it('names the points a continuous modifier is marked at, with the names clinicians give them', () => {
+    const spec = { ...CALL_BACK_SPEC_FOR_WORDS, modifier: { column: 'comorbidity_score', type: 'continuous' as const, slopesAt: { kind: 'values' as const, values: [2, 5], names: ['mild', ''] } } };
+    expect(specInWords(spec)).toContain('the effect across comorbidity_score, marked at 2 (mild) and 5, with Johnson-Neyman boundaries');
+    const percentiles = { ...spec, modifier: { ...spec.modifier, slopesAt: { kind: 'percentiles' as const, percentiles: [1, 22, 50] } } };
+    expect(specInWords(percentiles)).toContain('marked at the 1st, 22nd and 50th percentiles');
   });
 });

@@ -4,6 +4,7 @@
  */
 import type { Spec } from '@/engine/boundary/schemas';
 import { defaultReference, levelsFromReference, type FormColumn } from './formColumns';
+import { ordinal } from '@/engine/analysis/pointLabels';
 import { CI_METHOD_LABEL, DEFAULT_REPLICATES, DEFAULT_SEED, MEASURE_LABEL, MODEL_LABEL, MULTIPLICITY_LABEL, isRatioModel, measureFor } from './specRules';
 
 /** How a column is named in prose: its short description where it has one, else its name. */
@@ -31,8 +32,8 @@ export interface WordsContext {
 
 function slopesInWords(slopes: NonNullable<Spec['modifier']['slopesAt']>): string {
   if (slopes.kind === 'sd') return 'the mean and one standard deviation either side';
-  if (slopes.kind === 'percentiles') return `the ${listInWords(slopes.percentiles.map((p) => `${p}th`))} percentiles`;
-  return listInWords(slopes.values.map(String));
+  if (slopes.kind === 'percentiles') return `the ${listInWords(slopes.percentiles.map(ordinal))} percentiles`;
+  return listInWords(slopes.values.map((value, index) => (slopes.names?.[index] ? `${value} (${slopes.names[index]})` : String(value))));
 }
 
 /**
@@ -70,7 +71,7 @@ export function specInWords(spec: Spec, context: WordsContext = {}): string {
     const multiplicity = spec.multiplicity ?? 'holm';
     parts.push(multiplicity === 'none' ? `no adjustment for multiple comparisons across ${strata}` : `${MULTIPLICITY_LABEL[multiplicity]} adjustment across ${strata}`);
   } else {
-    parts.push(`simple slopes at ${slopesInWords(spec.modifier.slopesAt ?? { kind: 'sd' })}, with Johnson-Neyman boundaries`);
+    parts.push(`the effect across ${label(spec.modifier.column)}, marked at ${slopesInWords(spec.modifier.slopesAt ?? { kind: 'sd' })}, with Johnson-Neyman boundaries`);
   }
   if (spec.preventive) parts.push('additive measures recoded for a preventive intervention');
   if (spec.standardize) parts.push('standardized risks, risk differences and numbers needed to treat within each level');
@@ -129,17 +130,17 @@ export function computationSummary(spec: Spec, columns: readonly FormColumn[]): 
       });
     }
     if (spec.outcome.type === 'binary') {
-      items.push({ title: 'Stratified tables', detail: 'Crude 2 × 2 tables per level with Mantel-Haenszel pooled estimates and tests of homogeneity (Breslow-Day with Tarone\'s correction, Woolf).' });
+      items.push({ title: 'Crude cross-check', detail: 'The 2 × 2 table of each level without covariates, the crude test that the effect is the same in every level (for odds and risk ratios) set beside the adjusted model\'s test, and the Mantel-Haenszel estimate pooled over the levels.' });
     }
   } else {
     const slopes = spec.modifier.slopesAt ?? { kind: 'sd' };
     items.push({
-      title: 'Simple slopes',
-      detail: `The ${measureName} of ${spec.exposure.column} at ${slopesInWords(slopes)} of ${spec.modifier.column}, with ${level} intervals.`,
+      title: 'Effect curve',
+      detail: `The ${measureName} of ${spec.exposure.column} across the observed range of ${spec.modifier.column} with its ${level} band, marked at ${slopesInWords(slopes)}, and where the data are thin.`,
     });
     items.push({
-      title: 'Johnson-Neyman boundaries',
-      detail: `Where along ${spec.modifier.column} the effect of ${spec.exposure.column} is significant at the ${percentText(spec.alpha ?? 1 - spec.ci.level)} % level, with the band across the observed range for the plot.`,
+      title: 'Where the effect is distinguishable from none',
+      detail: `The stretch of ${spec.modifier.column} over which the effect of ${spec.exposure.column} is distinguishable from no effect at the ${percentText(spec.alpha ?? 1 - spec.ci.level)} % level (Johnson-Neyman boundaries), with a word on each boundary.`,
     });
     items.push({
       title: 'Interaction',
@@ -154,6 +155,6 @@ export function computationSummary(spec: Spec, columns: readonly FormColumn[]): 
       detail: `${(spec.ci.replicates ?? DEFAULT_REPLICATES).toLocaleString('en-GB')} resamples with seed ${spec.ci.seed ?? DEFAULT_SEED}; each refits the model, so this step takes the longest. The same seed reproduces the same intervals.`,
     });
   }
-  items.push({ title: 'Power', detail: 'The smallest interaction these data could detect with 80 % power, and the power for an interaction as large as the main effect.' });
+  items.push({ title: 'Power', detail: `The smallest interaction these data could detect with ${percentText(spec.planning?.power ?? 0.8)} % power, and the power for an interaction ${spec.planning?.interaction === undefined ? 'as large as the main effect' : 'of the size set here'}.` });
   return items;
 }

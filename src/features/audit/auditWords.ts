@@ -27,7 +27,7 @@ const SPEC_FIELD: Record<string, string> = {
   'modifier.type': 'modifier type',
   'modifier.reference': 'modifier reference level',
   'modifier.centre': 'modifier centring',
-  'modifier.slopesAt': 'points for simple slopes',
+  'modifier.slopesAt': 'points the effect is marked at',
   covariates: 'covariates',
   'ci.level': 'confidence level',
   'ci.method': 'interval method',

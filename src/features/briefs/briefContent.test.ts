@@ -86,3 +86,26 @@ describe('brief content with a stratum of nine people', () => {
     }
   });
 });
+
+describe('brief content of a continuous modifier', () => {
+  it('speaks of the marked points and says where the effect is distinguishable from none, as the results page does', async () => {
+    const { UP_AND_ABOUT_SPEC, engineResult } = await import('../runs/testSupport');
+    const upAndAbout = await engineResult('up-and-about', UP_AND_ABOUT_SPEC);
+    const brief = buildBriefContent(upAndAbout, UP_AND_ABOUT_SPEC, FACTS, { title: 'Mobility and frailty', summary: '', plot: 'modifier', ownCautions: [] });
+    const tables = buildResultTables(upAndAbout, UP_AND_ABOUT_SPEC);
+    expect(brief.slopes!.map((slope) => [slope.label, slope.at])).toEqual(tables.continuous!.slopes.map((row) => [row.label, row.at.text]));
+    expect(brief.effectRange).toContain(tables.continuous!.johnsonNeyman!);
+    expect(brief.plot!.caption).toMatch(/^The intervention's effect at the marked points of frailty_score/);
+    const html = renderBriefHtml(brief, { status: 'Draft preview' });
+    expect(html).toContain('data-testid="brief-effect-range"');
+    expect(brief.cautions.length).toBeGreaterThan(0);
+    // The PDF carries the same words: its text, read back with poppler's pdftotext.
+    const { renderBriefPdf } = await import('./briefPdf');
+    const { execFileSync } = await import('node:child_process');
+    const pdf = await renderBriefPdf(brief, 'A4', { author: 'Test analyst', status: 'Draft preview', createdAt: new Date('2026-12-02T08:00:00Z') });
+    const text = execFileSync('pdftotext', ['-layout', '-', '-'], { input: pdf }).toString().replace(/\s+/g, ' ');
+    expect(text).toContain('marked point');
+    expect(text).toContain('mild');
+    expect(text).toContain('distinguishable from no effect');
+  }, 60_000);
+});

@@ -66,7 +66,10 @@ export interface BriefContent {
   modifier: { column: string; type: 'categorical' | 'continuous' };
   outcomeLabel: string;
   keyTable: { referenceLabel: string; rows: KeyRow[] } | null;
-  slopes: { label: string; effect: string; p: string }[] | null;
+  /** Continuous modifiers: the effect at the marked points (named values or percentiles). */
+  slopes: { label: string; at: string; effect: string; p: string }[] | null;
+  /** Continuous modifiers: where the effect is distinguishable from none and where the data are thin, in one sentence. */
+  effectRange: string | null;
   /** Standardized absolute effects (binary outcomes, when the run asked for them). */
   absolute: BriefAbsolute | null;
   eValues: BriefEValues | null;
@@ -126,7 +129,7 @@ export function buildBriefContent(result: Result, spec: Spec, facts: BriefFacts,
       }),
     };
   }
-  const slopes = tables.continuous ? tables.continuous.slopes.map((slope) => ({ label: slope.label, effect: slope.effect.text, p: slope.p.text })) : null;
+  const slopes = tables.continuous ? tables.continuous.slopes.map((slope) => ({ label: slope.label, at: slope.at.text, effect: slope.effect.text, p: slope.p.text })) : null;
   const omnibus = `${tables.omnibus.label}: ${tables.omnibus.statistic.text} on ${tables.omnibus.df}, p ${tables.omnibus.p.text.startsWith('<') ? tables.omnibus.p.text : `= ${tables.omnibus.p.text}`}.`;
 
   return {
@@ -142,6 +145,7 @@ export function buildBriefContent(result: Result, spec: Spec, facts: BriefFacts,
     outcomeLabel: binary ? 'risk' : 'mean',
     keyTable,
     slopes,
+    effectRange: tables.continuous ? [tables.continuous.johnsonNeyman, ...tables.continuous.boundaries].filter((text): text is string => Boolean(text)).join(' ') : null,
     absolute: briefAbsolute(result, counts, tables.ciLabel),
     eValues: briefEValues(result),
     interactionTest: omnibus,
@@ -196,7 +200,7 @@ function buildPlot(result: Result, tables: ReturnType<typeof buildResultTables>,
       kind: 'modifier', title: `The intervention's effect across ${result.modifier.column}`,
       axisLabel: `${measure.name} of ${result.exposure.column} = ${result.exposure.level} vs ${result.exposure.reference} (${tables.ciLabel})`,
       nullValue: measure.nullValue, logScale: measure.ratio, points,
-      caption: `The intervention's effect at chosen values of ${result.modifier.column}, from one model with a product term. ` +
+      caption: `The intervention's effect at the marked points of ${result.modifier.column}, from one model with a product term. ` +
         points.map((point) => point.hover).join('. ') + '.' + (tables.continuous.johnsonNeyman ? ` ${tables.continuous.johnsonNeyman}` : ''),
     };
   }

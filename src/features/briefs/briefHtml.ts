@@ -29,16 +29,17 @@ function keyTableHtml(content: BriefContent): string {
       `<td data-count>${escapeHtml(row.within.n)}</td><td>${escapeHtml(row.within.effect)}</td><td>${escapeHtml(row.reri)}</td><td>${escapeHtml(row.ratioOfRatios)}</td></tr>`;
   }).join('');
   return `<div class="brief-table-wrap"><table class="brief-table" data-testid="brief-key-table">
-<caption>Each combination of ${escapeHtml(content.exposure.column)} and ${escapeHtml(content.modifier.column)} against one reference (${escapeHtml(table.referenceLabel)}), the intervention's effect within each stratum, and the interaction on both scales.</caption>
+<caption>Each combination of ${escapeHtml(content.exposure.column)} and ${escapeHtml(content.modifier.column)} against one reference (${escapeHtml(table.referenceLabel)}), the intervention's effect within each stratum, and the interaction measures.</caption>
 <thead><tr><th scope="col" rowspan="2">${escapeHtml(content.modifier.column)}</th>${head}<th scope="col" rowspan="2">People in stratum</th><th scope="col" rowspan="2">Effect of ${escapeHtml(content.exposure.column)} within stratum (${escapeHtml(content.ciLabel)})</th><th scope="col" rowspan="2">RERI (${escapeHtml(content.ciLabel)})</th><th scope="col" rowspan="2">Ratio of ratios (${escapeHtml(content.ciLabel)})</th></tr>
 <tr>${sub}</tr></thead><tbody>${rows}</tbody></table></div>`;
 }
 
 function slopesHtml(content: BriefContent): string {
   if (!content.slopes) return '';
-  const rows = content.slopes.map((slope) => `<tr><th scope="row">${escapeHtml(slope.label)}</th><td>${escapeHtml(slope.effect)}</td><td>${escapeHtml(slope.p)}</td></tr>`).join('');
-  return `<div class="brief-table-wrap"><table class="brief-table" data-testid="brief-slopes-table"><caption>The intervention's effect at chosen values of ${escapeHtml(content.modifier.column)}.</caption>
-<thead><tr><th scope="col">${escapeHtml(content.modifier.column)}</th><th scope="col">${escapeHtml(content.measureName)} (${escapeHtml(content.ciLabel)})</th><th scope="col">p</th></tr></thead><tbody>${rows}</tbody></table></div>`;
+  const rows = content.slopes.map((slope) => `<tr><th scope="row">${escapeHtml(slope.label)}</th><td>${escapeHtml(slope.at)}</td><td>${escapeHtml(slope.effect)}</td><td>${escapeHtml(slope.p)}</td></tr>`).join('');
+  const range = content.effectRange ? `<p data-testid="brief-effect-range">${escapeHtml(content.effectRange)}</p>` : '';
+  return `${range}<div class="brief-table-wrap"><table class="brief-table" data-testid="brief-slopes-table"><caption>The intervention's effect at the marked points of ${escapeHtml(content.modifier.column)}.</caption>
+<thead><tr><th scope="col">Marked point</th><th scope="col">${escapeHtml(content.modifier.column)}</th><th scope="col">${escapeHtml(content.measureName)} (${escapeHtml(content.ciLabel)})</th><th scope="col">p</th></tr></thead><tbody>${rows}</tbody></table></div>`;
 }
 
 function absoluteHtml(content: BriefContent): string {

@@ -135,8 +135,12 @@ export function renderBriefPdf(content: BriefContent, pageSize: PageSize, meta: 
 function drawKeyTable(doc: PDFKit.PDFDocument, content: BriefContent, width: number, margin: number): void {
   const table = content.keyTable;
   if (!table && content.slopes) {
-    const header = [content.modifier.column, `${content.measureName} (${content.ciLabel})`, 'p'];
-    drawRows(doc, [header, ...content.slopes.map((slope) => [slope.label, slope.effect, slope.p])], [0.3, 0.5, 0.2], width, margin);
+    if (content.effectRange) {
+      doc.font('Noto').fontSize(9).fillColor(INK).text(pdfText(content.effectRange), margin, doc.y, { width });
+      doc.moveDown(0.4);
+    }
+    const header = ['marked point', content.modifier.column, `${content.measureName} (${content.ciLabel})`, 'p'];
+    drawRows(doc, [header, ...content.slopes.map((slope) => [slope.label, slope.at, slope.effect, slope.p])], [0.25, 0.2, 0.4, 0.15], width, margin);
     return;
   }
   if (!table) return;
@@ -149,7 +153,7 @@ function drawKeyTable(doc: PDFKit.PDFDocument, content: BriefContent, width: num
   }
   header.push('people in stratum', `effect within stratum (${content.ciLabel})`, 'RERI', 'ratio of ratios');
   const rows = table.rows.map((row) => {
-    const out = [`${row.level}${row.isReference ? ' (ref.)' : ''}${row.small ? ' †' : ''}`];
+    const out = [`${row.level}${row.isReference ? ' (reference)' : ''}${row.small ? ' †' : ''}`];
     for (const cell of row.cells) {
       out.push(cell.n);
       if (binary) out.push(cell.events ?? '');

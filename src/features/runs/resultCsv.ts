@@ -10,7 +10,8 @@ import { csvRecord } from '@/lib/csv';
 import { specInWords } from '../analyses/specWords';
 import { absoluteRows, eValueRows } from './absoluteCsv';
 import { displayLevels, measureInfo, type MeasureInfo } from './resultFormat';
-import { johnsonNeymanSentence, multiplicityNote, OMNIBUS_LABEL } from './resultWords';
+import { multiplicityNote, OMNIBUS_LABEL } from './resultWords';
+import { effectRangeInWords } from './continuousWords';
 
 export const CSV_COLUMNS = [
   'section',
@@ -159,10 +160,11 @@ function continuousRows({ result, measure, exposure, modifier }: CsvContext): Cs
   }));
   const jn = result.johnsonNeyman;
   if (jn) {
-    (jn.bounds ?? []).forEach((bound, index) => {
-      rows.push({ section: 'johnson-neyman', measure: 'boundary', estimate: bound, note: jn.boundsInRange[index] ? 'inside the observed range' : 'outside the observed range' });
+    const words = effectRangeInWords(jn, { modifier, alpha: result.alpha, spread: result.spread });
+    words.boundaries.forEach((boundary) => {
+      rows.push({ section: 'johnson-neyman', measure: 'boundary', estimate: boundary.at, note: boundary.text });
     });
-    rows.push({ section: 'johnson-neyman', measure: 'sentence', note: johnsonNeymanSentence(jn, { modifier, alpha: result.alpha }) });
+    rows.push({ section: 'johnson-neyman', measure: 'sentence', note: words.sentence });
   }
   return rows;
 }

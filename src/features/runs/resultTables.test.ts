@@ -6,7 +6,9 @@ import { csvField, csvRecord } from '@/lib/csv';
 import { CSV_COLUMNS, resultCsv } from './resultCsv';
 import { fixed, formatInterval, formatP, formatRatio, MINUS, type IntervalCell } from './resultFormat';
 import { buildResultTables } from './resultTables';
-import { johnsonNeymanSentence, multiplicityNote } from './resultWords';
+import { multiplicityNote, warningsInWords } from './resultWords';
+import { effectRangeInWords, thinStretches } from './continuousWords';
+import { unstableIntervals } from './resultReading';
 import { CALL_BACK_SPEC, engineResult, UP_AND_ABOUT_SPEC } from './testSupport';
 
 /**
@@ -110,11 +112,11 @@ describe('tables of a categorical modifier (Call-back, logistic, real engine res
   it('shows the pooled risk difference under both published variances, each labelled', () => {
     const mh = result.stratifiedTables!.mantelHaenszel;
     const [sato, greenlandRobins] = mh.riskDifferenceVariances!;
-    const rd = buildResultTables({ ...result, effectMeasure: 'RD' }, CALL_BACK_SPEC).mantelHaenszel!;
+    const rd = buildResultTables({ ...result, effectMeasure: 'RD' }, CALL_BACK_SPEC).crudeCheck!.pooled!;
     expect(rd.label).toContain('limits from the Sato (1989) variance');
-    expect([rd.pooled.estimate, rd.pooled.lower, rd.pooled.upper]).toEqual([mh.riskDifference!.estimate, sato.lower, sato.upper]);
+    expect([rd.cell.estimate, rd.cell.lower, rd.cell.upper]).toEqual([mh.riskDifference!.estimate, sato.lower, sato.upper]);
     expect(rd.alternative!.label).toBe('With the Greenland-Robins (1985) variance');
-    expect([rd.alternative!.pooled.estimate, rd.alternative!.pooled.lower, rd.alternative!.pooled.upper]).toEqual([mh.riskDifference!.estimate, greenlandRobins.lower, greenlandRobins.upper]);
+    expect([rd.alternative!.cell.estimate, rd.alternative!.cell.lower, rd.alternative!.cell.upper]).toEqual([mh.riskDifference!.estimate, greenlandRobins.lower, greenlandRobins.upper]);
     const records = parse(resultCsv(result, CALL_BACK_SPEC)) as string[][];
     const header = records.find((record) => record[0] === 'section')!;
     const labels = records.map((record) => record[header.indexOf('measure')]).filter((label) => label?.startsWith('Mantel-Haenszel RD'));
@@ -144,8 +146,8 @@ describe('tables of a categorical modifier (Call-back, logistic, real engine res
     expect(tables.omnibus.statistic.text).toBe(`χ² = ${twoDecimals(omnibus.statistic!)}`);
     // Three product terms for four age bands.
     expect(tables.omnibus.df).toBe('3 df');
-    expectInterval(tables.mantelHaenszel?.pooled, result.stratifiedTables!.mantelHaenszel.oddsRatio);
-    expect(tables.mantelHaenszel?.alternative).toBeNull();
+    expectInterval(tables.crudeCheck?.pooled?.cell, result.stratifiedTables!.mantelHaenszel.oddsRatio);
+    expect(tables.crudeCheck?.pooled?.alternative).toBeNull();
     expect(tables.covariates.map((covariate) => covariate.text)).toEqual(['sex (reference F)', 'comorbidity_score', 'prior_admissions', 'site (reference Tern Valley General)']);
     expect(tables.modelLine).toContain(`${result.n.toLocaleString('en-GB')} rows analysed`);
     expect(tables.modifierWithinArms.flatMap((row) => row.cells)).toHaveLength(result.modifierEffects.length);
@@ -167,7 +169,14 @@ describe('tables of a categorical modifier (Call-back, logistic, real engine res
 
   it('carries the engine warnings in words', () => {
     const tables = buildResultTables(result, CALL_BACK_SPEC);
-    expect(tables.warnings.map((warning) => warning.message)).toEqual(result.warnings.map((warning) => warning.message));
+    // One entry per engine warning code, in the engine's order; a code given once keeps the engine's message.
+    expect(tables.warnings.map((warning) => warning.code)).toEqual([...new Set(result.warnings.map((warning) => warning.code))]);
+    for (const warning of tables.warnings) {
+      const given = result.warnings.filter((entry) => entry.code === warning.code);
+      if (given.length === 1) expect(warning.message).toBe(given[0].message);
+    }
+    const preventive = tables.warnings.filter((warning) => warning.code === 'PREVENTIVE_EXPOSURE');
+    expect(preventive.length).toBeLessThanOrEqual(1);
     // 1,709 events in 12,000 rows is 14 %, above the engine's 10 % threshold for a common outcome.
     expect(tables.warnings.some((warning) => warning.code === 'COMMON_OUTCOME_OR_RERI')).toBe(true);
   });
@@ -238,13 +247,20 @@ describe('tables of a continuous modifier (Up-and-about, linear, real engine res
     expect(tables.omnibus.df).toBe(`1 and ${result.interaction.omnibus.df2!.toLocaleString('en-GB')} df`);
   });
 
-  it('puts the Johnson-Neyman boundaries in words', () => {
+  it('says where the effect is distinguishable from none and where the data are thin', () => {
     const tables = buildResultTables(result, UP_AND_ABOUT_SPEC);
     const jn = result.johnsonNeyman!;
-    expect(tables.continuous!.johnsonNeyman).toBe(johnsonNeymanSentence(jn, { modifier: 'frailty_score', alpha: result.alpha }));
+    expect(tables.continuous!.johnsonNeyman).toBe(effectRangeInWords(jn, { modifier: 'frailty_score', alpha: result.alpha, spread: result.spread }).sentence);
     // The synthetic truth is an effect of 0.15 − 0.35·frailty days, far from zero on all of 1 to 9,
     // so the boundaries (if any) lie outside the observed range.
-    expect(tables.continuous!.johnsonNeyman).toMatch(/^The intervention's effect is significant at the 5 % level across the whole observed range of frailty_score \(1\.0 to 9\.0\)/);
+    expect(tables.continuous!.johnsonNeyman).toMatch(/^The intervention's effect is distinguishable from no effect at the 5 % level across the whole observed range of frailty_score \(1\.0 to 9\.0\)/);
+    expect(tables.continuous!.middle!.map((cell) => cell.value)).toEqual([result.spread!.p5, result.spread!.p95]);
+    // The demo analysis marks the frailty scores clinicians name.
+    expect(tables.continuous!.slopes.map((row) => [row.label, row.at.value])).toEqual([['mild', 3], ['moderate', 5], ['severe', 7]]);
+    tables.continuous!.slopes.forEach((row, index) => {
+      const slope = result.slopes![index];
+      expect(row.clear).toBe(slope.upper! < 0 || slope.lower! > 0);
+    });
   });
 
   it('gives a ratio model with a continuous modifier both a per-unit ratio and additive measures at +1 SD', async () => {
@@ -262,57 +278,127 @@ describe('tables of a continuous modifier (Up-and-about, linear, real engine res
   });
 });
 
-describe('Johnson-Neyman sentences', () => {
+describe('where the effect is distinguishable from none, in words', () => {
   const base = { observed: [1, 9] as [number, number], criticalValue: 1.96 };
-  const say = (jn: Omit<NonNullable<Result['johnsonNeyman']>, 'observed' | 'criticalValue'>) =>
-    johnsonNeymanSentence({ ...base, ...jn }, { modifier: 'frailty_score', alpha: 0.05 });
+  const say = (jn: Omit<NonNullable<Result['johnsonNeyman']>, 'observed' | 'criticalValue'>, spread?: Result['spread']) =>
+    effectRangeInWords({ ...base, ...jn }, { modifier: 'frailty_score', alpha: 0.05, spread });
 
-  it('outside two boundaries within the range: below the first or above the second', () => {
-    expect(say({ bounds: [3.25, 6.5], significant: 'outside', boundsInRange: [true, true] })).toBe(
-      "The intervention's effect is significant at the 5 % level where frailty_score is below 3.3 or above 6.5 (observed range 1.0 to 9.0).",
+  it('outside two boundaries within the range: below the first or above the second, with a word on each boundary', () => {
+    const words = say({ bounds: [3.25, 6.5], significant: 'outside', boundsInRange: [true, true] });
+    expect(words.sentence).toBe(
+      "The intervention's effect is distinguishable from no effect at the 5 % level where frailty_score is below 3.3 or above 6.5, and cannot be told apart from none between 3.3 and 6.5 (observed 1.0 to 9.0).",
+    );
+    expect(words.boundaries.map((boundary) => boundary.text)).toEqual([
+      'The lower Johnson-Neyman boundary, 3.3, lies within the observed range: there the interval of the effect just reaches no effect.',
+      'The upper Johnson-Neyman boundary, 6.5, lies within the observed range: there the interval of the effect just reaches no effect.',
+    ]);
+  });
+
+  it('outside, with only the lower boundary in range: below it, and the upper one said to lie beyond the data', () => {
+    const words = say({ bounds: [4.2, 12], significant: 'outside', boundsInRange: [true, false] });
+    expect(words.sentence).toBe(
+      "The intervention's effect is distinguishable from no effect at the 5 % level where frailty_score is below 4.2, and cannot be told apart from none above 4.2 (observed 1.0 to 9.0).",
+    );
+    expect(words.boundaries[1].text).toBe(
+      'The upper Johnson-Neyman boundary, 12.0, lies above the largest observed frailty_score (9.0): no one in these data is there, so it marks nothing about them.',
     );
   });
 
-  it('outside, with only the lower boundary in range: below it', () => {
-    expect(say({ bounds: [4.2, 12], significant: 'outside', boundsInRange: [true, false] })).toBe(
-      "The intervention's effect is significant at the 5 % level where frailty_score is below 4.2 (observed range 1.0 to 9.0).",
-    );
-  });
-
-  it('outside, with both boundaries below the range: everywhere observed', () => {
-    expect(say({ bounds: [-0.41, 0.59], significant: 'outside', boundsInRange: [false, false] })).toBe(
-      "The intervention's effect is significant at the 5 % level across the whole observed range of frailty_score (1.0 to 9.0); the Johnson-Neyman boundaries (−0.4 and 0.6) lie outside the observed range.",
-    );
+  it('outside, with both boundaries below the range: everywhere observed, and both boundaries named', () => {
+    const words = say({ bounds: [-0.41, 0.59], significant: 'outside', boundsInRange: [false, false] });
+    expect(words.sentence).toBe("The intervention's effect is distinguishable from no effect at the 5 % level across the whole observed range of frailty_score (1.0 to 9.0).");
+    expect(words.boundaries.map((boundary) => boundary.inRange)).toEqual([false, false]);
+    expect(words.boundaries[0].text).toMatch(/^The lower Johnson-Neyman boundary, −0\.4, lies below the smallest observed frailty_score \(1\.0\)/);
   });
 
   it('outside, with the range between the boundaries: nowhere observed', () => {
-    expect(say({ bounds: [0, 10], significant: 'outside', boundsInRange: [false, false] })).toBe(
-      "The intervention's effect is not significant at the 5 % level anywhere in the observed range of frailty_score (1.0 to 9.0); the Johnson-Neyman boundaries (0.0 and 10.0) lie outside the observed range.",
+    expect(say({ bounds: [0, 10], significant: 'outside', boundsInRange: [false, false] }).sentence).toBe(
+      "The intervention's effect cannot be told apart from no effect at the 5 % level anywhere in the observed range of frailty_score (1.0 to 9.0).",
     );
   });
 
   it('inside two boundaries: between them', () => {
-    expect(say({ bounds: [2, 5.5], significant: 'inside', boundsInRange: [true, true] })).toBe(
-      "The intervention's effect is significant at the 5 % level where frailty_score is between 2.0 and 5.5 (observed range 1.0 to 9.0).",
+    expect(say({ bounds: [2, 5.5], significant: 'inside', boundsInRange: [true, true] }).sentence).toBe(
+      "The intervention's effect is distinguishable from no effect at the 5 % level where frailty_score is between 2.0 and 5.5, and cannot be told apart from none below 2.0 or above 5.5 (observed 1.0 to 9.0).",
     );
   });
 
   it('one boundary: above it for "outside", below it for "inside"', () => {
-    expect(say({ bounds: [4.2], significant: 'outside', boundsInRange: [true] })).toBe(
-      "The intervention's effect is significant at the 5 % level where frailty_score is above 4.2 (observed range 1.0 to 9.0).",
-    );
-    expect(say({ bounds: [4.2], significant: 'inside', boundsInRange: [true] })).toBe(
-      "The intervention's effect is significant at the 5 % level where frailty_score is below 4.2 (observed range 1.0 to 9.0).",
-    );
+    expect(say({ bounds: [4.2], significant: 'outside', boundsInRange: [true] }).sentence).toMatch(/where frailty_score is above 4\.2, and cannot be told apart from none below 4\.2/);
+    expect(say({ bounds: [4.2], significant: 'inside', boundsInRange: [true] }).sentence).toMatch(/where frailty_score is below 4\.2, and cannot be told apart from none above 4\.2/);
+    expect(say({ bounds: [4.2], significant: 'inside', boundsInRange: [true] }).boundaries[0].text).toMatch(/^The Johnson-Neyman boundary, 4\.2,/);
   });
 
-  it('everywhere and nowhere', () => {
-    expect(say({ bounds: null, significant: 'everywhere', boundsInRange: [] })).toBe(
-      "The intervention's effect is significant at the 5 % level across the whole observed range of frailty_score (1.0 to 9.0).",
-    );
-    expect(say({ bounds: null, significant: 'nowhere', boundsInRange: [] })).toBe(
-      "The intervention's effect is not significant at the 5 % level anywhere in the observed range of frailty_score (1.0 to 9.0).",
-    );
+  it('everywhere and nowhere, without boundaries', () => {
+    expect(say({ bounds: null, significant: 'everywhere', boundsInRange: [] }).boundaries).toEqual([]);
+    expect(say({ bounds: null, significant: 'nowhere', boundsInRange: [] }).sentence).toMatch(/cannot be told apart from no effect at the 5 % level anywhere/);
+  });
+
+  it('says where the data are thin: outside the 5th to 95th percentiles, and in a sparse tenth of the range', () => {
+    // Counts set here by hand: 100 rows, the tenth from 5.8 to 6.6 holding 1 (under 2 %).
+    const bins = [8, 12, 14, 16, 15, 14, 1, 10, 6, 4].map((n, k) => ({ from: 1 + 0.8 * k, to: 1 + 0.8 * (k + 1), n }));
+    const spread = { p5: 1.5, p95: 8.2, bins };
+    const stretches = thinStretches(spread, [1, 9]);
+    expect(stretches).toHaveLength(3);
+    [[1, 1.5], [5.8, 6.6], [8.2, 9]].forEach(([from, to], index) => {
+      expect(stretches[index][0]).toBeCloseTo(from, 12);
+      expect(stretches[index][1]).toBeCloseTo(to, 12);
+    });
+    const words = say({ bounds: [6.2, 20], significant: 'outside', boundsInRange: [true, false] }, spread);
+    expect(words.sentence).toMatch(/; the data are thin below 1\.5, between 5\.8 and 6\.6 and above 8\.2, so read the effect there with care\.$/);
+    expect(words.boundaries[0].text).toContain('in a stretch where the data are thin');
+  });
+});
+
+describe('reading aids', () => {
+  it('says a per-level warning once', () => {
+    const warnings = warningsInWords({
+      warnings: [
+        { code: 'PREVENTIVE_EXPOSURE', message: 'For 65-79, …', level: '65-79' },
+        { code: 'PREVENTIVE_EXPOSURE', message: 'For 80+, …', level: '80+' },
+        { code: 'SPARSE_STRATUM', message: 'Few events in 80+.' },
+      ],
+    });
+    expect(warnings.map((warning) => warning.code)).toEqual(['PREVENTIVE_EXPOSURE', 'SPARSE_STRATUM']);
+    expect(warnings[0].message).toMatch(/^In 65-79 and 80\+, a combination has a lower risk than the reference: the intervention lowers risk there\./);
+  });
+});
+
+describe('the crude cross-check and unstable intervals (Call-back, real engine result)', () => {
+  let result: Result;
+  beforeAll(async () => {
+    result = await engineResult('call-back', CALL_BACK_SPEC);
+  });
+
+  it('sets the crude homogeneity test beside the adjusted test, in a sentence, with the 2 × 2 tables', () => {
+    const check = buildResultTables(result, CALL_BACK_SPEC).crudeCheck!;
+    const crudeP = result.stratifiedTables!.homogeneity.breslowDayTarone!.p!;
+    const adjustedP = result.interaction.omnibus.p!;
+    expect(check.crudeTest!.p.value).toBe(crudeP);
+    expect(check.crudeTest!.name).toBe("Crude tables, no covariates (Breslow-Day, Tarone's correction)");
+    expect(check.adjustedTest.p.value).toBe(adjustedP);
+    const agree = (crudeP < 0.05) === (adjustedP < 0.05);
+    expect(check.comparison).toMatch(agree ? /^The crude tables agree with the adjusted model/ : /^The (adjusted model finds|crude tables suggest)/);
+    expect(check.comparison).toContain('Pooled over the levels without covariates, the odds ratio is');
+    expect(check.tables.map((row) => row.level)).toEqual(['18-44', '45-64', '65-79', '80+']);
+    for (const row of check.tables) {
+      const stratum = result.stratifiedTables!.strata.find((entry) => entry.level === row.level)!;
+      expect([row.exposedEvents.value, row.exposedOthers.value, row.controlEvents.value, row.controlOthers.value]).toEqual([stratum.a, stratum.b, stratum.c, stratum.d]);
+      expectInterval(row.crude, stratum.oddsRatio);
+    }
+  });
+
+  it('flags a ratio interval whose upper limit is ten or more times its lower, in words', () => {
+    const tables = buildResultTables(result, CALL_BACK_SPEC);
+    // An S interval of 0.03 to 54.67 set by hand on the real tables.
+    const wide = { ...tables, interaction: tables.interaction.map((row, index) => (index === 0 ? { ...row, s: { text: '', estimate: 1.2, lower: 0.03, upper: 54.67, testId: 's-x' } } : row)) };
+    const flagged = unstableIntervals(wide);
+    expect(flagged.find((entry) => entry.testId === 's-x')?.text).toBe(`The synergy index S for ${tables.interaction[0].level}: 0.03 to 54.67, an upper limit 1,822 times the lower.`);
+    // The real result's own intervals: flagged exactly when upper / lower ≥ 10.
+    const real = unstableIntervals(tables).map((entry) => entry.testId);
+    for (const row of tables.interaction) {
+      if (row.s && row.s.lower !== null && row.s.upper !== null && row.s.lower > 0) expect(real.includes(row.s.testId!)).toBe(row.s.upper / row.s.lower >= 10);
+    }
   });
 });
 

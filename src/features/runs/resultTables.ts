@@ -12,13 +12,15 @@ import type { Result, Spec } from '@/engine/boundary/schemas';
 import { MODEL_LABEL } from '../analyses/specRules';
 import { percentText, specInWords } from '../analyses/specWords';
 import {
-  displayLevels, fixed, formatCount, formatNumber, formatP, intervalCell, measureInfo, modifierDecimals, numberCell, pCell,
+  displayLevels, fixed, formatCount, formatNumber, intervalCell, measureInfo, modifierDecimals, numberCell, pCell,
   type IntervalCell, type MeasureInfo, type NumberCell,
 } from './resultFormat';
 import { absoluteEffectsView, eValuesView, type AbsoluteEffectsView, type EValuesView } from './absoluteEffectsView';
 import { perResult } from './finishedResults';
+import { effectRangeInWords, isThin } from './continuousWords';
+import { crudeCrossCheck, type CrudeCrossCheckView } from './crudeCrossCheck';
 import {
-  johnsonNeymanSentence, missingInWords, multiplicityNote, OMNIBUS_LABEL, planningInWords, referenceText, warningsInWords,
+  missingInWords, multiplicityNote, OMNIBUS_LABEL, planningInWords, referenceText, warningsInWords,
   type WarningView,
 } from './resultWords';
 
@@ -59,6 +61,10 @@ export interface SlopeRowView {
   at: NumberCell;
   effect: IntervalCell;
   p: NumberCell;
+  /** The interval leaves out no effect. */
+  clear: boolean;
+  /** The point lies where the data are thin. */
+  thin: boolean;
 }
 
 export interface ResultTables {
@@ -76,12 +82,19 @@ export interface ResultTables {
   modifierWithinArms: { level: string; cells: { exposure: string; effect: IntervalCell }[] }[];
   interaction: InteractionRowView[];
   omnibus: { label: string; statistic: NumberCell; df: string; p: NumberCell };
-  /** `alternative`: the pooled RD's limits under the Greenland-Robins (1985) variance (the main limits use Sato's). */
-  mantelHaenszel: { label: string; pooled: IntervalCell; homogeneity: string | null; alternative: { label: string; pooled: IntervalCell } | null } | null;
+  /** The crude cross-check of the adjusted model (crudeCrossCheck.ts); for RD the pooled limits use Sato's variance, `alternative` Greenland-Robins'. */
+  crudeCheck: CrudeCrossCheckView | null;
   continuous: {
     slopes: SlopeRowView[];
+    /** Where the effect is distinguishable from none, and where the data are thin, in one sentence. */
     johnsonNeyman: string | null;
+    /** A few words about each Johnson-Neyman boundary. */
+    boundaries: string[];
+    /** The middle 90 % of the modifier's values (5th to 95th percentile), when the result records it. */
+    middle: [NumberCell, NumberCell] | null;
     observed: [number, number] | null;
+    /** "1.0 to 9.0" */
+    observedText: string | null;
     mean: NumberCell;
     sd: NumberCell;
   } | null;
@@ -202,41 +215,28 @@ function omnibusView(result: Result): ResultTables['omnibus'] {
   };
 }
 
-/** The crude Mantel-Haenszel pooled estimate of the result's measure, with its homogeneity test. */
-function mantelHaenszelView(result: Result, measure: MeasureInfo): ResultTables['mantelHaenszel'] {
-  const tables = result.stratifiedTables;
-  if (!tables) return null;
-  const pooled = measure.code === 'OR' ? tables.mantelHaenszel.oddsRatio : measure.code === 'RR' ? tables.mantelHaenszel.riskRatio : measure.code === 'RD' ? tables.mantelHaenszel.riskDifference : null;
-  if (!pooled) return null;
-  const variances = tables.mantelHaenszel.riskDifferenceVariances ?? [];
-  const homogeneity = measure.code === 'OR' ? (tables.homogeneity.breslowDayTarone ?? tables.homogeneity.breslowDay) : tables.homogeneity.woolf;
-  const homogeneityName = measure.code === 'OR' ? (tables.homogeneity.breslowDayTarone ? 'Breslow-Day test with Tarone\'s correction' : 'Breslow-Day test') : 'Woolf test';
-  return {
-    label: `Mantel-Haenszel pooled ${measure.name} (crude: not adjusted for the covariates)${measure.code === 'RD' ? `, limits from the ${variances[0]?.label ?? 'Sato (1989) variance'}` : ''}`,
-    pooled: intervalCell(pooled, measure.kind, 'mh-pooled'),
-    alternative: measure.code === 'RD' && variances[1]
-      ? { label: `With the ${variances[1].label}`, pooled: intervalCell({ estimate: pooled.estimate, lower: variances[1].lower, upper: variances[1].upper }, measure.kind, 'mh-pooled-greenland-robins') }
-      : null,
-    homogeneity:
-      homogeneity && measure.code !== 'RD'
-        ? `${homogeneityName} of homogeneity: χ² = ${formatNumber(homogeneity.statistic, 'statistic')} on ${homogeneity.df} df, p ${formatP(homogeneity.p).startsWith('<') ? formatP(homogeneity.p) : `= ${formatP(homogeneity.p)}`}`
-        : null,
-  };
-}
-
-/** Continuous modifiers: the simple slopes, the Johnson-Neyman sentence and the modifier's summary. */
+/** Continuous modifiers: the effect at the marked points, where it is distinguishable from none, and where the modifier's values lie. */
 function continuousView({ result, measure, modifierColumn }: TableContext): ResultTables['continuous'] {
   if (result.modifier.type !== 'continuous') return null;
   const decimals = modifierDecimals(result.modifier.observed);
+  const words = result.johnsonNeyman ? effectRangeInWords(result.johnsonNeyman, { modifier: modifierColumn, alpha: result.alpha, spread: result.spread }) : null;
+  const observed = result.modifier.observed;
   return {
     slopes: (result.slopes ?? []).map((slope, index) => ({
       label: slope.label,
       at: { text: fixed(slope.at, decimals), value: slope.at, testId: `slope-at-${index}` },
       effect: intervalCell(slope, measure.kind, `slope-effect-${index}`),
       p: pCell(slope.p, `slope-p-${index}`),
+      clear: slope.lower !== null && slope.upper !== null && (slope.lower > measure.nullValue || slope.upper < measure.nullValue),
+      thin: words !== null && observed !== null && isThin(slope.at, words.thin, observed),
     })),
-    johnsonNeyman: result.johnsonNeyman ? johnsonNeymanSentence(result.johnsonNeyman, { modifier: modifierColumn, alpha: result.alpha }) : null,
-    observed: result.modifier.observed,
+    johnsonNeyman: words?.sentence ?? null,
+    boundaries: words?.boundaries.map((boundary) => boundary.text) ?? [],
+    middle: result.spread
+      ? [{ text: fixed(result.spread.p5, decimals), value: result.spread.p5, testId: 'modifier-p5' }, { text: fixed(result.spread.p95, decimals), value: result.spread.p95, testId: 'modifier-p95' }]
+      : null,
+    observed,
+    observedText: observed ? `${fixed(observed[0], decimals)} to ${fixed(observed[1], decimals)}` : null,
     mean: { text: fixed(result.modifier.mean, decimals + 1), value: result.modifier.mean },
     sd: { text: fixed(result.modifier.sd, decimals + 1), value: result.modifier.sd },
   };
@@ -281,7 +281,7 @@ export function buildResultTables(result: Result, spec: Spec): ResultTables {
     ...jointTables(context),
     interaction: interactionRows(context),
     omnibus: omnibusView(result),
-    mantelHaenszel: mantelHaenszelView(result, measure),
+    crudeCheck: crudeCrossCheck(result, measure, levels),
     continuous: continuousView(context),
     covariates: covariatesView(result),
     multiplicityNote: multiplicityNote(result),

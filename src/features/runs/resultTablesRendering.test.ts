@@ -70,6 +70,15 @@ describe('ResultTables.astro (server-rendered, real engine results)', () => {
     }
     expect(cells.get('omnibus-p')!.attributes['data-value']).toBe(raw(callBack.interaction.omnibus.p));
     expect(cells.get('mh-pooled')!.attributes['data-estimate']).toBe(raw(callBack.stratifiedTables!.mantelHaenszel.oddsRatio!.estimate));
+    expect(cells.get('crude-check-homogeneity-p')!.attributes['data-value']).toBe(raw(callBack.stratifiedTables!.homogeneity.breslowDayTarone!.p));
+    const text = decode(html);
+    expect(text).toContain('Crude cross-check of the adjusted model');
+    expect(text).toContain('Does the effect differ? Interaction on the additive and multiplicative scales');
+    expect(text).toMatch(/data-testid="joint-reading"[^>]*>The highlighted column answers the question/);
+    // Every non-reference row says which reference it is measured against.
+    for (const entry of callBack.interaction.additive) expect(text).toMatch(new RegExp(`data-testid="interaction-reference-${entry.level.replace('+', '\\+')}"[^>]*>(against|additive measures against)`));
+    // The engine's per-level warning is said once.
+    expect(text.match(/The intervention lowers risk/g)?.length ?? 0).toBeLessThanOrEqual(1);
   });
 
   it('renders the continuous-modifier summary with slopes and the Johnson-Neyman sentence', async () => {
@@ -80,7 +89,10 @@ describe('ResultTables.astro (server-rendered, real engine results)', () => {
       expect(cells.get(`slope-at-${index}`)!.attributes['data-value']).toBe(raw(slope.at));
     });
     expect(html).not.toContain('data-testid="joint-table"');
-    expect(decode(html)).toMatch(/data-testid="jn-sentence"[^>]*>\s*<strong[^>]*>Johnson-Neyman:<\/strong> The intervention's effect is significant/);
+    expect(decode(html)).toMatch(/data-testid="jn-sentence"[^>]*>The intervention's effect is distinguishable from no effect/);
+    expect(cells.get('modifier-p5')!.attributes['data-value']).toBe(raw(upAndAbout.spread!.p5));
+    expect(decode(html)).toContain('Does the effect differ? The difference in mean differences');
+    expect(decode(html)).not.toContain('Interaction on the additive and multiplicative scales');
     const did = upAndAbout.interaction.additive[0];
     expect(cells.get(`did-${did.level}`)!.attributes['data-estimate']).toBe(raw(did.differenceInDifferences!.estimate));
   });

@@ -1,12 +1,12 @@
 /**
  * The sentences of a result page: the engine's warnings with a title each, the rows left
- * out and why, the multiplicity note, the Johnson-Neyman boundaries and the smallest
- * detectable interaction in words, and the names of the omnibus tests.
+ * out and why, the multiplicity note and the smallest detectable interaction in words,
+ * and the names of the omnibus tests (a continuous modifier's range: continuousWords.ts).
  */
 import type { Result } from '@/engine/boundary/schemas';
 import { MULTIPLICITY_LABEL } from '../analyses/specRules';
 import { percentText } from '../analyses/specWords';
-import { fixed, formatCount, formatNumber, modifierDecimals, type MeasureInfo } from './resultFormat';
+import { fixed, formatCount, formatNumber, type MeasureInfo } from './resultFormat';
 
 export interface WarningView {
   code: string;
@@ -50,13 +50,23 @@ export function missingInWords(result: Pick<Result, 'missingByColumn'>): string 
   return (result.missingByColumn ?? []).map((entry) => `${entry.column} ${formatCount(entry.rows)}`).join(', ');
 }
 
-/** Engine warnings with a short title each; the engine's message is already plain words. */
+/**
+ * Engine warnings with a short title each; the engine's message is already plain words.
+ * A warning the engine gives once per level is said once: one title, and for the
+ * preventive-intervention warning one sentence naming the levels.
+ */
 export function warningsInWords(result: Pick<Result, 'warnings'>): WarningView[] {
-  return result.warnings.map((warning) => ({
-    code: warning.code,
-    title: WARNING_TITLE[warning.code] ?? 'Note from the engine',
-    message: warning.message,
-  }));
+  const byCode = new Map<string, Result['warnings']>();
+  for (const warning of result.warnings) byCode.set(warning.code, [...(byCode.get(warning.code) ?? []), warning]);
+  return [...byCode.entries()].map(([code, warnings]) => {
+    const levels = warnings.flatMap((warning) => (warning.level ? [warning.level] : []));
+    const message =
+      code === 'PREVENTIVE_EXPOSURE' && levels.length > 1
+        ? `In ${levels.slice(0, -1).join(', ')} and ${levels[levels.length - 1]}, a combination has a lower risk than the reference: the intervention lowers risk there. ` +
+          'RERI, AP and S are easier to read after recoding so that the lowest-risk combination is the reference (the analysis form\'s preventive option).'
+        : warnings.map((warning) => warning.message).join(' ');
+    return { code, title: WARNING_TITLE[code] ?? 'Note from the engine', message };
+  });
 }
 
 /**
@@ -69,7 +79,7 @@ export function multiplicityNote(result: Pick<Result, 'modifier' | 'strata' | 'm
     const slopes = result.slopes?.length ?? 0;
     return (
       `${result.modifier.column} is continuous, so effect modification rests on one product term and its single test. ` +
-      `The ${slopes} simple slope${slopes === 1 ? '' : 's'} and the Johnson-Neyman boundaries describe that one model and are not adjusted for multiplicity.`
+      `The effect at the ${slopes} marked point${slopes === 1 ? '' : 's'} and the Johnson-Neyman boundaries describe that one model and are not adjusted for multiplicity.`
     );
   }
   const k = result.strata.length;
@@ -88,58 +98,6 @@ export function multiplicityNote(result: Pick<Result, 'modifier' | 'strata' | 'm
 }
 
 /**
- * The Johnson-Neyman boundaries in words, e.g. "The intervention's effect is significant
- * at the 5 % level where frailty_score is below 4.2 (observed range 1.0 to 9.0)."
- *
- * The significance region on the whole line follows from the engine's `significant`
- * (outside or inside the boundaries, everywhere or nowhere; with one boundary, above it
- * for "outside" and below it for "inside"), then is intersected with the observed range.
- */
-export function johnsonNeymanSentence(
-  jn: NonNullable<Result['johnsonNeyman']>,
-  options: { modifier: string; alpha: number; subject?: string },
-): string {
-  const subject = options.subject ?? "The intervention's effect";
-  const decimals = modifierDecimals(jn.observed);
-  const show = (value: number) => fixed(value, decimals);
-  const [min, max] = jn.observed;
-  const range = `(observed range ${show(min)} to ${show(max)})`;
-  const level = `at the ${percentText(options.alpha)} % level`;
-  const bounds: readonly number[] = jn.bounds ?? [];
-
-  // Significant intervals on the real line.
-  let regions: [number, number][];
-  if (jn.significant === 'everywhere') regions = [[-Infinity, Infinity]];
-  else if (jn.significant === 'nowhere') regions = [];
-  else if (bounds.length === 0) regions = [];
-  else if (bounds.length === 1) regions = jn.significant === 'outside' ? [[bounds[0], Infinity]] : [[-Infinity, bounds[0]]];
-  else if (jn.significant === 'outside') regions = [[-Infinity, bounds[0]], [bounds[1], Infinity]];
-  else regions = [[bounds[0], bounds[1]]];
-
-  const clipped = regions
-    .map(([from, to]) => [Math.max(from, min), Math.min(to, max)] as [number, number])
-    .filter(([from, to]) => to > from);
-  const outsideBounds = bounds.filter((bound) => bound < min || bound > max);
-  const boundaryNote =
-    bounds.length > 0 && outsideBounds.length === bounds.length
-      ? `; the Johnson-Neyman boundar${bounds.length === 1 ? 'y' : 'ies'} (${bounds.map(show).join(' and ')}) lie${bounds.length === 1 ? 's' : ''} outside the observed range`
-      : '';
-
-  if (clipped.length === 0) {
-    return `${subject} is not significant ${level} anywhere in the observed range of ${options.modifier} (${show(min)} to ${show(max)})${boundaryNote}.`;
-  }
-  if (clipped.length === 1 && clipped[0][0] <= min && clipped[0][1] >= max) {
-    return `${subject} is significant ${level} across the whole observed range of ${options.modifier} (${show(min)} to ${show(max)})${boundaryNote}.`;
-  }
-  const pieces = clipped.map(([from, to]) => {
-    if (from <= min) return `below ${show(to)}`;
-    if (to >= max) return `above ${show(from)}`;
-    return `between ${show(from)} and ${show(to)}`;
-  });
-  return `${subject} is significant ${level} where ${options.modifier} is ${pieces.join(' or ')} ${range}.`;
-}
-
-/**
  * The smallest interaction the data could detect, per level: the engine's
  * normal-approximation planning block (Brookes et al., J Clin Epidemiol 2004;57:229).
  */
@@ -154,9 +112,18 @@ export function planningInWords(result: Pick<Result, 'planning'>, measure: Measu
     });
   if (clauses.length === 0) return null;
   const what = measure.ratio ? `a ${measure.interactionName}` : `an interaction (${measure.interactionName})`;
+  // The engine's power for an interaction of the given size (as large as the main effect unless the analysis set one).
+  const powers = planning.levels
+    .filter((level) => level.power !== null && level.interaction !== null)
+    .map((level) => `${fixed((level.power as number) * 100, 0)} % (${level.level})`);
+  const sized = planning.levels.find((level) => level.interaction !== null)?.interaction ?? null;
+  const size = planning.interactionSource === 'main-effect' ? 'as large as the main effect' : 'of the size set in the analysis';
+  const powerClause = powers.length > 0 && sized !== null
+    ? ` For an interaction ${size} (${measure.interactionName} ${formatNumber(sized, measure.ratio ? 'ratio' : measure.kind)}), the power is ${powers.join(', ')}.`
+    : '';
   return (
     `With ${formatCount(planning.n)} rows, ${what} would be detected with ${percentText(planning.targetPower)} % power at the ` +
-    `${percentText(planning.alpha)} % level only if it were ${clauses.join('; ')}; a smaller interaction could easily be missed.`
+    `${percentText(planning.alpha)} % level only if it were ${clauses.join('; ')}; a smaller interaction could easily be missed.${powerClause}`
   );
 }
 

@@ -1,11 +1,11 @@
-/** The significance band plot island (continuous modifiers): the conditional effect with its band and the Johnson-Neyman boundaries. */
+/** The effect curve island (continuous modifiers): the effect across the modifier, its band, the marked points, thin data and both Johnson-Neyman boundaries. */
 import { useMemo } from 'react';
 import type { PlotInput } from './plotInput';
 import { PlotFrame } from './PlotFrame';
-import { significanceBandFigure } from './plotFigures';
+import { effectCurveFigure } from './effectCurve';
 
 export default function SignificanceBandPlot({ result }: { result: PlotInput }) {
-  const figure = useMemo(() => significanceBandFigure(result), [result]);
+  const figure = useMemo(() => effectCurveFigure(result), [result]);
   if (!figure) return null;
-  return <PlotFrame figure={figure} testId="plot-significance-band" />;
+  return <PlotFrame figure={figure} testId="plot-effect-curve" />;
 }

@@ -1,7 +1,8 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { Result } from '@/engine/boundary/schemas';
 import { CALL_BACK_SPEC, engineResult, UP_AND_ABOUT_SPEC } from '../testSupport';
-import { PLOT_CONFIG, profileFigure, significanceBandFigure, stratumForestFigure } from './plotFigures';
+import { PLOT_CONFIG, profileFigure, stratumForestFigure } from './plotFigures';
+import { effectCurveFigure } from './effectCurve';
 import { narrowLayout } from './narrowLayout';
 
 type Trace = { type: string; x: (number | string | null)[]; y: (number | string | null)[]; error_x?: { array: number[]; arrayminus: number[] }; fill?: string };
@@ -20,9 +21,10 @@ describe('plot figures from real engine results', () => {
   it('forest plot: each stratum effect with its limits, the pooled estimate, the null line at 1 on a log axis', () => {
     const figure = stratumForestFigure(callBack);
     const [strata, pooled] = figure.data as Trace[];
-    expect(strata.y).toEqual(['18-44 (ref.)', '45-64', '65-79', '80+']);
+    // The reference level's effect is a real estimate, so its row carries no reference mark.
+    expect(strata.y).toEqual(['18-44', '45-64', '65-79', '80+']);
     strata.y.forEach((label, index) => {
-      const level = String(label).replace(' (ref.)', '');
+      const level = String(label);
       const effect = callBack.strata.find((entry) => entry.level === level)!.effect;
       expect(strata.x[index]).toBe(effect.estimate);
       // Error bars are distances from the estimate: upper − estimate and estimate − lower.
@@ -35,7 +37,7 @@ describe('plot figures from real engine results', () => {
     expect(layout.xaxis.title.text).toBe('Odds ratio (95 % CI), log scale');
     expect(layout.shapes[0].x0).toBe(1);
     expect(layout.paper_bgcolor).toBe('#ffffff');
-    expect(figure.caption).toContain('18-44 (ref.): 0.73');
+    expect(figure.caption).toContain('18-44: 0.73');
     expect(figure.caption).toMatch(/^Forest plot of the odds ratio of call_back = 1 against 0 within each level of age_band/);
   });
 
@@ -64,34 +66,47 @@ describe('plot figures from real engine results', () => {
     });
   });
 
-  it('band plot: the band data, filled between the limits, with the observed range shaded and a 0 null line', () => {
-    const figure = significanceBandFigure(upAndAbout)!;
+  it('effect curve: the band filled between the limits, the curve solid where the band leaves out 0, the marked points, thin data shaded, a 0 null line', () => {
+    const figure = effectCurveFigure(upAndAbout)!;
     expect(figure).not.toBeNull();
-    const [lower, upper, estimate] = figure.data as Trace[];
+    const [lower, upper, clear, unclear, marked] = figure.data as (Trace & { text?: string[] })[];
     expect(lower.y).toEqual(upAndAbout.band!.map((point) => point.lower));
     expect(upper.y).toEqual(upAndAbout.band!.map((point) => point.upper));
     expect(upper.fill).toBe('tonexty');
-    expect(estimate.y).toEqual(upAndAbout.band!.map((point) => point.estimate));
+    upAndAbout.band!.forEach((point, index) => {
+      const leavesOut = point.upper! < 0 || point.lower! > 0;
+      if (leavesOut) expect(clear.y[index]).toBe(point.estimate);
+      else expect(unclear.y[index]).toBe(point.estimate);
+    });
+    expect(marked.x).toEqual(upAndAbout.slopes!.map((slope) => slope.at));
+    expect(marked.y).toEqual(upAndAbout.slopes!.map((slope) => slope.estimate));
+    expect(marked.text).toEqual(['mild', 'moderate', 'severe']);
     const layout = figure.layout as { shapes: { type: string; x0: number; x1: number; y0: number }[]; yaxis: { type?: string } };
-    expect(layout.shapes[0]).toMatchObject({ type: 'rect', x0: upAndAbout.johnsonNeyman!.observed[0], x1: upAndAbout.johnsonNeyman!.observed[1] });
-    expect(layout.shapes[1].y0).toBe(0);
+    const thin = layout.shapes.filter((shape) => shape.type === 'rect');
+    if (upAndAbout.spread!.p5 > upAndAbout.modifier.observed![0]) expect(thin[0]).toMatchObject({ x0: upAndAbout.modifier.observed![0], x1: upAndAbout.spread!.p5 });
+    expect(layout.shapes.find((shape) => shape.type === 'line' && shape.y0 === 0)).toBeTruthy();
     expect(layout.yaxis.type).toBeUndefined();
-    expect(figure.caption).toContain("The intervention's effect is significant at the 5 % level across the whole observed range of frailty_score");
-    expect(significanceBandFigure(callBack)).toBeNull();
+    expect(figure.caption).toContain("The intervention's effect is distinguishable from no effect at the 5 % level across the whole observed range of frailty_score");
+    expect(effectCurveFigure(callBack)).toBeNull();
   });
 
-  it('marks Johnson-Neyman boundaries that fall in view', () => {
-    // Boundaries moved into the observed range [1, 9] by hand: both must be drawn.
-    const moved = { ...upAndAbout, johnsonNeyman: { ...upAndAbout.johnsonNeyman!, bounds: [2.5, 7.5] as [number, number], boundsInRange: [true, true] } };
-    const figure = significanceBandFigure(moved)!;
-    const lines = (figure.layout as { shapes: { type: string; x0: number }[] }).shapes.filter((shape) => shape.type === 'line' && shape.x0 !== 0);
+  it('marks both Johnson-Neyman boundaries: drawn when in view, named at the edge when beyond the data', () => {
+    // Boundaries set by hand: both inside the observed range [1, 9], then one far beyond it.
+    const inside = { ...upAndAbout, johnsonNeyman: { ...upAndAbout.johnsonNeyman!, bounds: [2.5, 7.5] as [number, number], significant: 'outside' as const, boundsInRange: [true, true] } };
+    const lines = (effectCurveFigure(inside)!.layout as { shapes: { type: string; x0: number }[] }).shapes.filter((shape) => shape.type === 'line' && shape.x0 !== 0);
     expect(lines.map((shape) => shape.x0)).toEqual([2.5, 7.5]);
+    const beyond = { ...upAndAbout, johnsonNeyman: { ...upAndAbout.johnsonNeyman!, bounds: [4.2, 30] as [number, number], significant: 'outside' as const, boundsInRange: [true, false] } };
+    const figure = effectCurveFigure(beyond)!;
+    const layout = figure.layout as { shapes: { type: string; x0: number }[]; annotations: { text: string }[] };
+    expect(layout.shapes.filter((shape) => shape.type === 'line' && shape.x0 !== 0).map((shape) => shape.x0)).toEqual([4.2]);
+    expect(layout.annotations.map((note) => note.text)).toContain('upper boundary at 30.0, beyond the data →');
+    expect(figure.caption).toContain('The upper Johnson-Neyman boundary, 30.0, lies above the largest observed frailty_score');
   });
 
   it('uses only trace types of the basic bundle and our config', () => {
-    const figures = [stratumForestFigure(callBack), profileFigure(callBack), profileFigure(upAndAbout), significanceBandFigure(upAndAbout)!];
+    const figures = [stratumForestFigure(callBack), profileFigure(callBack), profileFigure(upAndAbout), effectCurveFigure(upAndAbout)!];
     for (const figure of figures) for (const trace of figure.data) expect(BASIC_TRACE_TYPES).toContain(trace.type);
-    expect(PLOT_CONFIG).toMatchObject({ displaylogo: false, responsive: true, showLink: false, showSendToCloud: false, showEditInChartStudio: false, plotlyServerURL: '' });
+    expect(PLOT_CONFIG).toMatchObject({ displayModeBar: false, displaylogo: false, responsive: true, showLink: false, showSendToCloud: false, showEditInChartStudio: false, plotlyServerURL: '' });
     expect(PLOT_CONFIG.modeBarButtonsToRemove).toContain('sendChartToCloud');
   });
 });

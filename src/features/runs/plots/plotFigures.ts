@@ -1,5 +1,5 @@
 /**
- * The data and layout of Crossgrain's three result plots, built from the engine's result
+ * The data and layout of Crossgrain's result plots (the effect curve is in effectCurve.ts), built from the engine's result
  * alone (pure: no React, no plotly), plus the text alternative of each. Only scatter
  * traces are used, which the plotly basic bundle includes: error_x for intervals,
  * fill "tonexty" for bands, layout shapes for the null line, boundaries and ranges.
@@ -7,7 +7,6 @@
 import type { PlotInput } from './plotInput';
 import { percentText } from '@/features/analyses/specWords';
 import { displayLevels, fixed, formatInterval, formatNumber, measureInfo, modifierDecimals } from '../resultFormat';
-import { johnsonNeymanSentence } from '../resultWords';
 
 /** Our palette (src/styles/global.css), as plotly needs literal colours. */
 export const PLOT_COLOURS = {
@@ -37,9 +36,11 @@ export interface PlotFigure {
 /**
  * The config every plot uses. Nothing of a page may leave the machine: no share or
  * hosted-editor button, no link out, no logo, and no server address to send a chart to.
- * The toolbar keeps image export (PNG), zoom and reset.
+ * plotly's own toolbar is hidden: the plot frame (PlotFrame.tsx) has Crossgrain's
+ * (download PNG or SVG, reset view); dragging still zooms and a double click resets.
  */
 export const PLOT_CONFIG = {
+  displayModeBar: false,
   displaylogo: false,
   responsive: true,
   showLink: false,
@@ -113,7 +114,7 @@ export function stratumForestFigure(result: PlotInput): PlotFigure {
     result.modifier.type === 'categorical'
       ? displayLevels(result).map((level) => {
           const stratum = result.strata.find((entry) => entry.level === level);
-          return { label: `${level}${level === result.modifier.reference ? ' (ref.)' : ''}`, estimate: stratum?.effect.estimate ?? null, lower: stratum?.effect.lower ?? null, upper: stratum?.effect.upper ?? null };
+          return { label: level, estimate: stratum?.effect.estimate ?? null, lower: stratum?.effect.lower ?? null, upper: stratum?.effect.upper ?? null };
         })
       : (result.slopes ?? []).map((slope) => ({ label: `${slope.label} (${fixed(slope.at, decimals)})`, estimate: slope.estimate, lower: slope.lower, upper: slope.upper }));
   const shown = rows.filter((row) => row.estimate !== null);
@@ -138,14 +139,14 @@ export function stratumForestFigure(result: PlotInput): PlotFigure {
       hovertemplate: '%{y}: %{text}<extra></extra>',
     },
   ];
-  const pooledLabel = 'Pooled (Mantel-Haenszel, crude)';
+  const pooledLabel = 'All levels, crude';
   const mh = result.stratifiedTables?.mantelHaenszel;
   const pooled = mh ? (measure.code === 'OR' ? mh.oddsRatio : measure.code === 'RR' ? mh.riskRatio : measure.code === 'RD' ? mh.riskDifference : null) : null;
   if (pooled && pooled.estimate !== null) {
     data.push({
       type: 'scatter',
       mode: 'markers',
-      name: 'Mantel-Haenszel pooled (not adjusted for covariates)',
+      name: 'Crude cross-check: all levels pooled, no covariates (Mantel-Haenszel)',
       x: [pooled.estimate],
       y: [pooledLabel],
       error_x: {
@@ -182,7 +183,7 @@ export function stratumForestFigure(result: PlotInput): PlotFigure {
   const caption =
     `Forest plot of the ${effectName(result)} ${result.modifier.type === 'categorical' ? `within each level of ${result.modifier.column}` : `at chosen values of ${result.modifier.column}`}, ` +
     `with ${ciText}s${measure.ratio ? ' on a log scale' : ''}; the dotted line at ${measure.nullValue} marks no effect. ${listed}.` +
-    (pooled && pooled.estimate !== null ? ` Pooled Mantel-Haenszel estimate (crude): ${formatInterval(pooled.estimate, pooled.lower, pooled.upper, measure.kind)}.` : '');
+    (pooled && pooled.estimate !== null ? ` Crude cross-check, all levels pooled without covariates (Mantel-Haenszel): ${formatInterval(pooled.estimate, pooled.lower, pooled.upper, measure.kind)}.` : '');
   return { title: `Effect of ${result.exposure.column} by ${result.modifier.column}`, caption, data, layout };
 }
 
@@ -303,90 +304,4 @@ export function profileFigure(result: PlotInput): PlotFigure {
     `Profile plot of the model's predicted ${binary ? 'proportion with the outcome (%)' : outcomeColumn} across ${result.modifier.column} from ${fixed(observed[0], decimals)} to ${fixed(observed[1], decimals)}, one line per arm, ` +
     `with the adjustment covariates at their reference levels (continuous covariates at 0). ${listed ? `${listed}. ` : ''}The gap between the lines is the intervention's effect; lines that are not parallel show that it changes with ${result.modifier.column}.`;
   return { title: `Predicted ${outcomeColumn} across ${result.modifier.column}`, caption, data, layout };
-}
-
-/**
- * Significance band plot (continuous modifiers): the conditional effect across the
- * observed range with its pointwise band, the null line, the Johnson-Neyman boundaries
- * that fall in view, and the observed range shaded. Null when the result has no band.
- */
-export function significanceBandFigure(result: PlotInput): PlotFigure | null {
-  const band = result.band;
-  const jn = result.johnsonNeyman;
-  if (!band || band.length === 0 || !jn) return null;
-  const measure = measureInfo(result);
-  const ciText = `${percentText(result.ciLevel)} %`;
-  const points = band.filter((point) => point.estimate !== null && point.lower !== null && point.upper !== null);
-  const [min, max] = jn.observed;
-  const pad = (max - min) * 0.06 || 0.5;
-  const view: [number, number] = [min - pad, max + pad];
-  const data: PlotTrace[] = [
-    {
-      type: 'scatter',
-      mode: 'lines',
-      name: `${ciText} band (lower)`,
-      x: points.map((point) => point.x),
-      y: points.map((point) => point.lower),
-      line: { width: 0, color: PLOT_COLOURS.intervention },
-      showlegend: false,
-      hoverinfo: 'skip',
-    },
-    {
-      type: 'scatter',
-      mode: 'lines',
-      name: `${ciText} pointwise band`,
-      x: points.map((point) => point.x),
-      y: points.map((point) => point.upper),
-      fill: 'tonexty',
-      fillcolor: PLOT_COLOURS.band,
-      line: { width: 0, color: PLOT_COLOURS.intervention },
-      hoverinfo: 'skip',
-    },
-    {
-      type: 'scatter',
-      mode: 'lines',
-      name: `Effect of ${result.exposure.column}`,
-      x: points.map((point) => point.x),
-      y: points.map((point) => point.estimate),
-      line: { color: PLOT_COLOURS.intervention, width: 2.5 },
-      text: points.map((point) => formatInterval(point.estimate, point.lower, point.upper, measure.kind)),
-      hovertemplate: `${result.modifier.column} %{x:.2f}: %{text}<extra></extra>`,
-    },
-  ];
-  const shapes: PlotShape[] = [
-    { type: 'rect', xref: 'x', yref: 'paper', x0: min, x1: max, y0: 0, y1: 1, fillcolor: PLOT_COLOURS.observed, line: { width: 0 }, layer: 'below' },
-    nullLine('horizontal', measure.nullValue),
-  ];
-  const annotations: Record<string, unknown>[] = [
-    { xref: 'x', yref: 'paper', x: max, y: 0.99, xanchor: 'right', yanchor: 'top', text: 'observed range', showarrow: false, font: { size: 11, color: PLOT_COLOURS.inkMuted } },
-  ];
-  const decimals = modifierDecimals(jn.observed);
-  const visible = (jn.bounds ?? []).filter((bound) => bound >= view[0] && bound <= view[1]);
-  for (const bound of visible) {
-    shapes.push({ type: 'line', xref: 'x', yref: 'paper', x0: bound, x1: bound, y0: 0, y1: 1, line: { color: PLOT_COLOURS.boundary, width: 1.5, dash: 'dash' } });
-    annotations.push({ xref: 'x', yref: 'paper', x: bound, y: 0.02, xanchor: 'left', yanchor: 'bottom', text: `Johnson-Neyman ${fixed(bound, decimals)}`, showarrow: false, font: { size: 11, color: PLOT_COLOURS.boundary } });
-  }
-  if (visible.length > 0) {
-    // A legend entry for the dashed boundary lines (shapes have none).
-    data.push({ type: 'scatter', mode: 'lines', name: 'Johnson-Neyman boundary', x: [null], y: [null], line: { color: PLOT_COLOURS.boundary, dash: 'dash', width: 1.5 }, hoverinfo: 'skip' });
-  }
-  const layout = {
-    ...baseLayout(),
-    height: 380,
-    xaxis: axis(result.modifier.column, { range: view }),
-    yaxis: axis(`${capitalise(measure.name)} of ${result.exposure.column} = ${result.exposure.level}${measure.ratio ? ', log scale' : ''}`, measure.ratio ? { type: 'log' } : {}),
-    shapes,
-    annotations,
-  };
-  const sentence = johnsonNeymanSentence(jn, { modifier: result.modifier.column, alpha: result.alpha });
-  const first = points[0];
-  const last = points[points.length - 1];
-  const caption =
-    `Significance band plot: the ${effectName(result)} as ${result.modifier.column} varies over its observed range (shaded, ${fixed(min, decimals)} to ${fixed(max, decimals)}), ` +
-    `with its ${ciText} pointwise band; the dotted line at ${measure.nullValue} marks no effect${visible.length > 0 ? ' and dashed lines mark the Johnson-Neyman boundaries' : ''}. ` +
-    (first && last
-      ? `At ${fixed(first.x, decimals)} the effect is ${formatInterval(first.estimate, first.lower, first.upper, measure.kind)}; at ${fixed(last.x, decimals)} it is ${formatInterval(last.estimate, last.lower, last.upper, measure.kind)}. `
-      : '') +
-    sentence;
-  return { title: `Effect of ${result.exposure.column} across ${result.modifier.column}`, caption, data, layout };
 }

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { plotInput } from './plotInput';
-import { profileFigure, significanceBandFigure, stratumForestFigure } from './plotFigures';
+import { profileFigure, stratumForestFigure } from './plotFigures';
+import { effectCurveFigure } from './effectCurve';
 import { CALL_BACK_SPEC, UP_AND_ABOUT_SPEC, engineResult } from '../testSupport';
 
 describe('the trimmed plot input', () => {
@@ -9,7 +10,7 @@ describe('the trimmed plot input', () => {
       const trimmed = plotInput(result);
       expect(stratumForestFigure(trimmed)).toEqual(stratumForestFigure(result));
       expect(profileFigure(trimmed)).toEqual(profileFigure(result));
-      expect(significanceBandFigure(trimmed)).toEqual(significanceBandFigure(result));
+      expect(effectCurveFigure(trimmed)).toEqual(effectCurveFigure(result));
       expect(JSON.stringify(trimmed).length).toBeLessThan(JSON.stringify(result).length);
     }
   });

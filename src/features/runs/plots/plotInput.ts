@@ -9,7 +9,7 @@ import { perResult } from '../finishedResults';
  */
 export type PlotInput = Pick<
   Result,
-  'effectMeasure' | 'alpha' | 'ciLevel' | 'exposure' | 'modifier' | 'outcome' | 'joint' | 'strata' | 'slopes' | 'band' | 'johnsonNeyman' | 'standardized'
+  'effectMeasure' | 'alpha' | 'ciLevel' | 'exposure' | 'modifier' | 'outcome' | 'joint' | 'strata' | 'slopes' | 'band' | 'johnsonNeyman' | 'standardized' | 'spread'
 > & {
   model: Pick<Result['model'], 'link' | 'coefficients'>;
   stratifiedTables: Pick<NonNullable<Result['stratifiedTables']>, 'mantelHaenszel'> | null;
@@ -32,6 +32,7 @@ export function plotInput(result: Result): PlotInput {
     band: result.band,
     johnsonNeyman: result.johnsonNeyman,
     standardized: result.standardized,
+    spread: result.spread,
     model: { link: result.model.link, coefficients: result.model.coefficients },
     stratifiedTables: result.stratifiedTables ? { mantelHaenszel: result.stratifiedTables.mantelHaenszel } : null,
   };
