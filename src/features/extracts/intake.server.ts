@@ -140,7 +140,7 @@ async function refuseIntake(
       action: 'extract.upload-refused', actorId: uploader.id, subjectType: 'extract', subjectId: start.extractId,
       initiativeId: start.initiativeId, clientAddress: uploader.clientAddress,
       details: {
-        versionId: start.versionId, name: start.name, reasons,
+        versionId: start.versionId, name: start.name, reasons, privacyRegime: env.CROSSGRAIN_PRIVACY_REGIME,
         ...(asked.droppedColumns?.length ? { droppedColumns: [...asked.droppedColumns] } : {}),
         ...(asked.keep?.length ? { keepAsked: [...asked.keep], keepReason: asked.keepReason ?? '' } : {}),
       },
@@ -313,7 +313,7 @@ function keptColumnsOf(read: ReadExtract, request: { keep: string[]; keepReason?
   if (dropped.length > 0) {
     throw new AppError(400, 'keep-invalid', `Column "${dropped[0]}" cannot be both left out and kept.`, [{ path: 'keep', message: dropped[0] }]);
   }
-  const review = reviewExtractColumns(read.columns, {}, keep);
+  const review = reviewExtractColumns(read.columns, { regime: env.CROSSGRAIN_PRIVACY_REGIME }, keep);
   if (review.keptButNotFlagged.length > 0) {
     const name = review.keptButNotFlagged[0];
     const present = read.columns.some((c) => c.name === name);
@@ -328,10 +328,11 @@ function keptColumnsOf(read: ReadExtract, request: { keep: string[]; keepReason?
 /** Stage two, after the answer has gone: screen, profile, and store in one transaction. */
 async function finishIntake(uploader: Uploader, start: IntakeStart, read: ReadExtract, partFile: string, keeping: Keeping): Promise<void> {
   await updateIntake(uploader.id, start.versionId, { stage: 'screening', percent: 90 });
-  const review = keeping.review ?? reviewExtractColumns(read.columns);
+  const review = keeping.review ?? reviewExtractColumns(read.columns, { regime: env.CROSSGRAIN_PRIVACY_REGIME });
   if (review.refused) {
     await rm(partFile, { force: true });
-    const reasons = review.refusals.map((r) => ({ code: 'identifier-screen', column: r.column, rules: r.rules, categories: r.categories, message: r.message }));
+    const regime = env.CROSSGRAIN_PRIVACY_REGIME;
+    const reasons = review.refusals.map((r) => ({ code: 'identifier-screen', column: r.column, rules: r.rules, categories: r.categories, message: r.message, regime }));
     await refuseIntake(uploader, start, reasons, 'screening', { droppedColumns: read.droppedColumns, keep: keeping.keep, keepReason: keeping.reason });
     return;
   }
