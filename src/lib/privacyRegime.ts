@@ -64,7 +64,7 @@ const TEXTS: Record<PrivacyRegime, PrivacyRegimeText> = {
   },
   generic: {
     regime: 'generic',
-    name: 'General de-identification',
+    name: 'general de-identification',
     citation: 'general de-identification practice; your organisation\'s own policies and local law come first',
     identifierNoun: 'a direct identifier',
     uploadExamples: 'names, record numbers, full dates, postal codes, e-mail addresses, telephone numbers, …',
