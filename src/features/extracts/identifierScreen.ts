@@ -18,7 +18,8 @@
  *   learns it, and the value's count is added, so every value of the column is examined
  *   (no sampling); beyond the level cap each further text value is classified as it
  *   passes. Plain numbers are checked on their raw digits while parsing (5-digit ZIP codes
- *   keep their leading zeros; 8-digit YYYYMMDD dates), and age values at the end.
+ *   keep their leading zeros; 8-digit YYYYMMDD dates; 10-digit NHS numbers with their check
+ *   digit), and age values at the end.
  *
  * Each {@link Finding} names the column, the rule, how many values matched out of how many
  * were examined, never a value itself.
