@@ -9,6 +9,7 @@ import { generateDemoCohorts } from '@/features/extracts/demoCohorts';
 import { readExtractColumns, reviewExtractColumns } from '@/features/extracts/extracts';
 import { confirmVersion, storeVersion } from '@/features/extracts/extracts.server';
 import { sequelize, withIdentity } from '@/lib/server/db';
+import { env } from '@/lib/server/env';
 import { DEMO_USERS, demoEmail } from './demo';
 
 /** What each demo column holds, for the confirmed data dictionary. */
@@ -51,7 +52,7 @@ export async function seedDemoExtracts(): Promise<number> {
         { replacements: { ...start, userId: user.id }, transaction },
       );
       const read = await readExtractColumns([Buffer.from(cohort.csv)]);
-      const review = reviewExtractColumns(read.columns);
+      const review = reviewExtractColumns(read.columns, { regime: env.CROSSGRAIN_PRIVACY_REGIME });
       if (review.refused) throw new Error(`The demo cohort "${cohort.name}" failed our own identifier screen`);
       const uploader = { id: user.id, clientAddress: 'demo-seed' };
       await storeVersion(sequelize, transaction, uploader, start, read, review.profile, review.findings);

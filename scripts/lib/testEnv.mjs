@@ -29,6 +29,8 @@ export function testEnvironment() {
     CROSSGRAIN_LOG_FORMAT: 'json',
     // Small enough that the size-limit test streams only a few megabytes.
     CROSSGRAIN_UPLOAD_MAX_BYTES: String(8 * 1024 * 1024),
+    // The demo's regime, stated so that the upload tests know which rules and wording to expect.
+    CROSSGRAIN_PRIVACY_REGIME: 'uk',
     // Short, so the test that kills a worker sees its run marked failed quickly.
     CROSSGRAIN_RUN_STALE_SECONDS: '5',
   };

@@ -2,7 +2,8 @@
  * Extract uploads over HTTP against the built server: the happy path, every bad input the
  * issue lists (each leaves the database holding exactly the extracts, versions and columns
  * it held before, plus only a refusal record), roles, and the audited row preview.
- * Standards: HIPAA Safe Harbor 45 CFR 164.514(b)(2); OWASP ASVS 5.0 file upload lines.
+ * Standards: the identifier screen of the deployment's privacy regime (UK here, see
+ * privacyRegime.test.ts); OWASP ASVS 5.0 file upload lines.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
@@ -94,7 +95,8 @@ describe('a good upload', () => {
     const ready = (await (await analyst.request('GET', `/api/extracts/${extractId}`)).json()).versions[0];
     expect(ready.status).toBe('ready');
     expect(ready.attestation).toMatchObject({ signedName: 'Test Analyst' });
-    expect(ready.attestation.statement).toMatch(/de-identified/);
+    // The test server runs the UK regime (scripts/lib/testEnv.mjs); privacyRegime.test.ts checks its wording.
+    expect(ready.attestation.statement).toMatch(/anonymised/);
     expect(ready.dictionary.find((d: { name: string }) => d.name === 'comorbidity')).toMatchObject({ type: 'continuous' });
 
     // Immutable once confirmed.

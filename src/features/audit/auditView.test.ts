@@ -32,6 +32,15 @@ describe('eventWords', () => {
     expect(words).toBe('added to extract ward-a.csv as version 2, 1,200 rows, 9 columns, leaving out columns mrn, dob');
   });
 
+  it('names the privacy regime an upload was screened under, when the event records it', () => {
+    expect(eventWords({ action: 'extract.upload-refused', details: { name: 'ward.csv', privacyRegime: 'uk', reasons: [{ message: 'Column "nhs_number" may identify people.' }] } }))
+      .toBe('the upload of ward.csv was refused, under the UK anonymisation (ICO guidance, NHS data security) rules: Column "nhs_number" may identify people.');
+    expect(eventWords({ action: 'extract.uploaded', details: { name: 'ward.csv', version: 1, rows: 60, columns: 4, privacyRegime: 'us-hipaa' } }))
+      .toBe('uploaded extract ward.csv as version 1, 60 rows, 4 columns, under the HIPAA Safe Harbor rules');
+    // Events recorded before the regime was a setting carry none, and say none.
+    expect(eventWords({ action: 'extract.uploaded', details: { name: 'ward.csv', version: 1, privacyRegime: 'mars' } })).toBe('uploaded extract ward.csv as version 1');
+  });
+
   it('quotes review notes and comments in full for auditors', () => {
     expect(eventWords({ action: 'review.signed-off', details: { from: 'submitted', to: 'signed-off', noteLength: 21, note: 'Fine for the ward brief' } }))
       .toBe('signed off: “Fine for the ward brief”');

@@ -4,6 +4,7 @@
  * dob", "signed off: fine for the ward brief". Notes and comments are quoted in full. The
  * raw details stay available beside the words (the page's expander and the export).
  */
+import { PRIVACY_REGIMES, privacyRegimeText, type PrivacyRegime } from '@/lib/privacyRegime';
 import type { AuditEventView } from './audit.schema';
 
 type Details = Record<string, unknown>;
@@ -104,6 +105,10 @@ export function specChanges(before: unknown, after: unknown): string[] {
   return changes;
 }
 
+const isRegime = (value: unknown): value is PrivacyRegime => PRIVACY_REGIMES.some((regime) => regime === value);
+/** `, under the UK anonymisation (…) rules` when the event names the privacy regime that applied. */
+const regimeWords = (d: Details): string => (isRegime(d.privacyRegime) ? `, under the ${privacyRegimeText(d.privacyRegime).name} rules` : '');
+
 const quoted = (note: string | null) => (note ? `: “${note}”` : '');
 
 const REVIEW: Record<string, string> = {
@@ -133,12 +138,12 @@ const PHRASES: Record<string, Phrase> = {
   'extract.version-added': (d) => uploadWords('added to extract', d),
   'extract.upload-refused': (d) => {
     const reasons = Array.isArray(d.reasons) ? d.reasons.flatMap((r) => (isObject(r) && text(r.message) ? [text(r.message)!] : [])) : [];
-    return `the upload${text(d.name) ? ` of ${text(d.name)}` : ''} was refused${reasons.length ? `: ${reasons.join(' ')}` : ''}`;
+    return `the upload${text(d.name) ? ` of ${text(d.name)}` : ''} was refused${regimeWords(d)}${reasons.length ? `: ${reasons.join(' ')}` : ''}`;
   },
   'extract.upload-cancelled': () => 'cancelled an upload',
   'extract.confirmed': (d) => {
     const missing = isObject(d.missingValues) ? Object.keys(d.missingValues) : [];
-    return `confirmed version ${num(d.version) ?? '?'} of the extract${text(d.signedName) ? `, attested by ${text(d.signedName)}` : ''}${d.corrected === true ? ', with corrected column types' : ''}${missing.length ? `; missing-value codes for ${missing.join(', ')}` : ''}`;
+    return `confirmed version ${num(d.version) ?? '?'} of the extract${text(d.signedName) ? `, attested by ${text(d.signedName)}` : ''}${d.corrected === true ? ', with corrected column types' : ''}${missing.length ? `; missing-value codes for ${missing.join(', ')}` : ''}${regimeWords(d)}`;
   },
   'extract.archived': () => 'archived the extract',
   'extract.restored': () => 'restored the extract',
@@ -189,7 +194,7 @@ function uploadWords(lead: string, d: Details): string {
   if (num(d.rows) !== null) parts.push(`${plural(num(d.rows)!, 'row')}, ${plural(num(d.columns) ?? 0, 'column')}`);
   if (dropped.length) parts.push(`leaving out ${dropped.length === 1 ? 'column' : 'columns'} ${dropped.join(', ')}`);
   if (kept.length) parts.push(`keeping flagged ${kept.length === 1 ? 'column' : 'columns'} ${kept.join(', ')}${text(d.keepReason) ? ` because “${text(d.keepReason)}”` : ''}`);
-  return parts.join(', ');
+  return `${parts.join(', ')}${regimeWords(d)}`;
 }
 
 /** The event in words; null when there is nothing to say beyond the action's name. */

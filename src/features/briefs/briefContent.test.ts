@@ -74,8 +74,8 @@ describe('brief content with a stratum of nine people', () => {
     expect(content.keyTable!.rows.find((row) => row.level === level)!.reri).toBe(tables.interaction[0].reri!.text);
     expect(content.cautions.length).toBeGreaterThanOrEqual(5);
     expect(content.ownCautions).toEqual(['Site B changed its call script in May.']);
-    expect(content.signOff).toEqual({ by: 'Dr Demo', at: '2026-12-02 09:00 UTC', meaning: 'Methods and numbers checked.' });
-    expect(content.methods).toContain('declared prespecified on 2026-12-01 10:00 UTC');
+    expect(content.signOff).toEqual({ by: 'Dr Demo', at: '2 December 2026 at 09:00 UTC', meaning: 'Methods and numbers checked.' });
+    expect(content.methods).toContain('declared prespecified on 1 December 2026 at 10:00 UTC');
     expect(content.methods).toContain('a'.repeat(64));
   });
 

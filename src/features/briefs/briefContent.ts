@@ -8,6 +8,7 @@
  */
 import type { Result, Spec } from '@/engine/boundary/schemas';
 import { RESULT_CAUTIONS } from '@/lib/cautions';
+import { dateTimeInWords } from '@/lib/dates';
 import { MODEL_LABEL } from '../analyses/specRules';
 import { percentText } from '../analyses/specWords';
 import { formatNumber } from '../runs/resultFormat';
@@ -85,7 +86,8 @@ export interface BriefContent {
   provenance: { runId: string; extract: string; extractSha256: string; engineVersion: string; seed: number | null; specHash: string };
 }
 
-const utc = (iso: string) => `${iso.slice(0, 16).replace('T', ' ')} UTC`;
+/** Dates in the brief's sentences: "2 December 2026 at 09:14 UTC". */
+const utc = (iso: string) => dateTimeInWords(iso);
 
 /** The brief's content; throws when the result has nothing to publish. */
 export function buildBriefContent(result: Result, spec: Spec, facts: BriefFacts, input: BriefInput): BriefContent {

@@ -11,7 +11,7 @@ const escapeMap: Record<string, string> = { '&': '&amp;', '<': '&lt;', '>': '&gt
 export const escapeHtml = (text: string) => text.replace(/[&<>"']/g, (char) => escapeMap[char]);
 
 export interface BriefHtmlMeta {
-  /** "Version 2, published 2026-12-02 09:14 UTC", or "Draft preview". */
+  /** "Version 2, published 2 December 2026 at 09:14 UTC", or "Draft preview". */
   status: string;
 }
 

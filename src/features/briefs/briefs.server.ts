@@ -8,6 +8,7 @@
 import { createHash } from 'node:crypto';
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Result, Spec } from '@/engine/boundary/schemas';
+import { dateTimeInWords } from '@/lib/dates';
 import { sequelize } from '@/lib/server/db';
 import { conflict, notFound } from '@/lib/server/errors';
 import { recordAudit } from '../audit/audit.server';
@@ -32,7 +33,8 @@ export interface BriefRecord {
 }
 
 const iso = (value: Date | string) => new Date(value).toISOString();
-const utc = (value: Date | string) => `${iso(value).slice(0, 16).replace('T', ' ')} UTC`;
+/** Dates in the brief's words: "2 December 2026 at 09:14 UTC". */
+const utc = (value: Date | string) => dateTimeInWords(value);
 
 /** The initiative's brief settings, or the defaults (threshold 11, A4). */
 export async function briefSettings(transaction: Transaction, initiativeId: string): Promise<{ cellThreshold: number; pageSize: PageSize }> {

@@ -31,6 +31,10 @@ interface Props {
   initiativeId?: string;
   extractId?: string;
   maxBytes: number;
+  /** The identifiers the deployment's privacy regime names, as examples (src/lib/privacyRegime.ts). */
+  identifierExamples: string;
+  /** The rules the regime follows, in words. */
+  regimeCitation: string;
 }
 
 function formatBytes(bytes: number): string {
@@ -169,7 +173,7 @@ function Processing({ extractId, versionId, onCancel, onRetryWithout, onRetryKee
   );
 }
 
-function Uploader({ initiativeId, extractId, maxBytes }: Props) {
+function Uploader({ initiativeId, extractId, maxBytes, identifierExamples, regimeCitation }: Props) {
   const [file, setFile] = useState<File | null>(null);
   const [name, setName] = useState('');
   const [phase, setPhase] = useState<Phase>({ kind: 'idle' });
@@ -234,7 +238,7 @@ function Uploader({ initiativeId, extractId, maxBytes }: Props) {
       <h2 id="upload-heading" className="text-lg">{extractId ? 'Upload a new version' : 'Upload an extract'}</h2>
       <p className="text-sm text-ink-700 mt-1">
         A de-identified CSV with a header row (comma, semicolon or tab), UTF-8, at most {formatBytes(maxBytes)}. Columns that look like
-        identifiers (names, record numbers, full dates, ZIP codes, e-mail addresses, ages over 89, …) refuse the file.
+        identifiers ({identifierExamples}) refuse the file. The screen follows {regimeCitation}.
       </p>
       <div
         className={`mt-4 border-2 border-dashed rounded-md p-6 text-center ${dragging ? 'border-estuary-500 bg-estuary-50' : 'border-linen-300 bg-linen-50'}`}

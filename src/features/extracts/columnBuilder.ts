@@ -5,7 +5,7 @@
  */
 import { ByteDictionary, decode, growBytes, growInt32, hashBytes } from './byteDictionary';
 import type { ColumnData, ColumnSetOptions, TokenCount } from './columnTypes';
-import { addPatternMask, classifyTextValue, emptyPatternCounts, isCompactDate } from './valuePatterns';
+import { addPatternMask, classifyTextValue, emptyPatternCounts, isCompactDate, isNhsNumberDigits } from './valuePatterns';
 import { lastParse, parseNumber } from './numberParsing';
 
 /**
@@ -170,6 +170,7 @@ export class ColumnBuilder {
         const length = end - start;
         if (length === 5) this.patterns.fiveDigitNumbers++;
         else if (length === 8 && isCompactDate(bytes, start)) this.patterns.compactDates++;
+        else if (length === 10 && isNhsNumberDigits(bytes, start)) this.patterns.plainNhsNumbers++;
       }
       return;
     }

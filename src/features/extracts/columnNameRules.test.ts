@@ -40,7 +40,7 @@ describe('column names', () => {
     ['photo', 'face-image'],
     ['uuid', 'unique-code'],
   ])('flags %s as %s', (name, category) => {
-    expect(screenColumnName(name)?.category).toBe(category);
+    expect(screenColumnName(name, 'us-hipaa')?.category).toBe(category);
   });
 
   it.each([
@@ -48,7 +48,29 @@ describe('column names', () => {
     'prior_admissions', 'early_mobility', 'frailty_score', 'length_of_stay_days', 'ip_admissions', 'dosage',
     'stage', 'admission_year', 'drug_name', 'outcome', 'intervention', 'platelets',
   ])('leaves the analysis column %s alone', (name) => {
-    expect(screenColumnName(name)).toBeNull();
+    expect(screenColumnName(name, 'us-hipaa')).toBeNull();
+  });
+
+  // Name rules apply in every regime; the UK's own identifiers have categories of their own,
+  // and labels follow the regime's wording (from the regime texts of src/lib/privacyRegime.ts).
+  it.each([
+    ['nhs_number', 'nhs-number'],
+    ['NHSNo', 'nhs-number'],
+    ['nino', 'national-insurance-number'],
+    ['national_insurance_number', 'national-insurance-number'],
+    ['postcode', 'geography'],
+    ['date_of_birth', 'dates'],
+    ['ssn', 'ssn'],
+  ])('flags %s as %s under the UK regime', (name, category) => {
+    expect(screenColumnName(name, 'uk')?.category).toBe(category);
+    expect(screenColumnName(name, 'generic')?.category).toBe(category);
+  });
+
+  it('words a label in the regime\'s terms', () => {
+    expect(screenColumnName('postcode', 'uk')?.label).toBe('addresses or postcodes');
+    expect(screenColumnName('zip', 'us-hipaa')?.label).toBe('geographic units smaller than a state (addresses, ZIP or postal codes)');
+    expect(screenColumnName('dob', 'uk')?.label).toBe('dates of birth or other full dates');
+    expect(screenColumnName('site_name', 'uk')).toBeNull();
   });
 
   it('knows which names hold ages', () => {

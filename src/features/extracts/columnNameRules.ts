@@ -1,9 +1,12 @@
 /**
  * The identifier screen's rules on column names: a name is split into lower-case words
- * (`PatientDOB` -> `patient dob`) and matched against word lists per Safe Harbor category;
- * a person's-name rule is not triggered by names of things (`site_name`).
+ * (`PatientDOB` -> `patient dob`) and matched against word lists per identifier category;
+ * a person's-name rule is not triggered by names of things (`site_name`). The rules apply
+ * under every privacy regime (a column called `ssn` is suspect anywhere); a few labels
+ * follow the regime's wording.
  */
-import type { SafeHarborCategory } from './identifierFindings';
+import type { PrivacyRegime } from '@/lib/privacyRegime';
+import type { IdentifierCategory } from './identifierFindings';
 
 /**
  * Splits a column name into lower-case words: `PatientDOB` -> `patient dob`,
@@ -21,7 +24,7 @@ export function columnNameWords(name: string): string[] {
 }
 
 interface NameRule {
-  category: SafeHarborCategory;
+  category: IdentifierCategory;
   /** Single words that flag the column wherever they appear. */
   words?: readonly string[];
   /** Word sequences that flag the column when they appear consecutively. */
@@ -29,6 +32,8 @@ interface NameRule {
   /** Whole names (after joining the words with nothing) that flag the column. */
   whole?: readonly string[];
   label: string;
+  /** The label in a regime's own wording, where it differs. */
+  labelIn?: Partial<Record<PrivacyRegime, string>>;
 }
 
 // Words that make "name" mean the name of a thing rather than a person.
@@ -63,12 +68,14 @@ const NAME_RULES: readonly NameRule[] = [
   {
     category: 'geography',
     label: 'geographic units smaller than a state (addresses, ZIP or postal codes)',
+    labelIn: { uk: 'addresses or postcodes', generic: 'addresses or postal codes' },
     words: ['zip', 'zipcode', 'postcode', 'postal', 'postalcode', 'address', 'addr', 'street', 'city', 'town', 'county', 'latitude', 'longitude', 'lat', 'lng', 'lon', 'geocode', 'tract', 'suburb', 'village'],
     phrases: [['post', 'code'], ['census', 'block']],
   },
   {
     category: 'dates',
     label: 'dates (all date elements but the year)',
+    labelIn: { uk: 'dates of birth or other full dates', generic: 'full dates' },
     words: ['dob', 'dod', 'date', 'dates', 'dt', 'datetime', 'timestamp', 'birthdate', 'birthday', 'month', 'dateofbirth'],
     phrases: [['birth', 'date'], ['date', 'of', 'birth'], ['date', 'of', 'death'], ['birth', 'month'], ['birth', 'day']],
   },
@@ -76,15 +83,28 @@ const NAME_RULES: readonly NameRule[] = [
   { category: 'fax', label: 'fax numbers', words: ['fax', 'facsimile'] },
   {
     category: 'ssn',
-    label: 'social security or national insurance numbers',
-    words: ['ssn', 'ssns', 'socsec', 'nino'],
-    phrases: [['social', 'security'], ['national', 'insurance'], ['social', 'insurance']],
+    label: 'social security numbers',
+    words: ['ssn', 'ssns', 'socsec'],
+    phrases: [['social', 'security'], ['social', 'insurance']],
+  },
+  {
+    category: 'national-insurance-number',
+    label: 'National Insurance numbers',
+    words: ['nino', 'ninumber', 'ninos'],
+    phrases: [['national', 'insurance'], ['ni', 'number'], ['ni', 'no']],
+  },
+  {
+    category: 'nhs-number',
+    label: 'NHS numbers',
+    words: ['nhsnumber', 'nhsno', 'nhsnum'],
+    phrases: [['nhs', 'number'], ['nhs', 'no'], ['nhs', 'num'], ['nhs', 'id']],
   },
   {
     category: 'medical-record-number',
     label: 'medical record or patient numbers',
-    words: ['mrn', 'mrns', 'emrn', 'patientid', 'nhsnumber'],
-    phrases: [['medical', 'record'], ['patient', 'id'], ['patient', 'number'], ['hospital', 'number'], ['chart', 'number'], ['nhs', 'number'], ['person', 'id'], ['record', 'number'], ['unit', 'number'], ['health', 'record']],
+    labelIn: { uk: 'hospital or patient numbers' },
+    words: ['mrn', 'mrns', 'emrn', 'patientid'],
+    phrases: [['medical', 'record'], ['patient', 'id'], ['patient', 'number'], ['hospital', 'number'], ['chart', 'number'], ['person', 'id'], ['record', 'number'], ['unit', 'number'], ['health', 'record']],
   },
   {
     category: 'health-plan-number',
@@ -125,10 +145,11 @@ export function isAgeColumnName(name: string): boolean {
 }
 
 /**
- * The Safe Harbor category a column's name points at, or null. A person's-name rule is
- * not triggered by names of things (`site_name`, `ward_name`).
+ * The identifier category a column's name points at, with its label in the regime's
+ * wording, or null. A person's-name rule is not triggered by names of things
+ * (`site_name`, `ward_name`).
  */
-export function screenColumnName(name: string): { category: SafeHarborCategory; label: string } | null {
+export function screenColumnName(name: string, regime: PrivacyRegime): { category: IdentifierCategory; label: string } | null {
   const words = columnNameWords(name);
   if (words.length === 0) return null;
   const joined = words.join('');
@@ -142,7 +163,7 @@ export function screenColumnName(name: string): { category: SafeHarborCategory; 
       const at = words.indexOf('name');
       if (at >= 0 && !words.some((w) => THING_QUALIFIERS.has(w))) hit = true;
     }
-    if (hit) return { category: rule.category, label: rule.label };
+    if (hit) return { category: rule.category, label: rule.labelIn?.[regime] ?? rule.label };
   }
   return null;
 }

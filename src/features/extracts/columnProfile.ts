@@ -254,7 +254,7 @@ function summarizeText(column: TextColumnData): ColumnSummary {
   if (column.numericValueCount > 0) {
     const textValues = nonMissing - column.numericValueCount;
     notes.push(
-      `${column.numericValueCount.toLocaleString('en-US')} values are numbers and ${textValues.toLocaleString('en-US')} are text` +
+      `${column.numericValueCount.toLocaleString('en-GB')} values are numbers and ${textValues.toLocaleString('en-GB')} are text` +
         `${firstTextValue(column)}; if the column is numeric, correct or blank out the text values, or declare them missing-value codes.`,
     );
   }

@@ -45,9 +45,15 @@ function ols(rows: number[][], y: number[]): { beta: number[]; covariance: Matri
 }
 
 describe('demo cohorts', () => {
-  it('pass the identifier screen and have the documented columns and types', async () => {
+  it('pass the identifier screen of every regime and have the documented columns and types', async () => {
     const [callBack, upAndAbout] = generateDemoCohorts();
-    const first = await ingestExtract(chunked(callBack.csv, 65536));
+    // The demo runs in the UK regime (the default); the files pass the others too.
+    for (const regime of ['uk', 'us-hipaa', 'generic'] as const) {
+      for (const cohort of [callBack, upAndAbout]) {
+        expect((await ingestExtract(chunked(cohort.csv, 65536), { screen: { regime } })).findings).toEqual([]);
+      }
+    }
+    const first = await ingestExtract(chunked(callBack.csv, 65536), { screen: { regime: 'uk' } });
     expect(first.findings).toEqual([]);
     expect(first.read.recordCount).toBe(12_000);
     expect(first.profile.map((p) => [p.name, p.inferredType])).toEqual([
@@ -62,7 +68,7 @@ describe('demo cohorts', () => {
     expect(first.profile[2].levels?.map((l) => l.value)).toEqual(['18-44', '45-64', '65-79', '80+']);
     expect(first.profile[6].levels?.map((l) => l.value)).toEqual(['Eastholm Community', 'Ridgemoor Infirmary', 'Tern Valley General']);
 
-    const second = await ingestExtract(chunked(upAndAbout.csv, 65536));
+    const second = await ingestExtract(chunked(upAndAbout.csv, 65536), { screen: { regime: 'uk' } });
     expect(second.findings).toEqual([]);
     expect(second.read.recordCount).toBe(3_000);
     expect(second.profile.map((p) => [p.name, p.inferredType])).toEqual([

@@ -4,6 +4,7 @@
  * dictionary, plus the body of the confirm request.
  */
 import { z } from 'zod';
+import { PRIVACY_REGIMES } from '@/lib/privacyRegime';
 import { EXTRACT_REFUSAL_CODES } from './extractRefusal';
 
 /** Column types: the four an analysis can use, and the two that refuse the column. */
@@ -22,7 +23,8 @@ export const RefusalReason = z.object({
 });
 export type RefusalReason = z.infer<typeof RefusalReason>;
 
-export const SafeHarborCategory = z.enum([
+/** Identifier categories of the screen (Safe Harbor's list, with the UK's NHS and National Insurance numbers). */
+export const IdentifierCategory = z.enum([
   'names',
   'geography',
   'dates',
@@ -30,6 +32,8 @@ export const SafeHarborCategory = z.enum([
   'fax',
   'email',
   'ssn',
+  'nhs-number',
+  'national-insurance-number',
   'medical-record-number',
   'health-plan-number',
   'account-number',
@@ -47,6 +51,8 @@ export const SafeHarborCategory = z.enum([
 export const FindingRule = z.enum([
   'column-name',
   'ssn-pattern',
+  'nhs-number-pattern',
+  'ni-number-pattern',
   'phone-pattern',
   'email-pattern',
   'ip-address-pattern',
@@ -63,10 +69,12 @@ export const Finding = z.object({
   column: z.string(),
   columnIndex: z.number().int().nonnegative(),
   rule: FindingRule,
-  category: SafeHarborCategory,
+  category: IdentifierCategory,
   matchedCount: z.number().int().nonnegative().nullable(),
   examinedCount: z.number().int().nonnegative().nullable(),
   message: z.string(),
+  /** The privacy regime whose rules applied (absent on versions screened before regimes were a setting). */
+  regime: z.enum(PRIVACY_REGIMES).optional(),
 });
 export type FindingJson = z.infer<typeof Finding>;
 
@@ -206,7 +214,7 @@ export type NewExtractQuery = z.infer<typeof NewExtractQuery>;
 export const KeptColumn = z.object({
   column: z.string(),
   rule: FindingRule,
-  category: SafeHarborCategory,
+  category: IdentifierCategory,
   /** The screen's message about the name. */
   message: z.string(),
   reason: z.string(),

@@ -6,6 +6,7 @@
 import { QueryTypes, fn, type Sequelize, type Transaction } from 'sequelize';
 import { Extract, ExtractIntake, ExtractVersion, User } from '../../../db/models';
 import { sequelize as appSequelize } from '@/lib/server/db';
+import { env, privacyRegime } from '@/lib/server/env';
 import { conflict, notFound, unprocessable } from '@/lib/server/errors';
 import { recordAudit } from '../audit/audit.server';
 import { encodeColumn } from './columnStore';
@@ -14,12 +15,12 @@ import { levelsLeftIn, missingCodeKey } from './engineData';
 import type { ReadExtract } from './extracts';
 import type { ColumnProfile, DictionaryEntry, KeptColumn } from './extracts.schema';
 import type { Finding } from './identifierFindings';
+import type { PrivacyRegime } from '@/lib/privacyRegime';
 
-/** The statement an analyst signs before a version becomes ready. */
-export const ATTESTATION_STATEMENT =
-  'I confirm that this extract is de-identified: it contains none of the 18 Safe Harbor identifiers ' +
-  '(45 CFR 164.514(b)(2)), no dates finer than the year, no geography smaller than a state, and no ages ' +
-  'over 89 except grouped as 90 or older, and that I am authorised to bring it into this initiative.';
+/** The statement an analyst signs before a version becomes ready, in the deployment's privacy regime. */
+export function attestationStatement(): string {
+  return privacyRegime().attestation;
+}
 
 /** An intake that has not reported for this long is treated as failed (its server stopped). */
 export const INTAKE_STALE_MS = 120_000;
@@ -146,7 +147,7 @@ export async function closeVersion(
     clientAddress: uploader.clientAddress,
     details: {
       versionId: start.versionId, version, name: start.name, sha256: read.read.sha256, rows: read.read.recordCount, columns: columnCount,
-      droppedColumns: [...read.droppedColumns],
+      droppedColumns: [...read.droppedColumns], privacyRegime: env.CROSSGRAIN_PRIVACY_REGIME,
       keptColumns: kept.map((k) => ({ column: k.column, rule: k.rule, category: k.category, reason: k.kept.reason })),
     },
   });
@@ -168,7 +169,8 @@ export interface VersionView {
   findings?: unknown[];
   profile?: ColumnProfile[];
   dictionary?: DictionaryEntry[] | null;
-  attestation?: { signedName: string; signedAt: string; statement: string; userId: string } | null;
+  /** `regime` is absent on versions signed before the privacy regime was a setting. */
+  attestation?: { signedName: string; signedAt: string; statement: string; userId: string; regime?: PrivacyRegime } | null;
   droppedColumns?: string[];
   /** Columns flagged by their name alone that the uploader kept, with the reason. */
   keptColumns?: KeptColumn[];
@@ -318,7 +320,10 @@ export async function confirmVersion(
   if (!version) throw notFound('That version');
   if (version.status === 'ready') throw conflict('This version is already confirmed; a confirmed version never changes. Upload a new version instead.');
   const dictionary = buildDictionary(version.profile as ColumnProfile[], body.columns);
-  const attestation = { signedName: body.attestation.signedName, signedAt: new Date().toISOString(), statement: ATTESTATION_STATEMENT, userId: actor.id };
+  const attestation = {
+    signedName: body.attestation.signedName, signedAt: new Date().toISOString(), statement: attestationStatement(), userId: actor.id,
+    regime: env.CROSSGRAIN_PRIVACY_REGIME,
+  };
   await ExtractVersion.update(
     { status: 'ready', dictionary, attestation, confirmedBy: actor.id, confirmedAt: fn('now') },
     { where: { id: versionId }, transaction },
@@ -328,6 +333,7 @@ export async function confirmVersion(
     clientAddress: actor.clientAddress,
     details: {
       versionId, version: version.versionNumber, sha256: version.sha256, signedName: body.attestation.signedName, corrected: Boolean(body.columns),
+      privacyRegime: env.CROSSGRAIN_PRIVACY_REGIME,
       missingValues: Object.fromEntries(dictionary.filter((d) => (d.missingValues ?? []).length > 0).map((d) => [d.name, d.missingValues])),
     },
   });

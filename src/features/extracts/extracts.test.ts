@@ -4,7 +4,10 @@ import { toEngineData } from './engineData';
 import { ExtractRefusalError, ingestExtract, readExtractColumns, reviewExtractColumns } from './extracts';
 import { chunked } from './testSupport';
 
-const ingest = (csv: string, options = {}) => ingestExtract(chunked(csv, 4096), options);
+// These tests screen under the US HIPAA Safe Harbor regime (ZIP codes, SSNs); the UK and
+// generic regimes are tested in privacyRegimes.test.ts.
+const us = { regime: 'us-hipaa' } as const;
+const ingest = (csv: string, options = {}) => ingestExtract(chunked(csv, 4096), { screen: us, ...options });
 
 function csvOf(columns: Record<string, (i: number) => string | number>, rows: number): string {
   const names = Object.keys(columns);
@@ -18,9 +21,9 @@ describe('identifier screen on uploads', () => {
     // phone_call is a 0/1 intervention flag: only its name matches the telephone rule.
     const phoneCall = csvOf({ phone_call: (i) => i % 2, outcome: (i) => (i % 3 === 0 ? 1 : 0) }, 60);
     const { columns } = await readExtractColumns(chunked(phoneCall, 4096));
-    const refused = reviewExtractColumns(columns);
+    const refused = reviewExtractColumns(columns, us);
     expect(refused.findings.map((f) => [f.column, f.rule, f.category])).toEqual([['phone_call', 'column-name', 'phone']]);
-    const kept = reviewExtractColumns(columns, {}, ['phone_call']);
+    const kept = reviewExtractColumns(columns, us, ['phone_call']);
     expect(kept.refused).toBe(false);
     expect(kept.kept.map((f) => [f.column, f.rule])).toEqual([['phone_call', 'column-name']]);
     // Profiled as if unflagged: a 0/1 column is binary.
@@ -28,13 +31,13 @@ describe('identifier screen on uploads', () => {
     // Real telephone numbers in a column named "phone": the value rule refuses it even when kept, with the same message.
     const phones = csvOf({ phone: (i) => `(555) 010-${String(1000 + i).slice(-4)}`, outcome: (i) => i % 2 }, 20);
     const read = await readExtractColumns(chunked(phones, 4096));
-    const plain = reviewExtractColumns(read.columns);
-    const again = reviewExtractColumns(read.columns, {}, ['phone']);
+    const plain = reviewExtractColumns(read.columns, us);
+    const again = reviewExtractColumns(read.columns, us, ['phone']);
     expect(again.refused).toBe(true);
     expect(again.kept).toEqual([]);
     expect(again.refusals.map((r) => r.message)).toEqual(plain.refusals.map((r) => r.message));
     // Asking to keep a column the screen did not flag is reported.
-    expect(reviewExtractColumns(columns, {}, ['outcome', 'phone_call']).keptButNotFlagged).toEqual(['outcome']);
+    expect(reviewExtractColumns(columns, us, ['outcome', 'phone_call']).keptButNotFlagged).toEqual(['outcome']);
   });
 
   it('refuses a column of full dates as date-like, with the count of dates', async () => {

@@ -9,6 +9,7 @@ import { ColumnSet, type ColumnData, type ColumnSetOptions } from './columnAccum
 import { buildColumnProfile, summarizeColumn } from './columnProfile';
 import { encodeColumn, type EncodedColumn } from './columnStore';
 import { refusalsByColumn, type ColumnRefusal, type Finding } from './identifierFindings';
+import { DEFAULT_PRIVACY_REGIME } from '@/lib/privacyRegime';
 import { DEFAULT_SCREEN_OPTIONS, screenColumn, type ScreenOptions } from './identifierScreen';
 import type { ColumnProfile, ProcessingStage } from './extracts.schema';
 
@@ -18,7 +19,7 @@ export { ExtractRefusalError } from './extractRefusal';
 export interface IngestOptions extends Omit<ReadCsvOptions, 'onProgress'>, ColumnSetOptions {
   /** Size of the upload when known (Content-Length), for progress and to size the columns. */
   expectedBytes?: number;
-  /** Screen thresholds; defaults in identifierScreen.ts. */
+  /** Screen regime and thresholds; defaults in identifierScreen.ts and src/lib/privacyRegime.ts. */
   screen?: Partial<ScreenOptions>;
   /** Progress: stage and percentage of the whole ingest (reading is 0-90%). */
   onProgress?: (progress: { stage: ProcessingStage; percent: number; bytesRead: number; rows: number }) => void;
@@ -104,6 +105,8 @@ export async function readExtractColumns(source: ChunkSource, options: IngestOpt
 
 /**
  * Stage 2: the identifier screen and the profile of every column (synchronous, no I/O).
+ * The screen follows `screen.regime` (the server passes the deployment's setting; without
+ * it, the default regime of src/lib/privacyRegime.ts).
  * Columns named in `keep` that were flagged by their name alone are kept: their findings
  * move to `kept` and their profile is built as if unflagged. A kept column with a
  * value-based finding still refuses the upload, with the same message.
@@ -113,7 +116,7 @@ export function reviewExtractColumns(
   screen: Partial<ScreenOptions> = {},
   keep: readonly string[] = [],
 ): ReviewedExtract {
-  const screenOptions = { ...DEFAULT_SCREEN_OPTIONS, ...screen };
+  const screenOptions: ScreenOptions = { ...DEFAULT_SCREEN_OPTIONS, regime: DEFAULT_PRIVACY_REGIME, ...screen };
   const findings: Finding[] = [];
   const kept: Finding[] = [];
   const profile: ColumnProfile[] = [];

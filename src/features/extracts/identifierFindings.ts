@@ -1,11 +1,14 @@
 /**
- * What the identifier screen reports: the Safe Harbor categories it can recognise
- * (45 CFR 164.514(b)(2)(i)), its stable rule codes, one finding per reason to refuse a
- * column (counts, never values), and the findings joined into one refusal per column.
+ * What the identifier screen reports: the identifier categories it can recognise (the
+ * Safe Harbor list of 45 CFR 164.514(b)(2)(i), with the UK's NHS and National Insurance
+ * numbers), its stable rule codes, one finding per reason to refuse a column (counts,
+ * never values, and the privacy regime whose rules applied), and the findings joined into
+ * one refusal per column.
  */
+import type { PrivacyRegime } from '@/lib/privacyRegime';
 
-/** Safe Harbor categories the screen can recognise (plus ages over 89, a separate rule). */
-export type SafeHarborCategory =
+/** Identifier categories the screen can recognise (plus ages over 89, a separate rule). */
+export type IdentifierCategory =
   | 'names'
   | 'geography'
   | 'dates'
@@ -13,6 +16,8 @@ export type SafeHarborCategory =
   | 'fax'
   | 'email'
   | 'ssn'
+  | 'nhs-number'
+  | 'national-insurance-number'
   | 'medical-record-number'
   | 'health-plan-number'
   | 'account-number'
@@ -30,6 +35,8 @@ export type SafeHarborCategory =
 export type FindingRule =
   | 'column-name'
   | 'ssn-pattern'
+  | 'nhs-number-pattern'
+  | 'ni-number-pattern'
   | 'phone-pattern'
   | 'email-pattern'
   | 'ip-address-pattern'
@@ -47,13 +54,15 @@ export interface Finding {
   /** 0-based position in the header. */
   columnIndex: number;
   rule: FindingRule;
-  category: SafeHarborCategory;
+  category: IdentifierCategory;
   /** Values that matched the rule (null for rules about the name). */
   matchedCount: number | null;
   /** Non-missing values the rule examined (null for rules about the name). */
   examinedCount: number | null;
   /** Plain-English explanation; contains counts, never values. */
   message: string;
+  /** The privacy regime whose rules the screen applied. */
+  regime: PrivacyRegime;
 }
 
 /** One refusal message per column, joining that column's findings. */
@@ -61,7 +70,7 @@ export interface ColumnRefusal {
   column: string;
   columnIndex: number;
   rules: FindingRule[];
-  categories: SafeHarborCategory[];
+  categories: IdentifierCategory[];
   message: string;
 }
 

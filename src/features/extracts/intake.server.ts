@@ -152,7 +152,7 @@ async function refuseIntake(
       action: 'extract.upload-refused', actorId: uploader.id, subjectType: 'extract', subjectId: start.extractId,
       initiativeId: start.initiativeId, clientAddress: uploader.clientAddress,
       details: {
-        versionId: start.versionId, name: start.name, reasons,
+        versionId: start.versionId, name: start.name, reasons, privacyRegime: env.CROSSGRAIN_PRIVACY_REGIME,
         ...(asked.droppedColumns?.length ? { droppedColumns: [...asked.droppedColumns] } : {}),
         ...(asked.keep?.length ? { keepAsked: [...asked.keep], keepReason: asked.keepReason ?? '' } : {}),
       },
@@ -344,7 +344,7 @@ async function keptColumnsOf(
     const more = await rereadColumns(partFile, read, wanted, { dropColumns, maxBytes: env.CROSSGRAIN_UPLOAD_MAX_BYTES });
     read.columns = [...read.columns, ...more].sort((a, b) => a.index - b.index);
   }
-  const review = reviewExtractColumns(read.columns.filter((c) => keep.includes(c.name)), {}, keep);
+  const review = reviewExtractColumns(read.columns.filter((c) => keep.includes(c.name)), { regime: env.CROSSGRAIN_PRIVACY_REGIME }, keep);
   if (review.keptButNotFlagged.length > 0) {
     const name = review.keptButNotFlagged[0];
     const present = read.header.includes(name);
@@ -382,7 +382,8 @@ async function finishIntake(
       () => void updateIntake(uploader.id, start.versionId, {}).catch(() => {}),
     );
     if (outcome.kind === 'refused') {
-      const reasons = outcome.review.refusals.map((r) => ({ code: 'identifier-screen', column: r.column, rules: r.rules, categories: r.categories, message: r.message }));
+      const regime = env.CROSSGRAIN_PRIVACY_REGIME;
+      const reasons = outcome.review.refusals.map((r) => ({ code: 'identifier-screen', column: r.column, rules: r.rules, categories: r.categories, message: r.message, regime }));
       await refuseIntake(uploader, start, reasons, 'screening', { droppedColumns: read.droppedColumns, keep: keeping.keep, keepReason: keeping.reason });
     }
   } finally {

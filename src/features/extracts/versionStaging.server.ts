@@ -14,6 +14,7 @@ import type { ColumnData } from './columnAccumulator';
 import { encodeColumn } from './columnStore';
 import { closeVersion, intakeStillProcessing, openVersion, type IntakeStart, type StoredKeep, type Uploader } from './extracts.server';
 import { mergeReviews } from './columnPasses';
+import { env } from '@/lib/server/env';
 import { reviewExtractColumns, type ReadExtract, type ReviewedExtract } from './extracts';
 import { storeRawFile } from './rawFiles.server';
 
@@ -100,7 +101,7 @@ export async function storeStagedVersion(
       const reviews: ReviewedExtract[] = [];
       let staged = 0;
       for await (const group of groups) {
-        const review = reviewExtractColumns(group, {}, keeping.keep);
+        const review = reviewExtractColumns(group, { regime: env.CROSSGRAIN_PRIVACY_REGIME }, keeping.keep);
         reviews.push(review);
         // After a refusal the remaining groups are still screened, for the full list of reasons, but not staged.
         if (!reviews.some((r) => r.refused)) {

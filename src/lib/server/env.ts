@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { DEFAULT_PRIVACY_REGIME, PRIVACY_REGIMES, privacyRegimeText, type PrivacyRegimeText } from '../privacyRegime';
 
 /**
  * Every environment variable Crossgrain reads, declared once with a local default.
@@ -51,6 +52,13 @@ const Env = z.object({
     .default('')
     .transform((value) => value.split(',').map((item) => item.trim()).filter((item) => item.length > 0)),
 
+  /**
+   * Which de-identification rules the upload screen applies and the product cites:
+   * `us-hipaa` (Safe Harbor), `uk` (ICO anonymisation guidance, NHS data security) or
+   * `generic`. See src/lib/privacyRegime.ts.
+   */
+  CROSSGRAIN_PRIVACY_REGIME: z.enum(PRIVACY_REGIMES).default(DEFAULT_PRIVACY_REGIME),
+
   CROSSGRAIN_UPLOAD_MAX_BYTES: z.coerce.number().int().positive().default(500 * 1024 * 1024),
   CROSSGRAIN_DATA_DIR: z.string().default('.data'),
   /** A running analysis whose worker has not reported for this long is marked failed. */
@@ -79,6 +87,11 @@ function load(): Env {
 export const env: Env = load();
 
 export const isProduction = env.CROSSGRAIN_ENV === 'production';
+
+/** The privacy regime of this deployment, with its wording. */
+export function privacyRegime(): PrivacyRegimeText {
+  return privacyRegimeText(env.CROSSGRAIN_PRIVACY_REGIME);
+}
 
 /** The base URL for links in e-mails. */
 export function publicUrl(): string {
