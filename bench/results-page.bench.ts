@@ -75,7 +75,10 @@ try {
       ? ['--cpu-prof', `--cpu-prof-dir=${process.env.CROSSGRAIN_BENCH_CPU_PROF}`, '--input-type=module', '-e',
          `process.on('SIGTERM', () => process.exit(0)); await import(${JSON.stringify(build.entry)});`]
       : [build.entry];
-    const child = spawn(process.execPath, args, { cwd: root, env: { ...env, HOST: '127.0.0.1', PORT: String(build.port) }, stdio: 'ignore' });
+    // As `npm start` serves: React's production build, and (through scripts/serve.mjs) one
+    // process per core unless CROSSGRAIN_APP_PROCESSES says otherwise.
+    const served = process.env.CROSSGRAIN_BENCH_CPU_PROF || build.label !== 'this build' ? args : [path.join(root, 'scripts/serve.mjs')];
+    const child = spawn(process.execPath, served, { cwd: root, env: { ...env, HOST: '127.0.0.1', PORT: String(build.port), NODE_ENV: 'production' }, stdio: 'ignore' });
     servers.push(child);
     const base = `http://127.0.0.1:${build.port}`;
     for (let i = 0; i < 100; i += 1) {
@@ -109,9 +112,15 @@ try {
   // Where one view's time goes, one reader at a time: the page's size, the server's CPU time
   // per view (user + system from /proc, so other work on the machine does not count), and
   // the statements the database receives for one view (its statement log, on only here).
-  const serverCpuMs = (pid: number | undefined) => {
+  // The server and its app processes (scripts/serve.mjs forks one per core).
+  const ownCpuMs = (pid: number) => {
     const fields = readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1].split(' ');
     return ((Number(fields[11]) + Number(fields[12])) * 1000) / 100;
+  };
+  const serverCpuMs = (pid: number | undefined) => {
+    if (pid === undefined) return 0;
+    const children = readFileSync(`/proc/${pid}/task/${pid}/children`, 'utf8').trim().split(/\s+/).filter(Boolean).map(Number);
+    return [pid, ...children].reduce((total, id) => total + ownCpuMs(id), 0);
   };
   const psql = (sql: string) => runClusterTool('psql', ['-q', '-d', 'postgres', '-c', sql], { stdio: 'ignore' }, cluster);
   const logFile = clusterSettings(cluster).logFile;

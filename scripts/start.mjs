@@ -46,12 +46,12 @@ const { startCluster, stopCluster } = await import('../db/scripts/postgres.mjs')
 mkdirSync(runDir, { recursive: true });
 endLeftovers();
 const supervised = [];
-function launch(name, command, args) {
+function launch(name, command, args, extraEnv = {}) {
   const pidFile = path.join(runDir, `${name}.pid`);
   const handle = supervise({
     name,
     start: () => {
-      const child = startChild(name, command, args, { cwd: root, env });
+      const child = startChild(name, command, args, { cwd: root, env: { ...env, ...extraEnv } });
       child.once('exit', () => rmSync(pidFile, { force: true }));
       return child;
     },
@@ -94,7 +94,9 @@ if (!dev) {
 
 launch('worker', 'npx', ['tsx', 'src/features/runs/runWorker.ts']);
 if (dev) launch('app', 'npx', ['astro', 'dev', '--host', host, '--port', String(port)]);
-else launch('app', process.execPath, [path.join(root, 'dist/server/entry.mjs')]);
+// The built app serves with React's production build (NODE_ENV), as any deployment should,
+// one process per core (scripts/serve.mjs).
+else launch('app', process.execPath, [path.join(root, 'scripts/serve.mjs')], { NODE_ENV: 'production' });
 
 const demo = JSON.parse(readFileSync(path.join(root, 'db/seeds/demo.json'), 'utf8'));
 step(`Crossgrain is running at http://${host}:${port}  (Ctrl-C stops it)`);

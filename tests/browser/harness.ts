@@ -71,7 +71,7 @@ export async function startServer(): Promise<ServerHandle> {
   const log = openSync(path.join(artifacts, 'test-server.log'), 'a');
   const server = spawn(process.execPath, [path.join(root, 'dist/server/entry.mjs')], {
     cwd: root,
-    env: { ...process.env, HOST: url.hostname, PORT: url.port, LOG_LEVEL: 'warn' },
+    env: { ...process.env, HOST: url.hostname, PORT: url.port, LOG_LEVEL: 'warn', NODE_ENV: 'production' },
     stdio: ['ignore', log, 'pipe'],
   });
   let serverErrors = '';
