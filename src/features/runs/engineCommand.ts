@@ -7,7 +7,8 @@
  * `invalid-specification`, `invalid-data`, an engine refusal's code (`column-not-found`, ...)
  * or `internal-error`.
  *
- * The file is read exactly as an upload is (engineInput.ts). `npm run engine` runs this
+ * The file is read exactly as an upload is (engineInput.ts; a large file on two threads,
+ * twoThreadEngineInput.ts, with the same result). `npm run engine` runs this
  * module bundled ahead of time (scripts/engineCommand.mjs rebuilds the bundle when it is
  * missing or older than its sources), so nothing is compiled at start.
  */
@@ -21,6 +22,7 @@ import { ExtractRefusalError } from '../extracts/extractRefusal';
 import { columnRoles } from './columnRoles';
 import { EngineInputError, readEngineData } from './engineInput';
 import { INTERNAL_ERROR, productCode } from './runFailure';
+import { readEngineDataOnTwoThreads } from './twoThreadEngineInput';
 
 /** Files from this size probably hold enough rows for the engine to fit on several threads. */
 const LARGE_FILE_BYTES = 4_000_000;
@@ -79,7 +81,9 @@ async function main(args: string[]): Promise<void> {
   if (helpers > 0 && size >= LARGE_FILE_BYTES) passPool(helpers).catch(() => undefined);
   let data;
   try {
-    data = await readEngineData(dataPath, columnRoles(parsed.data));
+    // With a second thread, a large file is parsed in two halves at once (same values and messages).
+    const roles = columnRoles(parsed.data);
+    data = helpers > 0 ? await readEngineDataOnTwoThreads(dataPath, roles) : await readEngineData(dataPath, roles);
   } catch (error) {
     if (error instanceof ExtractRefusalError || error instanceof EngineInputError) {
       const column: Record<string, string> = error instanceof EngineInputError && error.column !== undefined ? { column: error.column } : {};

@@ -1,0 +1,198 @@
+/**
+ * readEngineData on two threads, for the engine command on a large file: the file is cut
+ * in two at the first line break after its middle; this thread reads the first part with
+ * the upload reader (header, delimiter, checks, records) while a worker thread
+ * (csvPartWorker.ts) parses the second part with the same record parser and column
+ * accumulator; the two parts' columns are then joined.
+ *
+ * The result is the one-pass reader's, value for value: numbers are concatenated; text
+ * levels are the union of both parts' levels, sorted the same way, and a column that is
+ * numbers in one part and text in the other takes the numbers as levels in the form the
+ * one-pass reader gives them (String(value)); a column whose levels together pass the
+ * cap is refused as before. Whenever the cut is not a record boundary (it falls inside a
+ * quoted field) or either part meets anything the reader refuses, the whole file is read
+ * again in one pass by readEngineData, so every message is exactly the one-pass reader's.
+ */
+import { closeSync, openSync, readSync } from 'node:fs';
+import { stat } from 'node:fs/promises';
+import { Worker } from 'node:worker_threads';
+import type { EngineData } from '@/engine';
+import { launchFor } from '@/engine/threads/workerLaunch';
+import { DEFAULT_MAX_LEVELS, lineOfRowByMarks } from '../extracts/columnAccumulator';
+import { CsvChunkReader, DEFAULT_MAX_BYTES, type CsvSink } from '../extracts/csvReader';
+import { storedColumn, toEngineData, type StoredColumn } from '../extracts/engineData';
+import type { CsvPartRequest, CsvPartResult, CsvPartUnusable, PartColumn } from './csvPart';
+import { EngineInputError, KeptColumns, readEngineData } from './engineInput';
+
+/** Files from this size are read on two threads (below it a thread's start costs more than it saves). */
+export const TWO_THREAD_MIN_BYTES = 4_000_000;
+
+const LF = 10;
+
+/** The upload reader, with the delimiter and the current line it fixed made visible. */
+class FirstPartReader extends CsvChunkReader {
+  get delimiterByte(): number {
+    return this.delimiter;
+  }
+}
+
+/** Keeps the header's names for the second part. */
+class FirstPartSink extends KeptColumns implements CsvSink {
+  names: string[] | null = null;
+
+  override header(names: readonly string[]): void {
+    this.names = names.slice();
+    super.header(names);
+  }
+}
+
+function readBytes(path: string, length: number): Buffer {
+  const bytes = Buffer.allocUnsafe(length);
+  const fd = openSync(path, 'r');
+  try {
+    let done = 0;
+    while (done < length) {
+      const read = readSync(fd, bytes, done, length - done, done);
+      if (read === 0) break;
+      done += read;
+    }
+    return bytes.subarray(0, done);
+  } finally {
+    closeSync(fd);
+  }
+}
+
+function startPartWorker(): { result: Promise<CsvPartResult | CsvPartUnusable>; send: (request: CsvPartRequest) => void; stop: () => void } {
+  const launch = launchFor(new URL('./csvPartWorker.js', import.meta.url), import.meta.url);
+  const worker = new Worker(launch.url, { workerData: launch.extraData });
+  worker.unref();
+  const result = new Promise<CsvPartResult | CsvPartUnusable>((resolve) => {
+    worker.once('message', (message: CsvPartResult | CsvPartUnusable) => resolve(message));
+    worker.once('error', (error) => resolve({ ok: false, reason: error.message }));
+    worker.once('exit', () => resolve({ ok: false, reason: 'the worker stopped without an answer' }));
+  });
+  return { result, send: (request) => worker.postMessage(request), stop: () => void worker.terminate() };
+}
+
+type TextParts = { levels: string[]; codes: Int32Array };
+
+/** A part's column as levels and codes; numbers become levels as String(value), as the one-pass reader makes them. */
+function asText(column: StoredColumn): TextParts {
+  if (column.storage === 'text') return { levels: column.levels, codes: column.codes };
+  const index = new Map<string, number>();
+  const codes = new Int32Array(column.values.length);
+  for (let row = 0; row < codes.length; row++) {
+    const v = column.values[row];
+    if (v !== v) {
+      codes[row] = -1;
+      continue;
+    }
+    const key = String(v);
+    let code = index.get(key);
+    if (code === undefined) {
+      code = index.size;
+      index.set(key, code);
+    }
+    codes[row] = code;
+  }
+  return { levels: [...index.keys()], codes };
+}
+
+/** The two parts of one column joined, or null when together they pass the level cap. */
+export function joinColumns(first: PartColumn, second: PartColumn): StoredColumn | null {
+  if ('overflowed' in first || 'overflowed' in second) return null;
+  const name = first.name;
+  if (first.storage === 'numeric' && second.storage === 'numeric') {
+    const values = new Float64Array(first.values.length + second.values.length);
+    values.set(first.values);
+    values.set(second.values, first.values.length);
+    return { name, storage: 'numeric', values };
+  }
+  const a = asText(first);
+  const b = asText(second);
+  const union = new Set([...a.levels, ...b.levels]);
+  if (union.size > DEFAULT_MAX_LEVELS) return null;
+  const levels = [...union].sort((x, y) => (x < y ? -1 : x > y ? 1 : 0));
+  const position = new Map(levels.map((level, code) => [level, code]));
+  const codes = new Int32Array(a.codes.length + b.codes.length);
+  let at = 0;
+  for (const part of [a, b]) {
+    const map = Int32Array.from(part.levels, (level) => position.get(level)!);
+    for (let row = 0; row < part.codes.length; row++, at++) {
+      const code = part.codes[row];
+      codes[at] = code >= 0 ? map[code] : code;
+    }
+  }
+  return { name, storage: 'text', codes, levels };
+}
+
+/** Reads `path` in two parts; null when it must be read again in one pass. */
+export async function readInTwoParts(path: string, size: number, roles: Record<string, 'categorical' | 'continuous'>): Promise<EngineData | null> {
+  const middle = Math.floor(size / 2);
+  const head = readBytes(path, Math.min(size, middle + (1 << 20)));
+  const cut = head.indexOf(LF, middle);
+  if (cut < 0 || cut + 1 >= size) return null;
+  const split = cut + 1;
+  const worker = startPartWorker();
+  try {
+    const keep = Object.keys(roles);
+    const sink = new FirstPartSink(new Set(keep), split);
+    const reader = new FirstPartReader(sink);
+    let sent = false;
+    let summary;
+    try {
+      // A small first chunk fixes the header soon, so that the worker starts early.
+      for (let at = 0, chunk = 1 << 16; at < split; at += chunk, chunk = 1 << 20) {
+        reader.push(head.subarray(at, Math.min(split, at + chunk)));
+        if (!sent && sink.names !== null) {
+          worker.send({ path, start: split, end: size, delimiter: reader.delimiterByte, names: sink.names, keep });
+          sent = true;
+        }
+      }
+      summary = reader.finish();
+    } catch {
+      return null;
+    }
+    if (!sent) return null;
+    const second = await worker.result;
+    if (!second.ok) return null;
+    const firstColumns = sink.columns!;
+    const first = firstColumns.finish();
+    const stored: StoredColumn[] = [];
+    for (let k = 0; k < first.length; k++) {
+      const joined = joinColumns(storedColumn(first[k]) ?? { name: first[k].name, overflowed: true }, second.columns[k]);
+      if (joined === null) {
+        const name = first[k].name;
+        throw new EngineInputError(`The column "${name}" has more distinct values than a column may keep, too many to use as a category.`, name);
+      }
+      stored.push(joined);
+    }
+    const firstRows = summary.recordCount;
+    const linesBefore = summary.lineCount;
+    const lineOfRow = (row: number): number =>
+      row < firstRows
+        ? firstColumns.lineOfRow(row)
+        : linesBefore + lineOfRowByMarks(second.markRows, second.markLines, second.markRows.length, row - firstRows);
+    return { ...toEngineData(firstRows + second.recordCount, stored, roles), lineOfRow };
+  } finally {
+    worker.stop();
+  }
+}
+
+/**
+ * The engine data of `path` for the columns in `roles`, as readEngineData gives them
+ * (same values, same refusals and messages), read on two threads when the file is at
+ * least `minimumBytes` long.
+ */
+export async function readEngineDataOnTwoThreads(
+  path: string,
+  roles: Record<string, 'categorical' | 'continuous'>,
+  minimumBytes = TWO_THREAD_MIN_BYTES,
+): Promise<EngineData> {
+  const { size } = await stat(path);
+  if (size >= minimumBytes && size <= DEFAULT_MAX_BYTES) {
+    const data = await readInTwoParts(path, size, roles);
+    if (data !== null) return data;
+  }
+  return readEngineData(path, roles);
+}
