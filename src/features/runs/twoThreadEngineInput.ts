@@ -98,13 +98,24 @@ function asText(column: StoredColumn): TextParts {
   return { levels: [...index.keys()], codes };
 }
 
+/**
+ * `part` extended to `length` elements over its own buffer when the buffer has the room
+ * (the first part's columns reserve room for the whole file), else a new array holding it.
+ */
+function extended<T extends Float64Array | Int32Array>(part: T, length: number, make: (buffer: ArrayBufferLike, offset: number, length: number) => T, fresh: (length: number) => T): T {
+  if (part.byteOffset + length * part.BYTES_PER_ELEMENT <= part.buffer.byteLength) return make(part.buffer, part.byteOffset, length);
+  const out = fresh(length);
+  out.set(part);
+  return out;
+}
+
 /** The two parts of one column joined, or null when together they pass the level cap. */
 export function joinColumns(first: PartColumn, second: PartColumn): StoredColumn | null {
   if ('overflowed' in first || 'overflowed' in second) return null;
   const name = first.name;
   if (first.storage === 'numeric' && second.storage === 'numeric') {
-    const values = new Float64Array(first.values.length + second.values.length);
-    values.set(first.values);
+    const length = first.values.length + second.values.length;
+    const values = extended(first.values, length, (b, o, n) => new Float64Array(b, o, n), (n) => new Float64Array(n));
     values.set(second.values, first.values.length);
     return { name, storage: 'numeric', values };
   }
@@ -114,7 +125,9 @@ export function joinColumns(first: PartColumn, second: PartColumn): StoredColumn
   if (union.size > DEFAULT_MAX_LEVELS) return null;
   const levels = [...union].sort((x, y) => (x < y ? -1 : x > y ? 1 : 0));
   const position = new Map(levels.map((level, code) => [level, code]));
-  const codes = new Int32Array(a.codes.length + b.codes.length);
+  // The first part's codes are rewritten in place, before the second's are placed after them.
+  const length = a.codes.length + b.codes.length;
+  const codes = extended(a.codes, length, (buffer, offset, n) => new Int32Array(buffer, offset, n), (n) => new Int32Array(n));
   let at = 0;
   for (const part of [a, b]) {
     const map = Int32Array.from(part.levels, (level) => position.get(level)!);
@@ -136,7 +149,8 @@ export async function readInTwoParts(path: string, size: number, roles: Record<s
   const worker = startPartWorker();
   try {
     const keep = Object.keys(roles);
-    const sink = new FirstPartSink(new Set(keep), split);
+    // Sized for the whole file, so that the second part's rows fit after the first's.
+    const sink = new FirstPartSink(new Set(keep), size);
     const reader = new FirstPartReader(sink);
     let sent = false;
     let summary;
