@@ -64,8 +64,8 @@ function readBytes(path: string, length: number): Buffer {
 
 function startPartWorker(): { result: Promise<CsvPartResult | CsvPartUnusable>; send: (request: CsvPartRequest) => void; stop: () => void } {
   const launch = launchFor(new URL('./csvPartWorker.js', import.meta.url), import.meta.url);
+  // Kept referenced until stopped, so that the process waits for the part (every path stops it).
   const worker = new Worker(launch.url, { workerData: launch.extraData });
-  worker.unref();
   const result = new Promise<CsvPartResult | CsvPartUnusable>((resolve) => {
     worker.once('message', (message: CsvPartResult | CsvPartUnusable) => resolve(message));
     worker.once('error', (error) => resolve({ ok: false, reason: error.message }));
