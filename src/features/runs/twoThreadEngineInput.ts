@@ -168,10 +168,11 @@ export async function readInTwoParts(path: string, size: number, roles: Record<s
       return null;
     }
     if (!sent) return null;
-    const second = await worker.result;
-    if (!second.ok) return null;
+    // The first part's columns are finished while the worker may still be parsing.
     const firstColumns = sink.columns!;
     const first = firstColumns.finish();
+    const second = await worker.result;
+    if (!second.ok) return null;
     const stored: StoredColumn[] = [];
     for (let k = 0; k < first.length; k++) {
       const joined = joinColumns(storedColumn(first[k]) ?? { name: first[k].name, overflowed: true }, second.columns[k]);
