@@ -74,9 +74,12 @@ async function main(args: string[]): Promise<void> {
     const issue = parsed.error.issues[0];
     throw new CommandFailure(INVALID_SPEC, `The specification is not valid at "${issue.path.join('.') || '(root)'}": ${issue.message}`, 1);
   }
+  // The engine starts its helper threads for a large fit on first use; start them now, so
+  // that they boot while the file is read (the same process-wide pool is then reused).
   const helpers = (threads ?? defaultThreadCount()) - 1;
   const size = await stat(dataPath).then((info) => info.size, () => 0);
   const large = helpers > 0 && size >= LARGE_FILE_BYTES;
+  if (large) passPool(helpers).catch(() => undefined);
   let data;
   try {
     // With a second thread, a large file is parsed in two halves at once (same values and messages).
@@ -89,10 +92,6 @@ async function main(args: string[]): Promise<void> {
     }
     throw new CommandFailure(INVALID_DATA, `The data file could not be read: ${(error as Error).message}`, 1);
   }
-  // The engine starts its helper threads for a large fit on first use; start them now, so
-  // that they boot while the rows are coded (the same process-wide pool is then reused),
-  // not while the second thread is still reading.
-  if (large) passPool(helpers).catch(() => undefined);
   const result = await runAnalysis(data, parsed.data, threads === undefined ? {} : { threads });
   process.stdout.write(`${JSON.stringify(result, null, 2)}\n`);
 }
