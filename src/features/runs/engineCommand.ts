@@ -13,6 +13,7 @@
  * missing or older than its sources), so nothing is compiled at start.
  */
 import { readFile, stat } from 'node:fs/promises';
+import { availableParallelism, loadavg } from 'node:os';
 import { resolve } from 'node:path';
 import { EngineError, runAnalysis } from '@/engine';
 import { defaultThreadCount } from '@/engine/bootstrap/percentileBootstrap';
@@ -82,9 +83,13 @@ async function main(args: string[]): Promise<void> {
   if (large) passPool(helpers).catch(() => undefined);
   let data;
   try {
-    // With a second thread, a large file is parsed in two halves at once (same values and messages).
+    // With a second thread and a core to spare (the last minute's load average below the
+    // core count), a large file is parsed in two halves at once (same values and messages).
+    // On a busy machine the worker's start only adds CPU time (the README's engine command
+    // figures), so the file is read in one pass there.
     const roles = columnRoles(parsed.data);
-    data = large ? await readEngineDataOnTwoThreads(dataPath, roles) : await readEngineData(dataPath, roles);
+    const spareCore = loadavg()[0] < availableParallelism();
+    data = large && spareCore ? await readEngineDataOnTwoThreads(dataPath, roles) : await readEngineData(dataPath, roles);
   } catch (error) {
     if (error instanceof ExtractRefusalError || error instanceof EngineInputError) {
       const column: Record<string, string> = error instanceof EngineInputError && error.column !== undefined ? { column: error.column } : {};
