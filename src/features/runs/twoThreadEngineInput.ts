@@ -12,6 +12,7 @@
  * cap is refused as before. Whenever the cut is not a record boundary (it falls inside a
  * quoted field) or either part meets anything the reader refuses, the whole file is read
  * again in one pass by readEngineData, so every message is exactly the one-pass reader's.
+ * The command uses it only when the machine has a core to spare (engineCommand.ts).
  */
 import { closeSync, openSync, readSync } from 'node:fs';
 import { stat } from 'node:fs/promises';
@@ -29,7 +30,7 @@ export const TWO_THREAD_MIN_BYTES = 4_000_000;
 
 const LF = 10;
 
-/** The upload reader, with the delimiter and the current line it fixed made visible. */
+/** The upload reader, with the delimiter it detected made visible. */
 class FirstPartReader extends CsvChunkReader {
   get delimiterByte(): number {
     return this.delimiter;
