@@ -1,9 +1,8 @@
 // `npm run engine`: runs the engine command (src/features/runs/engineCommand.ts) from a
 // bundle built ahead of time under .build/engine/, so that nothing is compiled at start.
-// The bundle (and the worker entries beside it, the engine's two and the CSV part reader's,
-// which are found next to the module that starts them) is rebuilt with esbuild when it is
-// missing or older than any of the files it was built from (their list is kept in
-// inputs.json), or than package-lock.json.
+// The bundle (and the engine's two worker entries beside it, which the engine finds next to
+// the module that starts them) is rebuilt with esbuild when it is missing or older than any
+// of the files it was built from (their list is kept in inputs.json), or than package-lock.json.
 //
 // `npm run -s engine -- --write-schemas` regenerates src/engine/boundary/spec.schema.json
 // and result.schema.json from the zod schemas (run from the TypeScript sources).
@@ -21,9 +20,8 @@ const entryPoints = {
   engineCommand: 'src/features/runs/engineCommand.ts',
   passWorker: 'src/engine/threads/passWorker.ts',
   bootstrapWorker: 'src/engine/bootstrap/bootstrapWorker.ts',
-  csvPartWorker: 'src/features/runs/csvPartWorker.ts',
 };
-const outputs = ['engineCommand.mjs', 'passWorker.js', 'bootstrapWorker.js', 'csvPartWorker.js'].map((name) => join(outdir, name));
+const outputs = ['engineCommand.mjs', 'passWorker.js', 'bootstrapWorker.js'].map((name) => join(outdir, name));
 
 function modified(path) {
   try {
@@ -84,7 +82,7 @@ async function buildInto(build, scratch) {
   });
   writeFileSync(join(scratch, 'inputs.json'), `${JSON.stringify(Object.keys(result.metafile.inputs).sort(), null, 1)}\n`);
   mkdirSync(outdir, { recursive: true });
-  for (const name of ['passWorker.js', 'bootstrapWorker.js', 'csvPartWorker.js', 'inputs.json']) renameSync(join(scratch, name), join(outdir, name));
+  for (const name of ['passWorker.js', 'bootstrapWorker.js', 'inputs.json']) renameSync(join(scratch, name), join(outdir, name));
   renameSync(join(scratch, 'engineCommand.js'), bundle);
 }
 

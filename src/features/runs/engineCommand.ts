@@ -7,13 +7,11 @@
  * `invalid-specification`, `invalid-data`, an engine refusal's code (`column-not-found`, ...)
  * or `internal-error`.
  *
- * The file is read exactly as an upload is (engineInput.ts; a large file on two threads,
- * twoThreadEngineInput.ts, with the same result). `npm run engine` runs this
+ * The file is read exactly as an upload is (engineInput.ts). `npm run engine` runs this
  * module bundled ahead of time (scripts/engineCommand.mjs rebuilds the bundle when it is
  * missing or older than its sources), so nothing is compiled at start.
  */
 import { readFile, stat } from 'node:fs/promises';
-import { availableParallelism, loadavg } from 'node:os';
 import { resolve } from 'node:path';
 import { EngineError, runAnalysis } from '@/engine';
 import { defaultThreadCount } from '@/engine/bootstrap/percentileBootstrap';
@@ -23,7 +21,6 @@ import { ExtractRefusalError } from '../extracts/extractRefusal';
 import { columnRoles } from './columnRoles';
 import { EngineInputError, readEngineData } from './engineInput';
 import { INTERNAL_ERROR, productCode } from './runFailure';
-import { readEngineDataOnTwoThreads } from './twoThreadEngineInput';
 
 /** Files from this size probably hold enough rows for the engine to fit on several threads. */
 const LARGE_FILE_BYTES = 4_000_000;
@@ -79,17 +76,10 @@ async function main(args: string[]): Promise<void> {
   // that they boot while the file is read (the same process-wide pool is then reused).
   const helpers = (threads ?? defaultThreadCount()) - 1;
   const size = await stat(dataPath).then((info) => info.size, () => 0);
-  const large = helpers > 0 && size >= LARGE_FILE_BYTES;
-  if (large) passPool(helpers).catch(() => undefined);
+  if (helpers > 0 && size >= LARGE_FILE_BYTES) passPool(helpers).catch(() => undefined);
   let data;
   try {
-    // With a second thread and a core to spare (the last minute's load average below the
-    // core count), a large file is parsed in two halves at once (same values and messages).
-    // On a busy machine the worker's start only adds CPU time (the README's engine command
-    // figures), so the file is read in one pass there.
-    const roles = columnRoles(parsed.data);
-    const spareCore = loadavg()[0] < availableParallelism();
-    data = large && spareCore ? await readEngineDataOnTwoThreads(dataPath, roles) : await readEngineData(dataPath, roles);
+    data = await readEngineData(dataPath, columnRoles(parsed.data));
   } catch (error) {
     if (error instanceof ExtractRefusalError || error instanceof EngineInputError) {
       const column: Record<string, string> = error instanceof EngineInputError && error.column !== undefined ? { column: error.column } : {};

@@ -25,7 +25,7 @@ export class EngineInputError extends Error {
 }
 
 /** Hands the header to a column set that drops every column outside `keep`. */
-export class KeptColumns implements CsvSink {
+class KeptColumns implements CsvSink {
   columns: ColumnSet | null = null;
 
   constructor(
