@@ -28,4 +28,15 @@ describe('stored columns for the engine, with declared missing-value codes', () 
     expect(levelsLeftIn(['1', '2', '999', 'NA', '.'], ['999'])).toEqual(['1', '2']);
     expect(levelsLeftIn(['no', 'Unknown', 'yes'], [' unknown '])).toEqual(['no', 'yes']);
   });
+
+  it('codes a numeric column used as a category by its values in numeric order, small whole numbers or not', () => {
+    const values = Float64Array.from([3, -1, 0.5, -0, 1024, 2, NaN, 3, 1023, 0]);
+    const data = toEngineData(10, [{ name: 'score', storage: 'numeric', values }], { score: 'categorical' });
+    // By hand: the distinct values in numeric order are -1, 0 (and -0), 0.5, 2, 3, 1023, 1024; NaN is missing.
+    expect(data.columns.score).toEqual({
+      kind: 'categorical',
+      codes: Int32Array.from([4, 0, 2, 1, 6, 3, -1, 4, 5, 1]),
+      levels: ['-1', '0', '0.5', '2', '3', '1023', '1024'],
+    });
+  });
 });
