@@ -37,6 +37,8 @@ export interface StageResults {
   tables: AnalysisResult['stratifiedTables'];
   bootstrap: AnalysisResult['bootstrap'];
   planning: PlanningBlock;
+  /** Clusters, person-time rates and frequency weights (clusterRateWeightStage.ts). */
+  extras: Pick<AnalysisResult, 'clustering' | 'rates' | 'weights'>;
 }
 
 /** The plain-JSON result (before non-finite numbers are replaced). */
@@ -60,7 +62,7 @@ export function assembleResult(analysis: FittedAnalysis, stages: StageResults): 
       column: frame.outcomeColumn,
       type: spec.outcome.type,
       event: frame.eventLevel,
-      events: frame.outcomeBinary ? stages.outcomeSum : null,
+      events: frame.outcomeBinary || spec.outcome.type === 'count' ? stages.outcomeSum : null,
       mean: frame.outcomeBinary ? null : stages.outcomeSum / frame.n,
     },
     exposure: { column: frame.exposureColumn, reference: frame.exposureLevels[0], level: frame.exposureLevels[1] },
@@ -103,6 +105,7 @@ export function assembleResult(analysis: FittedAnalysis, stages: StageResults): 
     stratifiedTables: stages.tables,
     bootstrap: stages.bootstrap,
     planning: stages.planning,
+    ...stages.extras,
     warnings,
   };
 }
