@@ -15,6 +15,7 @@ import {
   displayLevels, fixed, formatCount, formatNumber, formatP, intervalCell, measureInfo, modifierDecimals, numberCell, pCell,
   type IntervalCell, type MeasureInfo, type NumberCell,
 } from './resultFormat';
+import { clusterRateWeightView, varianceName, type ClusterRateWeightView } from './clusterRateWeightView';
 import { perResult } from './finishedResults';
 import {
   johnsonNeymanSentence, missingInWords, multiplicityNote, OMNIBUS_LABEL, planningInWords, referenceText, warningsInWords,
@@ -89,6 +90,8 @@ export interface ResultTables {
   warnings: WarningView[];
   /** The minimum detectable interaction in words. */
   powerNote: string | null;
+  /** Variance in use, clusters, person-time rates, overdispersion and frequency weights. */
+  extras: ClusterRateWeightView;
 }
 
 /** What every table builder reads: the result, how its measure is shown, and its display levels. */
@@ -254,7 +257,7 @@ function modelLine(result: Result): string {
     `${MODEL_LABEL[model.family]}${fallback}; ${formatCount(result.n)} rows analysed` +
     `${result.dropped > 0 ? `, ${formatCount(result.dropped)} left out for missing values${missing ? ` (missing in ${missing})` : ''}` : ''}; ` +
     `${model.converged ? (model.iterations > 0 ? `converged in ${model.iterations} iterations` : 'fitted directly') : 'did not converge'}; ` +
-    `${model.standardErrors === 'model' ? 'model-based' : model.standardErrors} standard errors.`
+    `${varianceName(result)} standard errors${result.clustering ? ` (${formatCount(result.clustering.clusters)} clusters)` : ''}.`
   );
 }
 
@@ -282,5 +285,6 @@ export function buildResultTables(result: Result, spec: Spec): ResultTables {
     multiplicityNote: multiplicityNote(result),
     warnings: warningsInWords(result),
     powerNote: planningInWords(result, measure),
+    extras: clusterRateWeightView(result),
   };
 }
