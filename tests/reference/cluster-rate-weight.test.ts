@@ -64,6 +64,21 @@ function compareAll(result: AnalysisResult, fixture: CrwFixture): void {
   expectClose(result.interaction.omnibus.statistic, fixture.omnibus.statistic, 'omnibus statistic');
   expect(result.interaction.omnibus.df).toBe(fixture.omnibus.df);
   expectClose(result.interaction.omnibus.p, fixture.omnibus.p, 'omnibus p', 1e-7);
+  if (fixture.spec.modifier.type === 'continuous') {
+    // Slopes at mean ± 1 SD, Johnson-Neyman (Bauer and Curran 2005 quadratic), band points,
+    // ratio of ratios per unit and RERI/AP/AP*/S at +1 SD: make-fixtures.R's continuous_case.
+    expectClose(result.modifier.mean, fixture.mean!, 'modifier mean (mean())');
+    expectClose(result.modifier.sd, fixture.sd!, 'modifier sd (sd())');
+    fixture.slopes!.forEach((expected, k) => compare(result.slopes![k], expected, `slope ${k}`));
+    const jn = fixture.johnsonNeyman!;
+    expect(result.johnsonNeyman!.bounds?.length ?? 0).toBe(jn.bounds.length);
+    jn.bounds.forEach((bound, k) => expectClose(result.johnsonNeyman!.bounds![k], bound, `J-N bound ${k}`));
+    for (const expected of fixture.band!) compare({ ...result.band![expected.index] }, expected, `band point ${expected.index}`);
+    compare(result.interaction.multiplicative[0], fixture.multiplicative as RInterval, 'ratio of ratios per unit');
+    const additive = fixture.additive as RAdditive;
+    for (const key of ['reri', 'ap', 'apStar'] as const) compare(result.interaction.additive[0][key]!, { ...additive[key], p: Number.NaN }, `${key} +1 SD`);
+    return;
+  }
   const levels = fixture.levels!;
   levels.forEach((level, k) => compare(result.strata.find((s) => s.level === level)!.effect, fixture.strata![k], `stratum ${level}`));
   for (const expected of fixture.joint!) {

@@ -27,7 +27,8 @@ dir.create(file.path(out, "data"), recursive = TRUE, showWarnings = FALSE)
 dir.create(file.path(out, "fixtures"), recursive = TRUE, showWarnings = FALSE)
 
 # The helper functions of make-fixtures.R (its top-level `name <- function(...)` lines only).
-for (e in parse("tests/reference/r/make-fixtures.R")) {
+here <- dirname(sub("^--file=", "", grep("^--file=", commandArgs(trailingOnly = FALSE), value = TRUE)[1]))
+for (e in parse(file.path(here, "make-fixtures.R"))) {
   if (is.call(e) && identical(e[[1]], as.name("<-")) && is.call(e[[3]]) && identical(e[[3]][[1]], as.name("function"))) eval(e)
 }
 tight <- glm.control(epsilon = 1e-14, maxit = 100)
@@ -178,3 +179,30 @@ x <- categorical_case("esophgrouped-weights-logistic", spec, eg, gw, gw_red, vco
   list(statistic = lrt_g$Deviance[2], df = lrt_g$Df[2], p = lrt_g[["Pr(>Chi)"]][2]), z95)
 x$residualDf <- sum(eg$count) - length(coef(gw))
 write_json(with_dataset(x, "esophgrouped", list(units = sum(eg$count))), "esophgrouped-weights-logistic")
+
+# ---- log-binomial, clusters: glm(readmitted ~ called * frailty + age, binomial(link = "log")) + CR1 by hand ----
+# Score factor (y - mu)/(1 - mu) (the binomial score under the log link), working weight mu/(1 - mu).
+spec <- spec_of(list(column = "readmitted", type = "binary"), "log-binomial", list(cluster = list(column = "site")))
+f <- fit_ml(readmitted ~ called * frailty + age, binomial(link = "log"), w_csv, start = c(log(mean(w_csv$readmitted)), rep(0, 6)))
+X <- model.matrix(f); mu <- fitted(f)
+V <- cr1(X, (w_csv$readmitted - mu) / (1 - mu), mu / (1 - mu), w_csv$site)
+write_json(with_dataset(categorical_case("wards-cluster-log-binomial", spec, w_csv, f, NULL, V, TRUE, wald(f, V, spec), z95), "wards",
+  list(clusters = G)), "wards-cluster-log-binomial")
+
+# ---- Poisson rates, continuous modifier (age), clusters: slopes, Johnson-Neyman and band with CR1 ----
+spec <- list(
+  outcome = rate_outcome,
+  exposure = list(column = "called", reference = "0"),
+  modifier = list(column = "age", type = "continuous"),
+  covariates = arr(list(list(column = "frailty", type = "categorical", reference = "low"))),
+  model = "poisson",
+  ci = list(level = 0.95, method = "delta"),
+  cluster = list(column = "site")
+)
+ra <- fit_ml(falls ~ called * age + frailty + offset(log(bed_days)), poisson, w_csv)
+X <- model.matrix(ra); mu <- fitted(ra)
+V <- cr1(X, w_csv$falls - mu, mu, w_csv$site)
+idx <- grep(":", names(coef(ra)), fixed = TRUE)
+stat <- coef(ra)[idx]^2 / V[idx, idx]
+write_json(c(continuous_case("wards-rate-poisson-cluster-age", spec, ra, V, z95, z95, "age", TRUE, Inf,
+  list(statistic = stat, df = 1, p = pchisq(stat, 1, lower.tail = FALSE))), list(dataset = "wards", clusters = G)), "wards-rate-poisson-cluster-age")
