@@ -1,12 +1,12 @@
 /**
  * The variance in use, clusters, person-time rates, overdispersion and frequency weights on
- * the results page, in the CSV and in the brief's methods paragraph, from real engine
+ * the results page (ResultTables.astro's card: resultTablesRendering.test.ts), in the CSV
+ * and in the brief's methods paragraph, from real engine
  * results on the seeded synthetic wards of tests/reference/cluster-rate-weight (invented
  * data, written by tests/reference/r/make-cluster-rate-weight-fixtures.R). The crude rates
  * are checked against that script's aggregate() sums × 1000 (fixture wards-rate-poisson).
  */
 import { readFileSync } from 'node:fs';
-import { experimental_AstroContainer as AstroContainer } from 'astro/container';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { ResultSchema, type Result, type Spec } from '@/engine/boundary/schemas';
 import { runAnalysis } from '@/engine/index';
@@ -14,7 +14,6 @@ import { buildBriefContent } from '../briefs/briefContent';
 import { FACTS } from '../briefs/briefTestSupport';
 import { engineDataOfCsv } from './engineInput';
 import { resultCsv } from './resultCsv';
-import ResultTables from './ResultTables.astro';
 import { buildResultTables } from './resultTables';
 
 const root = new URL('../../../tests/reference/cluster-rate-weight/', import.meta.url);
@@ -55,14 +54,6 @@ describe('clusters, rates and weights through the results, the CSV and the brief
     expect(tables.extras.overdispersion?.text).toMatch(/^Overdispersion check: Pearson χ² [\d.]+ on 1,593 df, ratio [\d.]+/);
     expect(tables.extras.weights).toBeNull();
     expect(buildResultTables(weighted, { ...SPEC, weights: { column: 'count' } }).extras.weights).toMatch(/^Frequency weights from count: 1,600 rows stand for [\d,]+ units/);
-  });
-
-  it('renders the card on the results page', async () => {
-    const container = await AstroContainer.create();
-    const html = await container.renderToString(ResultTables, { props: { result, spec: SPEC } });
-    expect(html).toContain('data-testid="variance-line" data-clusters="40"');
-    expect(html).toContain('data-testid="rates-table"');
-    expect(html).toMatch(/data-testid="overdispersion"/);
   });
 
   it('puts the variance, the rates and the overdispersion check in the CSV', () => {
