@@ -185,6 +185,8 @@ describe('refusals and warnings', () => {
     await expect(runAnalysis(data, { ...base, cluster: { column: 'called' } })).rejects.toThrow(/cluster column "called" is the intervention/);
     await expect(runAnalysis(data, { ...base, model: 'logistic', outcome: { column: 'called', type: 'binary', personTime: 'bed_days' } })).rejects.toThrow(/count outcome/);
     await expect(runAnalysis(data, { ...base, cluster: { column: 'site' }, ci: { level: 0.95, method: 'bootstrap' } })).rejects.toThrow(/resamples rows, not clusters/);
+    const oneSite = csv(rows.map((row) => row.replace(/,s\d,/, ',s0,')));
+    await expect(runAnalysis(oneSite, { ...base, cluster: { column: 'site' } })).rejects.toThrow(/has a single cluster among the analysed rows/);
   });
 
   it('warns under 30 clusters (common practice) and counts rows missing a cluster like other missing values', async () => {

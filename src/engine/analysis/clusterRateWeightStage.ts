@@ -72,13 +72,13 @@ export function clusterRateWeightStage(
   if (cluster !== null) {
     const sizes = new Float64Array(cluster.count);
     for (let i = 0; i < cluster.codes.length; i++) sizes[cluster.codes[i]]++;
-    clustering = {
-      column: cluster.column,
-      method: CLUSTER_ROBUST_NAME,
-      clusters: cluster.count,
-      smallestCluster: Math.min(...sizes),
-      largestCluster: Math.max(...sizes),
-    };
+    let smallest = Infinity;
+    let largest = 0;
+    for (const size of sizes) {
+      if (size < smallest) smallest = size;
+      if (size > largest) largest = size;
+    }
+    clustering = { column: cluster.column, method: CLUSTER_ROBUST_NAME, clusters: cluster.count, smallestCluster: smallest, largestCluster: largest };
     if (cluster.count < FEW_CLUSTERS) {
       warnings.push({
         code: 'FEW_CLUSTERS',

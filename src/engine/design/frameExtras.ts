@@ -6,8 +6,12 @@
  */
 import { InvalidDataError } from '../errors.js';
 import type { AnalysisSpec, EngineColumn, EngineData } from '../types.js';
-import { numberLevel } from './analysisFrame.js';
 import { refuseText, rowPlace } from './frameChecks.js';
+
+/** Shortest round-trip text of a number (as analysisFrame's numberLevel; not imported, to keep the two files out of a cycle). */
+function numberLevel(value: number): string {
+  return Object.is(value, -0) ? '0' : String(value);
+}
 
 /** Clusters of the analysed rows: code 0 … count − 1 per row. */
 export interface ClusterCodes {
@@ -52,12 +56,18 @@ function clusterCodes(column: EngineColumn, name: string, rows: Int32Array): Clu
  * Codes the cluster and person-time columns over the analysed rows.
  *
  * @throws ColumnTypeMismatchError for text in the person-time column; InvalidDataError for
- *   a person-time of zero, below zero or not finite (naming its line): such a row has no
- *   time at risk, and is refused rather than silently left out.
+ *   a single cluster, or for a person-time of zero, below zero or not finite (naming its
+ *   line): such a row has no time at risk, and is refused rather than silently left out.
  */
 export function codeFrameExtras(data: EngineData, spec: AnalysisSpec, column: (name: string) => EngineColumn, rows: Int32Array): FrameExtras {
   const clusterName = spec.cluster?.column;
   const cluster = clusterName === undefined ? null : clusterCodes(column(clusterName), clusterName, rows);
+  if (cluster !== null && cluster.count < 2) {
+    throw new InvalidDataError(
+      `The cluster column "${cluster.column}" has a single cluster among the analysed rows; cluster-robust standard errors need at least two (and 30 or more to be reliable).`,
+      { column: cluster.column },
+    );
+  }
   const timeName = spec.outcome.personTime;
   if (timeName === undefined) return { cluster, personTime: null, offset: null };
   const time = column(timeName);
