@@ -37,6 +37,8 @@ export interface EngineData {
   readonly columns: Readonly<Record<string, EngineColumn>>;
   /** Extra: the line of the source file that holds data row `row` (0-based), for messages. */
   readonly lineOfRow?: (row: number) => number;
+  /** Extra: the row of the data as given that row `row` was copied from (frequency-weighted rows expanded), for messages. */
+  readonly sourceRowOf?: (row: number) => number;
 }
 
 // ---------------------------------------------------------------------------------------
@@ -81,6 +83,9 @@ export type {
   StandardizedEffects,
   EValueEntry,
   EValues,
+  ClusteringBlock,
+  RatesBlock,
+  WeightsBlock,
 } from './boundary/schemas.js';
 
 // ---------------------------------------------------------------------------------------
@@ -99,4 +104,6 @@ export interface AnalysisOptions {
   readonly threads?: number;
   /** Rows from which a fit splits its passes across threads; default 200,000. */
   readonly parallelFitRows?: number;
+  /** The data dictionary's unit of the person-time column (e.g. "bed-days"), shown with the rates. */
+  readonly personTimeUnit?: string | null;
 }

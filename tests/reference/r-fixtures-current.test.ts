@@ -63,4 +63,20 @@ describe.skipIf(!rscriptAvailable())('R fixtures are current', () => {
       }
     }
   });
+
+  it('make-cluster-rate-weight-fixtures.R reproduces every committed file', () => {
+    const folder = mkdtempSync(join(tmpdir(), 'r-fixtures-crw-'));
+    const root = join(referenceRoot, 'cluster-rate-weight');
+    execFileSync('Rscript', [join(referenceRoot, 'r', 'make-cluster-rate-weight-fixtures.R'), folder], { stdio: 'ignore' });
+    for (const sub of ['data', 'fixtures']) {
+      const committed = readdirSync(join(root, sub)).sort();
+      expect(readdirSync(join(folder, sub)).sort(), sub).toEqual(committed);
+      for (const name of committed) {
+        const made = readFileSync(join(folder, sub, name), 'utf8');
+        const kept = readFileSync(join(root, sub, name), 'utf8');
+        if (name.endsWith('.json')) expectSameWithin(JSON.parse(made), JSON.parse(kept), `${sub}/${name}`);
+        else expect(made, `${sub}/${name}`).toBe(kept);
+      }
+    }
+  });
 });

@@ -39,6 +39,8 @@ export interface StageResults {
   planning: PlanningBlock;
   standardized: AnalysisResult['standardized'];
   eValues: AnalysisResult['eValues'];
+  /** Clusters, person-time rates and frequency weights (clusterRateWeightStage.ts). */
+  extras: Pick<AnalysisResult, 'clustering' | 'rates' | 'weights'>;
 }
 
 /** The plain-JSON result (before non-finite numbers are replaced). */
@@ -62,7 +64,7 @@ export function assembleResult(analysis: FittedAnalysis, stages: StageResults): 
       column: frame.outcomeColumn,
       type: spec.outcome.type,
       event: frame.eventLevel,
-      events: frame.outcomeBinary ? stages.outcomeSum : null,
+      events: frame.outcomeBinary || spec.outcome.type === 'count' ? stages.outcomeSum : null,
       mean: frame.outcomeBinary ? null : stages.outcomeSum / frame.n,
     },
     exposure: { column: frame.exposureColumn, reference: frame.exposureLevels[0], level: frame.exposureLevels[1] },
@@ -107,6 +109,7 @@ export function assembleResult(analysis: FittedAnalysis, stages: StageResults): 
     planning: stages.planning,
     standardized: stages.standardized,
     eValues: stages.eValues,
+    ...stages.extras,
     warnings,
   };
 }

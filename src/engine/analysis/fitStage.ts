@@ -1,6 +1,7 @@
 import { defaultThreadCount } from '../bootstrap/percentileBootstrap.js';
 import { buildAnalysisFrame } from '../design/analysisFrame.js';
 import { buildDesignMatrix } from '../design/designMatrix.js';
+import { expandFrequencyWeights } from '../design/frequencyWeights.js';
 import { normalQuantile } from '../distributions/normal.js';
 import { studentTQuantile } from '../distributions/studentT.js';
 import { AnalysisCancelledError } from '../errors.js';
@@ -33,8 +34,10 @@ export async function frameAndFit(
 ): Promise<FittedAnalysis> {
   const { signal } = options;
   progress('prepare', 0);
-  const frame = buildAnalysisFrame(data, spec);
-  const warnings: EngineWarning[] = [...frame.warnings];
+  // Frequency weights: the rows are expanded into the units they stand for (frequencyWeights.ts).
+  const weighted = spec.weights !== undefined ? expandFrequencyWeights(data, spec, spec.weights.column) : null;
+  const frame = buildAnalysisFrame(weighted?.data ?? data, spec);
+  const warnings: EngineWarning[] = [...(weighted?.warnings ?? []), ...frame.warnings];
   const summary = summariseModifier(frame, spec);
   const threads = options.threads ?? defaultThreadCount();
   const bootstrapThreads = checked.method === 'bootstrap' ? threads : 0;
@@ -46,7 +49,7 @@ export async function frameAndFit(
   checkCancelled(signal);
   progress('fit', 0);
 
-  const fit = fitModel(design, frame.outcome, spec.model, { standardErrors: checked.standardErrors, parallel: pool });
+  const fit = fitModel(design, frame.outcome, spec.model, { standardErrors: checked.standardErrors, parallel: pool, cluster: frame.extras?.cluster ?? null });
   warnings.push(...fit.warnings, ...fitDiagnostics(design, fit));
   const ratio = fit.family !== 'linear';
   const tail = 1 - (1 - checked.level) / 2;
@@ -66,6 +69,7 @@ export async function frameAndFit(
     critical,
     reference: { critical, df: fit.waldDf },
     p: design.columns,
+    weights: weighted?.block ?? null,
     warnings,
   };
 }

@@ -3,7 +3,7 @@ import type { DesignMatrix } from '../design/designMatrix.js';
 import type { ModelFit } from '../fit/fitModel.js';
 import type { EffectScale, WaldReference } from '../measures/linearContrast.js';
 import type { PassPool } from '../threads/passPool.js';
-import type { AnalysisSpec, EngineWarning } from '../types.js';
+import type { AnalysisSpec, EngineWarning, WeightsBlock } from '../types.js';
 import type { ModifierSummary } from './modifierSummary.js';
 import type { CheckedSpec } from './validateSpec.js';
 
@@ -28,6 +28,8 @@ export interface FittedAnalysis {
   readonly reference: WaldReference;
   /** p, the number of model terms. */
   readonly p: number;
+  /** Frequency weights: rows and the units they stand for (the frame holds the units); null without. */
+  readonly weights: WeightsBlock | null;
   /** Warnings so far; later stages append in their run order. */
   readonly warnings: EngineWarning[];
 }

@@ -41,7 +41,9 @@ function warmRefit(analysis: FittedAnalysis, reducedDesign: DesignMatrix): Model
 export function omnibusTest(analysis: FittedAnalysis): OmnibusTest {
   const { frame, design, fit, warnings, pool } = analysis;
   const k = design.productIndices.length;
-  if (fit.family === 'modified-poisson') return robustWaldTest(fit.coefficients, fit.covariance, design.productIndices);
+  // Robust and cluster-robust variances: the likelihood-ratio and F tests assume the model's
+  // own variance, so the products are tested by a Wald test with the variance in use.
+  if (fit.standardErrors === 'HC0' || fit.standardErrors === 'CR1') return robustWaldTest(fit.coefficients, fit.covariance, design.productIndices);
   const reducedDesign = designWithoutProducts(frame, design);
   const reduced = warmRefit(analysis, reducedDesign) ?? fitModel(reducedDesign, frame.outcome, fit.family, { parallel: pool });
   if (fit.family === 'linear') {

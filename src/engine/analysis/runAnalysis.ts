@@ -4,6 +4,7 @@ import type { AnalysisOptions, AnalysisResult, AnalysisSpec, EngineData } from '
 import { additiveInteraction } from './additiveInteraction.js';
 import { assembleResult } from './assembleResult.js';
 import { bootstrapStage } from './bootstrapStage.js';
+import { clusterRateWeightStage } from './clusterRateWeightStage.js';
 import { continuousModifierStage } from './continuousModifier.js';
 import { eValueStage } from './eValueStage.js';
 import { checkCancelled, frameAndFit, type ProgressReporter } from './fitStage.js';
@@ -66,7 +67,8 @@ export async function runAnalysis(data: EngineData, spec: AnalysisSpec, options:
   const bootstrap = checked.method === 'bootstrap' ? await bootstrapStage(analysis, effects, interaction, signal, progress) : null;
   checkCancelled(signal);
   const planning = planningStage(analysis, effects);
-  const result = assembleResult(analysis, { effects, interaction, omnibus, continuous, outcomeSum, tables, bootstrap, planning, standardized, eValues });
+  const extras = clusterRateWeightStage(analysis, options.personTimeUnit ?? null);
+  const result = assembleResult(analysis, { effects, interaction, omnibus, continuous, outcomeSum, tables, bootstrap, planning, standardized, eValues, extras });
   progress('done', 1);
   return sanitizeResult(result);
 }

@@ -1,5 +1,6 @@
 import { InvalidSpecError } from '../errors.js';
 import type { AnalysisSpec, CiMethod, EffectMeasure, MultiplicityCorrection } from '../types.js';
+import { validateExtras } from './validateExtras.js';
 
 export interface CheckedSpec {
   readonly level: number;
@@ -9,12 +10,12 @@ export interface CheckedSpec {
   readonly seed: number;
   readonly multiplicity: MultiplicityCorrection;
   readonly preventive: boolean;
-  readonly standardErrors: 'model' | 'hc3';
+  readonly standardErrors: 'model' | 'hc3' | 'robust';
   readonly effectMeasure: EffectMeasure;
   readonly targetPower: number;
 }
 
-const MODELS = ['logistic', 'modified-poisson', 'log-binomial', 'linear'];
+const MODELS = ['logistic', 'modified-poisson', 'log-binomial', 'linear', 'poisson'];
 
 /**
  * Checks the parts of a specification that the engine relies on (the zod schema at the
@@ -29,8 +30,9 @@ export function validateSpec(spec: AnalysisSpec): CheckedSpec {
   }
   if (!Array.isArray(spec.covariates)) throw new InvalidSpecError('The specification needs "covariates" (an array, possibly empty).');
   if (!MODELS.includes(spec.model)) throw new InvalidSpecError(`Unknown model "${String(spec.model)}"; use one of ${MODELS.join(', ')}.`);
-  if (spec.outcome.type !== 'binary' && spec.outcome.type !== 'continuous') throw new InvalidSpecError('outcome.type must be "binary" or "continuous".');
-  if (spec.model !== 'linear' && spec.outcome.type !== 'binary') {
+  if (spec.outcome.type !== 'binary' && spec.outcome.type !== 'continuous' && spec.outcome.type !== 'count') throw new InvalidSpecError('outcome.type must be "binary", "continuous" or "count".');
+  validateExtras(spec);
+  if (spec.model !== 'linear' && spec.model !== 'poisson' && spec.outcome.type !== 'binary') {
     throw new InvalidSpecError(`The ${spec.model} model needs a binary outcome.`, { column: spec.outcome.column });
   }
   if (typeof spec.exposure.reference !== 'string') throw new InvalidSpecError('exposure.reference must be a level name (a string such as "0").', { column: spec.exposure.column });
@@ -53,7 +55,7 @@ export function validateSpec(spec: AnalysisSpec): CheckedSpec {
   const multiplicity = spec.multiplicity ?? 'holm';
   if (!['none', 'holm', 'bh'].includes(multiplicity)) throw new InvalidSpecError('multiplicity must be "none", "holm" or "bh".');
   const standardErrors = spec.standardErrors ?? 'model';
-  if (standardErrors !== 'model' && standardErrors !== 'hc3') throw new InvalidSpecError('standardErrors must be "model" or "hc3".');
+  if (standardErrors !== 'model' && standardErrors !== 'hc3' && standardErrors !== 'robust') throw new InvalidSpecError('standardErrors must be "model", "hc3" or "robust".');
   if (standardErrors === 'hc3' && spec.model !== 'linear') throw new InvalidSpecError('standardErrors "hc3" applies to linear models only.');
   const implied: EffectMeasure =
     spec.model === 'logistic' ? 'OR' : spec.model === 'linear' ? (spec.outcome.type === 'binary' ? 'RD' : 'MD') : 'RR';

@@ -42,6 +42,7 @@ function shareDesign(design: DesignMatrix): BootstrapWorkerData['design'] {
     productIndices: [...design.productIndices],
     covariateIndices: [...design.covariateIndices],
     centre: design.centre,
+    offset: design.offset ? sharedCopy(design.offset) : null,
   };
 }
 

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { clusteringBlock, clusterSpec, ratesBlock, weightsBlock, weightsSpec } from './clusterRateWeightSchemas.js';
 
 /**
  * The engine's specification and result, defined once: these zod schemas are what the API
@@ -10,9 +11,9 @@ import { z } from 'zod';
 
 const levelName = z.string().min(1);
 const columnName = z.string().min(1);
-const outcomeType = z.enum(['binary', 'continuous']);
+const outcomeType = z.enum(['binary', 'continuous', 'count']);
 const variableType = z.enum(['categorical', 'continuous']);
-const modelFamily = z.enum(['logistic', 'modified-poisson', 'log-binomial', 'linear']);
+const modelFamily = z.enum(['logistic', 'modified-poisson', 'log-binomial', 'linear', 'poisson']);
 const ciMethod = z.enum(['delta', 'mover', 'bootstrap']);
 const effectMeasure = z.enum(['OR', 'RR', 'RD', 'MD']);
 const multiplicity = z.enum(['none', 'holm', 'bh']);
@@ -42,6 +43,7 @@ export const SpecSchema = z
       column: columnName,
       type: outcomeType,
       event: levelName.optional().describe('Extra: the level counted as the event when a binary outcome is categorical.'),
+      personTime: columnName.optional().describe('Extra (count outcome, poisson model): person-time column; its log is the offset, so effects are rate ratios.'),
     }),
     exposure: z.object({
       column: columnName,
@@ -75,7 +77,9 @@ export const SpecSchema = z
     alpha: z.number().gt(0).lt(0.5).optional().describe('Extra: level of tests, Johnson-Neyman and planning; default 1 − ci.level.'),
     multiplicity: multiplicity.optional().describe('Extra: the adjusted p-value the summary treats as primary; default holm.'),
     preventive: z.boolean().optional().describe('Extra: recode each level so that the lowest-risk joint cell is the reference.'),
-    standardErrors: z.enum(['model', 'hc3']).optional().describe('Extra (linear): classical or HC3 standard errors; default model.'),
+    standardErrors: z.enum(['model', 'hc3', 'robust']).optional().describe('Extra: classical or HC3 (linear), model-based or robust HC0 (poisson); default model.'),
+    cluster: clusterSpec.optional().describe('Extra: cluster-robust (CR1) variance with clusters given by this column.'),
+    weights: weightsSpec.optional().describe('Extra: frequency weights (positive integers): each row stands for that many identical rows.'),
     standardize: z
       .boolean()
       .optional()
@@ -136,7 +140,7 @@ const modelSummary = z.strictObject({
   aic: num,
   residualDf: z.number(),
   dispersion: num.describe('Residual variance (linear) or 1 (GLMs).'),
-  standardErrors: z.enum(['model', 'HC0', 'HC3']),
+  standardErrors: z.enum(['model', 'HC0', 'HC3', 'CR1']),
   coefficients: z.array(coefficient),
   covariance: z.array(z.array(num)).describe('Covariance of the coefficients (the one used for the measures), by term order.'),
 });
@@ -382,6 +386,9 @@ export const ResultSchema = z
       .default(null)
       .describe('Standardized risks, risk differences, NNT and interaction contrasts per modifier level; null when not asked for or not recorded.'),
     eValues: eValues.nullable().default(null).describe('E-values of each stratum ratio and its interval; null for differences or when not recorded.'),
+    clustering: clusteringBlock.nullable().default(null).describe('Cluster-robust variance: its name and number of clusters; null without clusters or when not recorded.'),
+    rates: ratesBlock.nullable().default(null).describe('Count outcomes: crude rates per 1,000 person-time units and the overdispersion check; null otherwise or when not recorded.'),
+    weights: weightsBlock.nullable().default(null).describe('Frequency weights: rows of the extract and the units they stand for; null without weights or when not recorded.'),
     warnings: z.array(engineWarning),
   })
   .describe('The result of an effect-modification analysis.');
@@ -411,6 +418,7 @@ export type StratifiedTables = z.output<typeof stratifiedTables>;
 export type BootstrapAccount = z.output<typeof bootstrapAccount>;
 export type PlanningLevel = z.output<typeof planningLevel>;
 export type PlanningBlock = z.output<typeof planningBlock>;
+export type { ClusteringBlock, RatesBlock, WeightsBlock } from './clusterRateWeightSchemas.js';
 export type EngineWarning = z.output<typeof engineWarning>;
 export type StandardizedRisk = z.output<typeof standardizedRisk>;
 export type NumberNeeded = z.output<typeof numberNeeded>;

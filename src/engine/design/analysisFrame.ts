@@ -13,6 +13,7 @@ import {
 import type { AnalysisSpec, EngineColumn, EngineData, EngineWarning } from '../types.js';
 import { markMissingRows, scanColumn } from './columnScan.js';
 import { refuseText, rowPlace, warnSuspectLevels, withoutMissingTokens } from './frameChecks.js';
+import { checkCountOutcome, codeFrameExtras, extraColumnNames, type FrameExtras } from './frameExtras.js';
 
 /** A categorical variable recoded so that code 0 is the reference level. */
 export interface CodedFactor {
@@ -56,6 +57,8 @@ export interface AnalysisFrame {
   readonly modifier: FrameVariable;
   readonly covariates: readonly FrameVariable[];
   readonly warnings: EngineWarning[];
+  /** Clusters and person-time (frameExtras.ts); absent in frames built by hand. */
+  readonly extras?: FrameExtras;
 }
 
 function getColumn(data: EngineData, name: string): EngineColumn {
@@ -265,7 +268,8 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
     if (seen.has(name)) throw new InvalidSpecError(`The column "${name}" is used more than once in the specification.`, { column: name });
     seen.add(name);
   }
-  const columns = used.map((name) => getColumn(data, name));
+  const extraNames = extraColumnNames(spec, used);
+  const columns = [...used, ...extraNames].map((name) => getColumn(data, name));
 
   // Most extracts have no missing value in the used columns: a read-only scan per column
   // finds that out, and then every column is used in place (no row list, no copies). Only
@@ -284,7 +288,7 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
     const missingRow = new Uint8Array(data.rowCount);
     columns.forEach((column, index) => {
       const rows = markMissingRows(column, data.rowCount, missingRow);
-      if (rows > 0) missingByColumn.push({ column: used[index], rows });
+      if (rows > 0) missingByColumn.push({ column: [...used, ...extraNames][index], rows });
     });
     kept = 0;
     const keep = new Int32Array(data.rowCount);
@@ -305,7 +309,7 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
   // variables: one check, no copy.
   const outcomeInPlace = allRows && outcomeColumn.kind === 'numeric';
   const outcome = outcomeInPlace ? outcomeColumn.values : new Float64Array(kept);
-  const binaryModel = spec.model !== 'linear';
+  const binaryModel = spec.model !== 'linear' && spec.model !== 'poisson';
   const outcomeBinary = spec.outcome.type === 'binary';
   if (binaryModel && !outcomeBinary) {
     throw new InvalidSpecError(`The ${spec.model} model needs a binary outcome; "${outcomeName}" is declared continuous.`, { column: outcomeName });
@@ -359,6 +363,7 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
       if (!Number.isFinite(value)) throw new InvalidDataError(`The outcome "${outcomeName}" holds a non-finite value on ${rowPlace(data, rowIndex[i])}.`, { column: outcomeName });
       if (!outcomeInPlace) outcome[i] = value;
     }
+    if (spec.outcome.type === 'count') checkCountOutcome(data, outcome, rowIndex, outcomeName);
   }
   let constantOutcome = true;
   const firstOutcome = outcome[0];
@@ -428,5 +433,6 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
     modifier,
     covariates,
     warnings,
+    extras: codeFrameExtras(data, spec, (name) => columns[[...used, ...extraNames].indexOf(name)], rowIndex),
   };
 }

@@ -46,6 +46,8 @@ export interface DesignMatrix {
   readonly covariateIndices: readonly number[];
   /** Value subtracted from a continuous modifier (0 when not centred or categorical). */
   readonly centre: number;
+  /** Per-row offset added to the linear predictor (log person-time of a rate model); absent or null for none. */
+  readonly offset?: Float64Array | null;
 }
 
 export interface DesignOptions {
@@ -351,6 +353,7 @@ export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions):
     productIndices,
     covariateIndices,
     centre,
+    offset: frame.extras?.offset ?? null,
   };
 }
 

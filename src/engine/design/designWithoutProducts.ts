@@ -43,5 +43,6 @@ export function designWithoutProducts(frame: AnalysisFrame, full: DesignMatrix):
     productIndices: [],
     covariateIndices: full.covariateIndices.map((index) => renumber[index]),
     centre: full.centre,
+    offset: full.offset ?? null,
   };
 }

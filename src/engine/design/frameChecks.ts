@@ -27,7 +27,8 @@ export function withoutMissingTokens(column: CategoricalColumn): CategoricalColu
 
 /** Where a data row came from, for messages: its line in the file when known. */
 export function rowPlace(data: EngineData, row: number): string {
-  return data.lineOfRow !== undefined ? `line ${data.lineOfRow(row)}` : `data row ${row + 1}`;
+  const source = data.sourceRowOf !== undefined ? data.sourceRowOf(row) : row;
+  return data.lineOfRow !== undefined ? `line ${data.lineOfRow(row)}` : `data row ${source + 1}`;
 }
 
 /**

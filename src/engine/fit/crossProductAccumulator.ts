@@ -125,6 +125,8 @@ export function linearPredictor(design: DesignMatrix, coefficients: ArrayLike<nu
     for (let k = 0; k < r; k++) value += free[base + k] * freeBeta[k];
     eta[i] = value;
   }
+  const offset = design.offset;
+  if (offset) for (let i = 0; i < design.rows; i++) eta[i] += offset[i];
   return eta;
 }
 

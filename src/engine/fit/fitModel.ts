@@ -5,6 +5,7 @@ import type { EngineWarning, ModelFamily } from '../types.js';
 import { fitGeneralizedLinearModel, InvalidStepError, type GlmFamily, type GlmFit } from './iterativelyReweightedLeastSquares.js';
 import { fitOrdinaryLeastSquares } from './ordinaryLeastSquares.js';
 import { poissonSandwichVariance } from './poissonSandwichVariance.js';
+import { clusterRobustVariance, type ScoreFamily } from './clusterRobustVariance.js';
 import type { PassPool } from '../threads/passPool.js';
 
 /** A fitted model as the measures need it. */
@@ -15,7 +16,7 @@ export interface ModelFit {
   readonly coefficients: Float64Array;
   /** Covariance used for every measure (model-based, HC0 sandwich, or HC3). */
   readonly covariance: Float64Array;
-  readonly standardErrors: 'model' | 'HC0' | 'HC3';
+  readonly standardErrors: 'model' | 'HC0' | 'HC3' | 'CR1';
   /** Linear models: the HC3 covariance beside the classical one. */
   readonly covarianceRobust: Float64Array | null;
   readonly iterations: number;
@@ -36,7 +37,10 @@ export interface ModelFit {
 }
 
 export interface FitOptions {
-  readonly standardErrors?: 'model' | 'hc3';
+  /** 'robust' (poisson): the HC0 sandwich, as for modified Poisson. */
+  readonly standardErrors?: 'model' | 'hc3' | 'robust';
+  /** Clusters of the rows: every covariance becomes the cluster-robust CR1 (clusterRobustVariance.ts). */
+  readonly cluster?: { readonly codes: Int32Array; readonly count: number } | null;
   /** Helper threads for the passes over the rows (results are identical without them). */
   readonly parallel?: PassPool | null;
   /**
@@ -60,10 +64,16 @@ function glmFamilyOf(model: ModelFamily): GlmFamily {
   return 'poisson-log';
 }
 
-function fromGlm(model: ModelFamily, requested: ModelFamily, design: DesignMatrix, y: Float64Array, fit: GlmFit, warnings: EngineWarning[]): ModelFit {
+function fromGlm(model: ModelFamily, requested: ModelFamily, design: DesignMatrix, y: Float64Array, fit: GlmFit, warnings: EngineWarning[], options: FitOptions): ModelFit {
   const bread = fit.covarianceUnscaled as Float64Array;
-  const robust = model === 'modified-poisson';
-  const covariance = robust ? poissonSandwichVariance(design, y, fit.coefficients, bread) : bread;
+  const robust = model === 'modified-poisson' || (model === 'poisson' && options.standardErrors === 'robust');
+  const cluster = options.cluster ?? null;
+  const covariance =
+    cluster !== null
+      ? clusterRobustVariance(design, y, fit.coefficients, bread, fit.family, cluster.codes, cluster.count)
+      : robust
+        ? poissonSandwichVariance(design, y, fit.coefficients, bread)
+        : bread;
   const p = design.columns;
   return {
     family: model,
@@ -71,7 +81,7 @@ function fromGlm(model: ModelFamily, requested: ModelFamily, design: DesignMatri
     link: model === 'logistic' ? 'logit' : 'log',
     coefficients: fit.coefficients,
     covariance,
-    standardErrors: robust ? 'HC0' : 'model',
+    standardErrors: cluster !== null ? 'CR1' : robust ? 'HC0' : 'model',
     covarianceRobust: null,
     iterations: fit.iterations,
     converged: fit.converged,
@@ -118,13 +128,20 @@ export function fitModel(inputDesign: DesignMatrix, inputY: Float64Array, model:
     if (model === 'linear') {
       const useHC3 = options.standardErrors === 'hc3';
       const fit = fitOrdinaryLeastSquares({ design, y, computeHC3: true, parallel });
+      const cluster = options.cluster ?? null;
+      const scores: ScoreFamily = 'linear';
       return {
         family: 'linear',
         requestedFamily: 'linear',
         link: 'identity',
         coefficients: fit.coefficients,
-        covariance: useHC3 ? (fit.covarianceHC3 as Float64Array) : fit.covarianceClassical,
-        standardErrors: useHC3 ? 'HC3' : 'model',
+        covariance:
+          cluster !== null
+            ? clusterRobustVariance(design, y, fit.coefficients, fit.crossProductInverse, scores, cluster.codes, cluster.count)
+            : useHC3
+              ? (fit.covarianceHC3 as Float64Array)
+              : fit.covarianceClassical,
+        standardErrors: cluster !== null ? 'CR1' : useHC3 ? 'HC3' : 'model',
         covarianceRobust: fit.covarianceHC3,
         iterations: 0,
         converged: true,
@@ -149,7 +166,7 @@ export function fitModel(inputDesign: DesignMatrix, inputY: Float64Array, model:
         const fit = fitGeneralizedLinearModel({ design, y, family: 'binomial-log', start, parallel });
         if (!fit.converged) reason = 'it did not converge in 25 iterations';
         else if (fit.maxFittedMean > 1 - 1e-6) reason = 'its estimate lies on the boundary (a fitted risk of 1)';
-        else return fromGlm('log-binomial', 'log-binomial', design, y, fit, warnings);
+        else return fromGlm('log-binomial', 'log-binomial', design, y, fit, warnings, options);
       } catch (error) {
         if (error instanceof InvalidStepError) reason = 'no valid fitted risks could be found';
         // Singular weights part-way (risks running to 1) are a failure of the fit, not of the
@@ -162,10 +179,10 @@ export function fitModel(inputDesign: DesignMatrix, inputY: Float64Array, model:
         message: `The log-binomial model failed (${reason}), so risk ratios come from a modified Poisson model (Poisson regression with robust standard errors) instead.`,
       });
       const fallback = fitGeneralizedLinearModel({ design, y, family: 'poisson-log', parallel });
-      return fromGlm('modified-poisson', 'log-binomial', design, y, fallback, warnings);
+      return fromGlm('modified-poisson', 'log-binomial', design, y, fallback, warnings, options);
     }
     const fit = fitGeneralizedLinearModel({ design, y, family: glmFamilyOf(model), parallel, start: options.start ?? null });
-    return fromGlm(model, model, design, y, fit, warnings);
+    return fromGlm(model, model, design, y, fit, warnings, options);
   } catch (error) {
     if (error instanceof NotPositiveDefiniteError) throw singular(design, error);
     if (error instanceof InvalidStepError) throw new FitFailedError(`The ${model} model could not be fitted: ${error.message}.`);

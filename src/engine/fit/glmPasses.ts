@@ -197,6 +197,9 @@ const poissonPass: PassFunction = (design, y, priorWeights, cellEta, freeBeta, f
   let logLikelihood = 0;
   let maxMean = 0;
   let weightSum = 0;
+  // A rate model's offset o (log person-time): η = o + xβ, and the working response is
+  // z − o (R's glm.fit: z <- (eta - offset) + (y - mu)/mu.eta).
+  const offset = design.offset ?? null;
   for (let i = from; i < to; i++) {
     const prior = priorWeights === null ? 1 : priorWeights[i];
     if (prior === 0) continue;
@@ -204,12 +207,13 @@ const poissonPass: PassFunction = (design, y, priorWeights, cellEta, freeBeta, f
     const cell = cellOfRow[i];
     const base = i * r;
     const response = y[i];
-    let eta = cellEta[cell];
+    const shift = offset === null ? 0 : offset[i];
+    let eta = cellEta[cell] + shift;
     for (let k = 0; k < r; k++) eta += free[base + k] * freeBeta[k];
     if (fromStart) eta = Math.log(response + 0.1); // R poisson(): mustart = y + 0.1
     const mean = Math.exp(eta);
     const weight = prior * mean;
-    const weightedResponse = weight * eta + prior * (response - mean);
+    const weightedResponse = weight * (eta - shift) + prior * (response - mean);
     if (response > 0) {
       deviance += 2 * prior * (response * (Math.log(response) - eta) - (response - mean));
       logLikelihood += prior * (response * eta - mean - logFactorial(response));

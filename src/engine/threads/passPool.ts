@@ -90,7 +90,7 @@ export class PassPool implements ParallelPassRunner {
    * what is not shared yet) and returns the context a fit passes to its passes.
    */
   attach(design: DesignMatrix, y: Float64Array, priorWeights: Float64Array | null = null): ParallelContext & { design: DesignMatrix; y: Float64Array } {
-    const sharedDesign: DesignMatrix = { ...design, cellOfRow: shared(design.cellOfRow), free: shared(design.free) };
+    const sharedDesign: DesignMatrix = { ...design, cellOfRow: shared(design.cellOfRow), free: shared(design.free), offset: design.offset ? shared(design.offset) : null };
     const sharedY = shared(y);
     const sharedWeights = priorWeights === null ? null : shared(priorWeights);
     const buffers = createPassBuffers(sharedDesign, true);
@@ -98,7 +98,7 @@ export class PassPool implements ParallelPassRunner {
       design: {
         rows: sharedDesign.rows, columns: sharedDesign.columns, cellCount: sharedDesign.cellCount,
         cellOfRow: sharedDesign.cellOfRow, cellTerms: sharedDesign.cellTerms, cellValues: sharedDesign.cellValues,
-        freeTerms: sharedDesign.freeTerms, free: sharedDesign.free,
+        freeTerms: sharedDesign.freeTerms, free: sharedDesign.free, offset: sharedDesign.offset ?? null,
       },
       y: sharedY,
       priorWeights: sharedWeights,

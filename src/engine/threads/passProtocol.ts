@@ -16,6 +16,7 @@ export interface PassAttachment {
     readonly cellValues: Float64Array;
     readonly freeTerms: Int32Array;
     readonly free: Float64Array;
+    readonly offset: Float64Array | null;
   };
   readonly y: Float64Array;
   readonly priorWeights: Float64Array | null;

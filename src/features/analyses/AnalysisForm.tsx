@@ -12,6 +12,7 @@ import type { Spec } from '@/engine/boundary/schemas';
 import { ApiError, apiFetch } from '@/lib/client/api';
 import { useHydrated } from '@/lib/client/useHydrated';
 import { QueryRoot } from '@/components/ui/QueryRoot';
+import { ClusterWeightsSection } from './ClusterWeightsSection';
 import { CovariatesPicker } from './CovariatesPicker';
 import type { FormColumn } from './formColumns';
 import type { SectionProps } from './formFields';
@@ -123,6 +124,7 @@ function Form({ initiativeId, extractVersionId, columns, existing, onSavedHref =
         <OutcomeSection {...sectionProps} outcomeDescription={byName.get(spec.outcome.column)?.description || undefined} />
         <ModifierSection {...sectionProps} modifierRange={modifierRange} />
         <CovariatesPicker {...sectionProps} />
+        <ClusterWeightsSection {...sectionProps} />
         <IntervalOptions {...sectionProps} />
       </div>
 

@@ -5,7 +5,7 @@
  */
 import { Field, Section, type SectionProps } from './formFields';
 import type { SpecDraft } from './specForm';
-import { CI_METHOD_LABEL, MEASURE_LABEL, MODEL_LABEL, MULTIPLICITY_LABEL } from './specRules';
+import { CI_METHOD_LABEL, MODEL_LABEL, MULTIPLICITY_LABEL, measureLabel } from './specRules';
 
 export function IntervalOptions({ spec, choices, fieldId, shownError, changeSpec }: SectionProps) {
   return (
@@ -16,7 +16,7 @@ export function IntervalOptions({ spec, choices, fieldId, shownError, changeSpec
             <select id={fieldId('effectMeasure')} className="field-input" value={spec.effectMeasure} aria-describedby={describedBy} aria-invalid={invalid} onChange={(e) => changeSpec({ effectMeasure: e.target.value as SpecDraft['effectMeasure'] }, 'effectMeasure')}>
               {choices.measures.map(({ value, disabledReason }) => (
                 <option key={value} value={value} disabled={disabledReason !== undefined && value !== spec.effectMeasure}>
-                  {MEASURE_LABEL[value]} ({value}){disabledReason ? ` — not available: ${disabledReason}` : ''}
+                  {measureLabel(value, spec.outcome.type)} ({value}){disabledReason ? ` — not available: ${disabledReason}` : ''}
                 </option>
               ))}
             </select>

@@ -72,6 +72,11 @@ export function ModelEquationView({ equation, testId = 'model-equation' }: { equ
           )}{' '}
           =
         </span>{' '}
+        {equation.offset && (
+          <span className="whitespace-nowrap text-ink-700" data-role="offset">
+            <span className="font-serif">log</span>(<Var>{equation.offset}</Var>) +{' '}
+          </span>
+        )}
         {equation.terms.map((term, index) => (
           <Fragment key={index}>
             {index > 0 && ' + '}

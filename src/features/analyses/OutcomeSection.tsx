@@ -12,10 +12,10 @@ export function OutcomeSection({ spec, choices, fieldId, shownError, changeSpec,
           Kind of outcome
         </p>
         <div className="flex flex-wrap gap-4 text-sm">
-          {(['binary', 'continuous'] as const).map((type) => (
+          {(['binary', 'continuous', 'count'] as const).map((type) => (
             <label key={type} className="flex items-center gap-2">
               <input type="radio" name={fieldId('outcome.type')} value={type} checked={spec.outcome.type === type} onChange={() => changeSpec({ outcome: { ...spec.outcome, type } }, 'outcome.type')} />
-              {type === 'binary' ? 'Binary (an event: yes or no)' : 'Continuous or count (a measurement)'}
+              {type === 'binary' ? 'Binary (an event: yes or no)' : type === 'count' ? 'Count of events (falls, calls), as rates with person-time' : 'Continuous or count (a measurement)'}
             </label>
           ))}
         </div>
@@ -31,7 +31,7 @@ export function OutcomeSection({ spec, choices, fieldId, shownError, changeSpec,
               aria-invalid={invalid}
               onChange={(e) => changeSpec({ outcome: { ...spec.outcome, column: e.target.value } }, 'outcome.column')}
             >
-              <ColumnOptions choices={choices.outcomes} placeholder={choices.outcomes.length === 0 ? `No ${spec.outcome.type === 'binary' ? 'binary' : 'continuous or count'} columns` : 'Choose a column'} />
+              <ColumnOptions choices={choices.outcomes} placeholder={choices.outcomes.length === 0 ? `No ${spec.outcome.type === 'binary' ? 'binary' : spec.outcome.type === 'count' ? 'count' : 'continuous or count'} columns` : 'Choose a column'} />
             </select>
           )}
         </Field>

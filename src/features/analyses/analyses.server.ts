@@ -93,7 +93,12 @@ export function checkSpecAgainstDictionary(spec: Spec, dictionary: readonly Dict
     }
     if (known && !known.includes(value)) problems.push({ path, message: `“${value}” is not a level of “${name}” (levels: ${known.slice(0, 8).join(', ')}).` });
   };
-  need('spec.outcome.column', spec.outcome.column, spec.outcome.type === 'binary' ? ['binary'] : ['continuous', 'count'], `${spec.outcome.type} outcome`);
+  need('spec.outcome.column', spec.outcome.column, spec.outcome.type === 'binary' ? ['binary'] : spec.outcome.type === 'count' ? ['count'] : ['continuous', 'count'], `${spec.outcome.type} outcome`);
+  // Person-time, clusters and weights: the columns exist with a fitting type (their values
+  // are checked again when the analysis runs: positive person-time, positive whole weights).
+  if (spec.outcome.personTime !== undefined) need('spec.outcome.personTime', spec.outcome.personTime, ['continuous', 'count'], 'person-time');
+  if (spec.cluster !== undefined) need('spec.cluster.column', spec.cluster.column, ['binary', 'categorical', 'count'], 'cluster column');
+  if (spec.weights !== undefined) need('spec.weights.column', spec.weights.column, ['count'], 'frequency-weights column');
   need('spec.exposure.column', spec.exposure.column, ['binary', 'categorical'], 'intervention');
   reference('spec.exposure.reference', spec.exposure.column, spec.exposure.reference);
   if (spec.modifier.type === 'categorical') {

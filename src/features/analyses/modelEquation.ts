@@ -28,6 +28,8 @@ export interface ModelEquation {
   terms: EquationTerm[];
   /** What a reader needs beside the formula (reference levels, centring, collapsed levels). */
   notes: string[];
+  /** A rate model's person-time column: log(person-time) is added to the right side (the offset). */
+  offset?: string | null;
 }
 
 /** Categorical columns with more non-reference levels than this are written as one indicator set. */
@@ -122,7 +124,12 @@ export function modelEquation(spec: Spec, columns: readonly FormColumn[]): Model
       `Absolute effects: within each level m of ${spec.modifier.column}, r_a(m) = the mean over its rows of the predicted P(${spec.outcome.column} = ${event}) with ${spec.exposure.column} set to a (reference and other level); RD(m) = r_1(m) − r_0(m), NNT = 1/|RD(m)|, and RD(m) − RD(reference level).`,
     );
   }
-  return { link, left, terms, notes };
+  const personTime = spec.outcome.personTime ?? null;
+  if (personTime) notes.push(`log(${personTime}) is an offset (its coefficient fixed at 1), so exp(β) are rate ratios per unit of ${personTime}.`);
+  if (spec.weights) notes.push(`Each row counts as ${spec.weights.column} identical rows (frequency weights).`);
+  if (spec.cluster) notes.push(`Standard errors are cluster-robust (CR1, Liang and Zeger 1986), with clusters given by ${spec.cluster.column}.`);
+  else if (spec.standardErrors === 'robust') notes.push('Standard errors are robust (HC0 sandwich).');
+  return { link, left, terms, notes, offset: personTime };
 }
 
 function factorText(factor: EquationFactor): string {
@@ -142,7 +149,8 @@ function coefficientText(coefficient: EquationTerm['coefficient']): string {
 export function equationText(equation: ModelEquation): string {
   const inner = equation.left.kind === 'probability' ? `P(${equation.left.column} = ${equation.left.event})` : `E(${equation.left.column})`;
   const left = equation.link === 'identity' ? inner : `${equation.link}(${inner})`;
-  const right = equation.terms
+  const offset = equation.offset ? `log(${equation.offset}) + ` : '';
+  const right = offset + equation.terms
     .map((term) => (term.factors.length === 0 ? coefficientText(term.coefficient) : `${coefficientText(term.coefficient)}·${term.factors.map(factorText).join('×')}`))
     .join(' + ');
   return `${left} = ${right}`;

@@ -5,6 +5,7 @@
  * the engine's specification are in specValidation.ts.
  */
 import type { Spec } from '@/engine/boundary/schemas';
+import { extrasChoices, type ExtrasChoices } from './extrasRules';
 import { defaultReference, entryKind, naturalOrder, needsEventLevel, type ColumnKind, type FormColumn } from './formColumns';
 import {
   DEFAULT_REPLICATES, DEFAULT_SEED, MEASURES, MODELS, measureFor, measureRefusal, modelRefusal,
@@ -21,7 +22,8 @@ export const DEFAULT_PERCENTILES = '10, 25, 50, 75, 90';
  * half-typed value is never lost), the outcome's type chosen before its column.
  */
 export interface SpecDraft {
-  outcome: { type: OutcomeType; column: string; event: string };
+  /** personTime: the person-time column of a count outcome ('' for none). */
+  outcome: { type: OutcomeType; column: string; event: string; personTime?: string };
   exposure: { column: string; reference: string };
   modifier: {
     column: string;
@@ -47,6 +49,12 @@ export interface SpecDraft {
   preventive: boolean;
   /** Standardized absolute effects (binary outcome, categorical modifier). */
   standardize: boolean;
+  /** Cluster column for cluster-robust standard errors ('' for none). */
+  cluster: string;
+  /** Frequency-weights column ('' for none). */
+  weights: string;
+  /** Robust (HC0) standard errors for the Poisson model. */
+  robust: boolean;
 }
 
 /** The whole form: the words around the specification, and the specification. */
@@ -64,7 +72,7 @@ export function defaultDraft(): AnalysisDraft {
     question: '',
     prespecified: false,
     spec: {
-      outcome: { type: 'binary', column: '', event: '' },
+      outcome: { type: 'binary', column: '', event: '', personTime: '' },
       exposure: { column: '', reference: '' },
       modifier: { column: '', reference: '', centre: 'none', centreValue: '', slopes: 'percentiles', slopeList: DEFAULT_PERCENTILES },
       covariates: [],
@@ -79,6 +87,9 @@ export function defaultDraft(): AnalysisDraft {
       multiplicity: 'holm',
       preventive: false,
       standardize: false,
+      cluster: '',
+      weights: '',
+      robust: false,
     },
   };
 }
@@ -115,6 +126,8 @@ export interface FormChoices {
   /** Every measure; those the chosen model does not give carry the reason. */
   measures: { value: EffectMeasure; disabledReason?: string }[];
   ciMethods: CiMethod[];
+  /** Columns for the cluster, weights and person-time fields. */
+  extras: ExtrasChoices;
 }
 
 function choice(column: FormColumn, disabledReason?: string): ColumnChoice {
@@ -131,7 +144,7 @@ export function formChoices(columns: readonly FormColumn[], draft: SpecDraft): F
   const outcome = byName.get(draft.outcome.column);
   const exposure = byName.get(draft.exposure.column);
   const modifier = byName.get(draft.modifier.column);
-  const outcomeTypes: ColumnKind[] = draft.outcome.type === 'binary' ? ['binary'] : ['continuous', 'count'];
+  const outcomeTypes = outcomeColumnTypes(draft.outcome.type);
   const used = new Set([draft.outcome.column, draft.exposure.column, draft.modifier.column].filter(Boolean));
 
   const interventions = columns
@@ -157,6 +170,7 @@ export function formChoices(columns: readonly FormColumn[], draft: SpecDraft): F
     models: MODELS.map((value) => withReason(value, modelRefusal(draft.outcome.type, value))),
     measures: MEASURES.map((value) => withReason(value, measureRefusal(draft.outcome.type, draft.model, value))),
     ciMethods: ['delta', 'mover', 'bootstrap'],
+    extras: extrasChoices(columns, [draft.outcome.column, draft.exposure.column, draft.modifier.column]),
   };
 }
 
@@ -179,10 +193,11 @@ export function reviseDraft(columns: readonly FormColumn[], draft: SpecDraft, ch
     covariateReferences: { ...draft.covariateReferences, ...change.covariateReferences },
   };
   if (change.outcome?.type !== undefined && change.outcome.type !== draft.outcome.type) {
-    const allowed: ColumnKind[] = next.outcome.type === 'binary' ? ['binary'] : ['continuous', 'count'];
+    const allowed = outcomeColumnTypes(next.outcome.type);
     const column = byName.get(next.outcome.column);
     if (!column || !allowed.includes(column.type)) next.outcome.column = '';
     next.outcome.event = '';
+    if (next.outcome.type !== 'count') next.outcome.personTime = '';
   }
   if (change.outcome?.column !== undefined && change.outcome.column !== draft.outcome.column && change.outcome.event === undefined) {
     next.outcome.event = '';
@@ -198,7 +213,7 @@ export function reviseDraft(columns: readonly FormColumn[], draft: SpecDraft, ch
     if (!categorical) next.modifier.reference = '';
     else if (!column.levels?.includes(next.modifier.reference)) next.modifier.reference = defaultReference(column.levels);
   }
-  const roles = new Set([next.outcome.column, next.exposure.column, next.modifier.column]);
+  const roles = new Set([next.outcome.column, next.exposure.column, next.modifier.column, next.outcome.personTime ?? '', next.weights]);
   next.covariates = next.covariates.filter((name) => !roles.has(name) && byName.has(name));
   for (const name of next.covariates) {
     const column = byName.get(name);
@@ -221,7 +236,7 @@ export function specToDraft(spec: Spec, columns: readonly FormColumn[]): SpecDra
   }
   return {
     ...base,
-    outcome: { type: spec.outcome.type, column: spec.outcome.column, event: spec.outcome.event ?? '' },
+    outcome: { type: spec.outcome.type, column: spec.outcome.column, event: spec.outcome.event ?? '', personTime: spec.outcome.personTime ?? '' },
     exposure: { ...spec.exposure },
     modifier: {
       column: spec.modifier.column,
@@ -248,5 +263,13 @@ export function specToDraft(spec: Spec, columns: readonly FormColumn[]): SpecDra
     multiplicity: spec.multiplicity ?? 'holm',
     preventive: spec.preventive ?? false,
     standardize: spec.standardize ?? false,
+    cluster: spec.cluster?.column ?? '',
+    weights: spec.weights?.column ?? '',
+    robust: spec.standardErrors === 'robust',
   };
+}
+
+/** The column types an outcome of each kind may have. */
+export function outcomeColumnTypes(type: OutcomeType): ColumnKind[] {
+  return type === 'binary' ? ['binary'] : type === 'count' ? ['count'] : ['continuous', 'count'];
 }

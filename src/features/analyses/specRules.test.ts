@@ -46,7 +46,8 @@ describe('disabled choices carry their reason', () => {
   it('disables linear for a binary outcome and every other model for a continuous one', () => {
     const binary = formChoices(CALL_BACK, callBackDraft());
     expect(binary.models.find((m) => m.value === 'linear')?.disabledReason).toBe('A binary outcome needs a logistic, log-binomial or modified Poisson model.');
-    expect(binary.models.filter((m) => m.disabledReason).map((m) => m.value)).toEqual(['linear']);
+    expect(binary.models.filter((m) => m.disabledReason).map((m) => m.value)).toEqual(['linear', 'poisson']);
+    expect(binary.models.find((m) => m.value === 'poisson')?.disabledReason).toBe('The Poisson model needs a count outcome.');
     const continuous = formChoices(CALL_BACK, continuousDraft());
     expect(continuous.models.filter((m) => !m.disabledReason).map((m) => m.value)).toEqual(['linear']);
     expect(continuous.models.find((m) => m.value === 'logistic')?.disabledReason).toBe('A continuous outcome needs the linear model.');

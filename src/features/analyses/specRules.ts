@@ -5,6 +5,7 @@
  * another field: the form disables what does not fit, with the reason.
  */
 import type { Spec } from '@/engine/boundary/schemas';
+import { extrasProblems } from './extrasRules';
 
 export type OutcomeType = Spec['outcome']['type'];
 export type ModelFamily = Spec['model'];
@@ -20,6 +21,7 @@ export const MODEL_LABEL: Record<ModelFamily, string> = {
   'log-binomial': 'Log-binomial regression',
   'modified-poisson': 'Poisson regression with robust variance (modified Poisson)',
   linear: 'Linear regression',
+  poisson: 'Poisson regression for counts and rates',
 };
 
 export const MEASURE_LABEL: Record<EffectMeasure, string> = {
@@ -28,6 +30,11 @@ export const MEASURE_LABEL: Record<EffectMeasure, string> = {
   RD: 'risk difference',
   MD: 'mean difference',
 };
+
+/** The measure's name for an outcome type: a ratio of rates (or of mean counts) for count outcomes. */
+export function measureLabel(measure: EffectMeasure, outcome: OutcomeType): string {
+  return outcome === 'count' && measure === 'RR' ? 'rate ratio' : MEASURE_LABEL[measure];
+}
 
 export const CI_METHOD_LABEL: Record<CiMethod, string> = {
   delta: 'delta method',
@@ -41,13 +48,15 @@ export const MULTIPLICITY_LABEL: Record<Multiplicity, string> = {
   bh: 'Benjamini-Hochberg',
 };
 
-export const MODELS: ModelFamily[] = ['logistic', 'log-binomial', 'modified-poisson', 'linear'];
+export const MODELS: ModelFamily[] = ['logistic', 'log-binomial', 'modified-poisson', 'linear', 'poisson'];
 export const MEASURES: EffectMeasure[] = ['OR', 'RR', 'RD', 'MD'];
 
 /** Why saving refuses a model for an outcome type, or null when it accepts it. */
 export function modelRefusal(outcome: OutcomeType, model: ModelFamily): string | null {
   if (outcome === 'binary' && model === 'linear') return 'A binary outcome needs a logistic, log-binomial or modified Poisson model.';
   if (outcome === 'continuous' && model !== 'linear') return 'A continuous outcome needs the linear model.';
+  if (outcome === 'count' && model !== 'poisson') return 'A count outcome needs the Poisson model.';
+  if (outcome !== 'count' && model === 'poisson') return 'The Poisson model needs a count outcome.';
   return null;
 }
 
@@ -67,7 +76,7 @@ export function measureRefusal(outcome: OutcomeType, model: ModelFamily, measure
  * server's refusal all use, so the summary never calls runnable what saving refuses.
  */
 export function specRuleProblems(
-  spec: Pick<Spec, 'outcome' | 'model' | 'effectMeasure'> & { standardize?: boolean; modifier?: { type: 'categorical' | 'continuous' } },
+  spec: Pick<Spec, 'outcome' | 'model' | 'effectMeasure'> & Partial<Pick<Spec, 'exposure' | 'modifier' | 'covariates' | 'cluster' | 'weights' | 'standardErrors' | 'ci' | 'standardize'>>,
 ): { path: string; message: string }[] {
   const problems: { path: string; message: string }[] = [];
   const standardize = spec.standardize === true ? standardizeRefusal(spec.outcome.type, spec.modifier?.type ?? null) : null;
@@ -76,6 +85,7 @@ export function specRuleProblems(
   if (model) problems.push({ path: 'spec.model', message: model });
   const measure = spec.effectMeasure === undefined ? null : measureRefusal(spec.outcome.type, spec.model, spec.effectMeasure);
   if (measure && !model) problems.push({ path: 'spec.effectMeasure', message: measure });
+  problems.push(...extrasProblems(spec));
   return problems;
 }
 
@@ -93,7 +103,7 @@ export function measureFor(model: ModelFamily, outcome: OutcomeType): EffectMeas
 
 /** The effect measures open to an outcome type. */
 export function measuresFor(outcome: OutcomeType): EffectMeasure[] {
-  return outcome === 'binary' ? ['OR', 'RR', 'RD'] : ['MD'];
+  return outcome === 'binary' ? ['OR', 'RR', 'RD'] : outcome === 'count' ? ['RR'] : ['MD'];
 }
 
 /** Whether a specification's additive measures (RERI, AP, S) exist: ratio models only. */

@@ -6,6 +6,7 @@
 import { SpecSchema, type Spec } from '@/engine/boundary/schemas';
 import { entryKind, needsEventLevel, type FormColumn } from './formColumns';
 import type { AnalysisDraft, SpecDraft } from './specForm';
+import { clusterColumnRefusal, personTimeColumnRefusal, weightsColumnRefusal } from './extrasRules';
 import { specRuleProblems } from './specRules';
 
 /** Messages by field path ("title", "modifier.reference", "ci.replicates", "covariates.site.reference"). */
@@ -58,7 +59,15 @@ export function draftToSpec(columns: readonly FormColumn[], draft: SpecDraft): C
   else if (draft.outcome.type === 'binary' && outcome.type !== 'binary') errors['outcome.column'] = `${outcome.name} is not a binary column.`;
   else if (draft.outcome.type === 'continuous' && outcome.type !== 'continuous' && outcome.type !== 'count') {
     errors['outcome.column'] = `${outcome.name} is not a continuous or count column.`;
-  }
+  } else if (draft.outcome.type === 'count' && outcome.type !== 'count') errors['outcome.column'] = `${outcome.name} is not a count column.`;
+  const personTime = draft.outcome.type === 'count' && draft.outcome.personTime ? draft.outcome.personTime : undefined;
+  const personTimeRefusal = personTime === undefined ? null : personTimeColumnRefusal(byName.get(personTime));
+  if (personTimeRefusal) errors['outcome.personTime'] = personTimeRefusal;
+  const clusterRefusal = draft.cluster === '' ? null : clusterColumnRefusal(byName.get(draft.cluster));
+  if (clusterRefusal) errors.cluster = clusterRefusal;
+  const weightsRefusal = draft.weights === '' ? null : weightsColumnRefusal(byName.get(draft.weights));
+  if (weightsRefusal) errors.weights = weightsRefusal;
+  const standardErrors = draft.robust && draft.model === 'poisson' ? ('robust' as const) : undefined;
   const eventNeeded = outcome !== undefined && draft.outcome.type === 'binary' && needsEventLevel(outcome);
   if (eventNeeded && !outcome.levels?.includes(draft.outcome.event)) errors['outcome.event'] = 'Choose the level that counts as the event.';
 
@@ -143,9 +152,21 @@ export function draftToSpec(columns: readonly FormColumn[], draft: SpecDraft): C
   }
 
   // The same rule check the server applies when saving (specRules.ts).
-  const rules = { outcome: { column: draft.outcome.column, type: draft.outcome.type }, model: draft.model, effectMeasure: draft.effectMeasure };
-  for (const problem of specRuleProblems({ ...rules, standardize: draft.standardize, ...(modifier ? { modifier: { type: modifierType } } : {}) })) {
-    errors[fieldForServerPath(problem.path)] = problem.message;
+  const ruleSpec = {
+    outcome: { column: draft.outcome.column, type: draft.outcome.type, ...(personTime !== undefined ? { personTime } : {}) },
+    model: draft.model,
+    effectMeasure: draft.effectMeasure,
+    exposure: { column: draft.exposure.column, reference: draft.exposure.reference },
+    modifier: { column: draft.modifier.column, type: modifierType },
+    covariates,
+    ci: { level: 0.95, method: draft.ciMethod },
+    ...(draft.cluster !== '' ? { cluster: { column: draft.cluster } } : {}),
+    ...(draft.weights !== '' ? { weights: { column: draft.weights } } : {}),
+    ...(standardErrors !== undefined ? { standardErrors } : {}),
+    ...(draft.standardize ? { standardize: true } : {}),
+  };
+  for (const problem of specRuleProblems(ruleSpec)) {
+    errors[fieldForServerPath(problem.path)] ??= problem.message;
   }
 
   const levelPercent = parseNumber(draft.ciLevel);
@@ -170,6 +191,7 @@ export function draftToSpec(columns: readonly FormColumn[], draft: SpecDraft): C
       column: draft.outcome.column,
       type: draft.outcome.type,
       ...(eventNeeded ? { event: draft.outcome.event } : {}),
+      ...(personTime !== undefined ? { personTime } : {}),
     },
     exposure: { column: draft.exposure.column, reference: draft.exposure.reference },
     modifier:
@@ -190,6 +212,9 @@ export function draftToSpec(columns: readonly FormColumn[], draft: SpecDraft): C
     multiplicity: draft.multiplicity,
     preventive: draft.preventive,
     ...(draft.standardize ? { standardize: true } : {}),
+    ...(standardErrors !== undefined ? { standardErrors } : {}),
+    ...(draft.cluster !== '' ? { cluster: { column: draft.cluster } } : {}),
+    ...(draft.weights !== '' ? { weights: { column: draft.weights } } : {}),
   };
   const parsed = SpecSchema.safeParse(spec);
   if (!parsed.success) {
@@ -226,5 +251,7 @@ export function fieldForServerPath(path: string, spec?: Spec): string {
   }
   if (local === 'ci.level' || local === 'ci.method' || local === 'ci.replicates' || local === 'ci.seed') return local;
   if (/^modifier\.slopesAt/.test(local)) return 'modifier.slopesAt';
+  if (local === 'cluster.column' || local === 'cluster') return 'cluster';
+  if (local === 'weights.column' || local === 'weights') return 'weights';
   return local;
 }

@@ -5,7 +5,7 @@
 import type { Spec } from '@/engine/boundary/schemas';
 import { defaultReference, levelsFromReference, type FormColumn } from './formColumns';
 import { ordinal } from '@/engine/analysis/pointLabels';
-import { CI_METHOD_LABEL, DEFAULT_REPLICATES, DEFAULT_SEED, MEASURE_LABEL, MODEL_LABEL, MULTIPLICITY_LABEL, isRatioModel, measureFor } from './specRules';
+import { CI_METHOD_LABEL, DEFAULT_REPLICATES, DEFAULT_SEED, MODEL_LABEL, MULTIPLICITY_LABEL, isRatioModel, measureFor, measureLabel } from './specRules';
 
 /** How a column is named in prose: its short description where it has one, else its name. */
 export function columnLabel(name: string, columns?: readonly FormColumn[]): string {
@@ -57,7 +57,8 @@ export function specInWords(spec: Spec, context: WordsContext = {}): string {
     `${model} of ${outcome} on ${label(spec.exposure.column)} (reference ${spec.exposure.reference}), ${modifierPart}, ${covariates.length > 0 ? `adjusted for ${listInWords(covariates)}` : 'with no adjustment for other covariates'}`,
   );
   const measure = spec.effectMeasure ?? measureFor(spec.model, spec.outcome.type);
-  parts.push(`effects as ${MEASURE_LABEL[measure]}s`);
+  parts.push(`effects as ${measureLabel(measure, spec.outcome.type)}s`);
+  parts.push(...extrasInWords(spec, label));
   const method = spec.ci.method === 'bootstrap'
     ? `percentile-bootstrap intervals from ${(spec.ci.replicates ?? DEFAULT_REPLICATES).toLocaleString('en-GB')} replicates (seed ${spec.ci.seed ?? DEFAULT_SEED})`
     : spec.ci.method === 'mover'
@@ -78,6 +79,37 @@ export function specInWords(spec: Spec, context: WordsContext = {}): string {
   return `${parts.join('; ')}.`;
 }
 
+/** The person-time, cluster and weights choices in words (empty when there are none). */
+function extrasInWords(spec: Spec, label: (name: string) => string): string[] {
+  const parts: string[] = [];
+  if (spec.outcome.personTime) parts.push(`rates per ${label(spec.outcome.personTime)} (log person-time as offset)`);
+  if (spec.cluster) parts.push(`cluster-robust (CR1) standard errors by ${label(spec.cluster.column)}`);
+  else if (spec.standardErrors === 'robust') parts.push('robust (HC0) standard errors');
+  if (spec.weights) parts.push(`each row weighted by ${label(spec.weights.column)} (frequency weights)`);
+  return parts;
+}
+
+/** What the person-time, cluster and weights choices add to a run. */
+function extrasComputation(spec: Spec): ComputationItem[] {
+  const items: ComputationItem[] = [];
+  if (spec.model === 'poisson') {
+    items.push({
+      title: 'Rates and overdispersion',
+      detail: `${spec.outcome.personTime ? `Crude rates per 1,000 units of ${spec.outcome.personTime} in each arm and stratum; ` : ''}the Pearson χ² / df check of overdispersion, with a warning above 1.5 suggesting robust or cluster-robust standard errors.`,
+    });
+  }
+  if (spec.cluster) {
+    items.push({
+      title: 'Cluster-robust standard errors',
+      detail: `Every interval (strata, ratios of ratios, RERI, AP, S, slopes, Johnson-Neyman) uses the CR1 variance of Liang and Zeger with clusters from ${spec.cluster.column}; the number of clusters is shown, with a warning under 30.`,
+    });
+  }
+  if (spec.weights) {
+    items.push({ title: 'Frequency weights', detail: `Each row counts as ${spec.weights.column} identical rows: counts, tables, intervals and any bootstrap are those of the expanded rows. Weights must be positive whole numbers.` });
+  }
+  return items;
+}
+
 /** One line of the "what will be computed" panel. */
 export interface ComputationItem {
   title: string;
@@ -88,7 +120,7 @@ export interface ComputationItem {
 export function computationSummary(spec: Spec, columns: readonly FormColumn[]): ComputationItem[] {
   const byName = new Map(columns.map((column) => [column.name, column]));
   const measure = spec.effectMeasure ?? measureFor(spec.model, spec.outcome.type);
-  const measureName = MEASURE_LABEL[measure];
+  const measureName = measureLabel(measure, spec.outcome.type);
   const ratio = isRatioModel(spec.model);
   const items: ComputationItem[] = [];
   const covariateCount = spec.covariates.length;
@@ -114,7 +146,7 @@ export function computationSummary(spec: Spec, columns: readonly FormColumn[]): 
     items.push({
       title: 'Interaction on the multiplicative scale',
       detail: ratio
-        ? `The ratio of ${measureName}s for each of ${others.length > 0 ? others.join(', ') : 'the other levels'} against ${reference}, and an omnibus ${spec.model === 'modified-poisson' ? 'robust Wald' : 'likelihood-ratio'} test of all product terms together.`
+        ? `The ratio of ${measureName}s for each of ${others.length > 0 ? others.join(', ') : 'the other levels'} against ${reference}, and an omnibus ${spec.model === 'modified-poisson' || spec.cluster || spec.standardErrors === 'robust' ? 'robust Wald' : 'likelihood-ratio'} test of all product terms together.`
         : `The difference in differences for each level against ${reference}, and an omnibus F test of all product terms together.`,
     });
     if (ratio) {
@@ -149,6 +181,7 @@ export function computationSummary(spec: Spec, columns: readonly FormColumn[]): 
         : `The change in the mean difference per unit of ${spec.modifier.column} and for one standard deviation above the mean; an F test of the product term.`,
     });
   }
+  items.push(...extrasComputation(spec));
   if (spec.ci.method === 'bootstrap') {
     items.push({
       title: 'Bootstrap',

@@ -36,7 +36,7 @@ describe('the "absolute effects" option (standardize)', () => {
   });
 
   it('is refused by the rule check the server applies', () => {
-    const problems = specRuleProblems({ outcome: { column: 'length_of_stay_days', type: 'continuous' }, model: 'linear', standardize: true, modifier: { type: 'categorical' } });
+    const problems = specRuleProblems({ outcome: { column: 'length_of_stay_days', type: 'continuous' }, model: 'linear', standardize: true, modifier: { column: 'age_band', type: 'categorical' } });
     expect(problems.map((problem) => problem.path)).toEqual(['spec.standardize']);
     expect(problems[0].message).toMatch(/need a binary outcome/);
   });

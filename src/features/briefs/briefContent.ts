@@ -11,6 +11,7 @@ import { RESULT_CAUTIONS } from '@/lib/cautions';
 import { dateTimeInWords } from '@/lib/dates';
 import { MODEL_LABEL } from '../analyses/specRules';
 import { percentText } from '../analyses/specWords';
+import { personTimeUnit, varianceName } from '../runs/clusterRateWeightView';
 import { formatNumber } from '../runs/resultFormat';
 import { buildResultTables } from '../runs/resultTables';
 import { absoluteMethodsSentences, briefAbsolute, briefEValues, type BriefAbsolute, type BriefEValues } from './briefAbsolute';
@@ -224,6 +225,7 @@ export function methodsParagraph(result: Result, spec: Spec, facts: BriefFacts, 
   return [
     `A ${model.toLowerCase()} of ${result.outcome.column} on ${result.exposure.column}, ${result.modifier.column} and their product, with ${covariates}, ` +
       `was fitted to ${countText(counts, 'n')} rows. Intervals are ${percentText(result.ciLevel)} % ${method} intervals; the effect measure is the ${measureWords(result)}.`,
+    ...clusterRateWeightMethods(result),
     declared,
     examined,
     ...absoluteMethodsSentences(result),
@@ -232,7 +234,30 @@ export function methodsParagraph(result: Result, spec: Spec, facts: BriefFacts, 
   ].join(' ');
 }
 
+/**
+ * The variance (cluster-robust CR1 of Liang and Zeger, Biometrika 1986;73:13-22, or robust
+ * HC0), the rate model's offset and the frequency weights, for the methods paragraph. A
+ * number of clusters of 10 or fewer is not printed (briefs print no count from 1 to 10).
+ */
+function clusterRateWeightMethods(result: Result): string[] {
+  const out: string[] = [];
+  const clustering = result.clustering ?? null;
+  if (clustering) {
+    const count = clustering.clusters > 10 ? String(clustering.clusters) : 'fewer than 11';
+    out.push(`Standard errors are ${varianceName(result)}, with ${count} clusters of ${clustering.column}, and every interval uses them${clustering.clusters < 30 ? '; with fewer than 30 clusters they tend to be too small' : ''}.`);
+  } else if (result.model.standardErrors === 'HC0' && result.model.family === 'poisson') out.push('Standard errors are robust (HC0 sandwich).');
+  const rates = result.rates ?? null;
+  if (rates) {
+    const offset = rates.personTimeColumn ? ` with the logarithm of ${rates.personTimeColumn} (${personTimeUnit(rates)}) as offset, so effects are rate ratios and rates are given per 1,000 ${personTimeUnit(rates)}` : '';
+    const ratio = rates.overdispersion.ratio;
+    out.push(`Counts were modelled by Poisson regression${offset}; overdispersion was checked by Pearson χ²/df (${ratio === null ? 'not estimable' : ratio.toFixed(2)}${ratio !== null && ratio > 1.5 ? ', above 1.5' : ''}).`);
+  }
+  if (result.weights) out.push(`Each row of the extract was weighted by ${result.weights.column} (frequency weights), so every count and interval is that of the units the rows stand for.`);
+  return out;
+}
+
 function measureWords(result: Result): string {
+  if (result.outcome.type === 'count' && result.effectMeasure === 'RR') return 'rate ratio';
   return { OR: 'odds ratio', RR: 'risk ratio', RD: 'risk difference', MD: 'mean difference' }[result.effectMeasure];
 }
 

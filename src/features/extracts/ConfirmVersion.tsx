@@ -36,7 +36,7 @@ const TYPE_LABEL: Record<AnalysableColumnType, string> = {
 };
 
 function Confirm({ extractId, versionId, columns, statement, signerName }: Props) {
-  const [entries, setEntries] = useState(() => columns.map((c) => ({ name: c.name, type: c.inferredType, description: '', missing: '' })));
+  const [entries, setEntries] = useState(() => columns.map((c) => ({ name: c.name, type: c.inferredType, description: '', missing: '', unit: '' })));
   const [signedName, setSignedName] = useState('');
   const [agreed, setAgreed] = useState(false);
   const confirm = useMutation({
@@ -45,7 +45,7 @@ function Confirm({ extractId, versionId, columns, statement, signerName }: Props
         method: 'POST',
         body: {
           attestation: { signedName },
-          columns: entries.map(({ missing, ...entry }) => ({ ...entry, missingValues: splitCodes(missing) })),
+          columns: entries.map(({ missing, unit, ...entry }) => ({ ...entry, missingValues: splitCodes(missing), ...(unit.trim() ? { unit: unit.trim() } : {}) })),
         },
       }),
     onSuccess: () => window.location.reload(),
@@ -90,6 +90,10 @@ function Confirm({ extractId, versionId, columns, statement, signerName }: Props
               <td>
                 <input aria-label={`Description of ${entry.name}`} className="field-input" value={entry.description} maxLength={2000}
                   onChange={(e) => setEntries((all) => all.map((x, i) => (i === index ? { ...x, description: e.target.value } : x)))} />
+                {(entry.type === 'continuous' || entry.type === 'count') && (
+                  <input aria-label={`Unit of ${entry.name}`} className="field-input mt-1" value={entry.unit} maxLength={40} placeholder="Unit, e.g. bed-days"
+                    onChange={(e) => setEntries((all) => all.map((x, i) => (i === index ? { ...x, unit: e.target.value } : x)))} />
+                )}
               </td>
               <td>
                 <input aria-label={`Further missing-value codes of ${entry.name}`} className="field-input" value={entry.missing} placeholder="e.g. 999, unknown"

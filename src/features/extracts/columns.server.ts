@@ -46,6 +46,13 @@ export async function loadColumns(
   return { rowCount, columns, missingValues };
 }
 
+/** The unit the confirmed dictionary gives a column (such as "bed-days"), or null. */
+export async function columnUnit(transaction: Transaction, versionId: string, name: string): Promise<string | null> {
+  const version = await ExtractVersion.findByPk(versionId, { attributes: ['dictionary'], transaction });
+  const entry = ((version?.dictionary ?? []) as DictionaryEntry[]).find((d) => d.name === name);
+  return entry?.unit?.trim() || null;
+}
+
 /**
  * The columns an analysis uses, engine-ready: the one way another area (runs) reads an
  * extract version's data, with the analyst's declared missing-value codes applied. The

@@ -138,6 +138,8 @@ export const DictionaryEntry = z.object({
     .array(z.string().trim().min(1, 'A missing-value code cannot be empty.').max(100, 'Keep a missing-value code under 100 characters.'))
     .max(20, 'Declare at most 20 missing-value codes per column.')
     .optional(),
+  /** Unit of a numeric column (such as "bed-days" for person-time), shown with rates per 1,000 units. */
+  unit: z.string().trim().max(40, 'Keep a unit under 40 characters.').optional(),
 });
 export type DictionaryEntry = z.infer<typeof DictionaryEntry>;
 

@@ -371,7 +371,8 @@ export function buildDictionary(profile: ColumnProfile[], columns?: DictionaryEn
     if (entry.type === 'binary' && distinct > 2) {
       problems.push({ path: `columns.${index}.type`, message: `“${p.name}” has ${distinct} distinct values, so it cannot be binary.` });
     }
-    return { name: p.name, type: entry.type, description: entry.description ?? '', missingValues };
+    const unit = entry.unit?.trim();
+    return { name: p.name, type: entry.type, description: entry.description ?? '', missingValues, ...(unit ? { unit } : {}) };
   });
   if (problems.length) throw unprocessable('dictionary-invalid', problems[0].message, problems);
   return dictionary;

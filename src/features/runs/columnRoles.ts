@@ -8,5 +8,10 @@ export function columnRoles(spec: Spec): Record<string, 'categorical' | 'continu
     [spec.modifier.column]: spec.modifier.type,
   };
   for (const covariate of spec.covariates) roles[covariate.column] = covariate.type;
+  // Person-time and frequency weights are numbers; clusters are groups (a cluster column
+  // that is also a covariate keeps the covariate's role: the engine groups by its values).
+  if (spec.outcome.personTime !== undefined) roles[spec.outcome.personTime] = 'continuous';
+  if (spec.weights !== undefined) roles[spec.weights.column] = 'continuous';
+  if (spec.cluster !== undefined) roles[spec.cluster.column] ??= 'categorical';
   return roles;
 }

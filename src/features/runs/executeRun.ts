@@ -13,7 +13,7 @@ import { sequelize, withIdentity } from '@/lib/server/db';
 import { env } from '@/lib/server/env';
 import { logger } from '@/lib/server/logger';
 import { recordAudit } from '../audit/audit.server';
-import { loadRunData } from './runInputs';
+import { loadPersonTimeUnit, loadRunData } from './runInputs';
 import { isRefusal, runFailure } from './runFailure';
 import type { RunStatus } from './runs.schema';
 import { seedOf } from './runs.server';
@@ -141,7 +141,9 @@ export async function executeRun(runId: string, startedBy: string, options: { wo
 
   try {
     const data = await loadRunData(startedBy, claimed.extract_version_id, claimed.spec);
+    const personTimeUnit = await loadPersonTimeUnit(startedBy, claimed.extract_version_id, claimed.spec);
     const result = await runAnalysis(data, claimed.spec, {
+      personTimeUnit,
       signal: controller.signal,
       threads: options.threads ?? env.CROSSGRAIN_ENGINE_THREADS,
       onProgress: (event) => {

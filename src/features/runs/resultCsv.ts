@@ -9,6 +9,7 @@ import { CAUTION_VERSION, RESULT_CAUTIONS } from '@/lib/cautions';
 import { csvRecord } from '@/lib/csv';
 import { specInWords } from '../analyses/specWords';
 import { absoluteRows, eValueRows } from './absoluteCsv';
+import { personTimeUnit, varianceName } from './clusterRateWeightView';
 import { displayLevels, measureInfo, type MeasureInfo } from './resultFormat';
 import { multiplicityNote, OMNIBUS_LABEL } from './resultWords';
 import { effectRangeInWords } from './continuousWords';
@@ -169,6 +170,24 @@ function continuousRows({ result, measure, exposure, modifier }: CsvContext): Cs
   return rows;
 }
 
+/** The variance in use with its clusters, frequency weights, crude rates and the overdispersion check. */
+function varianceRateRows({ result, exposure, modifier }: CsvContext): CsvRow[] {
+  const rows: CsvRow[] = [{ section: 'variance', measure: varianceName(result), n: result.clustering?.clusters ?? null, note: result.clustering ? `clusters of ${result.clustering.column}; every interval uses this variance` : null }];
+  if (result.weights) rows.push({ section: 'weights', level: result.weights.column, measure: 'rows standing for units', n: result.weights.units, note: `${result.weights.rows} rows` });
+  const rates = result.rates;
+  if (rates) {
+    const unit = personTimeUnit(rates);
+    for (const cell of rates.cells) {
+      rows.push({
+        section: 'rate', level: cell.modifier, arm: cell.exposure, measure: `events per ${rates.per} ${unit}`, estimate: cell.ratePer1000, events: cell.events,
+        note: `person-time ${cell.personTime} (${cell.modifier === null ? exposure : `${exposure} × ${modifier}`})`,
+      });
+    }
+    rows.push({ section: 'overdispersion', measure: 'Pearson chi-square / df', estimate: rates.overdispersion.ratio, statistic: rates.overdispersion.pearsonChiSquare, df: rates.overdispersion.df });
+  }
+  return rows;
+}
+
 /** The covariates, the rows analysed and left out, the multiplicity note and the warnings. */
 function contextRows({ result }: CsvContext): CsvRow[] {
   const rows: CsvRow[] = [];
@@ -210,6 +229,7 @@ export function resultCsv(result: Result, spec: Spec): string {
     ...interactionRows(context),
     ...stratifiedRows(context),
     ...continuousRows(context),
+    ...varianceRateRows(context),
     ...contextRows(context),
   ];
   for (const row of rows) out += csvRecord(CSV_COLUMNS.map((name) => row[name] ?? null));

@@ -144,10 +144,11 @@ export interface MeasureInfo {
 }
 
 /** How the result's effect measure is named and shown. */
-export function measureInfo(result: Pick<Result, 'effectMeasure'>): MeasureInfo {
+export function measureInfo(result: Pick<Result, 'effectMeasure'> & { outcome?: Pick<Result['outcome'], 'type'> }): MeasureInfo {
   const code = result.effectMeasure;
   const ratio = code === 'OR' || code === 'RR';
-  const name = MEASURE_LABEL[code];
+  // A count outcome's ratio is a rate ratio (a ratio of mean counts without person-time).
+  const name = result.outcome?.type === 'count' && code === 'RR' ? 'rate ratio' : MEASURE_LABEL[code];
   return {
     code,
     name,

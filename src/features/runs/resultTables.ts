@@ -16,6 +16,7 @@ import {
   type IntervalCell, type MeasureInfo, type NumberCell,
 } from './resultFormat';
 import { absoluteEffectsView, eValuesView, type AbsoluteEffectsView, type EValuesView } from './absoluteEffectsView';
+import { clusterRateWeightView, varianceName, type ClusterRateWeightView } from './clusterRateWeightView';
 import { perResult } from './finishedResults';
 import { effectRangeInWords, isThin } from './continuousWords';
 import { crudeCrossCheck, type CrudeCrossCheckView } from './crudeCrossCheck';
@@ -107,6 +108,8 @@ export interface ResultTables {
   absolute: AbsoluteEffectsView | null;
   /** E-values of the stratum ratios, by level. */
   eValues: EValuesView | null;
+  /** Variance in use, clusters, person-time rates, overdispersion and frequency weights. */
+  extras: ClusterRateWeightView;
 }
 
 /** What every table builder reads: the result, how its measure is shown, and its display levels. */
@@ -259,7 +262,7 @@ function modelLine(result: Result): string {
     `${MODEL_LABEL[model.family]}${fallback}; ${formatCount(result.n)} rows analysed` +
     `${result.dropped > 0 ? `, ${formatCount(result.dropped)} left out for missing values${missing ? ` (missing in ${missing})` : ''}` : ''}; ` +
     `${model.converged ? (model.iterations > 0 ? `converged in ${model.iterations} iterations` : 'fitted directly') : 'did not converge'}; ` +
-    `${model.standardErrors === 'model' ? 'model-based' : model.standardErrors} standard errors.`
+    `${varianceName(result)} standard errors${result.clustering ? ` (${formatCount(result.clustering.clusters)} clusters)` : ''}.`
   );
 }
 
@@ -289,5 +292,6 @@ export function buildResultTables(result: Result, spec: Spec): ResultTables {
     powerNote: planningInWords(result, measure),
     absolute: absoluteEffectsView(result),
     eValues: eValuesView(result),
+    extras: clusterRateWeightView(result),
   };
 }

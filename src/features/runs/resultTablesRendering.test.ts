@@ -1,6 +1,9 @@
+import { readFileSync } from 'node:fs';
 import { experimental_AstroContainer as AstroContainer } from 'astro/container';
 import { beforeAll, describe, expect, it } from 'vitest';
-import type { Result } from '@/engine/boundary/schemas';
+import type { Result, Spec } from '@/engine/boundary/schemas';
+import { runAnalysis } from '@/engine/index';
+import { engineDataOfCsv } from './engineInput';
 import { CAUTION_VERSION, RESULT_CAUTIONS } from '@/lib/cautions';
 import ResultTables from './ResultTables.astro';
 import { CALL_BACK_SPEC, engineResult, UP_AND_ABOUT_SPEC } from './testSupport';
@@ -95,5 +98,23 @@ describe('ResultTables.astro (server-rendered, real engine results)', () => {
     expect(decode(html)).not.toContain('Interaction on the additive and multiplicative scales');
     const did = upAndAbout.interaction.additive[0];
     expect(cells.get(`did-${did.level}`)!.attributes['data-estimate']).toBe(raw(did.differenceInDifferences!.estimate));
+  });
+  it('shows the cluster-robust variance with its clusters, the rates per 1,000 bed-days and the overdispersion check', async () => {
+    // The seeded synthetic wards of tests/reference/cluster-rate-weight (invented data).
+    const wards = engineDataOfCsv(readFileSync(new URL('../../../tests/reference/cluster-rate-weight/data/wards.csv', import.meta.url)));
+    const spec: Spec = {
+      outcome: { column: 'falls', type: 'count', personTime: 'bed_days' },
+      exposure: { column: 'called', reference: '0' },
+      modifier: { column: 'frailty', type: 'categorical', reference: 'low' },
+      covariates: [],
+      model: 'poisson',
+      ci: { level: 0.95, method: 'delta' },
+      cluster: { column: 'site' },
+    };
+    const result = await runAnalysis(wards, spec, { threads: 0, personTimeUnit: 'bed-days' });
+    const html = decode(await container.renderToString(ResultTables, { props: { result, spec } }));
+    expect(html).toMatch(/data-testid="variance-line" data-clusters="40"[^>]*>Standard errors: cluster-robust \(CR1, Liang and Zeger 1986\), 40 clusters of site/);
+    expect(html).toContain('Crude rates per 1,000 bed-days');
+    expect(html).toMatch(/data-testid="overdispersion" data-ratio="[\d.]+"[^>]*>Overdispersion check: Pearson χ²/);
   });
 });

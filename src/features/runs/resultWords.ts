@@ -24,6 +24,9 @@ export const OMNIBUS_LABEL: Record<Result['interaction']['omnibus']['test'], str
 
 const WARNING_TITLE: Record<string, string> = {
   SEPARATION: 'A stratum with no events or only events',
+  FEW_CLUSTERS: 'Few clusters for cluster-robust standard errors',
+  OVERDISPERSION: 'Counts vary more than the Poisson model allows',
+  FREQUENCY_WEIGHTS: 'Rows weighted by their counts',
   SPARSE_STRATUM: 'Few events in a stratum',
   ZERO_CELL: 'An empty cell in a 2 × 2 table',
   WOOLF_CORRECTED: 'Continuity correction in the Woolf test',

@@ -44,6 +44,9 @@ export const SPEC_FIELD_LABEL: Record<string, string> = {
   multiplicity: 'Adjustment across strata',
   preventive: 'Preventive recoding',
   standardErrors: 'Standard errors',
+  'outcome.personTime': 'Person-time',
+  'cluster.column': 'Cluster column',
+  'weights.column': 'Frequency weights',
   'planning.interaction': 'Planning: interaction size',
   'planning.power': 'Planning: target power',
 };
@@ -73,6 +76,9 @@ function specFields(spec: Spec): Map<string, string> {
     ['multiplicity', spec.multiplicity && MULTIPLICITY_LABEL[spec.multiplicity]],
     ['preventive', spec.preventive === undefined ? undefined : spec.preventive ? 'yes' : 'no'],
     ['standardErrors', spec.standardErrors],
+    ['outcome.personTime', spec.outcome.personTime],
+    ['cluster.column', spec.cluster?.column],
+    ['weights.column', spec.weights?.column],
     ['planning.interaction', spec.planning?.interaction === undefined ? undefined : String(spec.planning.interaction)],
     ['planning.power', spec.planning?.power === undefined ? undefined : String(spec.planning.power)],
   ];
