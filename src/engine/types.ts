@@ -74,6 +74,10 @@ export type {
   PlanningLevel,
   PlanningBlock,
   EngineWarning,
+  ExposureType,
+  DoseBlock,
+  TrendBlock,
+  PredictionsBlock,
 } from './boundary/schemas.js';
 
 // ---------------------------------------------------------------------------------------

@@ -3,4 +3,4 @@
  * number in a result (a formula, a default, the random stream), so that an audited re-run
  * states which engine produced it.
  */
-export const ENGINE_VERSION = 'crossgrain-engine/1.1.0';
+export const ENGINE_VERSION = 'crossgrain-engine/1.2.0';

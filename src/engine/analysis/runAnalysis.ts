@@ -11,6 +11,9 @@ import { omnibusTest } from './omnibusTest.js';
 import { planningStage } from './planningStage.js';
 import { sanitizeResult } from './sanitizeResult.js';
 import { validateSpec } from './validateSpec.js';
+import { doseSlopes } from './doseSlopes.js';
+import { profilePredictions } from './profilePredictions.js';
+import { trendTest } from './trendTest.js';
 
 /** Above this outcome proportion an odds ratio no longer approximates a risk ratio (methods.md: "say over 10 %"). */
 const COMMON_OUTCOME = 0.1;
@@ -40,6 +43,9 @@ export async function runAnalysis(data: EngineData, spec: AnalysisSpec, options:
   const effects = modifierEffectsStage(analysis);
   const interaction = additiveInteraction(analysis, effects);
   const continuous = frame.modifier.kind === 'continuous' ? continuousModifierStage(analysis) : null;
+  const dose = doseSlopes(analysis);
+  const trend = trendTest(analysis);
+  const predictions = profilePredictions(analysis);
 
   // Outcome-level warnings.
   let outcomeSum = 0;
@@ -54,7 +60,7 @@ export async function runAnalysis(data: EngineData, spec: AnalysisSpec, options:
 
   // Stratified 2 × 2 tables.
   let tables: AnalysisResult['stratifiedTables'] = null;
-  if (frame.outcomeBinary && frame.modifier.kind === 'categorical') {
+  if (frame.outcomeBinary && frame.modifier.kind === 'categorical' && frame.exposureValues === null) {
     progress('tables', 0);
     tables = stratifiedTables(frame, normalQuantile(analysis.tail), warnings);
   }
@@ -62,7 +68,7 @@ export async function runAnalysis(data: EngineData, spec: AnalysisSpec, options:
   const bootstrap = checked.method === 'bootstrap' ? await bootstrapStage(analysis, effects, interaction, signal, progress) : null;
   checkCancelled(signal);
   const planning = planningStage(analysis, effects);
-  const result = assembleResult(analysis, { effects, interaction, omnibus, continuous, outcomeSum, tables, bootstrap, planning });
+  const result = assembleResult(analysis, { effects, interaction, omnibus, continuous, outcomeSum, tables, bootstrap, planning, dose, trend, predictions });
   progress('done', 1);
   return sanitizeResult(result);
 }
