@@ -9,7 +9,8 @@ export const DOSE_ADDITIVE_NOTE =
 
 /**
  * Slopes of a continuous intervention (dose) within each level of a categorical modifier
- * (methods.md, "Continuous intervention"; Aiken and West 1991 for conditional slopes).
+ * (shared/design/methods.md, "Rates, doses, absolute effects": continuous intervention;
+ * "Conditional effects" for a continuous modifier).
  *
  * Formula: in level m the slope is b_A + b_{A·m} (b_A alone in the reference level), with
  * Var = V_AA + 2V_{A,Am} + V_{Am,Am}; the difference from the reference level is b_{A·m}.

@@ -13,7 +13,8 @@ function inverseLink(link: FittedAnalysis['fit']['link'], eta: number): number {
 
 /**
  * The model's predicted outcome for the profile plot and its predicted lines, at stated
- * covariate values (methods.md, "Predictions at stated covariate values"): continuous
+ * covariate values (common practice; the conditional effects of methods.md's "Conditional
+ * effects" are the gaps between these lines on the link scale): continuous
  * covariates at their mean over the analysed rows, categorical covariates at their most
  * common level (the first in level order on a tie). One line per arm (a binary
  * intervention) or at the dose's mean − 1 SD, mean and mean + 1 SD (a continuous one);

@@ -10,9 +10,9 @@ import type { FittedAnalysis } from './fittedAnalysis.js';
 
 /**
  * Test for trend in the intervention's effect across the levels of an ordered modifier
- * (methods.md, "Ordered modifiers"; the score test of trend as a single product term,
- * Breslow and Day, Statistical Methods in Cancer Research I, 1980, §6.7; Rothman,
- * Greenland and Lash, Modern Epidemiology, 3rd ed., ch. 15).
+ * (shared/design/methods.md, "Rates, doses, absolute effects": "Trend across ordered
+ * modifier levels: a single product term of the intervention with the level scores; its
+ * Wald or LR test").
  *
  * Model: g(μ) = b0 + b_A·A + Σ b_m·1[M = m] + b_T·A·s(M) + covariates, with s the level
  * scores carried in the spec; b_T is the change in the intervention's effect (link scale)

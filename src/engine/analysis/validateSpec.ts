@@ -90,7 +90,8 @@ export function validateSpec(spec: AnalysisSpec): CheckedSpec {
 /**
  * A continuous intervention has no reference level and no joint cells, so the additive
  * measures (RERI, AP, S, the joint table) and what serves only them do not apply
- * (methods.md, "Continuous intervention").
+ * (shared/design/methods.md, "Rates, doses, absolute effects": additive measures need two
+ * intervention levels and do not apply).
  */
 function refuseForDose(spec: AnalysisSpec): void {
   const column = spec.exposure.column;
@@ -100,7 +101,7 @@ function refuseForDose(spec: AnalysisSpec): void {
   if (spec.preventive === true) throw new InvalidSpecError(`Preventive recoding ${why}.`, { column });
 }
 
-/** An ordered modifier must be categorical, with a finite score for each level, not all equal (methods.md, "Ordered modifiers"). */
+/** An ordered modifier must be categorical, with a finite score for each level, not all equal (shared/design/methods.md, "Rates, doses, absolute effects": trend). */
 function checkOrdered(spec: AnalysisSpec): void {
   const ordered = spec.modifier.ordered;
   if (ordered === undefined) return;

@@ -38,7 +38,7 @@ export const SpecSchema = z
       column: columnName,
       type: exposureType
         .optional()
-        .describe('Extra: "binary" (default, two levels) or "continuous" (a dose: the effect is a slope per unit; methods.md, "Continuous intervention").'),
+        .describe('Extra: "binary" (default, two levels) or "continuous" (a dose: the effect is a slope per unit; methods.md, "Rates, doses, absolute effects").'),
       reference: z.string().optional().describe('Reference level; "0" for a 0/1 intervention. Required for a binary intervention; not used for a continuous one.'),
     }),
     modifier: z.object({

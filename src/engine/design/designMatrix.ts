@@ -58,7 +58,7 @@ export interface DesignOptions {
   /**
    * Ordered categorical modifier: one product term, intervention × score of the row's level
    * (score by level code, reference first), instead of one product per level (the test for
-   * trend; methods.md, "Ordered modifiers").
+   * trend; methods.md, "Rates, doses, absolute effects").
    */
   readonly trendScores?: Float64Array;
 }

@@ -11,6 +11,7 @@ import { recordAudit } from '../audit/audit.server';
 import { levelsLeftIn } from '../extracts/engineData';
 import type { ColumnProfile, DictionaryEntry } from '../extracts/extracts.schema';
 import type { AnalysisBody } from './analysisApi.schema';
+import { doseProblems, orderedProblems } from './doseRules';
 import { specRuleProblems } from './specRules';
 
 export interface Actor {
@@ -94,12 +95,19 @@ export function checkSpecAgainstDictionary(spec: Spec, dictionary: readonly Dict
     if (known && !known.includes(value)) problems.push({ path, message: `“${value}” is not a level of “${name}” (levels: ${known.slice(0, 8).join(', ')}).` });
   };
   need('spec.outcome.column', spec.outcome.column, spec.outcome.type === 'binary' ? ['binary'] : ['continuous', 'count'], `${spec.outcome.type} outcome`);
-  need('spec.exposure.column', spec.exposure.column, ['binary', 'categorical'], 'intervention');
-  reference('spec.exposure.reference', spec.exposure.column, spec.exposure.reference);
+  if (spec.exposure.type === 'continuous') {
+    need('spec.exposure.column', spec.exposure.column, ['continuous', 'count'], 'continuous intervention (a dose)');
+    problems.push(...doseProblems(spec));
+  } else {
+    need('spec.exposure.column', spec.exposure.column, ['binary', 'categorical'], 'intervention');
+    reference('spec.exposure.reference', spec.exposure.column, spec.exposure.reference);
+  }
   if (spec.modifier.type === 'categorical') {
     need('spec.modifier.column', spec.modifier.column, ['binary', 'categorical', 'count'], 'categorical modifier');
     reference('spec.modifier.reference', spec.modifier.column, spec.modifier.reference);
+    problems.push(...orderedProblems(spec, entry(spec.modifier.column)?.ordered?.scores ?? null, levels(spec.modifier.column)));
   } else {
+    problems.push(...orderedProblems(spec, null, null));
     need('spec.modifier.column', spec.modifier.column, ['continuous', 'count'], 'continuous modifier');
   }
   const used = new Set([spec.outcome.column, spec.exposure.column, spec.modifier.column]);

@@ -4,6 +4,7 @@
  */
 import type { Spec } from '@/engine/boundary/schemas';
 import { defaultReference, levelsFromReference, type FormColumn } from './formColumns';
+import { scoresText } from '../extracts/orderedScores';
 import { CI_METHOD_LABEL, DEFAULT_REPLICATES, DEFAULT_SEED, MEASURE_LABEL, MODEL_LABEL, MULTIPLICITY_LABEL, isRatioModel, measureFor } from './specRules';
 
 /** How a column is named in prose: its short description where it has one, else its name. */
@@ -53,7 +54,7 @@ export function specInWords(spec: Spec, context: WordsContext = {}): string {
       : `its product with ${label(spec.modifier.column)} as a continuous modifier${centre === 'none' ? '' : ` centred on ${typeof centre === 'number' ? centre : `its ${centre}`}`}`;
   const covariates = spec.covariates.map((covariate) => label(covariate.column));
   parts.push(
-    `${model} of ${outcome} on ${label(spec.exposure.column)} (reference ${spec.exposure.reference}), ${modifierPart}, ${covariates.length > 0 ? `adjusted for ${listInWords(covariates)}` : 'with no adjustment for other covariates'}`,
+    `${model} of ${outcome} on ${label(spec.exposure.column)} ${spec.exposure.type === 'continuous' ? '(a continuous dose: slopes per unit)' : `(reference ${spec.exposure.reference})`}, ${modifierPart}, ${covariates.length > 0 ? `adjusted for ${listInWords(covariates)}` : 'with no adjustment for other covariates'}`,
   );
   const measure = spec.effectMeasure ?? measureFor(spec.model, spec.outcome.type);
   parts.push(`effects as ${MEASURE_LABEL[measure]}s`);
@@ -72,6 +73,8 @@ export function specInWords(spec: Spec, context: WordsContext = {}): string {
   } else {
     parts.push(`simple slopes at ${slopesInWords(spec.modifier.slopesAt ?? { kind: 'sd' })}, with Johnson-Neyman boundaries`);
   }
+  if (spec.modifier.ordered) parts.push(`a test for trend across the ordered levels of ${label(spec.modifier.column)} (scores ${scoresText(spec.modifier.ordered.scores)})`);
+  if (spec.exposure.type === 'continuous') parts.push('additive measures not applicable to a continuous intervention');
   if (spec.preventive) parts.push('additive measures recoded for a preventive intervention');
   return `${parts.join('; ')}.`;
 }
@@ -101,11 +104,12 @@ export function computationSummary(spec: Spec, columns: readonly FormColumn[]): 
     const ordered = levels.length > 0 ? levelsFromReference(levels, reference) : [];
     const others = ordered.slice(1);
     const k = ordered.length;
+    const dose = spec.exposure.type === 'continuous';
     items.push({
-      title: 'Effect within each stratum',
-      detail: `The ${measureName} of ${spec.exposure.column} within each of ${k > 0 ? `the ${k} levels` : 'the levels'} of ${spec.modifier.column}${ordered.length > 0 ? ` (${ordered.join(', ')})` : ''}, with ${level} intervals and ${MULTIPLICITY_LABEL[spec.multiplicity ?? 'holm']}-adjusted p-values.`,
+      title: dose ? 'Slope within each stratum' : 'Effect within each stratum',
+      detail: `The ${dose ? `slope per unit (${measureName} per unit)` : measureName} of ${spec.exposure.column} within each of ${k > 0 ? `the ${k} levels` : 'the levels'} of ${spec.modifier.column}${ordered.length > 0 ? ` (${ordered.join(', ')})` : ''}, with ${level} intervals and ${MULTIPLICITY_LABEL[spec.multiplicity ?? 'holm']}-adjusted p-values.`,
     });
-    items.push({
+    if (!dose) items.push({
       title: 'Joint effects',
       detail: `${k > 0 ? `All ${2 * k}` : 'All'} combinations of ${spec.exposure.column} and ${spec.modifier.column} against one reference (${spec.exposure.column} = ${spec.exposure.reference}, ${spec.modifier.column} = ${reference}), with counts.`,
     });
@@ -113,15 +117,22 @@ export function computationSummary(spec: Spec, columns: readonly FormColumn[]): 
       title: 'Interaction on the multiplicative scale',
       detail: ratio
         ? `The ratio of ${measureName}s for each of ${others.length > 0 ? others.join(', ') : 'the other levels'} against ${reference}, and an omnibus ${spec.model === 'modified-poisson' ? 'robust Wald' : 'likelihood-ratio'} test of all product terms together.`
-        : `The difference in differences for each level against ${reference}, and an omnibus F test of all product terms together.`,
+        : `The difference in ${dose ? 'slopes' : 'differences'} for each level against ${reference}, and an omnibus F test of all product terms together.`,
     });
-    if (ratio) {
+    if (spec.modifier.ordered) {
+      items.push({
+        title: 'Test for trend',
+        detail: `One product term of ${spec.exposure.column} with the scores of ${spec.modifier.column} (${scoresText(spec.modifier.ordered.scores)}): its Wald test${ratio && spec.model !== 'modified-poisson' ? ' and likelihood-ratio test' : ''}, beside the omnibus test.`,
+      });
+    }
+    if (dose) items.push({ title: 'Additive measures', detail: 'Not computed: RERI, AP, S and the joint table need two intervention levels and do not apply to a dose.' });
+    if (ratio && !dose) {
       items.push({
         title: 'Interaction on the additive scale',
         detail: `RERI, AP, AP* and S for each level against ${reference}, with ${CI_METHOD_LABEL[spec.ci.method]} intervals${spec.preventive ? ', each recoded so that the lowest-risk combination is the reference' : ''}.`,
       });
     }
-    if (spec.outcome.type === 'binary') {
+    if (spec.outcome.type === 'binary' && !dose) {
       items.push({ title: 'Stratified tables', detail: 'Crude 2 × 2 tables per level with Mantel-Haenszel pooled estimates and tests of homogeneity (Breslow-Day with Tarone\'s correction, Woolf).' });
     }
   } else {
@@ -136,7 +147,9 @@ export function computationSummary(spec: Spec, columns: readonly FormColumn[]): 
     });
     items.push({
       title: 'Interaction',
-      detail: ratio
+      detail: spec.exposure.type === 'continuous'
+        ? `The change in the slope of ${spec.exposure.column} per unit of ${spec.modifier.column}; an omnibus test of the product term. Additive measures do not apply to a dose.`
+        : ratio
         ? `The ratio of ${measureName}s per unit of ${spec.modifier.column}; RERI, AP and S for one standard deviation above the mean; an omnibus test of the product term.`
         : `The change in the mean difference per unit of ${spec.modifier.column} and for one standard deviation above the mean; an F test of the product term.`,
     });
@@ -147,6 +160,10 @@ export function computationSummary(spec: Spec, columns: readonly FormColumn[]): 
       detail: `${(spec.ci.replicates ?? DEFAULT_REPLICATES).toLocaleString('en-GB')} resamples with seed ${spec.ci.seed ?? DEFAULT_SEED}; each refits the model, so this step takes the longest. The same seed reproduces the same intervals.`,
     });
   }
+  items.push({
+    title: 'Predicted outcome',
+    detail: 'For the profile plot, with continuous covariates held at their means and categorical ones at their most common level; the plot and the download say so.',
+  });
   items.push({ title: 'Power', detail: 'The smallest interaction these data could detect with 80 % power, and the power for an interaction as large as the main effect.' });
   return items;
 }

@@ -130,6 +130,12 @@ export const DictionaryEntry = z.object({
     .array(z.string().trim().min(1, 'A missing-value code cannot be empty.').max(100, 'Keep a missing-value code under 100 characters.'))
     .max(20, 'Declare at most 20 missing-value codes per column.')
     .optional(),
+  /**
+   * A categorical column whose levels are ordered: a score for every level (such as
+   * low 1, mid 2, high 3). Analyses with it as the modifier add a test for trend, and
+   * carry these scores in their specification.
+   */
+  ordered: z.object({ scores: z.record(z.string().min(1), z.number().finite()) }).optional(),
 });
 export type DictionaryEntry = z.infer<typeof DictionaryEntry>;
 
