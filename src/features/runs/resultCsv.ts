@@ -9,6 +9,7 @@ import { CAUTION_VERSION, RESULT_CAUTIONS } from '@/lib/cautions';
 import { csvRecord } from '@/lib/csv';
 import { specInWords } from '../analyses/specWords';
 import { displayLevels, measureInfo, type MeasureInfo } from './resultFormat';
+import { doseTrendCsvRows } from './doseTrendCsv';
 import { johnsonNeymanSentence, multiplicityNote, OMNIBUS_LABEL } from './resultWords';
 
 export const CSV_COLUMNS = [
@@ -81,7 +82,7 @@ function withinStratumRows({ result, measure, levels, exposure }: CsvContext): C
     rows.push({
       section: 'within-stratum',
       level,
-      measure: `${measure.code} of ${exposure} = ${result.exposure.level} vs ${result.exposure.reference}`,
+      measure: result.exposure.type === 'continuous' ? `${measure.code} per unit of ${exposure}` : `${measure.code} of ${exposure} = ${result.exposure.level} vs ${result.exposure.reference}`,
       estimate: stratum.effect.estimate,
       lower: stratum.effect.lower,
       upper: stratum.effect.upper,
@@ -203,6 +204,7 @@ export function resultCsv(result: Result, spec: Spec): string {
     ...withinStratumRows(context),
     ...modifierWithinArmRows(context),
     ...interactionRows(context),
+    ...doseTrendCsvRows(result).map((row): CsvRow => row),
     ...stratifiedRows(context),
     ...continuousRows(context),
     ...contextRows(context),

@@ -9,7 +9,7 @@ import { perResult } from '../finishedResults';
  */
 export type PlotInput = Pick<
   Result,
-  'effectMeasure' | 'alpha' | 'ciLevel' | 'exposure' | 'modifier' | 'outcome' | 'joint' | 'strata' | 'slopes' | 'band' | 'johnsonNeyman'
+  'effectMeasure' | 'alpha' | 'ciLevel' | 'exposure' | 'modifier' | 'outcome' | 'joint' | 'strata' | 'slopes' | 'band' | 'johnsonNeyman' | 'predictions'
 > & {
   model: Pick<Result['model'], 'link' | 'coefficients'>;
   stratifiedTables: Pick<NonNullable<Result['stratifiedTables']>, 'mantelHaenszel'> | null;
@@ -31,6 +31,7 @@ export function plotInput(result: Result): PlotInput {
     slopes: result.slopes,
     band: result.band,
     johnsonNeyman: result.johnsonNeyman,
+    predictions: result.predictions ?? null,
     model: { link: result.model.link, coefficients: result.model.coefficients },
     stratifiedTables: result.stratifiedTables ? { mantelHaenszel: result.stratifiedTables.mantelHaenszel } : null,
   };
