@@ -6,6 +6,7 @@
  * threshold − 1. The key table follows Knol and VanderWeele (Int J Epidemiol
  * 2012;41:514-520) through the results page's own builder (buildResultTables).
  */
+import { doseSlopeRows, doseTrendMethods, trendSentence } from './briefDoseTrend';
 import type { Result, Spec } from '@/engine/boundary/schemas';
 import { RESULT_CAUTIONS } from '@/lib/cautions';
 import { MODEL_LABEL } from '../analyses/specRules';
@@ -122,8 +123,9 @@ export function buildBriefContent(result: Result, spec: Spec, facts: BriefFacts,
       }),
     };
   }
-  const slopes = tables.continuous ? tables.continuous.slopes.map((slope) => ({ label: slope.label, effect: slope.effect.text, p: slope.p.text })) : null;
-  const omnibus = `${tables.omnibus.label}: ${tables.omnibus.statistic.text} on ${tables.omnibus.df}, p ${tables.omnibus.p.text.startsWith('<') ? tables.omnibus.p.text : `= ${tables.omnibus.p.text}`}.`;
+  const slopes = tables.continuous ? tables.continuous.slopes.map((slope) => ({ label: slope.label, effect: slope.effect.text, p: slope.p.text })) : doseSlopeRows(result);
+  const omnibus = `${tables.omnibus.label}: ${tables.omnibus.statistic.text} on ${tables.omnibus.df}, p ${tables.omnibus.p.text.startsWith('<') ? tables.omnibus.p.text : `= ${tables.omnibus.p.text}`}.` +
+    trendSentence(result) + (result.additiveNote ? ` ${result.additiveNote}` : '');
 
   return {
     title: input.title.trim(),
@@ -159,7 +161,7 @@ export function buildBriefContent(result: Result, spec: Spec, facts: BriefFacts,
 function buildPlot(result: Result, tables: ReturnType<typeof buildResultTables>, counts: BriefCounts, choice: PlotChoice): BriefPlot | null {
   if (choice === 'none') return null;
   const measure = tables.measure;
-  if (choice === 'forest' && result.modifier.type === 'categorical') {
+  if (choice === 'forest' && result.modifier.type === 'categorical' && tables.joint) {
     const points: PlotPoint[] = [];
     for (const row of tables.joint?.rows ?? []) {
       const { estimate, lower, upper } = row.within.effect;
@@ -174,7 +176,7 @@ function buildPlot(result: Result, tables: ReturnType<typeof buildResultTables>,
     }
     return {
       kind: 'forest', title: `The intervention's effect within each stratum of ${result.modifier.column}`,
-      axisLabel: `${measure.name} of ${result.exposure.column} = ${result.exposure.level} vs ${result.exposure.reference} (${tables.ciLabel})`,
+      axisLabel: `${measure.name} ${result.exposure.type === 'continuous' ? `per unit of ${result.exposure.column}` : `of ${result.exposure.column} = ${result.exposure.level} vs ${result.exposure.reference}`} (${tables.ciLabel})`,
       nullValue: measure.nullValue, logScale: measure.ratio, points,
       caption: `Each row is a stratum of ${result.modifier.column}: the point is the ${measure.name} within it and the line its ${tables.ciLabel}. ` +
         points.map((point) => point.hover).join('. ') + '.',
@@ -188,7 +190,7 @@ function buildPlot(result: Result, tables: ReturnType<typeof buildResultTables>,
     });
     return {
       kind: 'modifier', title: `The intervention's effect across ${result.modifier.column}`,
-      axisLabel: `${measure.name} of ${result.exposure.column} = ${result.exposure.level} vs ${result.exposure.reference} (${tables.ciLabel})`,
+      axisLabel: `${measure.name} ${result.exposure.type === 'continuous' ? `per unit of ${result.exposure.column}` : `of ${result.exposure.column} = ${result.exposure.level} vs ${result.exposure.reference}`} (${tables.ciLabel})`,
       nullValue: measure.nullValue, logScale: measure.ratio, points,
       caption: `The intervention's effect at chosen values of ${result.modifier.column}, from one model with a product term. ` +
         points.map((point) => point.hover).join('. ') + '.' + (tables.continuous.johnsonNeyman ? ` ${tables.continuous.johnsonNeyman}` : ''),
@@ -214,6 +216,7 @@ export function methodsParagraph(result: Result, spec: Spec, facts: BriefFacts, 
       `was fitted to ${countText(counts, 'n')} rows. Intervals are ${percentText(result.ciLevel)} % ${method} intervals; the effect measure is the ${measureWords(result)}.`,
     declared,
     examined,
+    ...doseTrendMethods(result),
     `Data: ${facts.extract.name}, version ${facts.extract.version} (SHA-256 ${facts.extract.sha256}). Engine ${facts.engineVersion}` +
       `${facts.seed !== null ? `, seed ${facts.seed}` : ''}; specification hash ${facts.specHash.slice(0, 16)}.`,
   ].join(' ');
