@@ -12,7 +12,8 @@ import {
 } from '../errors.js';
 import type { AnalysisSpec, EngineColumn, EngineData, EngineWarning } from '../types.js';
 import { markMissingRows, scanColumn } from './columnScan.js';
-import { refuseText, rowPlace, warnSuspectLevels, withoutMissingTokens } from './frameChecks.js';
+import { refuseText, rowPlace, warnDropped, warnSuspectLevels, withoutMissingTokens } from './frameChecks.js';
+import { orderByScore } from './orderedLevels.js';
 
 /** A categorical variable recoded so that code 0 is the reference level. */
 export interface CodedFactor {
@@ -260,20 +261,6 @@ function codeModifier(
   return spec.modifier.ordered === undefined ? factor : orderByScore(factor, spec.modifier.ordered.scores);
 }
 
-/** An ordered modifier's levels after the reference, in the order of their scores (unscored levels last; the trend test refuses them). */
-function orderByScore(factor: CodedFactor, scores: Readonly<Record<string, number>>): CodedFactor {
-  const score = (level: string) => (Object.prototype.hasOwnProperty.call(scores, level) ? scores[level] : Infinity);
-  const rest = factor.levels.slice(1).map((level, k) => ({ level, k: k + 1 })).sort((x, y) => score(x.level) - score(y.level) || x.k - y.k);
-  if (rest.every((entry, k) => entry.k === k + 1)) return factor;
-  const newCode = new Int32Array(factor.levels.length);
-  rest.forEach((entry, k) => (newCode[entry.k] = k + 1));
-  const codes = Int32Array.from(factor.codes, (code) => newCode[code]);
-  const counts = new Int32Array(factor.levels.length);
-  counts[0] = factor.counts[0];
-  rest.forEach((entry, k) => (counts[k + 1] = factor.counts[entry.k]));
-  return { ...factor, levels: [factor.levels[0], ...rest.map((entry) => entry.level)], codes, counts };
-}
-
 function codeCovariates(
   data: EngineData, spec: AnalysisSpec, columns: EngineColumn[], rows: Int32Array, allRows: boolean, finite: boolean[], warnings: EngineWarning[],
 ): FrameVariable[] {
@@ -282,17 +269,6 @@ function codeCovariates(
     return covariate.type === 'categorical'
       ? codeFactor(column, covariate.column, rows, covariate.reference, 'covariate', warnings, allRows)
       : numericVariable(data, column, covariate.column, rows, allRows, finite[3 + index]);
-  });
-}
-
-function warnDropped(rowCount: number, kept: number, missingByColumn: { column: string; rows: number }[], warnings: EngineWarning[]): void {
-  if (kept === rowCount) return;
-  const byColumn = missingByColumn.map((entry) => `"${entry.column}" ${entry.rows}`).join(', ');
-  warnings.push({
-    code: 'ROWS_DROPPED',
-    message:
-      `${rowCount - kept} of ${rowCount} rows have a missing value in a column the analysis uses and were left out ` +
-      `(rows missing per column: ${byColumn}; a row can be missing in more than one).`,
   });
 }
 
