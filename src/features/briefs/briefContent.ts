@@ -11,7 +11,7 @@ import type { Result, Spec } from '@/engine/boundary/schemas';
 import { RESULT_CAUTIONS } from '@/lib/cautions';
 import { MODEL_LABEL } from '../analyses/specRules';
 import { percentText } from '../analyses/specWords';
-import { formatNumber } from '../runs/resultFormat';
+import { formatNumber, intervalCell } from '../runs/resultFormat';
 import { buildResultTables } from '../runs/resultTables';
 import { briefCounts, cellId, countText, isPublished, isSmallStratum, type BriefCounts } from './briefCounts';
 import { smallCountText } from './suppression';
@@ -161,16 +161,20 @@ export function buildBriefContent(result: Result, spec: Spec, facts: BriefFacts,
 function buildPlot(result: Result, tables: ReturnType<typeof buildResultTables>, counts: BriefCounts, choice: PlotChoice): BriefPlot | null {
   if (choice === 'none') return null;
   const measure = tables.measure;
-  if (choice === 'forest' && result.modifier.type === 'categorical' && tables.joint) {
+  if (choice === 'forest' && result.modifier.type === 'categorical') {
     const points: PlotPoint[] = [];
-    for (const row of tables.joint?.rows ?? []) {
-      const { estimate, lower, upper } = row.within.effect;
+    // A dose has no joint table: its effect per unit within each level comes from the strata.
+    const within = tables.joint
+      ? tables.joint.rows.map((row) => ({ level: row.level, effect: row.within.effect }))
+      : result.strata.map((stratum) => ({ level: stratum.level, effect: intervalCell(stratum.effect, measure.kind) }));
+    for (const row of within) {
+      const { estimate, lower, upper } = row.effect;
       if (estimate === null || lower === null || upper === null) continue;
       const level = row.level;
       const smallStratum = isSmallStratum(counts, level);
       points.push({
         label: level, estimate, lower, upper, small: smallStratum,
-        hover: `${result.modifier.column} = ${level}: ${measure.name} ${row.within.effect.text}; ${countText(counts, cellId.stratum('n', level))} people` +
+        hover: `${result.modifier.column} = ${level}: ${measure.name} ${row.effect.text}; ${countText(counts, cellId.stratum('n', level))} people` +
           (smallStratum ? '; small stratum, read with caution' : ''),
       });
     }

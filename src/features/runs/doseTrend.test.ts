@@ -22,7 +22,7 @@ import { defaultDraft, formChoices, reviseDraft } from '../analyses/specForm';
 import { column } from '../analyses/testSupport';
 import { equationText, modelEquation } from '../analyses/modelEquation';
 import { computationSummary, specInWords } from '../analyses/specWords';
-import { methodsParagraph } from '../briefs/briefContent';
+import { buildBriefContent, methodsParagraph } from '../briefs/briefContent';
 import { briefCounts } from '../briefs/briefCounts';
 import { FACTS } from '../briefs/briefTestSupport';
 import { specChanges } from '../audit/auditWords';
@@ -152,6 +152,14 @@ describe('results, CSV, plot, brief and audit of a dose with an ordered modifier
     const first = figure.data[0] as { y: number[] };
     expect(first.y[0]).toBeCloseTo((result.predictions?.lines[0].points[0].estimate as number) * 100, 12);
     expect(figure.caption).toContain('Predicted values hold the covariates at stated values: age at its mean');
+  });
+
+  it('the brief\'s forest plot shows the effect per unit within each level from the strata', () => {
+    const content = buildBriefContent(result, spec, FACTS, { title: 'Dose', summary: 'Summary.', plot: 'forest', ownCautions: [] });
+    expect(content.plot?.axisLabel).toBe('odds ratio per unit of minutes (95 % CI)');
+    expect(content.plot?.points.map((point) => point.label)).toEqual(['low', 'mid', 'high']);
+    expect(content.plot?.points[2].estimate).toBe(result.strata.find((stratum) => stratum.level === 'high')?.effect.estimate);
+    expect(content.interactionTest).toContain('Test for trend across the ordered levels of frailty: Wald p');
   });
 
   it('the brief\'s methods paragraph explains the dose, the trend test and the predictions', () => {
