@@ -1,7 +1,12 @@
-import type { CodedFactor } from './analysisFrame.js';
+/** The parts of a coded factor that ordering touches (analysisFrame.ts's CodedFactor has them). */
+interface LevelCoding {
+  readonly levels: readonly string[];
+  readonly codes: Int32Array;
+  readonly counts: Int32Array;
+}
 
 /** An ordered modifier's levels after the reference, in the order of their scores (unscored levels last; the trend test refuses them). */
-export function orderByScore(factor: CodedFactor, scores: Readonly<Record<string, number>>): CodedFactor {
+export function orderByScore<T extends LevelCoding>(factor: T, scores: Readonly<Record<string, number>>): T {
   const score = (level: string) => (Object.prototype.hasOwnProperty.call(scores, level) ? scores[level] : Infinity);
   const rest = factor.levels.slice(1).map((level, k) => ({ level, k: k + 1 })).sort((x, y) => score(x.level) - score(y.level) || x.k - y.k);
   if (rest.every((entry, k) => entry.k === k + 1)) return factor;
