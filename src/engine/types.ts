@@ -86,6 +86,10 @@ export type {
   ClusteringBlock,
   RatesBlock,
   WeightsBlock,
+  ExposureType,
+  DoseBlock,
+  TrendBlock,
+  PredictionsBlock,
 } from './boundary/schemas.js';
 
 // ---------------------------------------------------------------------------------------

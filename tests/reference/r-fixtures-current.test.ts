@@ -79,4 +79,12 @@ describe.skipIf(!rscriptAvailable())('R fixtures are current', () => {
       }
     }
   });
+
+  it('make-dose-fixtures.R reproduces the dose, trend and prediction cohort and fixtures', () => {
+    const folder = mkdtempSync(join(tmpdir(), 'r-dose-fixtures-'));
+    execFileSync('Rscript', [join(referenceRoot, 'r', 'make-dose-fixtures.R'), folder], { stdio: 'ignore' });
+    expect(readFileSync(join(folder, 'cohort.csv'), 'utf8'), 'dose/cohort.csv').toBe(readFileSync(join(referenceRoot, 'dose', 'cohort.csv'), 'utf8'));
+    const made: unknown = JSON.parse(readFileSync(join(folder, 'fixtures.json'), 'utf8'));
+    expectSameWithin(made, JSON.parse(readFileSync(join(referenceRoot, 'dose', 'fixtures.json'), 'utf8')), 'dose/fixtures.json');
+  });
 });

@@ -1,9 +1,10 @@
 import type { DesignMatrix } from '../design/designMatrix.js';
 import type { ModelFit } from '../fit/fitModel.js';
 import { indicatorContrast, linearContrastInterval, type WaldReference } from '../measures/linearContrast.js';
-import type { AnalysisResult, Coefficient, OmnibusTest, PlanningBlock } from '../types.js';
+import type { AnalysisResult, Coefficient, DoseBlock, OmnibusTest, PlanningBlock, PredictionsBlock, TrendBlock } from '../types.js';
 import { ENGINE_VERSION } from '../version.js';
 import type { AdditiveInteraction } from './additiveInteraction.js';
+import { DOSE_ADDITIVE_NOTE } from './doseSlopes.js';
 import type { ContinuousModifierResults } from './continuousModifier.js';
 import type { FittedAnalysis } from './fittedAnalysis.js';
 import type { ModifierEffects } from './modifierEffects.js';
@@ -41,6 +42,9 @@ export interface StageResults {
   eValues: AnalysisResult['eValues'];
   /** Clusters, person-time rates and frequency weights (clusterRateWeightStage.ts). */
   extras: Pick<AnalysisResult, 'clustering' | 'rates' | 'weights'>;
+  dose: DoseBlock | null;
+  trend: TrendBlock | null;
+  predictions: PredictionsBlock;
 }
 
 /** The plain-JSON result (before non-finite numbers are replaced). */
@@ -67,7 +71,14 @@ export function assembleResult(analysis: FittedAnalysis, stages: StageResults): 
       events: frame.outcomeBinary || spec.outcome.type === 'count' ? stages.outcomeSum : null,
       mean: frame.outcomeBinary ? null : stages.outcomeSum / frame.n,
     },
-    exposure: { column: frame.exposureColumn, reference: frame.exposureLevels[0], level: frame.exposureLevels[1] },
+    exposure: {
+      column: frame.exposureColumn,
+      reference: frame.exposureLevels[0],
+      level: frame.exposureLevels[1],
+      type: frame.exposureValues === null ? 'binary' : 'continuous',
+      mean: stages.predictions.lines.length === 3 ? stages.predictions.lines[1].exposure : null,
+      sd: stages.predictions.lines.length === 3 ? stages.predictions.lines[2].exposure - stages.predictions.lines[1].exposure : null,
+    },
     modifier: {
       column: frame.modifier.column,
       type: frame.modifier.kind === 'categorical' ? 'categorical' : 'continuous',
@@ -110,6 +121,10 @@ export function assembleResult(analysis: FittedAnalysis, stages: StageResults): 
     standardized: stages.standardized,
     eValues: stages.eValues,
     ...stages.extras,
+    dose: stages.dose,
+    additiveNote: frame.exposureValues === null ? null : DOSE_ADDITIVE_NOTE,
+    trend: stages.trend,
+    predictions: stages.predictions,
     warnings,
   };
 }

@@ -56,6 +56,7 @@ function jointContrasts(design: DesignMatrix, level: number, summary: ModifierSu
 export function modifierEffectsStage(analysis: FittedAnalysis): ModifierEffects {
   const { frame, design, fit, summary, reference, scale, ratio, p, warnings } = analysis;
   const { coefficients, covariance } = fit;
+  const dose = frame.exposureValues !== null;
   // Counts by cell (exposure × modifier level) for strata, joint cells and warnings.
   const levelCount = frame.modifier.kind === 'categorical' ? frame.modifier.levels.length : 0;
   const jointCells = 2 * Math.max(levelCount, 1);
@@ -87,7 +88,9 @@ export function modifierEffectsStage(analysis: FittedAnalysis): ModifierEffects 
     const bh = benjaminiHochbergAdjustment(raw.map((entry) => entry.effect.p));
     strata = raw.map((entry, k) => ({ ...entry, pAdjusted: { holm: holm[k], bh: bh[k] } }));
 
-    for (let arm = 0; arm < 2; arm++) {
+    // A continuous intervention has no arms and no joint cells: the strata are its slopes
+    // per unit within each level and the ratios per level compare those slopes.
+    for (let arm = 0; arm < (dose ? 0 : 2); arm++) {
       for (let k = 1; k < levels.length; k++) {
         const indices = [design.modifierIndices[k - 1], ...(arm === 1 ? [design.productIndices[k - 1]] : [])];
         modifierEffects.push({
@@ -99,7 +102,7 @@ export function modifierEffectsStage(analysis: FittedAnalysis): ModifierEffects 
     }
 
     const cells: JointCell[] = [];
-    for (let k = 0; k < levels.length; k++) {
+    for (let k = 0; k < (dose ? 0 : levels.length); k++) {
       for (let arm = 0; arm < 2; arm++) {
         const n = cellN[2 * k + arm];
         const sum = cellSum[2 * k + arm];
@@ -138,7 +141,7 @@ export function modifierEffectsStage(analysis: FittedAnalysis): ModifierEffects 
         }
       }
     }
-    joint = { reference: { exposure: frame.exposureLevels[0], modifier: levels[0] }, cells };
+    joint = dose ? null : { reference: { exposure: frame.exposureLevels[0], modifier: levels[0] }, cells };
 
     for (let k = 1; k < levels.length; k++) {
       const product = design.productIndices[k - 1];
@@ -146,7 +149,7 @@ export function modifierEffectsStage(analysis: FittedAnalysis): ModifierEffects 
         const interaction = linearContrastInterval(coefficients, covariance, indicatorContrast(p, product), reference, 'ratio');
         multiplicative.push({ level: levels[k], estimate: interaction.estimate, lower: interaction.lower, upper: interaction.upper, p: interaction.p, se: interaction.se });
       }
-      jointByLevel.push({ level: levels[k], contrasts: jointContrasts(design, k - 1, summary, false) });
+      if (!dose) jointByLevel.push({ level: levels[k], contrasts: jointContrasts(design, k - 1, summary, false) });
     }
   } else {
     const product = design.productIndices[0];
@@ -157,7 +160,7 @@ export function modifierEffectsStage(analysis: FittedAnalysis): ModifierEffects 
         estimate: interaction.estimate, lower: interaction.lower, upper: interaction.upper, p: interaction.p, se: interaction.se,
       });
     }
-    jointByLevel.push({ level: `+1 SD of ${frame.modifier.column}`, contrasts: jointContrasts(design, 0, summary, true) });
+    if (!dose) jointByLevel.push({ level: `+1 SD of ${frame.modifier.column}`, contrasts: jointContrasts(design, 0, summary, true) });
   }
   return { strata, modifierEffects, joint, multiplicative, jointByLevel, jointCells };
 }

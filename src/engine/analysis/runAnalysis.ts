@@ -14,6 +14,9 @@ import { planningStage } from './planningStage.js';
 import { sanitizeResult } from './sanitizeResult.js';
 import { standardizedEffectsStage } from './standardizedEffectsStage.js';
 import { validateSpec } from './validateSpec.js';
+import { doseSlopes } from './doseSlopes.js';
+import { profilePredictions } from './profilePredictions.js';
+import { trendTest } from './trendTest.js';
 
 /** Above this outcome proportion an odds ratio no longer approximates a risk ratio (methods.md: "say over 10 %"). */
 const COMMON_OUTCOME = 0.1;
@@ -45,6 +48,9 @@ export async function runAnalysis(data: EngineData, spec: AnalysisSpec, options:
   const continuous = frame.modifier.kind === 'continuous' ? continuousModifierStage(analysis) : null;
   const standardized = standardizedEffectsStage(analysis);
   const eValues = eValueStage(analysis, effects.strata);
+  const dose = doseSlopes(analysis);
+  const trend = trendTest(analysis);
+  const predictions = profilePredictions(analysis);
 
   // Outcome-level warnings.
   let outcomeSum = 0;
@@ -59,7 +65,7 @@ export async function runAnalysis(data: EngineData, spec: AnalysisSpec, options:
 
   // Stratified 2 × 2 tables.
   let tables: AnalysisResult['stratifiedTables'] = null;
-  if (frame.outcomeBinary && frame.modifier.kind === 'categorical') {
+  if (frame.outcomeBinary && frame.modifier.kind === 'categorical' && frame.exposureValues === null) {
     progress('tables', 0);
     tables = stratifiedTables(frame, normalQuantile(analysis.tail), warnings);
   }
@@ -68,7 +74,7 @@ export async function runAnalysis(data: EngineData, spec: AnalysisSpec, options:
   checkCancelled(signal);
   const planning = planningStage(analysis, effects);
   const extras = clusterRateWeightStage(analysis, options.personTimeUnit ?? null);
-  const result = assembleResult(analysis, { effects, interaction, omnibus, continuous, outcomeSum, tables, bootstrap, planning, standardized, eValues, extras });
+  const result = assembleResult(analysis, { effects, interaction, omnibus, continuous, outcomeSum, tables, bootstrap, planning, standardized, eValues, extras, dose, trend, predictions });
   progress('done', 1);
   return sanitizeResult(result);
 }

@@ -13,6 +13,8 @@ export interface CheckedSpec {
   readonly standardErrors: 'model' | 'hc3' | 'robust';
   readonly effectMeasure: EffectMeasure;
   readonly targetPower: number;
+  /** A continuous intervention (dose). */
+  readonly continuousExposure: boolean;
 }
 
 const MODELS = ['logistic', 'modified-poisson', 'log-binomial', 'linear', 'poisson'];
@@ -35,7 +37,13 @@ export function validateSpec(spec: AnalysisSpec): CheckedSpec {
   if (spec.model !== 'linear' && spec.model !== 'poisson' && spec.outcome.type !== 'binary') {
     throw new InvalidSpecError(`The ${spec.model} model needs a binary outcome.`, { column: spec.outcome.column });
   }
-  if (typeof spec.exposure.reference !== 'string') throw new InvalidSpecError('exposure.reference must be a level name (a string such as "0").', { column: spec.exposure.column });
+  const exposureType = spec.exposure.type ?? 'binary';
+  if (exposureType !== 'binary' && exposureType !== 'continuous') throw new InvalidSpecError('exposure.type must be "binary" or "continuous".');
+  if (exposureType === 'binary' && typeof spec.exposure.reference !== 'string') {
+    throw new InvalidSpecError('exposure.reference must be a level name (a string such as "0").', { column: spec.exposure.column });
+  }
+  if (exposureType === 'continuous') refuseForDose(spec);
+  checkOrdered(spec);
   if (spec.modifier.type === 'categorical' && spec.modifier.reference !== undefined && typeof spec.modifier.reference !== 'string') {
     throw new InvalidSpecError('modifier.reference must be a level name.', { column: spec.modifier.column });
   }
@@ -91,5 +99,34 @@ export function validateSpec(spec: AnalysisSpec): CheckedSpec {
       throw new InvalidSpecError('modifier.centre must be "none", "mean", "median" or a number.');
     }
   }
-  return { level, alpha, method, replicates, seed, multiplicity, preventive: spec.preventive ?? false, standardErrors, effectMeasure: implied, targetPower };
+  return { level, alpha, method, replicates, seed, multiplicity, preventive: spec.preventive ?? false, standardErrors, effectMeasure: implied, targetPower, continuousExposure: exposureType === 'continuous' };
+}
+
+/**
+ * A continuous intervention has no reference level and no joint cells, so the additive
+ * measures (RERI, AP, S, the joint table) and what serves only them do not apply
+ * (shared/design/methods.md, "Rates, doses, absolute effects": additive measures need two
+ * intervention levels and do not apply).
+ */
+function refuseForDose(spec: AnalysisSpec): void {
+  const column = spec.exposure.column;
+  const why = 'applies to the additive measures (RERI, AP, S), which do not apply to a continuous intervention';
+  if (spec.ci.method === 'bootstrap') throw new InvalidSpecError(`The percentile bootstrap ${why}; use delta intervals.`, { column });
+  if (spec.ci.method === 'mover') throw new InvalidSpecError(`MOVER ${why}; use delta intervals.`, { column });
+  if (spec.preventive === true) throw new InvalidSpecError(`Preventive recoding ${why}.`, { column });
+}
+
+/** An ordered modifier must be categorical, with a finite score for each level, not all equal (shared/design/methods.md, "Rates, doses, absolute effects": trend). */
+function checkOrdered(spec: AnalysisSpec): void {
+  const ordered = spec.modifier.ordered;
+  if (ordered === undefined) return;
+  const column = spec.modifier.column;
+  if (spec.modifier.type !== 'categorical') throw new InvalidSpecError('modifier.ordered applies to a categorical modifier only.', { column });
+  const scores = ordered?.scores;
+  if (scores === null || typeof scores !== 'object') throw new InvalidSpecError('modifier.ordered needs "scores": a number for each level.', { column });
+  const values = Object.values(scores);
+  if (values.length < 2 || values.some((value) => !Number.isFinite(value))) {
+    throw new InvalidSpecError('modifier.ordered.scores must give a finite number for each level of the modifier.', { column });
+  }
+  if (values.every((value) => value === values[0])) throw new InvalidSpecError('modifier.ordered.scores must not all be equal.', { column });
 }

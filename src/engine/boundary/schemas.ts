@@ -13,6 +13,7 @@ const levelName = z.string().min(1);
 const columnName = z.string().min(1);
 const outcomeType = z.enum(['binary', 'continuous', 'count']);
 const variableType = z.enum(['categorical', 'continuous']);
+const exposureType = z.enum(['binary', 'continuous']);
 const modelFamily = z.enum(['logistic', 'modified-poisson', 'log-binomial', 'linear', 'poisson']);
 const ciMethod = z.enum(['delta', 'mover', 'bootstrap']);
 const effectMeasure = z.enum(['OR', 'RR', 'RD', 'MD']);
@@ -47,7 +48,10 @@ export const SpecSchema = z
     }),
     exposure: z.object({
       column: columnName,
-      reference: z.string().describe('Reference level; "0" for a 0/1 intervention.'),
+      type: exposureType
+        .optional()
+        .describe('Extra: "binary" (default, two levels) or "continuous" (a dose: the effect is a slope per unit; methods.md, "Rates, doses, absolute effects").'),
+      reference: z.string().optional().describe('Reference level; "0" for a 0/1 intervention. Required for a binary intervention; not used for a continuous one.'),
     }),
     modifier: z.object({
       column: columnName,
@@ -58,6 +62,10 @@ export const SpecSchema = z
         .optional()
         .describe('Extra (continuous): subtract this from the modifier before forming the product; default "none".'),
       slopesAt: slopePoints.optional().describe('Extra (continuous): where to report simple slopes; default mean and ± 1 SD.'),
+      ordered: z
+        .object({ scores: z.record(levelName, z.number()).describe('A score for every level of the modifier, from the dictionary.') })
+        .optional()
+        .describe('Extra (categorical): the modifier is ordered; the scores used by the test for trend, carried in the spec so a run is reproducible.'),
     }),
     covariates: z.array(
       z.object({
@@ -96,6 +104,7 @@ export const SpecSchema = z
 /** An analysis specification: what the form builds, the API accepts, a run snapshots and the engine reads. */
 export type Spec = z.output<typeof SpecSchema>;
 export type OutcomeType = z.output<typeof outcomeType>;
+export type ExposureType = z.output<typeof exposureType>;
 export type ModelFamily = z.output<typeof modelFamily>;
 export type CiMethod = z.output<typeof ciMethod>;
 export type EffectMeasure = z.output<typeof effectMeasure>;
@@ -313,6 +322,47 @@ const eValues = z.strictObject({
   entries: z.array(eValueEntry),
 });
 
+const slopeByLevel = z.strictObject({ level: z.string(), estimate: num, se: num, lower: num, upper: num, p: num });
+
+const doseBlock = z.strictObject({
+  scale: z.enum(['log-odds', 'log-risk', 'identity']).describe('Scale of the slopes: the model\'s linear predictor per unit of the intervention.'),
+  slopes: z.array(slopeByLevel).describe('Slope of the intervention within each level: b_A + b_{A·m}, Var = V_AA + 2V_{A,Am} + V_{Am,Am}.'),
+  differences: z.array(slopeByLevel).describe('Each level\'s slope minus the reference level\'s slope: b_{A·m}.'),
+  interval: z.enum(['z', 't']).describe('Wald intervals from the normal (GLMs) or t (linear) distribution.'),
+});
+
+const trendBlock = z.strictObject({
+  scores: z.array(z.strictObject({ level: z.string(), score: z.number() })).describe('The scores used, by level.'),
+  term: z.string().describe('The one product term of the intervention with the level scores.'),
+  estimate: num.describe('Product coefficient on the linear-predictor scale: change in the intervention\'s effect per unit of score.'),
+  se: num,
+  lower: num,
+  upper: num,
+  ratio: interval.nullable().describe('Ratio models: the coefficient and limits exponentiated (ratio of ratios per unit of score).'),
+  wald: test.describe('Wald test of the product coefficient (z² on 1 df, or t² as F on 1 and the residual df for linear models).'),
+  likelihoodRatio: test.nullable().describe('GLMs: likelihood-ratio test of the trend model against the model without product terms.'),
+});
+
+const predictionPoint = z.strictObject({
+  level: z.string().nullable().describe('Categorical modifier: the level.'),
+  x: num.describe('Continuous modifier: the value.'),
+  linearPredictor: num,
+  se: num.describe('Standard error of the linear predictor.'),
+  estimate: num.describe('On the outcome scale (risk or mean).'),
+  lower: num,
+  upper: num,
+});
+
+const predictionsBlock = z.strictObject({
+  method: z.literal('typical-values').describe('Covariates held at their means (continuous) and most common levels (categorical).'),
+  covariates: z.array(
+    z.strictObject({ column: z.string(), held: z.enum(['mean', 'most-common']), value: num, level: z.string().nullable() }),
+  ),
+  lines: z.array(
+    z.strictObject({ label: z.string(), exposure: z.number().describe('Value of the intervention term on this line.'), points: z.array(predictionPoint) }),
+  ),
+});
+
 const engineWarning = z.strictObject({
   code: z.string(),
   message: z.string(),
@@ -344,7 +394,14 @@ export const ResultSchema = z
       events: num,
       mean: num,
     }),
-    exposure: z.strictObject({ column: z.string(), reference: z.string(), level: z.string() }),
+    exposure: z.strictObject({
+      column: z.string(),
+      reference: z.string().describe('Reference level; empty for a continuous intervention.'),
+      level: z.string().describe('The level compared with the reference; empty for a continuous intervention.'),
+      type: exposureType.nullable().default(null).describe('Binary or continuous (a dose); null in results stored before continuous interventions.'),
+      mean: num.default(null).describe('Continuous intervention: mean over the analysed rows.'),
+      sd: num.default(null).describe('Continuous intervention: standard deviation over the analysed rows.'),
+    }),
     modifier: z.strictObject({
       column: z.string(),
       type: variableType,
@@ -389,6 +446,14 @@ export const ResultSchema = z
     clustering: clusteringBlock.nullable().default(null).describe('Cluster-robust variance: its name and number of clusters; null without clusters or when not recorded.'),
     rates: ratesBlock.nullable().default(null).describe('Count outcomes: crude rates per 1,000 person-time units and the overdispersion check; null otherwise or when not recorded.'),
     weights: weightsBlock.nullable().default(null).describe('Frequency weights: rows of the extract and the units they stand for; null without weights or when not recorded.'),
+    dose: doseBlock.nullable().default(null).describe('Continuous intervention and a categorical modifier: slopes per level and their differences; null otherwise.'),
+    additiveNote: z
+      .string()
+      .nullable()
+      .default(null)
+      .describe('Why the additive measures (RERI, AP, S, joint table) are not given, when they do not apply; null when they are given.'),
+    trend: trendBlock.nullable().default(null).describe('Ordered modifier: test for trend in the intervention\'s effect across the levels; null otherwise.'),
+    predictions: predictionsBlock.nullable().default(null).describe('Predicted outcome for the profile plot, with the covariate values used; null in results stored before.'),
     warnings: z.array(engineWarning),
   })
   .describe('The result of an effect-modification analysis.');
@@ -426,6 +491,9 @@ export type StandardizedLevel = z.output<typeof standardizedLevel>;
 export type StandardizedEffects = z.output<typeof standardizedEffects>;
 export type EValueEntry = z.output<typeof eValueEntry>;
 export type EValues = z.output<typeof eValues>;
+export type DoseBlock = z.output<typeof doseBlock>;
+export type TrendBlock = z.output<typeof trendBlock>;
+export type PredictionsBlock = z.output<typeof predictionsBlock>;
 
 export const ErrorSchema = z.strictObject({
   error: z.strictObject({

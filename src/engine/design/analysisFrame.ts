@@ -12,8 +12,9 @@ import {
 } from '../errors.js';
 import type { AnalysisSpec, EngineColumn, EngineData, EngineWarning } from '../types.js';
 import { markMissingRows, scanColumn } from './columnScan.js';
-import { refuseText, rowPlace, warnSuspectLevels, withoutMissingTokens } from './frameChecks.js';
+import { refuseText, rowPlace, warnDropped, warnSuspectLevels, withoutMissingTokens } from './frameChecks.js';
 import { checkCountOutcome, codeFrameExtras, extraColumnNames, type FrameExtras } from './frameExtras.js';
+import { orderByScore } from './orderedLevels.js';
 
 /** A categorical variable recoded so that code 0 is the reference level. */
 export interface CodedFactor {
@@ -50,7 +51,10 @@ export interface AnalysisFrame {
   readonly outcomeColumn: string;
   readonly outcomeBinary: boolean;
   readonly eventLevel: string | null;
+  /** 0/1 intervention codes; all 0 for a continuous intervention (use exposureValues). */
   readonly exposure: Uint8Array;
+  /** A continuous intervention (dose): its values; null for a binary one. */
+  readonly exposureValues: Float64Array | null;
   readonly exposureColumn: string;
   /** [reference, non-reference]. */
   readonly exposureLevels: readonly [string, string];
@@ -252,6 +256,25 @@ function numericVariable(
   return { kind: 'continuous', column: name, values };
 }
 
+function codeModifier(
+  data: EngineData, spec: AnalysisSpec, column: EngineColumn, rows: Int32Array, allRows: boolean, finite: boolean, warnings: EngineWarning[],
+): FrameVariable {
+  if (spec.modifier.type !== 'categorical') return numericVariable(data, column, spec.modifier.column, rows, allRows, finite);
+  const factor = codeFactor(column, spec.modifier.column, rows, spec.modifier.reference, 'modifier', warnings, allRows);
+  return spec.modifier.ordered === undefined ? factor : orderByScore(factor, spec.modifier.ordered.scores);
+}
+
+function codeCovariates(
+  data: EngineData, spec: AnalysisSpec, columns: EngineColumn[], rows: Int32Array, allRows: boolean, finite: boolean[], warnings: EngineWarning[],
+): FrameVariable[] {
+  return spec.covariates.map((covariate, index) => {
+    const column = columns[3 + index];
+    return covariate.type === 'categorical'
+      ? codeFactor(column, covariate.column, rows, covariate.reference, 'covariate', warnings, allRows)
+      : numericVariable(data, column, covariate.column, rows, allRows, finite[3 + index]);
+  });
+}
+
 /**
  * Selects the complete-case rows of the columns a specification uses and codes every
  * variable. Rows with a missing value in any used column are dropped and counted.
@@ -375,48 +398,39 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
   }
   if (constantOutcome) throw new ConstantColumnError(outcomeName);
 
-  // Exposure: exactly two levels, the reference coded 0.
+  // Exposure: exactly two levels, the reference coded 0; or a continuous dose, as is.
   const exposureColumn = columns[1];
   const exposureName = spec.exposure.column;
-  // Coded and its levels found in one pass; the checks below then run on the levels.
   const exposure = new Uint8Array(kept);
-  const exposurePresent = codeExposure(exposureColumn, spec.exposure.reference, rowIndex, allRows, exposure);
+  if (spec.exposure.type === 'continuous') {
+    const dose = numericVariable(data, exposureColumn, exposureName, rowIndex, allRows, finite[1]).values;
+    const modifier = codeModifier(data, spec, columns[2], rowIndex, allRows, finite[2], warnings);
+    const covariates = codeCovariates(data, spec, columns, rowIndex, allRows, finite, warnings);
+    warnDropped(data.rowCount, kept, missingByColumn, warnings);
+    return {
+      n: kept, dropped: data.rowCount - kept, missingByColumn, rowIndex, outcome, outcomeColumn: outcomeName, outcomeBinary, eventLevel,
+      exposure, exposureValues: dose, exposureColumn: exposureName, exposureLevels: ['', ''], modifier, covariates, warnings,
+    };
+  }
+  const reference = spec.exposure.reference ?? '';
+  // Coded and its levels found in one pass; the checks below then run on the levels.
+  const exposurePresent = codeExposure(exposureColumn, reference, rowIndex, allRows, exposure);
   const exposureDeclared = exposureColumn.kind === 'categorical' ? [...exposureColumn.levels] : exposurePresent;
-  if (!exposureDeclared.includes(spec.exposure.reference)) {
-    throw new ReferenceLevelNotFoundError(exposureName, spec.exposure.reference, exposureDeclared);
+  if (!exposureDeclared.includes(reference)) {
+    throw new ReferenceLevelNotFoundError(exposureName, reference, exposureDeclared);
   }
   if (exposurePresent.length === 1) {
-    if (exposurePresent[0] === spec.exposure.reference) throw new ConstantColumnError(exposureName);
-    throw new EmptyStratumError(exposureName, spec.exposure.reference);
+    if (exposurePresent[0] === reference) throw new ConstantColumnError(exposureName);
+    throw new EmptyStratumError(exposureName, reference);
   }
   if (exposurePresent.length !== 2) throw new ExposureNotBinaryError(exposureName, exposurePresent.length);
-  if (!exposurePresent.includes(spec.exposure.reference)) throw new EmptyStratumError(exposureName, spec.exposure.reference);
-  const exposureOther = exposurePresent.find((level) => level !== spec.exposure.reference) as string;
+  if (!exposurePresent.includes(reference)) throw new EmptyStratumError(exposureName, reference);
+  const exposureOther = exposurePresent.find((level) => level !== reference) as string;
   warnSuspectLevels(exposureName, exposurePresent, warnings);
 
-  // Modifier.
-  const modifierColumn = columns[2];
-  const modifier: FrameVariable =
-    spec.modifier.type === 'categorical'
-      ? codeFactor(modifierColumn, spec.modifier.column, rowIndex, spec.modifier.reference, 'modifier', warnings, allRows)
-      : numericVariable(data, modifierColumn, spec.modifier.column, rowIndex, allRows, finite[2]);
-
-  const covariates = spec.covariates.map((covariate, index) => {
-    const column = columns[3 + index];
-    return covariate.type === 'categorical'
-      ? codeFactor(column, covariate.column, rowIndex, covariate.reference, 'covariate', warnings, allRows)
-      : numericVariable(data, column, covariate.column, rowIndex, allRows, finite[3 + index]);
-  });
-
-  if (kept < data.rowCount) {
-    const byColumn = missingByColumn.map((entry) => `"${entry.column}" ${entry.rows}`).join(', ');
-    warnings.push({
-      code: 'ROWS_DROPPED',
-      message:
-        `${data.rowCount - kept} of ${data.rowCount} rows have a missing value in a column the analysis uses and were left out ` +
-        `(rows missing per column: ${byColumn}; a row can be missing in more than one).`,
-    });
-  }
+  const modifier = codeModifier(data, spec, columns[2], rowIndex, allRows, finite[2], warnings);
+  const covariates = codeCovariates(data, spec, columns, rowIndex, allRows, finite, warnings);
+  warnDropped(data.rowCount, kept, missingByColumn, warnings);
 
   return {
     n: kept,
@@ -428,8 +442,9 @@ export function buildAnalysisFrame(data: EngineData, spec: AnalysisSpec): Analys
     outcomeBinary,
     eventLevel,
     exposure,
+    exposureValues: null,
     exposureColumn: exposureName,
-    exposureLevels: [spec.exposure.reference, exposureOther],
+    exposureLevels: [reference, exposureOther],
     modifier,
     covariates,
     warnings,

@@ -57,6 +57,12 @@ export interface DesignOptions {
   readonly centre: number;
   /** Allocate the row arrays on SharedArrayBuffers so worker threads can read them. */
   readonly shared?: boolean;
+  /**
+   * Ordered categorical modifier: one product term, intervention × score of the row's level
+   * (score by level code, reference first), instead of one product per level (the test for
+   * trend; methods.md, "Rates, doses, absolute effects").
+   */
+  readonly trendScores?: Float64Array;
 }
 
 /** Cells are capped so that the per-cell accumulators stay small and dense. */
@@ -180,7 +186,10 @@ function variableTerms(variable: FrameVariable, role: TermRole): DesignTerm[] {
  */
 export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions): DesignMatrix {
   const shared = options.shared ?? false;
-  const exposureName = `${frame.exposureColumn}=${frame.exposureLevels[1]}`;
+  // A continuous intervention (dose) is a free term named by its column; its products too.
+  const dose = frame.exposureValues;
+  const exposureName = dose !== null ? frame.exposureColumn : `${frame.exposureColumn}=${frame.exposureLevels[1]}`;
+  const trendScores = frame.modifier.kind === 'categorical' ? (options.trendScores ?? null) : null;
   const terms: DesignTerm[] = [
     { name: '(Intercept)', role: 'intercept', column: null, level: null },
     { name: exposureName, role: 'exposure', column: frame.exposureColumn, level: frame.exposureLevels[1] },
@@ -189,7 +198,10 @@ export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions):
   const modifierIndices = modifierTerms.map((_, k) => 2 + k);
   terms.push(...modifierTerms);
   const productIndices: number[] = [];
-  if (options.includeProducts) {
+  if (options.includeProducts && trendScores !== null) {
+    productIndices.push(terms.length);
+    terms.push({ name: `${exposureName} × score(${frame.modifier.column})`, role: 'product', column: frame.modifier.column, level: null });
+  } else if (options.includeProducts) {
     for (const term of modifierTerms) {
       productIndices.push(terms.length);
       terms.push({ name: `${exposureName} × ${term.name}`, role: 'product', column: term.column, level: term.level });
@@ -224,7 +236,8 @@ export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions):
     readonly column: Float64Array | null;
   }
   const cellFactors: CellFactor[] = [];
-  let cellCount = 2;
+  const exposureRadix = dose !== null ? 1 : 2;
+  let cellCount = exposureRadix;
   if (modifier.kind === 'categorical') {
     cellFactors.push({ codes: modifier.codes, levels: modifier.levels.length, covariate: -1, values: null, column: null });
     cellCount *= modifier.levels.length;
@@ -247,10 +260,10 @@ export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions):
   });
   const isCellTerm = new Uint8Array(p);
   isCellTerm[0] = 1;
-  isCellTerm[1] = 1;
+  isCellTerm[1] = dose !== null ? 0 : 1;
   if (modifier.kind === 'categorical') {
     for (const index of modifierIndices) isCellTerm[index] = 1;
-    for (const index of productIndices) isCellTerm[index] = 1;
+    if (dose === null) for (const index of productIndices) isCellTerm[index] = 1;
   }
   frame.covariates.forEach((covariate, index) => {
     if (!covariateInCell[index]) return;
@@ -271,8 +284,8 @@ export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions):
 
   // Cell index: mixed radix over (exposure, cell factors...), exposure fastest.
   const cellOfRow = allocateInt(rows, shared);
-  for (let i = 0; i < rows; i++) cellOfRow[i] = frame.exposure[i];
-  let radix = 2;
+  if (dose === null) for (let i = 0; i < rows; i++) cellOfRow[i] = frame.exposure[i];
+  let radix = exposureRadix;
   for (const { codes, levels, values, column } of cellFactors) {
     if (codes !== null) {
       for (let i = 0; i < rows; i++) cellOfRow[i] += radix * codes[i];
@@ -286,10 +299,10 @@ export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions):
   const cellValues = new Float64Array(cellCount * q);
   for (let cell = 0; cell < cellCount; cell++) {
     const base = cell * q;
-    const exposure = cell % 2;
-    let rest = Math.floor(cell / 2);
+    const exposure = cell % exposureRadix;
+    let rest = Math.floor(cell / exposureRadix);
     cellValues[base + cellPosition[0]] = 1;
-    cellValues[base + cellPosition[1]] = exposure;
+    if (dose === null) cellValues[base + cellPosition[1]] = exposure;
     for (const { levels, covariate, values } of cellFactors) {
       const code = rest % levels;
       rest = Math.floor(rest / levels);
@@ -300,7 +313,10 @@ export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions):
       if (code === 0) continue;
       if (covariate < 0) {
         cellValues[base + cellPosition[modifierIndices[code - 1]]] = 1;
-        if (productIndices.length > 0 && exposure === 1) cellValues[base + cellPosition[productIndices[code - 1]]] = 1;
+        if (dose === null && productIndices.length > 0 && exposure === 1) {
+          if (trendScores !== null) cellValues[base + cellPosition[productIndices[0]]] = trendScores[code];
+          else cellValues[base + cellPosition[productIndices[code - 1]]] = 1;
+        }
       } else {
         cellValues[base + cellPosition[covariateStarts[covariate] + code - 1]] = 1;
       }
@@ -310,6 +326,7 @@ export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions):
   // Free terms, row-major. Continuous covariates are copied in one pass over the rows,
   // filling each row's slots together (one sweep of the buffer instead of one per column).
   const free = allocateFloat(rows * r, shared);
+  if (dose !== null) fillDoseTerms(free, r, dose, frame, freePosition, productIndices, trendScores);
   if (modifier.kind === 'continuous') {
     const mainPosition = freePosition[modifierIndices[0]];
     const productPosition = productIndices.length > 0 ? freePosition[productIndices[0]] : -1;
@@ -317,7 +334,7 @@ export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions):
     for (let i = 0; i < rows; i++) {
       const value = values[i] - centre;
       free[i * r + mainPosition] = value;
-      if (productPosition >= 0) free[i * r + productPosition] = frame.exposure[i] * value;
+      if (productPosition >= 0) free[i * r + productPosition] = (dose !== null ? dose[i] : frame.exposure[i]) * value;
     }
   }
   const copied: Float64Array[] = [];
@@ -355,6 +372,31 @@ export function buildDesignMatrix(frame: AnalysisFrame, options: DesignOptions):
     centre,
     offset: frame.extras?.offset ?? null,
   };
+}
+
+/**
+ * A continuous intervention's free terms: the dose, and with a categorical modifier its
+ * products dose × indicator of each non-reference level (or dose × the level's score for
+ * the trend design). Products with a continuous modifier are written by the caller.
+ */
+function fillDoseTerms(
+  free: Float64Array, r: number, dose: Float64Array, frame: AnalysisFrame, freePosition: Int32Array,
+  productIndices: readonly number[], trendScores: Float64Array | null,
+): void {
+  const exposurePosition = freePosition[1];
+  for (let i = 0; i < dose.length; i++) free[i * r + exposurePosition] = dose[i];
+  if (frame.modifier.kind !== 'categorical' || productIndices.length === 0) return;
+  const codes = frame.modifier.codes;
+  if (trendScores !== null) {
+    const position = freePosition[productIndices[0]];
+    for (let i = 0; i < dose.length; i++) free[i * r + position] = dose[i] * trendScores[codes[i]];
+    return;
+  }
+  const positions = productIndices.map((index) => freePosition[index]);
+  for (let i = 0; i < dose.length; i++) {
+    const code = codes[i];
+    if (code > 0) free[i * r + positions[code - 1]] = dose[i];
+  }
 }
 
 /** Writes row i of X (all p terms, in term order) into `out`. For the slower passes. */

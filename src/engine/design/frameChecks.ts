@@ -66,3 +66,15 @@ export function warnSuspectLevels(name: string, levels: readonly string[], warni
     });
   }
 }
+
+/** The ROWS_DROPPED warning, with the rows missing per column, when any row was left out. */
+export function warnDropped(rowCount: number, kept: number, missingByColumn: { column: string; rows: number }[], warnings: EngineWarning[]): void {
+  if (kept === rowCount) return;
+  const byColumn = missingByColumn.map((entry) => `"${entry.column}" ${entry.rows}`).join(', ');
+  warnings.push({
+    code: 'ROWS_DROPPED',
+    message:
+      `${rowCount - kept} of ${rowCount} rows have a missing value in a column the analysis uses and were left out ` +
+      `(rows missing per column: ${byColumn}; a row can be missing in more than one).`,
+  });
+}

@@ -5,6 +5,7 @@
  */
 import { Field, Section, type SectionProps } from './formFields';
 import type { SpecDraft } from './specForm';
+import { doseRefusal } from './doseRules';
 import { CI_METHOD_LABEL, MODEL_LABEL, MULTIPLICITY_LABEL, measureLabel } from './specRules';
 
 export function IntervalOptions({ spec, choices, fieldId, shownError, changeSpec }: SectionProps) {
@@ -33,7 +34,7 @@ export function IntervalOptions({ spec, choices, fieldId, shownError, changeSpec
             </select>
           )}
         </Field>
-        <Field id={fieldId('ci.method')} label="Interval method" error={shownError('ci.method')} hint={spec.model === 'linear' ? undefined : 'Applies to RERI, AP and S; ratios use Wald intervals.'}>
+        <Field id={fieldId('ci.method')} label="Interval method" error={shownError('ci.method')} hint={spec.exposure.type === 'continuous' ? 'A dose has Wald (delta) intervals only: the bootstrap and MOVER serve the additive measures, which do not apply to it.' : spec.model === 'linear' ? undefined : 'Applies to RERI, AP and S; ratios use Wald intervals.'}>
           {(describedBy, invalid) => (
             <select id={fieldId('ci.method')} className="field-input" value={spec.ciMethod} aria-describedby={describedBy} aria-invalid={invalid} onChange={(e) => changeSpec({ ciMethod: e.target.value as SpecDraft['ciMethod'] }, 'ci.method')}>
               {choices.ciMethods.map((method) => (
@@ -81,9 +82,10 @@ export function IntervalOptions({ spec, choices, fieldId, shownError, changeSpec
         </Field>
       </div>
       <label className="flex items-start gap-2.5 text-sm" htmlFor={fieldId('preventive')}>
-        <input id={fieldId('preventive')} type="checkbox" className="mt-1" checked={spec.preventive} onChange={(e) => changeSpec({ preventive: e.target.checked }, 'preventive')} />
+        <input id={fieldId('preventive')} type="checkbox" className="mt-1" checked={spec.preventive} disabled={spec.exposure.type === 'continuous' && !spec.preventive} onChange={(e) => changeSpec({ preventive: e.target.checked }, 'preventive')} />
         <span>
           <span className="font-semibold">The intervention prevents the outcome</span>: recode each comparison so that the lowest-risk combination is the reference for RERI, AP and S.
+          {spec.exposure.type === 'continuous' && <span className="block text-xs text-ink-500">Not available: {doseRefusal('preventive')}</span>}
         </span>
       </label>
       <div>
@@ -99,6 +101,7 @@ export function IntervalOptions({ spec, choices, fieldId, shownError, changeSpec
           </p>
         )}
       </div>
+      {shownError('preventive') && <p className="field-error">{shownError('preventive')}</p>}
     </Section>
   );
 }

@@ -2,6 +2,7 @@
  * The analysis form's modifier: its column and reference level, or, for a continuous
  * modifier, the centring and where the effect is reported.
  */
+import { scoresText } from '../extracts/orderedScores';
 import type { FormColumn } from './formColumns';
 import { ColumnOptions, Field, LevelSelect, Section, type SectionProps } from './formFields';
 import { DEFAULT_PERCENTILES, type SpecDraft } from './specForm';
@@ -25,6 +26,19 @@ export function ModifierSection({ spec, choices, fieldId, shownError, changeSpec
           </Field>
         )}
       </div>
+      {choices.modifierScores && (
+        <div className="text-sm" data-testid="ordered-modifier">
+          <p className="text-ink-700">
+            The dictionary declares {spec.modifier.column} ordered, with scores {scoresText(choices.modifierScores)}.
+          </p>
+          <label className="flex items-start gap-2.5 mt-1" htmlFor={fieldId('modifier.trend')}>
+            <input id={fieldId('modifier.trend')} type="checkbox" className="mt-1" checked={spec.modifier.trend} onChange={(e) => changeSpec({ modifier: { ...spec.modifier, trend: e.target.checked } }, 'modifier.trend')} />
+            <span>
+              <span className="font-semibold">Test for trend</span>: one product term of the intervention with these scores, reported beside the omnibus test. The scores are saved with the analysis.
+            </span>
+          </label>
+        </div>
+      )}
       {choices.modifierType === 'continuous' && (
         <div className="grid gap-4 md:grid-cols-2">
           <Field

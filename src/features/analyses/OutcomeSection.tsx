@@ -43,19 +43,39 @@ export function OutcomeSection({ spec, choices, fieldId, shownError, changeSpec,
           </Field>
         )}
       </div>
+      <div role="radiogroup" aria-labelledby={`${fieldId('exposure.type')}-label`}>
+        <p id={`${fieldId('exposure.type')}-label`} className="field-label">
+          Kind of intervention
+        </p>
+        <div className="flex flex-wrap gap-4 text-sm">
+          {(['binary', 'continuous'] as const).map((type) => (
+            <label key={type} className="flex items-center gap-2">
+              <input type="radio" name={fieldId('exposure.type')} value={type} checked={spec.exposure.type === type} onChange={() => changeSpec({ exposure: { ...spec.exposure, type } }, 'exposure.type')} />
+              {type === 'binary' ? 'Given or not (two levels)' : 'A dose (minutes, number of calls …)'}
+            </label>
+          ))}
+        </div>
+        {spec.exposure.type === 'continuous' && (
+          <p className="text-xs text-ink-500 mt-1" data-testid="dose-note">
+            The effect is a slope per unit of the dose within each level of the modifier. The additive measures (RERI, AP, S and the joint table) need two intervention levels and do not apply; the bootstrap, MOVER and preventive recoding, which serve them, are not offered.
+          </p>
+        )}
+      </div>
       <div className="grid gap-4 md:grid-cols-2">
-        <Field id={fieldId('exposure.column')} label="Intervention" error={shownError('exposure.column')} hint="A column with two levels: with and without the intervention.">
+        <Field id={fieldId('exposure.column')} label="Intervention" error={shownError('exposure.column')} hint={spec.exposure.type === 'continuous' ? 'A continuous or count column: the amount of intervention each patient had.' : 'A column with two levels: with and without the intervention.'}>
           {(describedBy, invalid) => (
             <select id={fieldId('exposure.column')} className="field-input" value={spec.exposure.column} aria-describedby={describedBy} aria-invalid={invalid} onChange={(e) => changeSpec({ exposure: { ...spec.exposure, column: e.target.value } }, 'exposure.column')}>
               <ColumnOptions choices={choices.interventions} placeholder="Choose a column" />
             </select>
           )}
         </Field>
+        {spec.exposure.type === 'binary' && (
         <Field id={fieldId('exposure.reference')} label="Reference level of the intervention" error={shownError('exposure.reference')} hint="Usually the level without the intervention.">
           {(describedBy, invalid) => (
             <LevelSelect id={fieldId('exposure.reference')} value={spec.exposure.reference} levels={choices.exposureReferences} placeholder={choices.exposureReferences.length === 0 ? 'Choose the intervention first' : 'Choose a level'} disabled={choices.exposureReferences.length === 0} describedBy={describedBy} invalid={invalid} onChange={(value) => changeSpec({ exposure: { ...spec.exposure, reference: value } }, 'exposure.reference')} />
           )}
         </Field>
+        )}
       </div>
     </Section>
   );

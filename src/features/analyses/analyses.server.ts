@@ -11,6 +11,7 @@ import { recordAudit } from '../audit/audit.server';
 import { levelsLeftIn } from '../extracts/engineData';
 import type { ColumnProfile, DictionaryEntry } from '../extracts/extracts.schema';
 import type { AnalysisBody } from './analysisApi.schema';
+import { doseProblems, orderedProblems } from './doseRules';
 import { specRuleProblems } from './specRules';
 
 export interface Actor {
@@ -99,12 +100,19 @@ export function checkSpecAgainstDictionary(spec: Spec, dictionary: readonly Dict
   if (spec.outcome.personTime !== undefined) need('spec.outcome.personTime', spec.outcome.personTime, ['continuous', 'count'], 'person-time');
   if (spec.cluster !== undefined) need('spec.cluster.column', spec.cluster.column, ['binary', 'categorical', 'count'], 'cluster column');
   if (spec.weights !== undefined) need('spec.weights.column', spec.weights.column, ['count'], 'frequency-weights column');
-  need('spec.exposure.column', spec.exposure.column, ['binary', 'categorical'], 'intervention');
-  reference('spec.exposure.reference', spec.exposure.column, spec.exposure.reference);
+  if (spec.exposure.type === 'continuous') {
+    need('spec.exposure.column', spec.exposure.column, ['continuous', 'count'], 'continuous intervention (a dose)');
+    problems.push(...doseProblems(spec));
+  } else {
+    need('spec.exposure.column', spec.exposure.column, ['binary', 'categorical'], 'intervention');
+    reference('spec.exposure.reference', spec.exposure.column, spec.exposure.reference);
+  }
   if (spec.modifier.type === 'categorical') {
     need('spec.modifier.column', spec.modifier.column, ['binary', 'categorical', 'count'], 'categorical modifier');
     reference('spec.modifier.reference', spec.modifier.column, spec.modifier.reference);
+    problems.push(...orderedProblems(spec, entry(spec.modifier.column)?.ordered?.scores ?? null, levels(spec.modifier.column)));
   } else {
+    problems.push(...orderedProblems(spec, null, null));
     need('spec.modifier.column', spec.modifier.column, ['continuous', 'count'], 'continuous modifier');
   }
   const used = new Set([spec.outcome.column, spec.exposure.column, spec.modifier.column]);

@@ -19,6 +19,8 @@ export interface FormColumn {
   levelsTruncated: boolean;
   /** Summary of a numeric column (null for text columns). */
   numeric: { min: number; max: number; mean: number; sd: number | null; median: number } | null;
+  /** Scores of an ordered categorical column, from the dictionary (null when not ordered). */
+  ordered?: Record<string, number> | null;
 }
 
 /** Joins the confirmed dictionary with the column profile (levels, numeric summary). */
@@ -35,6 +37,7 @@ export function formColumns(dictionary: readonly DictionaryEntry[], profile: rea
       numeric: column?.numeric
         ? { min: column.numeric.min, max: column.numeric.max, mean: column.numeric.mean, sd: column.numeric.sd, median: column.numeric.median }
         : null,
+      ...(entry.ordered ? { ordered: entry.ordered.scores } : {}),
     };
   });
 }

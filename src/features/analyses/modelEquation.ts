@@ -68,12 +68,18 @@ export function modelEquation(spec: Spec, columns: readonly FormColumn[]): Model
   let next = 1;
 
   const exposureLevels = byName.get(spec.exposure.column)?.levels ?? null;
-  const exposureOther = exposureLevels?.find((level) => level !== spec.exposure.reference) ?? '1';
-  const exposureFactor: EquationFactor = isZeroOne(exposureLevels, spec.exposure.reference)
+  const exposureReference = spec.exposure.reference ?? '';
+  const exposureOther = exposureLevels?.find((level) => level !== exposureReference) ?? '1';
+  const dose = spec.exposure.type === 'continuous';
+  const exposureFactor: EquationFactor = dose || isZeroOne(exposureLevels, exposureReference)
     ? { kind: 'variable', column: spec.exposure.column }
     : { kind: 'indicator', column: spec.exposure.column, level: exposureOther };
   terms.push({ role: 'intervention', coefficient: next++, factors: [exposureFactor] });
-  notes.push(`${spec.exposure.column}: reference level ${spec.exposure.reference}.`);
+  notes.push(
+    dose
+      ? `${spec.exposure.column} is a continuous dose: β1 is its slope per unit in the modifier's reference level, and each product term changes that slope.`
+      : `${spec.exposure.column}: reference level ${exposureReference}.`,
+  );
 
   let modifierFactors: EquationFactor[];
   if (spec.modifier.type === 'categorical') {
@@ -82,6 +88,11 @@ export function modelEquation(spec: Spec, columns: readonly FormColumn[]): Model
     if (isZeroOne(levels, reference)) modifierFactors = [{ kind: 'variable', column: spec.modifier.column }];
     else modifierFactors = factorTerms(spec.modifier.column, reference, levels).factors;
     notes.push(`${spec.modifier.column}: reference level ${reference}.`);
+    const ordered = spec.modifier.ordered?.scores;
+    if (ordered) {
+      const scores = Object.entries(ordered).sort((a, b) => a[1] - b[1]).map(([level, score]) => `${level} ${score}`).join(' · ');
+      notes.push(`Test for trend: a second fit replaces the product terms with one term ${spec.exposure.column}×score(${spec.modifier.column}), scores ${scores}.`);
+    }
   } else {
     const centre = spec.modifier.centre ?? 'none';
     modifierFactors = [{ kind: 'variable', column: spec.modifier.column, ...(centre === 'none' ? {} : { centre }) }];

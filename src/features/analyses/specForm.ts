@@ -24,7 +24,8 @@ export const DEFAULT_PERCENTILES = '10, 25, 50, 75, 90';
 export interface SpecDraft {
   /** personTime: the person-time column of a count outcome ('' for none). */
   outcome: { type: OutcomeType; column: string; event: string; personTime?: string };
-  exposure: { column: string; reference: string };
+  /** type: a binary intervention (two levels, one the reference) or a continuous one (a dose). */
+  exposure: { column: string; reference: string; type: 'binary' | 'continuous' };
   modifier: {
     column: string;
     reference: string;
@@ -33,6 +34,8 @@ export interface SpecDraft {
     slopes: SlopeChoice;
     /** Comma-separated percentiles, or values each with an optional name ("3 = mild, 5 = moderate"). */
     slopeList: string;
+    /** An ordered modifier (scores in the dictionary): add the test for trend with those scores. */
+    trend: boolean;
   };
   covariates: string[];
   /** Reference level of each categorical covariate, by column. */
@@ -73,8 +76,8 @@ export function defaultDraft(): AnalysisDraft {
     prespecified: false,
     spec: {
       outcome: { type: 'binary', column: '', event: '', personTime: '' },
-      exposure: { column: '', reference: '' },
-      modifier: { column: '', reference: '', centre: 'none', centreValue: '', slopes: 'percentiles', slopeList: DEFAULT_PERCENTILES },
+      exposure: { column: '', reference: '', type: 'binary' },
+      modifier: { column: '', reference: '', centre: 'none', centreValue: '', slopes: 'percentiles', slopeList: DEFAULT_PERCENTILES, trend: true },
       covariates: [],
       covariateReferences: {},
       model: 'logistic',
@@ -111,8 +114,10 @@ export interface FormChoices {
   outcomes: ColumnChoice[];
   /** Event levels of a binary outcome stored as text (empty for 0/1 outcomes). */
   eventLevels: string[];
-  /** Binary or categorical columns; those without exactly two levels are disabled. */
+  /** Binary intervention: binary or categorical columns (those without exactly two levels disabled); continuous: continuous or count columns. */
   interventions: ColumnChoice[];
+  /** Scores of the chosen modifier when the dictionary declares it ordered, else null. */
+  modifierScores: Record<string, number> | null;
   exposureReferences: string[];
   /** Every analysable column other than the outcome and the intervention. */
   modifiers: ColumnChoice[];
@@ -147,18 +152,22 @@ export function formChoices(columns: readonly FormColumn[], draft: SpecDraft): F
   const outcomeTypes = outcomeColumnTypes(draft.outcome.type);
   const used = new Set([draft.outcome.column, draft.exposure.column, draft.modifier.column].filter(Boolean));
 
-  const interventions = columns
-    .filter((column) => (column.type === 'binary' || column.type === 'categorical') && column.name !== draft.outcome.column)
-    .map((column) => {
-      const count = column.levels?.length ?? 0;
-      return choice(column, count === 2 && !column.levelsTruncated ? undefined : `needs exactly two levels (has ${column.levelsTruncated ? 'many' : count})`);
-    });
+  const interventions =
+    draft.exposure.type === 'continuous'
+      ? columns.filter((column) => (column.type === 'continuous' || column.type === 'count') && column.name !== draft.outcome.column).map((column) => choice(column))
+      : columns
+          .filter((column) => (column.type === 'binary' || column.type === 'categorical') && column.name !== draft.outcome.column)
+          .map((column) => {
+            const count = column.levels?.length ?? 0;
+            return choice(column, count === 2 && !column.levelsTruncated ? undefined : `needs exactly two levels (has ${column.levelsTruncated ? 'many' : count})`);
+          });
 
   return {
     outcomes: columns.filter((column) => outcomeTypes.includes(column.type)).map((column) => choice(column)),
     eventLevels: draft.outcome.type === 'binary' && needsEventLevel(outcome) ? naturalOrder(outcome?.levels ?? []) : [],
     interventions,
-    exposureReferences: exposure?.levels ? naturalOrder(exposure.levels) : [],
+    exposureReferences: draft.exposure.type === 'binary' && exposure?.levels ? naturalOrder(exposure.levels) : [],
+    modifierScores: modifier && entryKind(modifier.type) === 'categorical' ? (modifier.ordered ?? null) : null,
     modifiers: columns
       .filter((column) => column.name !== draft.outcome.column && column.name !== draft.exposure.column)
       .map((column) => choice(column, column.type === 'categorical' && column.levelsTruncated ? 'has too many levels to compare; band it first' : undefined)),
@@ -169,7 +178,8 @@ export function formChoices(columns: readonly FormColumn[], draft: SpecDraft): F
       .map((column) => ({ ...choice(column), levels: column.levels ? naturalOrder(column.levels) : null, kind: entryKind(column.type) })),
     models: MODELS.map((value) => withReason(value, modelRefusal(draft.outcome.type, value))),
     measures: MEASURES.map((value) => withReason(value, measureRefusal(draft.outcome.type, draft.model, value))),
-    ciMethods: ['delta', 'mover', 'bootstrap'],
+    // MOVER and the bootstrap serve the additive measures, which a continuous intervention does not have.
+    ciMethods: draft.exposure.type === 'continuous' ? ['delta'] : ['delta', 'mover', 'bootstrap'],
     extras: extrasChoices(columns, [draft.outcome.column, draft.exposure.column, draft.modifier.column]),
   };
 }
@@ -202,8 +212,15 @@ export function reviseDraft(columns: readonly FormColumn[], draft: SpecDraft, ch
   if (change.outcome?.column !== undefined && change.outcome.column !== draft.outcome.column && change.outcome.event === undefined) {
     next.outcome.event = '';
   }
+  // A new kind of intervention clears a column of the other kind.
+  if (next.exposure.type !== draft.exposure.type) {
+    const column = byName.get(next.exposure.column);
+    const fits = column !== undefined && (next.exposure.type === 'continuous' ? column.type === 'continuous' || column.type === 'count' : column.type === 'binary' || column.type === 'categorical');
+    if (!fits) next.exposure.column = '';
+    if (next.exposure.type === 'continuous') next.exposure.reference = '';
+  }
   // A new column keeps the reference given with it only when that is one of its levels.
-  if (next.exposure.column !== draft.exposure.column) {
+  if (next.exposure.column !== draft.exposure.column && next.exposure.type === 'binary') {
     const levels = byName.get(next.exposure.column)?.levels ?? null;
     if (!levels?.includes(next.exposure.reference)) next.exposure.reference = defaultReference(levels);
   }
@@ -237,7 +254,7 @@ export function specToDraft(spec: Spec, columns: readonly FormColumn[]): SpecDra
   return {
     ...base,
     outcome: { type: spec.outcome.type, column: spec.outcome.column, event: spec.outcome.event ?? '', personTime: spec.outcome.personTime ?? '' },
-    exposure: { ...spec.exposure },
+    exposure: { column: spec.exposure.column, reference: spec.exposure.reference ?? '', type: spec.exposure.type ?? 'binary' },
     modifier: {
       column: spec.modifier.column,
       reference: spec.modifier.reference ?? '',
@@ -250,6 +267,7 @@ export function specToDraft(spec: Spec, columns: readonly FormColumn[]): SpecDra
           : slopes.kind === 'values'
             ? slopes.values.map((value, index) => (slopes.names?.[index] ? `${value} = ${slopes.names[index]}` : String(value))).join(', ')
             : '',
+      trend: spec.modifier.type === 'categorical' ? spec.modifier.ordered !== undefined || !byName.get(spec.modifier.column)?.ordered : true,
     },
     covariates: spec.covariates.map((covariate) => covariate.column),
     covariateReferences,

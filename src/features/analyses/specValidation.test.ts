@@ -32,7 +32,7 @@ describe('validation', () => {
   });
 
   it('refuses an intervention without two levels and simple-slope values outside the observed range', () => {
-    const bad = reviseDraft(CALL_BACK, callBackDraft(), { exposure: { column: 'site', reference: '' } });
+    const bad = reviseDraft(CALL_BACK, callBackDraft(), { exposure: { column: 'site', reference: '', type: 'binary' } });
     const result = draftToSpec(CALL_BACK, bad);
     expect(!result.ok && result.errors['exposure.column']).toBe('The intervention needs exactly two levels; site has 3.');
     const draft = callBackDraft();

@@ -8,6 +8,7 @@ import { entryKind, needsEventLevel, type FormColumn } from './formColumns';
 import type { AnalysisDraft, SpecDraft } from './specForm';
 import { clusterColumnRefusal, personTimeColumnRefusal, weightsColumnRefusal } from './extrasRules';
 import { specRuleProblems } from './specRules';
+import { doseRefusal } from './doseRules';
 
 /** Messages by field path ("title", "modifier.reference", "ci.replicates", "covariates.site.reference"). */
 export type FieldErrors = Record<string, string>;
@@ -71,13 +72,18 @@ export function draftToSpec(columns: readonly FormColumn[], draft: SpecDraft): C
   const eventNeeded = outcome !== undefined && draft.outcome.type === 'binary' && needsEventLevel(outcome);
   if (eventNeeded && !outcome.levels?.includes(draft.outcome.event)) errors['outcome.event'] = 'Choose the level that counts as the event.';
 
+  const dose = draft.exposure.type === 'continuous';
   if (!exposure) errors['exposure.column'] = 'Choose the intervention.';
   else if (exposure.name === outcome?.name) errors['exposure.column'] = 'The intervention cannot also be the outcome.';
-  else if (exposure.type !== 'binary' && exposure.type !== 'categorical') errors['exposure.column'] = `${exposure.name} is not binary or categorical.`;
+  else if (dose) {
+    if (exposure.type !== 'continuous' && exposure.type !== 'count') errors['exposure.column'] = `${exposure.name} is not a continuous or count column; a dose needs numbers.`;
+    if (draft.ciMethod === 'bootstrap' || draft.ciMethod === 'mover') errors['ci.method'] = doseRefusal(draft.ciMethod);
+    if (draft.preventive) errors.preventive = doseRefusal('preventive');
+  } else if (exposure.type !== 'binary' && exposure.type !== 'categorical') errors['exposure.column'] = `${exposure.name} is not binary or categorical.`;
   else if ((exposure.levels?.length ?? 0) !== 2 || exposure.levelsTruncated) {
     errors['exposure.column'] = `The intervention needs exactly two levels; ${exposure.name} has ${exposure.levelsTruncated ? 'many' : (exposure.levels?.length ?? 0)}.`;
   }
-  if (exposure && !errors['exposure.column'] && !exposure.levels?.includes(draft.exposure.reference)) {
+  if (!dose && exposure && !errors['exposure.column'] && !exposure.levels?.includes(draft.exposure.reference)) {
     errors['exposure.reference'] = 'Choose the reference level (usually "no intervention").';
   }
 
@@ -193,10 +199,10 @@ export function draftToSpec(columns: readonly FormColumn[], draft: SpecDraft): C
       ...(eventNeeded ? { event: draft.outcome.event } : {}),
       ...(personTime !== undefined ? { personTime } : {}),
     },
-    exposure: { column: draft.exposure.column, reference: draft.exposure.reference },
+    exposure: dose ? { column: draft.exposure.column, type: 'continuous' } : { column: draft.exposure.column, reference: draft.exposure.reference },
     modifier:
       modifierType === 'categorical'
-        ? { column: draft.modifier.column, type: 'categorical', reference: draft.modifier.reference }
+        ? { column: draft.modifier.column, type: 'categorical', reference: draft.modifier.reference, ...orderedScores(modifier, draft) }
         : { column: draft.modifier.column, type: 'continuous', centre, slopesAt },
     covariates,
     model: draft.model,
@@ -223,6 +229,13 @@ export function draftToSpec(columns: readonly FormColumn[], draft: SpecDraft): C
     return { ok: false, errors: schemaErrors };
   }
   return { ok: true, spec: parsed.data };
+}
+
+/** An ordered modifier's dictionary scores for the levels it has, when the test for trend is asked for. */
+function orderedScores(modifier: FormColumn | undefined, draft: SpecDraft): { ordered?: { scores: Record<string, number> } } {
+  const scores = modifier?.ordered;
+  if (!scores || !draft.modifier.trend || !modifier.levels) return {};
+  return { ordered: { scores: Object.fromEntries(modifier.levels.filter((level) => level in scores).map((level) => [level, scores[level]])) } };
 }
 
 /** Validation messages of the whole form (the words and the specification). */

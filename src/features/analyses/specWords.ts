@@ -5,6 +5,7 @@
 import type { Spec } from '@/engine/boundary/schemas';
 import { defaultReference, levelsFromReference, type FormColumn } from './formColumns';
 import { ordinal } from '@/engine/analysis/pointLabels';
+import { scoresText } from '../extracts/orderedScores';
 import { CI_METHOD_LABEL, DEFAULT_REPLICATES, DEFAULT_SEED, MODEL_LABEL, MULTIPLICITY_LABEL, isRatioModel, measureFor, measureLabel } from './specRules';
 
 /** How a column is named in prose: its short description where it has one, else its name. */
@@ -54,7 +55,7 @@ export function specInWords(spec: Spec, context: WordsContext = {}): string {
       : `its product with ${label(spec.modifier.column)} as a continuous modifier${centre === 'none' ? '' : ` centred on ${typeof centre === 'number' ? centre : `its ${centre}`}`}`;
   const covariates = spec.covariates.map((covariate) => label(covariate.column));
   parts.push(
-    `${model} of ${outcome} on ${label(spec.exposure.column)} (reference ${spec.exposure.reference}), ${modifierPart}, ${covariates.length > 0 ? `adjusted for ${listInWords(covariates)}` : 'with no adjustment for other covariates'}`,
+    `${model} of ${outcome} on ${label(spec.exposure.column)} ${spec.exposure.type === 'continuous' ? '(a continuous dose: slopes per unit)' : `(reference ${spec.exposure.reference})`}, ${modifierPart}, ${covariates.length > 0 ? `adjusted for ${listInWords(covariates)}` : 'with no adjustment for other covariates'}`,
   );
   const measure = spec.effectMeasure ?? measureFor(spec.model, spec.outcome.type);
   parts.push(`effects as ${measureLabel(measure, spec.outcome.type)}s`);
@@ -74,6 +75,8 @@ export function specInWords(spec: Spec, context: WordsContext = {}): string {
   } else {
     parts.push(`the effect across ${label(spec.modifier.column)}, marked at ${slopesInWords(spec.modifier.slopesAt ?? { kind: 'sd' })}, with Johnson-Neyman boundaries`);
   }
+  if (spec.modifier.ordered) parts.push(`a test for trend across the ordered levels of ${label(spec.modifier.column)} (scores ${scoresText(spec.modifier.ordered.scores)})`);
+  if (spec.exposure.type === 'continuous') parts.push('additive measures not applicable to a continuous intervention');
   if (spec.preventive) parts.push('additive measures recoded for a preventive intervention');
   if (spec.standardize) parts.push('standardized risks, risk differences and numbers needed to treat within each level');
   return `${parts.join('; ')}.`;
@@ -135,11 +138,12 @@ export function computationSummary(spec: Spec, columns: readonly FormColumn[]): 
     const ordered = levels.length > 0 ? levelsFromReference(levels, reference) : [];
     const others = ordered.slice(1);
     const k = ordered.length;
+    const dose = spec.exposure.type === 'continuous';
     items.push({
-      title: 'Effect within each stratum',
-      detail: `The ${measureName} of ${spec.exposure.column} within each of ${k > 0 ? `the ${k} levels` : 'the levels'} of ${spec.modifier.column}${ordered.length > 0 ? ` (${ordered.join(', ')})` : ''}, with ${level} intervals and ${MULTIPLICITY_LABEL[spec.multiplicity ?? 'holm']}-adjusted p-values.`,
+      title: dose ? 'Slope within each stratum' : 'Effect within each stratum',
+      detail: `The ${dose ? `slope per unit (${measureName} per unit)` : measureName} of ${spec.exposure.column} within each of ${k > 0 ? `the ${k} levels` : 'the levels'} of ${spec.modifier.column}${ordered.length > 0 ? ` (${ordered.join(', ')})` : ''}, with ${level} intervals and ${MULTIPLICITY_LABEL[spec.multiplicity ?? 'holm']}-adjusted p-values.`,
     });
-    items.push({
+    if (!dose) items.push({
       title: 'Joint effects',
       detail: `${k > 0 ? `All ${2 * k}` : 'All'} combinations of ${spec.exposure.column} and ${spec.modifier.column} against one reference (${spec.exposure.column} = ${spec.exposure.reference}, ${spec.modifier.column} = ${reference}), with counts.`,
     });
@@ -147,9 +151,16 @@ export function computationSummary(spec: Spec, columns: readonly FormColumn[]): 
       title: 'Interaction on the multiplicative scale',
       detail: ratio
         ? `The ratio of ${measureName}s for each of ${others.length > 0 ? others.join(', ') : 'the other levels'} against ${reference}, and an omnibus ${spec.model === 'modified-poisson' || spec.cluster || spec.standardErrors === 'robust' ? 'robust Wald' : 'likelihood-ratio'} test of all product terms together.`
-        : `The difference in differences for each level against ${reference}, and an omnibus F test of all product terms together.`,
+        : `The difference in ${dose ? 'slopes' : 'differences'} for each level against ${reference}, and an omnibus F test of all product terms together.`,
     });
-    if (ratio) {
+    if (spec.modifier.ordered) {
+      items.push({
+        title: 'Test for trend',
+        detail: `One product term of ${spec.exposure.column} with the scores of ${spec.modifier.column} (${scoresText(spec.modifier.ordered.scores)}): its Wald test${ratio && spec.model !== 'modified-poisson' ? ' and likelihood-ratio test' : ''}, beside the omnibus test.`,
+      });
+    }
+    if (dose) items.push({ title: 'Additive measures', detail: 'Not computed: RERI, AP, S and the joint table need two intervention levels and do not apply to a dose.' });
+    if (ratio && !dose) {
       items.push({
         title: 'Interaction on the additive scale',
         detail: `RERI, AP, AP* and S for each level against ${reference}, with ${CI_METHOD_LABEL[spec.ci.method]} intervals${spec.preventive ? ', each recoded so that the lowest-risk combination is the reference' : ''}.`,
@@ -161,7 +172,7 @@ export function computationSummary(spec: Spec, columns: readonly FormColumn[]): 
         detail: `Within each level of ${spec.modifier.column}, the mean predicted risk with and without ${spec.exposure.column} over that level's patients, the risk difference with its delta-method interval, the number needed to treat (or to harm), and each level's difference from ${reference}'s.`,
       });
     }
-    if (spec.outcome.type === 'binary') {
+    if (spec.outcome.type === 'binary' && !dose) {
       items.push({ title: 'Crude cross-check', detail: 'The 2 × 2 table of each level without covariates, the crude test that the effect is the same in every level (for odds and risk ratios) set beside the adjusted model\'s test, and the Mantel-Haenszel estimate pooled over the levels.' });
     }
   } else {
@@ -176,7 +187,9 @@ export function computationSummary(spec: Spec, columns: readonly FormColumn[]): 
     });
     items.push({
       title: 'Interaction',
-      detail: ratio
+      detail: spec.exposure.type === 'continuous'
+        ? `The change in the slope of ${spec.exposure.column} per unit of ${spec.modifier.column}; an omnibus test of the product term. Additive measures do not apply to a dose.`
+        : ratio
         ? `The ratio of ${measureName}s per unit of ${spec.modifier.column}; RERI, AP and S for one standard deviation above the mean; an omnibus test of the product term.`
         : `The change in the mean difference per unit of ${spec.modifier.column} and for one standard deviation above the mean; an F test of the product term.`,
     });
@@ -188,6 +201,10 @@ export function computationSummary(spec: Spec, columns: readonly FormColumn[]): 
       detail: `${(spec.ci.replicates ?? DEFAULT_REPLICATES).toLocaleString('en-GB')} resamples with seed ${spec.ci.seed ?? DEFAULT_SEED}; each refits the model, so this step takes the longest. The same seed reproduces the same intervals.`,
     });
   }
+  items.push({
+    title: 'Predicted outcome',
+    detail: 'For the profile plot, with continuous covariates held at their means and categorical ones at their most common level; the plot and the download say so.',
+  });
   items.push({ title: 'Power', detail: `The smallest interaction these data could detect with ${percentText(spec.planning?.power ?? 0.8)} % power, and the power for an interaction ${spec.planning?.interaction === undefined ? 'as large as the main effect' : 'of the size set here'}.` });
   return items;
 }

@@ -27,6 +27,7 @@ const SPEC_FIELD: Record<string, string> = {
   'weights.column': 'frequency-weights column',
   'exposure.column': 'intervention',
   'exposure.reference': 'intervention reference level',
+  'exposure.type': 'kind of intervention (binary or a continuous dose)',
   'modifier.column': 'modifier',
   'modifier.type': 'modifier type',
   'modifier.reference': 'modifier reference level',
@@ -105,7 +106,9 @@ export function specChanges(before: unknown, after: unknown): string[] {
     const a = old.get(path);
     const b = now.get(path);
     if (JSON.stringify(a ?? null) === JSON.stringify(b ?? null)) continue;
-    const name = SPEC_FIELD[path.replace(/^spec\./, '')] ?? path.replace(/^spec\./, '');
+    const local = path.replace(/^spec\./, '');
+    const score = /^modifier\.ordered\.scores\.(.+)$/.exec(local);
+    const name = score ? `trend score of modifier level ${score[1]}` : (SPEC_FIELD[local] ?? local);
     changes.push(`the ${name} from ${specValue(a)} to ${specValue(b)}`);
   }
   return changes;
@@ -149,7 +152,8 @@ const PHRASES: Record<string, Phrase> = {
   'extract.upload-cancelled': () => 'cancelled an upload',
   'extract.confirmed': (d) => {
     const missing = isObject(d.missingValues) ? Object.keys(d.missingValues) : [];
-    return `confirmed version ${num(d.version) ?? '?'} of the extract${text(d.signedName) ? `, attested by ${text(d.signedName)}` : ''}${d.corrected === true ? ', with corrected column types' : ''}${missing.length ? `; missing-value codes for ${missing.join(', ')}` : ''}${regimeWords(d)}`;
+    const ordered = isObject(d.ordered) ? Object.keys(d.ordered) : [];
+    return `confirmed version ${num(d.version) ?? '?'} of the extract${text(d.signedName) ? `, attested by ${text(d.signedName)}` : ''}${d.corrected === true ? ', with corrected column types' : ''}${missing.length ? `; missing-value codes for ${missing.join(', ')}` : ''}${ordered.length ? `; ordered with scores: ${ordered.join(', ')}` : ''}${regimeWords(d)}`;
   },
   'extract.archived': () => 'archived the extract',
   'extract.restored': () => 'restored the extract',

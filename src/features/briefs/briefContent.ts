@@ -6,13 +6,14 @@
  * threshold − 1. The key table follows Knol and VanderWeele (Int J Epidemiol
  * 2012;41:514-520) through the results page's own builder (buildResultTables).
  */
+import { doseSlopeRows, doseTrendMethods, trendSentence } from './briefDoseTrend';
 import type { Result, Spec } from '@/engine/boundary/schemas';
 import { RESULT_CAUTIONS } from '@/lib/cautions';
 import { dateTimeInWords } from '@/lib/dates';
 import { MODEL_LABEL } from '../analyses/specRules';
 import { percentText } from '../analyses/specWords';
 import { personTimeUnit, varianceName } from '../runs/clusterRateWeightView';
-import { formatNumber } from '../runs/resultFormat';
+import { formatNumber, intervalCell } from '../runs/resultFormat';
 import { buildResultTables } from '../runs/resultTables';
 import { absoluteMethodsSentences, briefAbsolute, briefEValues, type BriefAbsolute, type BriefEValues } from './briefAbsolute';
 import { briefCounts, cellId, countText, isPublished, isSmallStratum, type BriefCounts } from './briefCounts';
@@ -132,8 +133,11 @@ export function buildBriefContent(result: Result, spec: Spec, facts: BriefFacts,
       }),
     };
   }
-  const slopes = tables.continuous ? tables.continuous.slopes.map((slope) => ({ label: slope.label, at: slope.at.text, effect: slope.effect.text, p: slope.p.text })) : null;
-  const omnibus = `${tables.omnibus.label}: ${tables.omnibus.statistic.text} on ${tables.omnibus.df}, p ${tables.omnibus.p.text.startsWith('<') ? tables.omnibus.p.text : `= ${tables.omnibus.p.text}`}.`;
+  const slopes = tables.continuous
+    ? tables.continuous.slopes.map((slope) => ({ label: slope.label, at: slope.at.text, effect: slope.effect.text, p: slope.p.text }))
+    : doseSlopeRows(result)?.map((row) => ({ at: '', ...row })) ?? null;
+  const omnibus = `${tables.omnibus.label}: ${tables.omnibus.statistic.text} on ${tables.omnibus.df}, p ${tables.omnibus.p.text.startsWith('<') ? tables.omnibus.p.text : `= ${tables.omnibus.p.text}`}.` +
+    trendSentence(result) + (result.additiveNote ? ` ${result.additiveNote}` : '');
 
   return {
     title: input.title.trim(),
@@ -174,20 +178,24 @@ function buildPlot(result: Result, tables: ReturnType<typeof buildResultTables>,
   const measure = tables.measure;
   if (choice === 'forest' && result.modifier.type === 'categorical') {
     const points: PlotPoint[] = [];
-    for (const row of tables.joint?.rows ?? []) {
-      const { estimate, lower, upper } = row.within.effect;
+    // A dose has no joint table: its effect per unit within each level comes from the strata.
+    const within = tables.joint
+      ? tables.joint.rows.map((row) => ({ level: row.level, effect: row.within.effect }))
+      : result.strata.map((stratum) => ({ level: stratum.level, effect: intervalCell(stratum.effect, measure.kind) }));
+    for (const row of within) {
+      const { estimate, lower, upper } = row.effect;
       if (estimate === null || lower === null || upper === null) continue;
       const level = row.level;
       const smallStratum = isSmallStratum(counts, level);
       points.push({
         label: level, estimate, lower, upper, small: smallStratum,
-        hover: `${result.modifier.column} = ${level}: ${measure.name} ${row.within.effect.text}; ${countText(counts, cellId.stratum('n', level))} people` +
+        hover: `${result.modifier.column} = ${level}: ${measure.name} ${row.effect.text}; ${countText(counts, cellId.stratum('n', level))} people` +
           (smallStratum ? '; small stratum, read with caution' : ''),
       });
     }
     return {
       kind: 'forest', title: `The intervention's effect within each stratum of ${result.modifier.column}`,
-      axisLabel: `${measure.name} of ${result.exposure.column} = ${result.exposure.level} vs ${result.exposure.reference} (${tables.ciLabel})`,
+      axisLabel: `${measure.name} ${result.exposure.type === 'continuous' ? `per unit of ${result.exposure.column}` : `of ${result.exposure.column} = ${result.exposure.level} vs ${result.exposure.reference}`} (${tables.ciLabel})`,
       nullValue: measure.nullValue, logScale: measure.ratio, points,
       caption: `Each row is a stratum of ${result.modifier.column}: the point is the ${measure.name} within it and the line its ${tables.ciLabel}. ` +
         points.map((point) => point.hover).join('. ') + '.',
@@ -201,7 +209,7 @@ function buildPlot(result: Result, tables: ReturnType<typeof buildResultTables>,
     });
     return {
       kind: 'modifier', title: `The intervention's effect across ${result.modifier.column}`,
-      axisLabel: `${measure.name} of ${result.exposure.column} = ${result.exposure.level} vs ${result.exposure.reference} (${tables.ciLabel})`,
+      axisLabel: `${measure.name} ${result.exposure.type === 'continuous' ? `per unit of ${result.exposure.column}` : `of ${result.exposure.column} = ${result.exposure.level} vs ${result.exposure.reference}`} (${tables.ciLabel})`,
       nullValue: measure.nullValue, logScale: measure.ratio, points,
       caption: `The intervention's effect at the marked points of ${result.modifier.column}, from one model with a product term. ` +
         points.map((point) => point.hover).join('. ') + '.' + (tables.continuous.johnsonNeyman ? ` ${tables.continuous.johnsonNeyman}` : ''),
@@ -229,6 +237,7 @@ export function methodsParagraph(result: Result, spec: Spec, facts: BriefFacts, 
     declared,
     examined,
     ...absoluteMethodsSentences(result),
+    ...doseTrendMethods(result),
     `Data: ${facts.extract.name}, version ${facts.extract.version} (SHA-256 ${facts.extract.sha256}). Engine ${facts.engineVersion}` +
       `${facts.seed !== null ? `, seed ${facts.seed}` : ''}; specification hash ${facts.specHash.slice(0, 16)}.`,
   ].join(' ');

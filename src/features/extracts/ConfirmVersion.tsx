@@ -8,6 +8,7 @@ import { ApiError, apiFetch } from '@/lib/client/api';
 import { QueryRoot } from '@/components/ui/QueryRoot';
 import { HydratedFieldset } from '@/components/ui/HydratedFieldset';
 import type { AnalysableColumnType } from './extracts.schema';
+import { parseScores } from './orderedScores';
 
 interface ColumnChoice {
   name: string;
@@ -36,7 +37,8 @@ const TYPE_LABEL: Record<AnalysableColumnType, string> = {
 };
 
 function Confirm({ extractId, versionId, columns, statement, signerName }: Props) {
-  const [entries, setEntries] = useState(() => columns.map((c) => ({ name: c.name, type: c.inferredType, description: '', missing: '', unit: '' })));
+  const [entries, setEntries] = useState(() => columns.map((c) => ({ name: c.name, type: c.inferredType, description: '', missing: '', unit: '', order: '' })));
+  const unreadable = entries.map((entry) => (entry.type === 'categorical' && parseScores(entry.order) === null ? 'Write the scores as level = number, separated by commas, e.g. low = 1, mid = 2, high = 3.' : null));
   const [signedName, setSignedName] = useState('');
   const [agreed, setAgreed] = useState(false);
   const confirm = useMutation({
@@ -45,7 +47,10 @@ function Confirm({ extractId, versionId, columns, statement, signerName }: Props
         method: 'POST',
         body: {
           attestation: { signedName },
-          columns: entries.map(({ missing, unit, ...entry }) => ({ ...entry, missingValues: splitCodes(missing), ...(unit.trim() ? { unit: unit.trim() } : {}) })),
+          columns: entries.map(({ missing, unit, order, ...entry }) => {
+            const scores = entry.type === 'categorical' ? parseScores(order) : null;
+            return { ...entry, missingValues: splitCodes(missing), ...(unit.trim() ? { unit: unit.trim() } : {}), ...(scores && Object.keys(scores).length > 0 ? { ordered: { scores } } : {}) };
+          }),
         },
       }),
     onSuccess: () => window.location.reload(),
@@ -53,16 +58,17 @@ function Confirm({ extractId, versionId, columns, statement, signerName }: Props
   const error = confirm.error instanceof ApiError ? confirm.error : null;
   const submit = (event: SyntheticEvent) => {
     event.preventDefault();
-    if (agreed && signedName.trim()) confirm.mutate();
+    if (agreed && signedName.trim() && unreadable.every((problem) => problem === null)) confirm.mutate();
   };
   return (
     <form onSubmit={submit} className="card p-5" aria-labelledby="confirm-heading" noValidate>
       <HydratedFieldset>
       <h2 id="confirm-heading" className="text-lg">Confirm the data dictionary</h2>
       <p className="text-sm text-ink-700 mt-1">Check the type Crossgrain inferred for each column, correct it where it is wrong, and describe what the column holds. Analyses offer columns by these types.</p>
+      <p className="text-sm text-ink-700 mt-1">A categorical column whose levels have an order (such as frailty low, mid, high) can be declared ordered under “Order scores”: give every level a score, e.g. low = 1, mid = 2, high = 3. An analysis with it as the modifier then adds a test for trend in the intervention's effect across the levels, using these scores.</p>
       <p className="text-sm text-ink-700 mt-1">Empty fields and NA, N/A, NULL, “.”, “-” and NaN (in any letter case) are always read as missing. Under “Also missing”, list further codes that mean “not known” in a column, separated by commas (such as 999 or unknown); analyses of this version leave those rows out.</p>
       <table className="data-table w-full text-sm mt-4">
-        <thead><tr><th>Column</th><th>What we saw</th><th>Type</th><th>Description</th><th>Also missing</th></tr></thead>
+        <thead><tr><th>Column</th><th>What we saw</th><th>Type</th><th>Description</th><th>Also missing</th><th>Order scores</th></tr></thead>
         <tbody>
           {entries.map((entry, index) => (
             <tr key={entry.name}>
@@ -99,6 +105,15 @@ function Confirm({ extractId, versionId, columns, statement, signerName }: Props
                 <input aria-label={`Further missing-value codes of ${entry.name}`} className="field-input" value={entry.missing} placeholder="e.g. 999, unknown"
                   onChange={(e) => setEntries((all) => all.map((x, i) => (i === index ? { ...x, missing: e.target.value } : x)))} />
                 {error?.fieldMessage(`columns.${index}.missingValues`) && <p className="field-error">{error.fieldMessage(`columns.${index}.missingValues`)}</p>}
+              </td>
+              <td>
+                {entry.type === 'categorical' ? (
+                  <>
+                    <input aria-label={`Order scores of ${entry.name}`} className="field-input" value={entry.order} placeholder="e.g. low = 1, mid = 2" aria-invalid={unreadable[index] !== null}
+                      onChange={(e) => setEntries((all) => all.map((x, i) => (i === index ? { ...x, order: e.target.value } : x)))} />
+                    {(unreadable[index] ?? error?.fieldMessage(`columns.${index}.ordered`)) && <p className="field-error">{unreadable[index] ?? error?.fieldMessage(`columns.${index}.ordered`)}</p>}
+                  </>
+                ) : <span className="text-xs text-ink-500">Categorical columns only</span>}
               </td>
             </tr>
           ))}

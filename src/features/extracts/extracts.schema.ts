@@ -140,6 +140,12 @@ export const DictionaryEntry = z.object({
     .optional(),
   /** Unit of a numeric column (such as "bed-days" for person-time), shown with rates per 1,000 units. */
   unit: z.string().trim().max(40, 'Keep a unit under 40 characters.').optional(),
+  /**
+   * A categorical column whose levels are ordered: a score for every level (such as
+   * low 1, mid 2, high 3). Analyses with it as the modifier add a test for trend, and
+   * carry these scores in their specification.
+   */
+  ordered: z.object({ scores: z.record(z.string().min(1), z.number().finite()) }).optional(),
 });
 export type DictionaryEntry = z.infer<typeof DictionaryEntry>;
 

@@ -12,6 +12,7 @@ import { recordAudit } from '../audit/audit.server';
 import { encodeColumn } from './columnStore';
 import { isMissingToken } from '@/engine/design/missingValues';
 import { levelsLeftIn, missingCodeKey } from './engineData';
+import { declaredOrder } from './orderedScores';
 import type { ReadExtract } from './extracts';
 import type { ColumnProfile, DictionaryEntry, KeptColumn } from './extracts.schema';
 import type { Finding } from './identifierFindings';
@@ -335,6 +336,7 @@ export async function confirmVersion(
       versionId, version: version.versionNumber, sha256: version.sha256, signedName: body.attestation.signedName, corrected: Boolean(body.columns),
       privacyRegime: env.CROSSGRAIN_PRIVACY_REGIME,
       missingValues: Object.fromEntries(dictionary.filter((d) => (d.missingValues ?? []).length > 0).map((d) => [d.name, d.missingValues])),
+      ordered: Object.fromEntries(dictionary.filter((d) => d.ordered).map((d) => [d.name, d.ordered?.scores])),
     },
   });
 }
@@ -372,7 +374,8 @@ export function buildDictionary(profile: ColumnProfile[], columns?: DictionaryEn
       problems.push({ path: `columns.${index}.type`, message: `“${p.name}” has ${distinct} distinct values, so it cannot be binary.` });
     }
     const unit = entry.unit?.trim();
-    return { name: p.name, type: entry.type, description: entry.description ?? '', missingValues, ...(unit ? { unit } : {}) };
+    const ordered = declaredOrder(p, entry, missingValues, `columns.${index}.ordered`, problems);
+    return { name: p.name, type: entry.type, description: entry.description ?? '', missingValues, ...(unit ? { unit } : {}), ...(ordered ? { ordered } : {}) };
   });
   if (problems.length) throw unprocessable('dictionary-invalid', problems[0].message, problems);
   return dictionary;

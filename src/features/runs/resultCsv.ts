@@ -11,6 +11,7 @@ import { specInWords } from '../analyses/specWords';
 import { absoluteRows, eValueRows } from './absoluteCsv';
 import { personTimeUnit, varianceName } from './clusterRateWeightView';
 import { displayLevels, measureInfo, type MeasureInfo } from './resultFormat';
+import { doseTrendCsvRows } from './doseTrendCsv';
 import { multiplicityNote, OMNIBUS_LABEL } from './resultWords';
 import { effectRangeInWords } from './continuousWords';
 
@@ -84,7 +85,7 @@ function withinStratumRows({ result, measure, levels, exposure }: CsvContext): C
     rows.push({
       section: 'within-stratum',
       level,
-      measure: `${measure.code} of ${exposure} = ${result.exposure.level} vs ${result.exposure.reference}`,
+      measure: result.exposure.type === 'continuous' ? `${measure.code} per unit of ${exposure}` : `${measure.code} of ${exposure} = ${result.exposure.level} vs ${result.exposure.reference}`,
       estimate: stratum.effect.estimate,
       lower: stratum.effect.lower,
       upper: stratum.effect.upper,
@@ -227,6 +228,7 @@ export function resultCsv(result: Result, spec: Spec): string {
     ...absoluteRows(result, context.levels),
     ...modifierWithinArmRows(context),
     ...interactionRows(context),
+    ...doseTrendCsvRows(result).map((row): CsvRow => row),
     ...stratifiedRows(context),
     ...continuousRows(context),
     ...varianceRateRows(context),

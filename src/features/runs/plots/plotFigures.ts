@@ -7,6 +7,7 @@
 import type { PlotInput } from './plotInput';
 import { percentText } from '@/features/analyses/specWords';
 import { displayLevels, fixed, formatInterval, formatNumber, measureInfo, modifierDecimals } from '../resultFormat';
+import { predictionNote } from '../doseTrendView';
 
 /** Our palette (src/styles/global.css), as plotly needs literal colours. */
 export const PLOT_COLOURS = {
@@ -86,6 +87,7 @@ export function nullLine(orientation: 'vertical' | 'horizontal', value: number):
 
 /** "odds ratio of call_back = 1 against 0" */
 function effectName(result: PlotInput): string {
+  if (result.exposure.type === 'continuous') return `${measureInfo(result).name} per unit of ${result.exposure.column}`;
   return `${measureInfo(result).name} of ${result.exposure.column} = ${result.exposure.level} against ${result.exposure.reference}`;
 }
 
@@ -187,23 +189,13 @@ export function stratumForestFigure(result: PlotInput): PlotFigure {
   return { title: `Effect of ${result.exposure.column} by ${result.modifier.column}`, caption, data, layout };
 }
 
-/** Inverse link: the linear predictor to the outcome scale. */
-function inverseLink(link: PlotInput['model']['link'], eta: number): number {
-  if (link === 'logit') return 1 / (1 + Math.exp(-eta));
-  if (link === 'log') return Math.exp(eta);
-  return eta;
-}
-
-function coefficient(result: PlotInput, term: string): number | null {
-  return result.model.coefficients.find((entry) => entry.term === term)?.estimate ?? null;
-}
-
 /**
  * Profile plot: the outcome by modifier level, one line per arm. Categorical modifiers
- * use the joint cells' observed proportions (or means); continuous modifiers draw the
- * model's predicted outcome for each arm across the observed range, with the adjustment
- * covariates at their reference levels (continuous covariates at 0), marking the chosen
- * simple-slope values.
+ * with a binary intervention use the joint cells' observed proportions (or means);
+ * otherwise the lines are the engine's predictions (result.predictions): the model's
+ * predicted outcome per arm (or at the dose's mean and ± 1 SD) across the modifier, with
+ * the covariates held at the values the result states (continuous at their means,
+ * categorical at their most common level), marking the chosen simple-slope values.
  */
 export function profileFigure(result: PlotInput): PlotFigure {
   const binary = result.outcome.type === 'binary';
@@ -248,44 +240,64 @@ export function profileFigure(result: PlotInput): PlotFigure {
       `${listed}. Lines that are not parallel suggest that the intervention's effect differs between levels on the ${binary ? 'risk-difference' : 'mean-difference'} scale.`;
     return { title: `${binary ? 'Observed risk' : 'Observed mean'} by ${result.modifier.column} and arm`, caption, data, layout };
   }
+  return predictedProfileFigure(result);
+}
 
-  // Continuous modifier: predictions from the fitted coefficients.
-  const exposureTerm = `${result.exposure.column}=${result.exposure.level}`;
-  const modifierTerm = result.modifier.column;
-  const intercept = coefficient(result, '(Intercept)') ?? 0;
-  const b1 = coefficient(result, exposureTerm) ?? 0;
-  const bm = coefficient(result, modifierTerm) ?? 0;
-  const b3 = coefficient(result, `${exposureTerm} × ${modifierTerm}`) ?? 0;
-  const centre = result.modifier.centre ?? 0;
-  const observed = result.modifier.observed ?? [0, 1];
-  const grid = Array.from({ length: 41 }, (_, k) => observed[0] + ((observed[1] - observed[0]) * k) / 40);
-  const predict = (x: number, arm: number) => inverseLink(result.model.link, intercept + bm * (x - centre) + arm * (b1 + b3 * (x - centre)));
+/** Inverse link: the linear predictor to the outcome scale. */
+function inverseLink(link: PlotInput['model']['link'], eta: number): number {
+  if (link === 'logit') return 1 / (1 + Math.exp(-eta));
+  if (link === 'log') return Math.exp(eta);
+  return eta;
+}
+
+type PredictedLine = NonNullable<PlotInput['predictions']>['lines'][number];
+
+/**
+ * A predicted line's value at modifier value x: the linear predictor is linear in x along
+ * a line (the covariates and the intervention held), so it is read off exactly from the
+ * line's first and last points and mapped through the inverse link.
+ */
+function lineAt(line: PredictedLine, link: PlotInput['model']['link'], x: number): number | null {
+  const first = line.points[0];
+  const last = line.points[line.points.length - 1];
+  if (first.x === null || last.x === null || first.linearPredictor === null || last.linearPredictor === null || last.x === first.x) return null;
+  return inverseLink(link, first.linearPredictor + ((last.linearPredictor - first.linearPredictor) * (x - first.x)) / (last.x - first.x));
+}
+
+/** The profile plot drawn from the engine's predictions at stated covariate values. */
+function predictedProfileFigure(result: PlotInput): PlotFigure {
+  const binary = result.outcome.type === 'binary';
+  const outcomeColumn = result.outcome.column;
+  const predictions = result.predictions;
   const scale = binary ? 100 : 1;
-  const slopes = result.slopes ?? [];
-  const data: PlotTrace[] = [];
-  arms.forEach((arm, index) => {
-    data.push({
-      type: 'scatter',
-      mode: 'lines',
-      name: armName(arm),
-      x: grid,
-      y: grid.map((x) => predict(x, index) * scale),
-      line: { color: colours[index], width: 2.5, dash: index === 0 ? 'dash' : 'solid' },
-      hovertemplate: `${armName(arm)}, ${modifierTerm} %{x:.1f}: %{y:.2f}<extra></extra>`,
-    });
-  });
+  const categorical = result.modifier.type === 'categorical';
+  const lines = predictions?.lines ?? [];
+  const colours = lines.length === 2 ? [PLOT_COLOURS.control, PLOT_COLOURS.intervention] : [PLOT_COLOURS.control, PLOT_COLOURS.pooled, PLOT_COLOURS.intervention];
+  const slopes = categorical ? [] : (result.slopes ?? []);
+  const data: PlotTrace[] = lines.map((line, index) => ({
+    type: 'scatter',
+    mode: categorical ? 'lines+markers' : 'lines',
+    name: line.label,
+    x: line.points.map((point) => (categorical ? point.level : point.x)),
+    y: line.points.map((point) => (point.estimate === null ? null : point.estimate * scale)),
+    line: { color: colours[index % colours.length], width: 2.5, dash: index === 0 ? 'dash' : 'solid' },
+    hovertemplate: `${line.label}, ${result.modifier.column} %{x}: %{y:.2f}<extra></extra>`,
+  }));
   if (slopes.length > 0) {
-    arms.forEach((arm, index) => {
+    lines.forEach((line, index) => {
       data.push({
         type: 'scatter',
         mode: 'markers',
-        name: `${armName(arm)} at the chosen values`,
+        name: `${line.label} at the chosen values`,
         showlegend: false,
         x: slopes.map((slope) => slope.at),
-        y: slopes.map((slope) => predict(slope.at, index) * scale),
-        marker: { color: colours[index], size: 9, symbol: index === 0 ? 'circle-open' : 'circle' },
+        y: slopes.map((slope) => {
+          const value = lineAt(line, result.model.link, slope.at);
+          return value === null ? null : value * scale;
+        }),
+        marker: { color: colours[index % colours.length], size: 9, symbol: index === 0 ? 'circle-open' : 'circle' },
         text: slopes.map((slope) => slope.label),
-        hovertemplate: `${armName(arm)}, %{text}: %{y:.2f}<extra></extra>`,
+        hovertemplate: `${line.label}, %{text}: %{y:.2f}<extra></extra>`,
       });
     });
   }
@@ -293,15 +305,20 @@ export function profileFigure(result: PlotInput): PlotFigure {
   const layout = {
     ...baseLayout(),
     height: 360,
-    xaxis: axis(result.modifier.column),
+    xaxis: axis(result.modifier.column, categorical ? { type: 'category' } : {}),
     yaxis: axis(yTitle),
   };
+  const observed = result.modifier.observed ?? [0, 1];
   const decimals = modifierDecimals(observed);
-  const listed = slopes
-    .map((slope) => `${slope.label} (${fixed(slope.at, decimals)}): ${arms.map((arm, index) => `${armName(arm)} ${fixed(predict(slope.at, index) * scale, 2)}`).join(', ')}`)
-    .join('; ');
+  const listed = categorical
+    ? lines.map((line) => `${line.label}: ${line.points.map((point) => `${point.level} ${fixed(point.estimate === null ? null : point.estimate * scale, 2)}`).join(', ')}`).join('; ')
+    : slopes
+        .map((slope) => `${slope.label} (${fixed(slope.at, decimals)}): ${lines.map((line) => { const value = lineAt(line, result.model.link, slope.at); return `${line.label} ${fixed(value === null ? null : value * scale, 2)}`; }).join(', ')}`)
+        .join('; ');
+  const held = predictionNote(result) ?? 'This result was made before the engine recorded predictions at stated covariate values; re-run the analysis to draw the predicted lines.';
+  const where = categorical ? `in each level of ${result.modifier.column}` : `across ${result.modifier.column} from ${fixed(observed[0], decimals)} to ${fixed(observed[1], decimals)}`;
   const caption =
-    `Profile plot of the model's predicted ${binary ? 'proportion with the outcome (%)' : outcomeColumn} across ${result.modifier.column} from ${fixed(observed[0], decimals)} to ${fixed(observed[1], decimals)}, one line per arm, ` +
-    `with the adjustment covariates at their reference levels (continuous covariates at 0). ${listed ? `${listed}. ` : ''}The gap between the lines is the intervention's effect; lines that are not parallel show that it changes with ${result.modifier.column}.`;
-  return { title: `Predicted ${outcomeColumn} across ${result.modifier.column}`, caption, data, layout };
+    `Profile plot of the model's predicted ${binary ? 'proportion with the outcome (%)' : outcomeColumn} ${where}, one line per ${lines.length === 2 ? 'arm' : 'dose (mean and ± 1 SD)'}. ${held} ` +
+    `${listed ? `${listed}. ` : ''}The gap between the lines is the intervention's effect; lines that are not parallel show that it changes with ${result.modifier.column}.`;
+  return { title: `Predicted ${outcomeColumn} ${categorical ? 'by' : 'across'} ${result.modifier.column}`, caption, data, layout };
 }

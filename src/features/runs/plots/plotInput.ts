@@ -9,7 +9,7 @@ import { perResult } from '../finishedResults';
  */
 export type PlotInput = Pick<
   Result,
-  'effectMeasure' | 'alpha' | 'ciLevel' | 'exposure' | 'modifier' | 'outcome' | 'joint' | 'strata' | 'slopes' | 'band' | 'johnsonNeyman' | 'standardized' | 'spread'
+  'effectMeasure' | 'alpha' | 'ciLevel' | 'exposure' | 'modifier' | 'outcome' | 'joint' | 'strata' | 'slopes' | 'band' | 'johnsonNeyman' | 'standardized' | 'spread' | 'predictions'
 > & {
   model: Pick<Result['model'], 'link' | 'coefficients'>;
   stratifiedTables: Pick<NonNullable<Result['stratifiedTables']>, 'mantelHaenszel'> | null;
@@ -33,6 +33,7 @@ export function plotInput(result: Result): PlotInput {
     johnsonNeyman: result.johnsonNeyman,
     standardized: result.standardized,
     spread: result.spread,
+    predictions: result.predictions ?? null,
     model: { link: result.model.link, coefficients: result.model.coefficients },
     stratifiedTables: result.stratifiedTables ? { mantelHaenszel: result.stratifiedTables.mantelHaenszel } : null,
   };
