@@ -78,6 +78,8 @@ export const OPERATIONS: Operation[] = [
   { method: 'POST', path: '/api/extracts/{extractId}/versions/{versionId}/confirm', tag: 'Extracts', summary: 'Sign the attestation and confirm the data dictionary; the version becomes ready', auth: 'session',
     body: ConfirmVersionBody, status: 204 },
   { method: 'POST', path: '/api/extracts/{extractId}/versions/{versionId}/cancel', tag: 'Extracts', summary: 'Cancel an upload that is still being processed', auth: 'session', status: 200 },
+  { method: 'GET', path: '/api/extracts/{extractId}/versions/{versionId}/file', tag: 'Extracts', summary: 'The uploaded file, byte for byte (audited; for those who may preview rows)', auth: 'session', status: 200,
+    description: 'Served as an attachment with nosniff; its SHA-256 is the version\'s. Every download is an audit event (extract.file-downloaded).' },
   { method: 'GET', path: '/api/extracts/{extractId}/versions/{versionId}/rows', tag: 'Extracts', summary: 'One page of rows, sorted on the server (audited)', auth: 'session', query: RowsQuery, status: 200,
     description: 'Analysts; clinicians and auditors only where the initiative allows row previews.' },
   { method: 'POST', path: '/api/extracts/{extractId}/archive', tag: 'Extracts', summary: 'Archive (hide from new analyses) or restore an extract', auth: 'session', body: ArchiveBody, status: 204 },
@@ -99,6 +101,8 @@ export const OPERATIONS: Operation[] = [
   { method: 'POST', path: '/api/runs/{runId}/verify', tag: 'Analyses and runs', summary: 'Re-run a finished run to check that it reproduces bit for bit', auth: 'session', response: RunAccepted, status: 202,
     description: 'Auditors of the initiative. The re-run uses the run\'s own specification snapshot, extract version and seed; once it ends, `GET /api/runs/{runId}` of the re-run carries `verification` (each input compared, the result digests, the first differing values). Audited as `run.verification-started` and `run.verified`.' },
   { method: 'POST', path: '/api/runs/{runId}/cancel', tag: 'Analyses and runs', summary: 'Cancel a queued or running run', auth: 'session', status: 200 },
+  { method: 'GET', path: '/api/runs/{runId}/plot-data', tag: 'Analyses and runs', summary: 'The plots\' input for a finished run (an entity tag; ask again with If-None-Match for a 304)', auth: 'session', status: 200,
+    description: 'Sent with Cache-Control: private, no-cache, so every view checks the reader\'s access before the browser reuses its copy. 404 for a run without a result.' },
   { method: 'GET', path: '/api/runs/{runId}/download', tag: 'Analyses and runs', summary: 'The result as JSON or the tables as CSV (audited)', auth: 'session', query: DownloadQuery, status: 200 },
 
   { method: 'GET', path: '/api/runs/{runId}/review', tag: 'Review', summary: "A run's review: its state, steps and comments", auth: 'session', response: ReviewView, status: 200,
