@@ -23,7 +23,7 @@ export function credibilityItems(result: Result, computed: CredibilityView['comp
   const modifier = `“${result.modifier.column}”`;
 
   add('prespecified', 'Was the modifier named before the data?', prespecified.value
-    ? `Yes: ${prespecified.source === 'register' ? 'on the initiative’s register' : 'declared with the analysis'} on ${date(prespecified.at ?? '')}, before the extract was uploaded.`
+    ? `Yes: ${prespecified.source === 'register' ? 'registered before the data arrived,' : 'declared prespecified with the analysis'} on ${date(prespecified.at ?? '')}.`
     : `No: ${modifier} was not named in advance of these data, so the finding is exploratory.`, prespecified.value ? 'for' : 'against');
 
   if (!direction.predicted) add('direction', 'Was a direction predicted, and did it come true?', 'No direction was predicted in advance.', 'against');
