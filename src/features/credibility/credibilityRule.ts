@@ -81,7 +81,7 @@ export function overallRating(input: RuleInput): Overall {
   if (!input.prespecified) down(1, 'The modifier was not named in advance of the data.');
   if (!input.directionPredicted) down(1, 'No direction was predicted before the analysis.');
   else if (input.directionAgrees === false) down(1, 'The effect differs in the opposite direction to the one predicted.');
-  if (input.p === null || input.p >= input.alpha) down(2, 'The interaction test does not reach the significance level, so chance explains the difference well.');
+  if (input.p === null || input.p >= input.alpha) down(2, 'The interaction test does not reach the significance level, so chance could well explain the difference.');
   else if (input.pAdjusted === null || input.pAdjusted >= input.alpha) down(1, 'The interaction test does not hold once adjusted for the number of modifiers examined.');
   if (input.numberInCategories) down(1, 'A modifier recorded as a number was analysed in categories, so the cut-points may drive the finding.');
   if (input.relatedConsistent === false) down(1, 'For a related outcome the initiative analysed, the effect differs the other way.');

@@ -12,7 +12,8 @@ export const CREDIBILITY_RULE_TEXT =
 
 const formatP = (p: number | null) => (p === null ? 'not computed' : p < 0.001 ? '< 0.001' : p.toFixed(3));
 const date = (value: string) => value.slice(0, 10);
-const TEST_NAME: Record<string, string> = { 'likelihood-ratio': 'likelihood-ratio test', F: 'F test', wald: 'Wald test', 'wald-robust': 'Wald test (robust)' };
+const TEST_NAME: Record<string, string> = { 'likelihood-ratio': 'Likelihood-ratio test', F: 'F test', wald: 'Wald test', 'wald-robust': 'Wald test (robust)' };
+const trim = (value: number) => String(Number(value.toPrecision(6)));
 
 /** Every item, computed ones first, each with its question, its answer and where it stands. */
 export function credibilityItems(result: Result, computed: CredibilityView['computed'], clinician: CredibilityView['clinician'], observedText: string | null): CredibilityItem[] {
@@ -36,12 +37,12 @@ export function credibilityItems(result: Result, computed: CredibilityView['comp
   add('within-study', 'Is the comparison made within one study?', `Yes: the levels of ${modifier} are compared inside the same extract and the same model, with the same covariates, so differences between studies or data sources cannot explain the contrast.`, 'for');
 
   add('modifiers-examined', 'How many modifiers has the initiative examined for this outcome?',
-    `${modifiersExamined.count} (${modifiersExamined.columns.map((c) => `“${c}”`).join(', ') || modifier}) for “${result.outcome.column}”, counting every finished analysis of the initiative.`,
+    `${modifiersExamined.count} (${modifiersExamined.columns.map((c) => `“${c}”`).join(', ') || modifier}) for “${result.outcome.column}”, counting every finished analysis of the initiative; the interaction test below is adjusted for this number.`,
     modifiersExamined.count <= 1 ? 'for' : 'not-applicable');
 
   add('interaction-test', 'Does the interaction test hold after adjusting for that number?',
     `${TEST_NAME[test.test] ?? test.test}: p ${formatP(test.p)}; adjusted for ${modifiersExamined.count} modifier${modifiersExamined.count === 1 ? '' : 's'} (Bonferroni, p × ${modifiersExamined.count}, the strictest step of Holm's procedure): p ${formatP(test.adjustedP)}, ` +
-    `${test.holdsAdjusted ? `below alpha ${test.alpha}, so it holds` : test.holdsUnadjusted ? `not below alpha ${test.alpha}, so it does not hold after adjustment` : `not below alpha ${test.alpha} even before adjustment`}.`,
+    `${test.holdsAdjusted ? `below alpha ${trim(test.alpha)}, so it holds` : test.holdsUnadjusted ? `not below alpha ${trim(test.alpha)}, so it does not hold after adjustment` : `so it does not hold; the p before adjustment is not below alpha ${trim(test.alpha)} either`}.`,
     test.holdsAdjusted ? 'for' : 'against');
 
   const numeric = computed.continuousModifier;
