@@ -11,6 +11,7 @@ import { QueryTypes } from 'sequelize';
 import { generateCallBackCohort } from '@/features/extracts/demoCohorts';
 import { executeRun } from '@/features/runs/executeRun';
 import { hashPassword } from '@/lib/server/passwords';
+import { sequelize, withIdentity } from '@/lib/server/db';
 import { startServer, type ServerHandle } from '../browser/harness';
 import { makeReadyExtract } from '../support/extractFactory';
 import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
@@ -138,6 +139,13 @@ describe('the clinician\'s ratings', () => {
     expect(bad.status).toBe(400);
     expect(JSON.stringify(await bad.json())).toContain('Rate the clinical or biological rationale');
     expect((await clients.clinician.request('PUT', path(runs.sex), { ...body, rationaleNote: 'x'.repeat(2001) })).status).toBe(400);
+    // Below the API, row-level security refuses the same: an analyst or auditor cannot write a rating.
+    for (const role of ['analyst', 'auditor'] as const) {
+      await expect(withIdentity(ids[role], (t) => sequelize.query(
+        `INSERT INTO credibility_ratings (run_id, initiative_id, rationale, prior_evidence, rated_by) VALUES (:runId, :initiativeId, 'strong', 'supports', :actor)`,
+        { replacements: { runId: runs.sex, initiativeId, actor: ids[role] }, transaction: t },
+      ))).rejects.toThrow(/row-level security/);
+    }
     expect(await ratingRows()).toBe(0);
     expect((await clients.clinician.request('GET', path(runs.sex))).status).toBe(200);
   });
