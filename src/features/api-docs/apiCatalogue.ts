@@ -17,6 +17,7 @@ import { OutboxQuery } from '../admin/outbox';
 import { BRIEF_OPERATIONS } from './briefOperations';
 import { NOTIFICATION_OPERATIONS } from './notificationOperations';
 import { PLAN_OPERATIONS } from './planOperations';
+import { CREDIBILITY_OPERATIONS } from './credibilityOperations';
 import type { Operation } from './operation';
 
 export type { Auth, Operation } from './operation';
@@ -130,4 +131,5 @@ export const OPERATIONS: Operation[] = [
   ...BRIEF_OPERATIONS,
   ...NOTIFICATION_OPERATIONS,
   ...PLAN_OPERATIONS,
+  ...CREDIBILITY_OPERATIONS,
 ];

@@ -51,6 +51,7 @@ export const AUDIT_ACTIONS = [
   'plan.saved',
   'prespecification.registered',
   'prespecification.withdrawn',
+  'credibility.rated',
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number] | `${string}.${string}`;
 

@@ -171,6 +171,12 @@ const PHRASES: Record<string, Phrase> = {
   'plan.saved': (d) => `saved the initiative's plan (${num(d.plannedRows) ?? '?'} rows planned; ${num(d.rowsFor80) ?? '?'} needed for 80 % power)`,
   'prespecification.registered': (d) => `registered “${text(d.modifierColumn) ?? '?'}” as a prespecified modifier${text(d.direction) && d.direction !== 'none' ? `, predicting a ${text(d.direction)} effect${text(d.where) ? ` in ${text(d.where)}` : ''}` : ', with no direction predicted'}`,
   'prespecification.withdrawn': (d) => `withdrew the register entry for “${text(d.modifierColumn) ?? '?'}”${quoted(text(d.reason))}`,
+  'credibility.rated': (d) => {
+    const after = d.after && typeof d.after === 'object' ? (d.after as Record<string, unknown>) : {};
+    const before = d.before && typeof d.before === 'object' ? (d.before as Record<string, unknown>) : null;
+    const now = `rationale ${text(after.rationale) ?? '?'}, prior evidence ${text(after.priorEvidence) ?? '?'}`;
+    return before ? `changed the credibility ratings from rationale ${text(before.rationale) ?? '?'}, prior evidence ${text(before.priorEvidence) ?? '?'} to ${now}` : `rated the credibility of the subgroup claim: ${now}`;
+  },
   'brief.drafted': () => 'drafted a brief',
   'brief.published': (d) => `published version ${num(d.version) ?? '?'} of the brief`,
   'brief.corrected': (d) => `corrected the brief (version ${num(d.version) ?? '?'})${quoted(text(d.note))}`,

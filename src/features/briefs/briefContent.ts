@@ -81,6 +81,8 @@ export interface BriefContent {
   plot: BriefPlot | null;
   methods: string;
   limitations: string[];
+  /** "How credible is the subgroup claim": the overall rating and its reasons in words (credibility/credibilityWords.ts); absent in versions published before it existed. */
+  credibility?: string | null;
   signOff: { by: string; at: string; meaning: string } | null;
   cautions: string[];
   ownCautions: string[];

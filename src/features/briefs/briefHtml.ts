@@ -92,6 +92,7 @@ ${section('brief-summary', 'Summary', `<p data-testid="brief-summary">${escapeHt
 ${section('brief-key-table', 'Key table', `${keyTableHtml(content)}${slopesHtml(content)}${absoluteHtml(content)}<p>${escapeHtml(content.interactionTest)}</p>
 <p>Adjusted for: ${content.adjustment.length ? escapeHtml(content.adjustment.join('; ')) : 'nothing (no covariates)'}.</p><p class="brief-note" data-testid="brief-small-cell-note">${escapeHtml(content.smallCellNote)}</p>`)}
 ${content.plot ? section('brief-plot-heading', 'Plot', plotSvg(content)) : ''}
+${content.credibility ? section('brief-credibility', 'How credible is the subgroup claim', `<p data-testid="brief-credibility">${escapeHtml(content.credibility)}</p>`) : ''}
 ${section('brief-methods', 'Methods', `<p data-testid="brief-methods">${escapeHtml(content.methods)}</p>`)}
 ${section('brief-limitations', 'Limitations', `<ul data-testid="brief-limitations">${content.limitations.map((text) => `<li>${escapeHtml(text)}</li>`).join('')}</ul>`)}
 ${section('brief-signoff', 'Sign-off', signOff)}

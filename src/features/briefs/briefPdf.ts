@@ -106,6 +106,10 @@ export function renderBriefPdf(content: BriefContent, pageSize: PageSize, meta: 
     drawPlot(doc, content, width, margin);
     text(`${content.plot.title}. ${content.plot.caption}`, { size: 8.5, color: MUTED });
   }
+  if (content.credibility) {
+    heading('How credible is the subgroup claim');
+    text(content.credibility);
+  }
   heading('Methods');
   text(content.methods);
   heading('Limitations');

@@ -14,6 +14,8 @@ import { conflict, notFound } from '@/lib/server/errors';
 import { recordAudit } from '../audit/audit.server';
 import { reviewOf } from '../review/review.server';
 import { getRun } from '../runs/runs.server';
+import { credibilityOf } from '@/features/credibility/credibility.server';
+import { credibilityParagraph } from '@/features/credibility/credibilityWords';
 import { buildBriefContent, type BriefContent, type BriefFacts, type PlotChoice } from './briefContent';
 import { renderBriefHtml } from './briefHtml';
 import { renderBriefPdf, type PageSize } from './briefPdf';
@@ -162,7 +164,8 @@ export async function composeContent(transaction: Transaction, brief: BriefRecor
     prespecifiedAt: facts.prespecified_at ? iso(facts.prespecified_at) : null, exploratory: run.exploratory, analysesInInitiative: Number(facts.analyses),
     signOff: signed ? { by: signers.length > 1 ? signers.join(' and ') : signed.actor.name, at: signed.at, meaning: signed.meaning ?? signed.note } : null, threshold: settings.cellThreshold,
   };
-  return buildBriefContent(result, run.spec as Spec, briefFacts, { title: brief.title, summary: brief.summary, plot: brief.plot, ownCautions: brief.ownCautions });
+  const content = buildBriefContent(result, run.spec as Spec, briefFacts, { title: brief.title, summary: brief.summary, plot: brief.plot, ownCautions: brief.ownCautions });
+  return { ...content, credibility: credibilityParagraph((await credibilityOf(transaction, run, false)).overall) };
 }
 
 /** Changes a draft; 409 once it is published. */
