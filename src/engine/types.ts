@@ -46,6 +46,8 @@ export interface EngineData {
 
 export type {
   Spec as AnalysisSpec,
+  AnySpec,
+  ScreenSpec,
   OutcomeType,
   ModelFamily,
   CiMethod,
@@ -81,6 +83,8 @@ export type {
   StandardizedEffects,
   EValueEntry,
   EValues,
+  ScreenEntry,
+  ScreenBlock,
 } from './boundary/schemas.js';
 
 // ---------------------------------------------------------------------------------------

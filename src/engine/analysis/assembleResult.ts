@@ -107,6 +107,7 @@ export function assembleResult(analysis: FittedAnalysis, stages: StageResults): 
     planning: stages.planning,
     standardized: stages.standardized,
     eValues: stages.eValues,
+    screen: null,
     warnings,
   };
 }

@@ -197,7 +197,9 @@ export function draftToSpec(columns: readonly FormColumn[], draft: SpecDraft): C
     for (const issue of parsed.error.issues) schemaErrors[issue.path.join('.') || 'spec'] = issue.message;
     return { ok: false, errors: schemaErrors };
   }
-  return { ok: true, spec: parsed.data };
+  const parsedModifier = parsed.data.modifier;
+  if (parsedModifier === undefined) return { ok: false, errors: { 'modifier.column': 'Choose a modifier.' } };
+  return { ok: true, spec: { ...parsed.data, modifier: parsedModifier } };
 }
 
 /** Validation messages of the whole form (the words and the specification). */
