@@ -41,16 +41,20 @@ export interface AnalysisFormProps {
   existing?: ExistingAnalysis;
   /** Where to go after saving; "{id}" is replaced by the analysis id. Default "/analyses/{id}". */
   onSavedHref?: string;
+  /** A new analysis that starts from this specification (a subgroup screen's "full analysis" link). */
+  prefill?: Spec;
 }
 
-function Form({ initiativeId, extractVersionId, columns, existing, onSavedHref = '/analyses/{id}' }: AnalysisFormProps) {
+function Form({ initiativeId, extractVersionId, columns, existing, onSavedHref = '/analyses/{id}', prefill }: AnalysisFormProps) {
   const formId = useId();
   const hydrated = useHydrated();
   const fieldId = (path: string) => `${formId}-${path.replace(/[^\w-]/g, '-')}`;
   const [draft, setDraft] = useState<AnalysisDraft>(() =>
     existing
       ? { title: existing.title, question: existing.question, prespecified: existing.prespecified, spec: specToDraft(existing.spec, columns) }
-      : defaultDraft(),
+      : prefill
+        ? { ...defaultDraft(), spec: specToDraft(prefill, columns) }
+        : defaultDraft(),
   );
   const [touched, setTouched] = useState<Set<string>>(() => new Set());
   const [submitted, setSubmitted] = useState(false);

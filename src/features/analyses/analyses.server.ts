@@ -5,6 +5,8 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import { Analysis, Extract, ExtractVersion } from '../../../db/models';
 import type { AnySpec, Spec } from '@/engine/boundary/schemas';
+import { validateScreenSpec } from '@/engine/analysis/validateSpec';
+import { InvalidSpecError } from '@/engine/errors';
 import { sequelize } from '@/lib/server/db';
 import { conflict, notFound, unprocessable } from '@/lib/server/errors';
 import { recordAudit } from '../audit/audit.server';
@@ -75,6 +77,15 @@ async function usableVersion(transaction: Transaction, initiativeId: string, ver
  * The engine checks the rest when it runs.
  */
 export function checkSpecAgainstDictionary(spec: AnySpec, dictionary: readonly DictionaryEntry[], profile: readonly ColumnProfile[]): void {
+  if (isScreenSpec(spec)) {
+    // The list itself (distinct columns, none the intervention, outcome or a covariate), as the engine checks it.
+    try {
+      validateScreenSpec(spec);
+    } catch (error) {
+      if (error instanceof InvalidSpecError) throw unprocessable('spec-invalid', error.message, [{ path: 'spec.modifiers', message: error.message }]);
+      throw error;
+    }
+  }
   // A subgroup screen: each modifier's own analysis, with its problems placed under that modifier.
   const problems = isScreenSpec(spec)
     ? spec.modifiers.flatMap((_, index) =>

@@ -41,3 +41,13 @@ export function parseSingleSpec(value: unknown): Spec {
   if (isScreenSpec(spec) || spec.modifier === undefined) throw new Error('Expected a specification with one modifier, not a subgroup screen.');
   return { ...spec, modifier: spec.modifier };
 }
+
+/** The specification a "?from=" query parameter carries, or undefined when absent or not a valid single-modifier specification. */
+export function prefillFromQuery(value: string | null): Spec | undefined {
+  if (!value) return undefined;
+  try {
+    return parseSingleSpec(JSON.parse(value));
+  } catch {
+    return undefined;
+  }
+}
