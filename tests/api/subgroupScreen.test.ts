@@ -104,7 +104,7 @@ describe('subgroup screen', () => {
     expect(page).toMatch(/“age_band”, “sex” and “comorbidity_score” were not prespecified/);
     expect(page.match(/data-testid="screen-modifier"/g)).toHaveLength(3);
     for (const sentence of RESULT_CAUTIONS.slice(0, 1)) expect(page).toContain(sentence.slice(0, 40));
-    const links = [...page.matchAll(/href="([^"]*from=[^"]*)" data-testid="screen-full-analysis"/g)].map((match) => match[1].replace(/&amp;/g, '&'));
+    const links = [...page.matchAll(/href="([^"]*from=[^"]*)" data-testid="screen-full-analysis"/g)].map((match) => match[1].replace(/&amp;|&#38;/g, '&'));
     expect(links).toHaveLength(3);
     const form = await (await analyst.request('GET', links[1])).text();
     expect(form).toContain('data-testid="prefilled-from-screen"');
