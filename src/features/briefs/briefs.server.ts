@@ -1,14 +1,15 @@
-/**
  * Briefs in the database: an analyst drafts a brief from a signed-off run, edits it while
  * it is a draft, and publishes it as numbered immutable versions (content, HTML, PDF and
  * the PDF's SHA-256); corrections are new versions with a note; a retraction marks every
  * version with its reason. Everything runs in the caller's transaction under row-level
  * security (policies/rls/009_briefs.sql) and is audited there.
  */
+import { isScreenSpec } from '@/features/analyses/screenSpecs';
 import { createHash } from 'node:crypto';
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Result, Spec } from '@/engine/boundary/schemas';
 import { dateTimeInWords } from '@/lib/dates';
+import { isScreenSpec } from '@/features/analyses/screenSpecs';
 import { sequelize } from '@/lib/server/db';
 import { conflict, notFound } from '@/lib/server/errors';
 import { recordAudit } from '../audit/audit.server';
@@ -62,6 +63,9 @@ export async function draftBrief(transaction: Transaction, actor: Actor, runId: 
   if (run.verifiesRunId) throw conflict('A verification re-run is not published; draft the brief from the run it verifies.');
   if (run.reviewState !== 'signed-off') {
     throw conflict(`This run is not signed off (its review is ${run.reviewState.replace('-', ' ')}), so no brief can be drafted from it yet. A clinician signs a submitted run off on its results page.`);
+  }
+  if (isScreenSpec(run.spec)) {
+    throw conflict('A brief presents one modifier: draft it from a full analysis of that modifier (linked from the subgroup screen\'s table), not from the screen itself.');
   }
   const plot: PlotChoice = run.spec.modifier.type === 'continuous' ? 'modifier' : 'forest';
   const [row] = await sequelize.query<{ id: string }>(
