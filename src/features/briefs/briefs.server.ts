@@ -1,10 +1,10 @@
+/**
  * Briefs in the database: an analyst drafts a brief from a signed-off run, edits it while
  * it is a draft, and publishes it as numbered immutable versions (content, HTML, PDF and
  * the PDF's SHA-256); corrections are new versions with a note; a retraction marks every
  * version with its reason. Everything runs in the caller's transaction under row-level
  * security (policies/rls/009_briefs.sql) and is audited there.
  */
-import { isScreenSpec } from '@/features/analyses/screenSpecs';
 import { createHash } from 'node:crypto';
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Result, Spec } from '@/engine/boundary/schemas';
