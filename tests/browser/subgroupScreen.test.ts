@@ -57,7 +57,9 @@ describe('a subgroup screen', () => {
     await page.getByLabel('Modifier 3', { exact: true }).selectOption('comorbidity_score');
     await form.getByRole('checkbox', { name: /^prior_admissions/ }).check();
     const equations = page.getByTestId('screen-equations');
-    await expect(equations.getByTestId('model-equation').count()).resolves.toBe(3);
+    // One equation per modifier, each headed by its column.
+    await expect(equations.locator('[data-testid="screen-equation"] > p.text-xs').allTextContents()).resolves.toEqual(['age_band', 'sex', 'comorbidity_score']);
+    await expect(equations.locator('[data-testid="screen-equation"] [role="math"]').count()).resolves.toBe(3);
     await expect(page.getByTestId('computation-summary').textContent()).resolves.toContain('Subgroup screen over 3 modifiers');
     await page.getByTestId('analysis-submit').click();
     await page.waitForURL(/\/analyses\/[0-9a-f-]{36}$/);

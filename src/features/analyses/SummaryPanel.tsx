@@ -71,7 +71,7 @@ function ScreenSummary({ idPrefix, screen, columns }: { idPrefix: string; screen
         </h2>
         <ol className="grid gap-3 list-none p-0 m-0">
           {screen.modifiers.map((modifier, index) => (
-            <li key={modifier.column}>
+            <li key={index} data-testid="screen-equation">
               <p className="text-xs text-ink-500 mb-1">{modifier.column}</p>
               <ModelEquationView equation={modelEquation(screenModifierSpec(screen, index), columns)} />
             </li>
