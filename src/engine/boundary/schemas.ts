@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { screenBlockSchema, screenModifiers } from './screenSchemas.js';
 
 /**
  * The engine's specification and result, defined once: these zod schemas are what the API
@@ -56,15 +57,8 @@ export const SpecSchema = z
         .optional()
         .describe('Extra (continuous): subtract this from the modifier before forming the product; default "none".'),
       slopesAt: slopePoints.optional().describe('Extra (continuous): where to report simple slopes; default mean and ± 1 SD.'),
-    })
-      .optional()
-      .describe('The modifier of a single analysis; a subgroup screen gives "modifiers" instead.'),
-    modifiers: z
-      .array(z.object({ column: columnName, type: variableType, reference: z.string().optional() }))
-      .min(2)
-      .max(12)
-      .optional()
-      .describe('Subgroup screen: 2 to 12 candidate modifiers, each analysed in a model of its own; in place of "modifier".'),
+    }).optional().describe('The modifier of a single analysis; a subgroup screen gives "modifiers" instead.'),
+    modifiers: screenModifiers(columnName, variableType).optional(),
     covariates: z.array(
       z.object({
         column: columnName,
@@ -95,17 +89,13 @@ export const SpecSchema = z
       })
       .optional(),
   })
-  .refine((spec) => (spec.modifier === undefined) !== (spec.modifiers === undefined), {
-    message: 'Give either "modifier" (one modifier) or "modifiers" (a subgroup screen), not both and not neither.',
-    path: ['modifiers'],
-  })
+  .refine((spec) => (spec.modifier === undefined) !== (spec.modifiers === undefined), { message: 'Give either "modifier" (one modifier) or "modifiers" (a subgroup screen), not both and not neither.', path: ['modifiers'] })
   .describe('An effect-modification analysis specification.');
 
-/** Any specification the schema accepts: a single analysis or a subgroup screen. */
+/** Any specification the schema accepts: a single analysis or a subgroup screen (ScreenSpec). */
 export type AnySpec = z.output<typeof SpecSchema>;
-/** An analysis specification with one modifier: what the form builds, the API accepts, a run snapshots and the engine reads. */
+/** A specification with one modifier: what the form builds, the API accepts, a run snapshots and the engine reads. */
 export type Spec = AnySpec & { modifier: NonNullable<AnySpec['modifier']> };
-/** A subgroup screen: several candidate modifiers, each in a model of its own (screen.ts). */
 export type ScreenSpec = Omit<AnySpec, 'modifier'> & { modifier?: undefined; modifiers: NonNullable<AnySpec['modifiers']> };
 export type OutcomeType = z.output<typeof outcomeType>;
 export type ModelFamily = z.output<typeof modelFamily>;
@@ -325,22 +315,7 @@ const eValues = z.strictObject({
   entries: z.array(eValueEntry),
 });
 
-// Subgroup screen: one entry per candidate modifier, each from a model of its own.
-const screenEntry = z.strictObject({
-  column: z.string(),
-  type: variableType,
-  reference: z.string().nullable(),
-  n: z.number().int(),
-  dropped: z.number().int(),
-  strata: z.array(stratumEffect).describe('Categorical modifiers: the intervention\'s effect within each level.'),
-  slopes: z.array(slopeEntry).describe('Continuous modifiers: the intervention\'s effect at the chosen points.'),
-  interaction: omnibusTest.describe('The test of the product terms (likelihood ratio, F, or robust Wald).'),
-  pAdjusted: z.strictObject({ holm: num, bh: num }).describe('The interaction p adjusted across the screen\'s modifiers.'),
-});
-const screenBlock = z.strictObject({
-  examined: z.number().int().describe('How many modifiers the screen examined.'),
-  modifiers: z.array(screenEntry),
-});
+const screenBlock = screenBlockSchema({ stratumEffect, slopeEntry, omnibusTest, variableType, num });
 
 const engineWarning = z.strictObject({
   code: z.string(),
@@ -415,10 +390,7 @@ export const ResultSchema = z
       .default(null)
       .describe('Standardized risks, risk differences, NNT and interaction contrasts per modifier level; null when not asked for or not recorded.'),
     eValues: eValues.nullable().default(null).describe('E-values of each stratum ratio and its interval; null for differences or when not recorded.'),
-    screen: screenBlock
-      .nullable()
-      .default(null)
-      .describe('Subgroup screen: every modifier\'s effects and interaction test with Holm and BH p; the other fields are then the first modifier\'s analysis. Null for a single analysis.'),
+    screen: screenBlock.nullable().default(null).describe('Subgroup screen: every modifier\'s effects and interaction test with Holm and BH p; the other fields are then the first modifier\'s analysis. Null for a single analysis.'),
     warnings: z.array(engineWarning),
   })
   .describe('The result of an effect-modification analysis.');
@@ -455,8 +427,8 @@ export type StandardizedLevel = z.output<typeof standardizedLevel>;
 export type StandardizedEffects = z.output<typeof standardizedEffects>;
 export type EValueEntry = z.output<typeof eValueEntry>;
 export type EValues = z.output<typeof eValues>;
-export type ScreenEntry = z.output<typeof screenEntry>;
 export type ScreenBlock = z.output<typeof screenBlock>;
+export type ScreenEntry = ScreenBlock['modifiers'][number];
 
 export const ErrorSchema = z.strictObject({
   error: z.strictObject({
