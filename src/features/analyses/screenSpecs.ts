@@ -1,3 +1,4 @@
+import { modifierSpec as screenModifierSpec } from '@/engine/analysis/subgroupScreen';
 import { SpecSchema, type AnySpec, type ScreenSpec, type Spec } from '@/engine/boundary/schemas';
 
 /** True when the specification is a subgroup screen ("modifiers" in place of "modifier"). */
@@ -5,12 +6,8 @@ export function isScreenSpec(spec: AnySpec): spec is ScreenSpec {
   return Array.isArray(spec.modifiers);
 }
 
-/** The single-modifier specification of one screen modifier: everything else as in the screen. */
-export function screenModifierSpec(spec: ScreenSpec, index: number): Spec {
-  const { modifiers, modifier: _none, ...rest } = spec;
-  const { column, type, reference } = modifiers[index];
-  return { ...rest, modifier: reference === undefined ? { column, type } : { column, type, reference } };
-}
+/** The single-modifier specification of one screen modifier: everything else as in the screen (the engine's own). */
+export { screenModifierSpec };
 
 /** The single-modifier specifications a specification stands for: itself, or one per screen modifier. */
 export function singleSpecs(spec: AnySpec): Spec[] {
