@@ -1,7 +1,7 @@
 /** Analyses and their runs (…create-analyses-and-runs, …add-run-verification). */
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type NonAttribute, type Sequelize } from 'sequelize';
 import { filledByDatabase, stamps, tableOptions, uuidKey } from './common';
-import type { Spec } from '@/engine/boundary/schemas';
+import type { AnySpec } from '@/engine/boundary/schemas';
 import { ExtractVersion } from './extracts';
 import { User } from './identity';
 
@@ -14,7 +14,7 @@ export class Analysis extends Model<InferAttributes<Analysis>, InferCreationAttr
   declare prespecified: boolean;
   declare prespecifiedAt: Date | null;
   /** The engine specification, checked against its schema when the analysis was written. */
-  declare spec: Spec;
+  declare spec: AnySpec;
   declare createdBy: string;
   declare createdAt: CreationOptional<Date>;
   declare updatedBy: string;
@@ -33,7 +33,7 @@ export class Run extends Model<InferAttributes<Run>, InferCreationAttributes<Run
   declare status: RunStatusColumn;
   declare progress: CreationOptional<{ stage: string; fraction: number }>;
   /** The specification snapshot the run executes. */
-  declare spec: Spec;
+  declare spec: AnySpec;
   declare specHash: string;
   declare extractSha256: string;
   declare engineVersion: CreationOptional<string | null>;

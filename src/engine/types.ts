@@ -48,6 +48,8 @@ export interface EngineData {
 
 export type {
   Spec as AnalysisSpec,
+  AnySpec,
+  ScreenSpec,
   OutcomeType,
   ModelFamily,
   CiMethod,
@@ -90,6 +92,8 @@ export type {
   DoseBlock,
   TrendBlock,
   PredictionsBlock,
+  ScreenEntry,
+  ScreenBlock,
 } from './boundary/schemas.js';
 
 // ---------------------------------------------------------------------------------------

@@ -4,7 +4,8 @@
  * and helpers to create an analysis and queue a run over HTTP.
  */
 import { expect } from 'vitest';
-import { SpecSchema, type Spec } from '@/engine/boundary/schemas';
+import type { Spec } from '@/engine/boundary/schemas';
+import { parseSingleSpec } from '@/features/analyses/screenSpecs';
 import { generateCallBackCohort } from '@/features/extracts/demoCohorts';
 import { hashPassword } from '@/lib/server/passwords';
 import { makeReadyExtract } from './extractFactory';
@@ -13,7 +14,7 @@ import { ApiClient } from './http';
 
 export const WORLD_PASSWORD = 'harbour-lantern-sedge';
 
-export const CALL_BACK_SPEC: Spec = SpecSchema.parse({
+export const CALL_BACK_SPEC: Spec = parseSingleSpec({
   outcome: { column: 'readmitted_30d', type: 'binary' },
   exposure: { column: 'call_back', reference: '0' },
   modifier: { column: 'age_band', type: 'categorical', reference: '18-44' },

@@ -125,6 +125,7 @@ export function assembleResult(analysis: FittedAnalysis, stages: StageResults): 
     additiveNote: frame.exposureValues === null ? null : DOSE_ADDITIVE_NOTE,
     trend: stages.trend,
     predictions: stages.predictions,
+    screen: null,
     warnings,
   };
 }

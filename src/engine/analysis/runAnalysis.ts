@@ -1,6 +1,6 @@
 import { normalQuantile } from '../distributions/normal.js';
 import { stratifiedTables } from '../strata/stratifiedTables.js';
-import type { AnalysisOptions, AnalysisResult, AnalysisSpec, EngineData } from '../types.js';
+import type { AnalysisOptions, AnalysisResult, AnalysisSpec, AnySpec, EngineData, ScreenSpec } from '../types.js';
 import { additiveInteraction } from './additiveInteraction.js';
 import { assembleResult } from './assembleResult.js';
 import { bootstrapStage } from './bootstrapStage.js';
@@ -13,6 +13,7 @@ import { omnibusTest } from './omnibusTest.js';
 import { planningStage } from './planningStage.js';
 import { sanitizeResult } from './sanitizeResult.js';
 import { standardizedEffectsStage } from './standardizedEffectsStage.js';
+import { subgroupScreen } from './subgroupScreen.js';
 import { validateSpec } from './validateSpec.js';
 import { doseSlopes } from './doseSlopes.js';
 import { profilePredictions } from './profilePredictions.js';
@@ -32,7 +33,13 @@ const COMMON_OUTCOME = 0.1;
  * @throws EngineError subclasses for every user-caused failure (see errors.ts),
  *   AnalysisCancelledError when `options.signal` aborts.
  */
-export async function runAnalysis(data: EngineData, spec: AnalysisSpec, options: AnalysisOptions = {}): Promise<AnalysisResult> {
+export async function runAnalysis(data: EngineData, spec: AnySpec, options: AnalysisOptions = {}): Promise<AnalysisResult> {
+  // A subgroup screen ("modifiers") runs this single-modifier pipeline once per modifier.
+  if (spec !== null && typeof spec === 'object' && spec.modifiers !== undefined) return subgroupScreen(data, spec as ScreenSpec, options, runSingle);
+  return runSingle(data, spec as AnalysisSpec, options);
+}
+
+async function runSingle(data: EngineData, spec: AnalysisSpec, options: AnalysisOptions): Promise<AnalysisResult> {
   const { signal } = options;
   const progress: ProgressReporter = (stage, fraction) => options.onProgress?.({ stage, fraction });
   checkCancelled(signal);

@@ -1,5 +1,5 @@
 import { InvalidSpecError } from '../errors.js';
-import type { AnalysisSpec, CiMethod, EffectMeasure, MultiplicityCorrection } from '../types.js';
+import type { AnalysisSpec, AnySpec, CiMethod, EffectMeasure, MultiplicityCorrection } from '../types.js';
 import { validateExtras } from './validateExtras.js';
 
 export interface CheckedSpec {
@@ -129,4 +129,43 @@ function checkOrdered(spec: AnalysisSpec): void {
     throw new InvalidSpecError('modifier.ordered.scores must give a finite number for each level of the modifier.', { column });
   }
   if (values.every((value) => value === values[0])) throw new InvalidSpecError('modifier.ordered.scores must not all be equal.', { column });
+}
+
+/** The most modifiers one subgroup screen examines. */
+export const SCREEN_MAX_MODIFIERS = 12;
+
+/**
+ * Checks a subgroup screen's "modifiers" list: 2 to 12 entries, each a distinct column with
+ * a known type, none the intervention, the outcome or a covariate, and no single "modifier"
+ * beside it. Each modifier's own analysis is then checked by validateSpec.
+ *
+ * @throws InvalidSpecError naming the offending field.
+ */
+export function validateScreenSpec(spec: AnySpec): void {
+  if (spec === null || typeof spec !== 'object') throw new InvalidSpecError('The specification must be an object.');
+  const modifiers: unknown = spec.modifiers;
+  if (spec.modifier !== undefined && modifiers !== undefined) {
+    throw new InvalidSpecError('Give either "modifier" (one modifier) or "modifiers" (a subgroup screen), not both.');
+  }
+  if (!Array.isArray(modifiers)) throw new InvalidSpecError('"modifiers" must be a list of modifiers, each with column, type and reference.');
+  if (modifiers.length < 2 || modifiers.length > SCREEN_MAX_MODIFIERS) {
+    throw new InvalidSpecError(`A subgroup screen needs between 2 and ${SCREEN_MAX_MODIFIERS} modifiers; this one has ${modifiers.length}.`);
+  }
+  const outcome = spec.outcome?.column;
+  const exposure = spec.exposure?.column;
+  const covariates = new Set(Array.isArray(spec.covariates) ? spec.covariates.map((covariate) => covariate.column) : []);
+  const seen = new Set<string>();
+  modifiers.forEach((modifier: unknown, index) => {
+    const where = `modifiers[${index}]`;
+    if (modifier === null || typeof modifier !== 'object') throw new InvalidSpecError(`${where} must be an object with column, type and reference.`);
+    const { column, type, reference } = modifier as { column?: unknown; type?: unknown; reference?: unknown };
+    if (typeof column !== 'string' || column === '') throw new InvalidSpecError(`${where}.column must be a column name.`);
+    if (type !== 'categorical' && type !== 'continuous') throw new InvalidSpecError(`${where}.type must be "categorical" or "continuous".`, { column });
+    if (reference !== undefined && typeof reference !== 'string') throw new InvalidSpecError(`${where}.reference must be a level name.`, { column });
+    if (seen.has(column)) throw new InvalidSpecError(`The column "${column}" is listed twice among the modifiers; list each modifier once.`, { column });
+    seen.add(column);
+    if (column === exposure) throw new InvalidSpecError(`The intervention "${column}" cannot also be a modifier.`, { column });
+    if (column === outcome) throw new InvalidSpecError(`The outcome "${column}" cannot also be a modifier.`, { column });
+    if (covariates.has(column)) throw new InvalidSpecError(`"${column}" is both a modifier and a covariate; remove it from one of them.`, { column });
+  });
 }

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { clusteringBlock, clusterSpec, ratesBlock, weightsBlock, weightsSpec } from './clusterRateWeightSchemas.js';
+import { screenBlockSchema, screenModifiers } from './screenSchemas.js';
 
 /**
  * The engine's specification and result, defined once: these zod schemas are what the API
@@ -66,7 +67,8 @@ export const SpecSchema = z
         .object({ scores: z.record(levelName, z.number()).describe('A score for every level of the modifier, from the dictionary.') })
         .optional()
         .describe('Extra (categorical): the modifier is ordered; the scores used by the test for trend, carried in the spec so a run is reproducible.'),
-    }),
+    }).optional().describe('The modifier of a single analysis; a subgroup screen gives "modifiers" instead.'),
+    modifiers: screenModifiers(columnName, variableType).optional(),
     covariates: z.array(
       z.object({
         column: columnName,
@@ -99,10 +101,14 @@ export const SpecSchema = z
       })
       .optional(),
   })
+  .refine((spec) => (spec.modifier === undefined) !== (spec.modifiers === undefined), { message: 'Give either "modifier" (one modifier) or "modifiers" (a subgroup screen), not both and not neither.', path: ['modifiers'] })
   .describe('An effect-modification analysis specification.');
 
-/** An analysis specification: what the form builds, the API accepts, a run snapshots and the engine reads. */
-export type Spec = z.output<typeof SpecSchema>;
+/** Any specification the schema accepts: a single analysis or a subgroup screen (ScreenSpec). */
+export type AnySpec = z.output<typeof SpecSchema>;
+/** A specification with one modifier: what the form builds, the API accepts, a run snapshots and the engine reads. */
+export type Spec = AnySpec & { modifier: NonNullable<AnySpec['modifier']> };
+export type ScreenSpec = Omit<AnySpec, 'modifier'> & { modifier?: undefined; modifiers: NonNullable<AnySpec['modifiers']> };
 export type OutcomeType = z.output<typeof outcomeType>;
 export type ExposureType = z.output<typeof exposureType>;
 export type ModelFamily = z.output<typeof modelFamily>;
@@ -362,6 +368,7 @@ const predictionsBlock = z.strictObject({
     z.strictObject({ label: z.string(), exposure: z.number().describe('Value of the intervention term on this line.'), points: z.array(predictionPoint) }),
   ),
 });
+const screenBlock = screenBlockSchema({ stratumEffect, slopeEntry, omnibusTest, variableType, num });
 
 const engineWarning = z.strictObject({
   code: z.string(),
@@ -454,6 +461,7 @@ export const ResultSchema = z
       .describe('Why the additive measures (RERI, AP, S, joint table) are not given, when they do not apply; null when they are given.'),
     trend: trendBlock.nullable().default(null).describe('Ordered modifier: test for trend in the intervention\'s effect across the levels; null otherwise.'),
     predictions: predictionsBlock.nullable().default(null).describe('Predicted outcome for the profile plot, with the covariate values used; null in results stored before.'),
+    screen: screenBlock.nullable().default(null).describe('Subgroup screen: every modifier\'s effects and interaction test with Holm and BH p; the other fields are then the first modifier\'s analysis. Null for a single analysis.'),
     warnings: z.array(engineWarning),
   })
   .describe('The result of an effect-modification analysis.');
@@ -494,6 +502,8 @@ export type EValues = z.output<typeof eValues>;
 export type DoseBlock = z.output<typeof doseBlock>;
 export type TrendBlock = z.output<typeof trendBlock>;
 export type PredictionsBlock = z.output<typeof predictionsBlock>;
+export type ScreenBlock = z.output<typeof screenBlock>;
+export type ScreenEntry = ScreenBlock['modifiers'][number];
 
 export const ErrorSchema = z.strictObject({
   error: z.strictObject({

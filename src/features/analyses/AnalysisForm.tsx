@@ -8,7 +8,7 @@
  */
 import { useMutation } from '@tanstack/react-query';
 import { useId, useMemo, useState, type SubmitEvent } from 'react';
-import type { Spec } from '@/engine/boundary/schemas';
+import type { AnySpec, Spec } from '@/engine/boundary/schemas';
 import { ApiError, apiFetch } from '@/lib/client/api';
 import { useHydrated } from '@/lib/client/useHydrated';
 import { QueryRoot } from '@/components/ui/QueryRoot';
@@ -23,6 +23,9 @@ import { QuestionSection } from './QuestionSection';
 import { defaultDraft, formChoices, reviseDraft, specToDraft, type AnalysisDraft, type SpecDraft } from './specForm';
 import { draftToSpec, fieldForServerPath, validateAnalysis, type FieldErrors } from './specValidation';
 import { SummaryPanel } from './SummaryPanel';
+import { AnalysisKindChoice, ScreenModifiersSection } from './ScreenModifiersSection';
+import { screenErrors, toScreenSpec, type ScreenRowDraft } from './screenDraft';
+import { isScreenSpec, screenModifierSpec } from './screenSpecs';
 
 export interface ExistingAnalysis {
   id: string;
@@ -31,7 +34,8 @@ export interface ExistingAnalysis {
   prespecified: boolean;
   /** When the analysis was declared prespecified (ISO time), if it was. */
   prespecifiedAt?: string | null;
-  spec: Spec;
+  /** A single-modifier specification or a subgroup screen. */
+  spec: AnySpec;
 }
 
 export interface AnalysisFormProps {
@@ -42,16 +46,27 @@ export interface AnalysisFormProps {
   existing?: ExistingAnalysis;
   /** Where to go after saving; "{id}" is replaced by the analysis id. Default "/analyses/{id}". */
   onSavedHref?: string;
+  /** A new analysis that starts from this specification (a subgroup screen's "full analysis" link). */
+  prefill?: Spec;
 }
 
-function Form({ initiativeId, extractVersionId, columns, existing, onSavedHref = '/analyses/{id}' }: AnalysisFormProps) {
+function Form({ initiativeId, extractVersionId, columns, existing, onSavedHref = '/analyses/{id}', prefill }: AnalysisFormProps) {
   const formId = useId();
   const hydrated = useHydrated();
   const fieldId = (path: string) => `${formId}-${path.replace(/[^\w-]/g, '-')}`;
+  // A screen's shared choices live in the draft with its first modifier; the list in screenRows.
+  const [screenRows, setScreenRows] = useState<ScreenRowDraft[] | null>(() =>
+    existing && isScreenSpec(existing.spec) ? existing.spec.modifiers.map((modifier) => ({ column: modifier.column, reference: modifier.reference ?? '' })) : null,
+  );
   const [draft, setDraft] = useState<AnalysisDraft>(() =>
     existing
-      ? { title: existing.title, question: existing.question, prespecified: existing.prespecified, spec: specToDraft(existing.spec, columns) }
-      : defaultDraft(),
+      ? {
+          title: existing.title, question: existing.question, prespecified: existing.prespecified,
+          spec: specToDraft(isScreenSpec(existing.spec) ? screenModifierSpec(existing.spec, 0) : (existing.spec as Spec), columns),
+        }
+      : prefill
+        ? { ...defaultDraft(), spec: specToDraft(prefill, columns) }
+        : defaultDraft(),
   );
   const [touched, setTouched] = useState<Set<string>>(() => new Set());
   const [submitted, setSubmitted] = useState(false);
@@ -59,8 +74,19 @@ function Form({ initiativeId, extractVersionId, columns, existing, onSavedHref =
 
   const spec = draft.spec;
   const choices = useMemo(() => formChoices(columns, spec), [columns, spec]);
-  const errors = useMemo(() => validateAnalysis(columns, draft), [columns, draft]);
-  const converted = useMemo(() => draftToSpec(columns, spec), [columns, spec]);
+  // In a screen, the shared choices are checked with the first listed modifier in place of the one modifier.
+  const checkedDraft = useMemo(
+    () => (screenRows ? { ...draft, spec: { ...draft.spec, modifier: { ...draft.spec.modifier, column: screenRows[0]?.column ?? '', reference: screenRows[0]?.reference ?? '' }, standardize: false } } : draft),
+    [draft, screenRows],
+  );
+  const converted = useMemo(() => draftToSpec(columns, checkedDraft.spec), [columns, checkedDraft]);
+  const errors = useMemo(() => {
+    const found = validateAnalysis(columns, checkedDraft);
+    if (!screenRows) return found;
+    const shared = Object.fromEntries(Object.entries(found).filter(([path]) => !path.startsWith('modifier.')));
+    return { ...shared, ...screenErrors(columns, screenRows, { outcome: spec.outcome.column, exposure: spec.exposure.column, covariates: spec.covariates }) };
+  }, [columns, checkedDraft, screenRows, spec]);
+  const screenSpec = useMemo(() => (screenRows && converted.ok ? toScreenSpec(columns, converted.spec, screenRows) : null), [columns, screenRows, converted]);
   const byName = useMemo(() => new Map(columns.map((column) => [column.name, column])), [columns]);
 
   const shownError = (path: string): string | undefined => serverErrors[path] ?? (submitted || touched.has(path) ? errors[path] : undefined);
@@ -72,7 +98,7 @@ function Form({ initiativeId, extractVersionId, columns, existing, onSavedHref =
   };
 
   const save = useMutation({
-    mutationFn: (body: { initiativeId: string; extractVersionId: string; title: string; question: string; prespecified: boolean; spec: Spec }) =>
+    mutationFn: (body: { initiativeId: string; extractVersionId: string; title: string; question: string; prespecified: boolean; spec: AnySpec }) =>
       existing
         ? apiFetch<{ id?: string }>(`/api/analyses/${encodeURIComponent(existing.id)}`, { method: 'PATCH', body })
         : apiFetch<{ id: string }>('/api/analyses', { method: 'POST', body }),
@@ -83,7 +109,9 @@ function Form({ initiativeId, extractVersionId, columns, existing, onSavedHref =
     onError: (error, body) => {
       if (!(error instanceof ApiError) || !error.details) return;
       const mapped: FieldErrors = {};
-      for (const detail of error.details) mapped[fieldForServerPath(detail.path, body.spec)] = detail.message;
+      for (const detail of error.details) {
+        mapped[detail.path.startsWith('spec.modifiers') ? detail.path.replace(/^spec\./, '') : fieldForServerPath(detail.path, isScreenSpec(body.spec) ? screenModifierSpec(body.spec, 0) : (body.spec as Spec))] = detail.message;
+      }
       setServerErrors(mapped);
     },
   });
@@ -98,7 +126,7 @@ function Form({ initiativeId, extractVersionId, columns, existing, onSavedHref =
       if (first) document.getElementById(fieldId(first))?.focus();
       return;
     }
-    save.mutate({ initiativeId, extractVersionId, title: draft.title.trim(), question: draft.question.trim(), prespecified: draft.prespecified, spec: converted.spec });
+    save.mutate({ initiativeId, extractVersionId, title: draft.title.trim(), question: draft.question.trim(), prespecified: draft.prespecified, spec: screenSpec ?? converted.spec });
   };
 
   const modifierRange = byName.get(spec.modifier.column)?.numeric;
@@ -122,14 +150,19 @@ function Form({ initiativeId, extractVersionId, columns, existing, onSavedHref =
           }}
         />
         <OutcomeSection {...sectionProps} outcomeDescription={byName.get(spec.outcome.column)?.description || undefined} />
-        <ModifierSection {...sectionProps} modifierRange={modifierRange} />
+        <AnalysisKindChoice rows={screenRows} fieldId={fieldId} onChange={(rows, path) => { setScreenRows(rows); setServerErrors({}); touch(path); }} />
+        {screenRows ? (
+          <ScreenModifiersSection rows={screenRows} columns={columns} choices={choices} fieldId={fieldId} shownError={shownError} onChange={(rows, path) => { setScreenRows(rows); setServerErrors({}); touch(path); }} />
+        ) : (
+          <ModifierSection {...sectionProps} modifierRange={modifierRange} />
+        )}
         <CovariatesPicker {...sectionProps} />
         <ClusterWeightsSection {...sectionProps} />
         <IntervalOptions {...sectionProps} />
       </div>
 
       <aside className="grid gap-4 lg:sticky lg:top-4" aria-label="Live summary">
-        <SummaryPanel idPrefix={formId} spec={converted.ok ? converted.spec : null} columns={columns} />
+        <SummaryPanel idPrefix={formId} spec={converted.ok && !screenRows ? converted.spec : null} screen={screenSpec} columns={columns} />
         <div className="card p-5 grid gap-3">
           {submitted && errorCount > 0 && (
             <p role="alert" className="text-sm text-brick-700" data-testid="form-error-count">

@@ -4,7 +4,9 @@
  */
 import { QueryTypes, type Transaction } from 'sequelize';
 import { Analysis, Extract, ExtractVersion } from '../../../db/models';
-import type { Spec } from '@/engine/boundary/schemas';
+import type { AnySpec, Spec } from '@/engine/boundary/schemas';
+import { validateScreenSpec } from '@/engine/analysis/validateSpec';
+import { InvalidSpecError } from '@/engine/errors';
 import { sequelize } from '@/lib/server/db';
 import { conflict, notFound, unprocessable } from '@/lib/server/errors';
 import { recordAudit } from '../audit/audit.server';
@@ -12,6 +14,7 @@ import { levelsLeftIn } from '../extracts/engineData';
 import type { ColumnProfile, DictionaryEntry } from '../extracts/extracts.schema';
 import type { AnalysisBody } from './analysisApi.schema';
 import { doseProblems, orderedProblems } from './doseRules';
+import { screenModifierSpec, isScreenSpec } from './screenSpecs';
 import { specRuleProblems } from './specRules';
 
 export interface Actor {
@@ -74,7 +77,26 @@ async function usableVersion(transaction: Transaction, initiativeId: string, ver
  * exists, has a type that fits its role, and every reference level occurs in the data.
  * The engine checks the rest when it runs.
  */
-export function checkSpecAgainstDictionary(spec: Spec, dictionary: readonly DictionaryEntry[], profile: readonly ColumnProfile[]): void {
+export function checkSpecAgainstDictionary(spec: AnySpec, dictionary: readonly DictionaryEntry[], profile: readonly ColumnProfile[]): void {
+  if (isScreenSpec(spec)) {
+    // The list itself (distinct columns, none the intervention, outcome or a covariate), as the engine checks it.
+    try {
+      validateScreenSpec(spec);
+    } catch (error) {
+      if (error instanceof InvalidSpecError) throw unprocessable('spec-invalid', error.message, [{ path: 'spec.modifiers', message: error.message }]);
+      throw error;
+    }
+  }
+  // A subgroup screen: each modifier's own analysis, with its problems placed under that modifier.
+  const problems = isScreenSpec(spec)
+    ? spec.modifiers.flatMap((_, index) =>
+        singleSpecProblems(screenModifierSpec(spec, index), dictionary, profile).map((problem) => ({ ...problem, path: problem.path.replace(/^spec\.modifier\b/, `spec.modifiers.${index}`) })),
+      )
+    : singleSpecProblems(spec as Spec, dictionary, profile);
+  if (problems.length) throw unprocessable('spec-invalid', problems[0].message, problems);
+}
+
+function singleSpecProblems(spec: Spec, dictionary: readonly DictionaryEntry[], profile: readonly ColumnProfile[]): { path: string; message: string }[] {
   const problems: { path: string; message: string }[] = [];
   const entry = (name: string) => dictionary.find((d) => d.name === name);
   const levels = (name: string) => {
@@ -124,7 +146,7 @@ export function checkSpecAgainstDictionary(spec: Spec, dictionary: readonly Dict
   });
   // The same rule check as the form's validation and summary panel.
   problems.push(...specRuleProblems(spec));
-  if (problems.length) throw unprocessable('spec-invalid', problems[0].message, problems);
+  return problems;
 }
 
 export async function createAnalysis(transaction: Transaction, actor: Actor, body: AnalysisBody): Promise<{ id: string }> {

@@ -228,7 +228,9 @@ export function draftToSpec(columns: readonly FormColumn[], draft: SpecDraft): C
     for (const issue of parsed.error.issues) schemaErrors[issue.path.join('.') || 'spec'] = issue.message;
     return { ok: false, errors: schemaErrors };
   }
-  return { ok: true, spec: parsed.data };
+  const parsedModifier = parsed.data.modifier;
+  if (parsedModifier === undefined) return { ok: false, errors: { 'modifier.column': 'Choose a modifier.' } };
+  return { ok: true, spec: { ...parsed.data, modifier: parsedModifier } };
 }
 
 /** An ordered modifier's dictionary scores for the levels it has, when the test for trend is asked for. */

@@ -2,7 +2,8 @@
  * The specification in plain English (shown on the analysis and run pages and in the
  * result tables) and the list of what a run will compute, shown before running.
  */
-import type { Spec } from '@/engine/boundary/schemas';
+import type { AnySpec, ScreenSpec, Spec } from '@/engine/boundary/schemas';
+import { isScreenSpec } from './screenSpecs';
 import { defaultReference, levelsFromReference, type FormColumn } from './formColumns';
 import { ordinal } from '@/engine/analysis/pointLabels';
 import { scoresText } from '../extracts/orderedScores';
@@ -43,7 +44,10 @@ function slopesInWords(slopes: NonNullable<Spec['modifier']['slopesAt']>): strin
  * comorbidity_score and site; effects as odds ratios; 95 % delta-method intervals; tests
  * at the 5 % level; Holm adjustment across 4 strata."
  */
-export function specInWords(spec: Spec, context: WordsContext = {}): string {
+export function specInWords(anySpec: AnySpec, context: WordsContext = {}): string {
+  const given = anySpec.modifier;
+  if (given === undefined) return isScreenSpec(anySpec) ? screenInWords(anySpec, context) : 'No modifier chosen yet.';
+  const spec: Spec = { ...anySpec, modifier: given };
   const label = (name: string) => columnLabel(name, context.columns);
   const outcome = spec.outcome.event ? `${label(spec.outcome.column)} (event: ${spec.outcome.event})` : label(spec.outcome.column);
   const parts: string[] = [];
@@ -111,6 +115,29 @@ function extrasComputation(spec: Spec): ComputationItem[] {
     items.push({ title: 'Frequency weights', detail: `Each row counts as ${spec.weights.column} identical rows: counts, tables, intervals and any bootstrap are those of the expanded rows. Weights must be positive whole numbers.` });
   }
   return items;
+}
+
+/**
+ * A subgroup screen in plain English, e.g. "Subgroup screen over 3 modifiers, each in a
+ * logistic regression model of its own: readmitted on treated (reference 0), its product
+ * with frailty (reference low), with age (continuous) and with creatinine (continuous) in
+ * turn, ...; Holm and Benjamini-Hochberg adjustment of the interaction tests across the 3
+ * modifiers."
+ */
+function screenInWords(spec: ScreenSpec, context: WordsContext): string {
+  const label = (name: string) => columnLabel(name, context.columns);
+  const count = spec.modifiers.length;
+  const each = spec.modifiers.map((modifier) =>
+    modifier.type === 'categorical' ? `${label(modifier.column)} (reference ${modifier.reference ?? 'the first level'})` : `${label(modifier.column)} (continuous)`,
+  );
+  const covariates = spec.covariates.map((covariate) => label(covariate.column));
+  const measure = spec.effectMeasure ?? measureFor(spec.model, spec.outcome.type);
+  return (
+    `Subgroup screen over ${count} modifiers, each in a ${MODEL_LABEL[spec.model].toLowerCase()} model of its own: ` +
+    `${label(spec.outcome.column)} on ${label(spec.exposure.column)} (reference ${spec.exposure.reference}) and its product with ${listInWords(each)} in turn, ` +
+    `${covariates.length > 0 ? `adjusted for ${listInWords(covariates)}` : 'with no adjustment for other covariates'}; effects as ${measureLabel(measure, spec.outcome.type)}s within each level or at chosen points; ` +
+    `${percentText(spec.ci.level)} % intervals; the interaction test of each modifier (likelihood ratio, or F for a linear model), with Holm and Benjamini-Hochberg adjustment across the ${count} modifiers.`
+  );
 }
 
 /** One line of the "what will be computed" panel. */

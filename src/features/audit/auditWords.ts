@@ -33,6 +33,7 @@ const SPEC_FIELD: Record<string, string> = {
   'modifier.reference': 'modifier reference level',
   'modifier.centre': 'modifier centring',
   'modifier.slopesAt': 'points the effect is marked at',
+  modifiers: 'modifiers of the subgroup screen',
   covariates: 'covariates',
   'ci.level': 'confidence level',
   'ci.method': 'interval method',

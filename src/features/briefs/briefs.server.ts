@@ -9,6 +9,7 @@ import { createHash } from 'node:crypto';
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Result, Spec } from '@/engine/boundary/schemas';
 import { dateTimeInWords } from '@/lib/dates';
+import { isScreenSpec } from '@/features/analyses/screenSpecs';
 import { sequelize } from '@/lib/server/db';
 import { conflict, notFound } from '@/lib/server/errors';
 import { recordAudit } from '../audit/audit.server';
@@ -64,6 +65,9 @@ export async function draftBrief(transaction: Transaction, actor: Actor, runId: 
   if (run.verifiesRunId) throw conflict('A verification re-run is not published; draft the brief from the run it verifies.');
   if (run.reviewState !== 'signed-off') {
     throw conflict(`This run is not signed off (its review is ${run.reviewState.replace('-', ' ')}), so no brief can be drafted from it yet. A clinician signs a submitted run off on its results page.`);
+  }
+  if (isScreenSpec(run.spec)) {
+    throw conflict('A brief presents one modifier: draft it from a full analysis of that modifier (linked from the subgroup screen\'s table), not from the screen itself.');
   }
   const plot: PlotChoice = run.spec.modifier.type === 'continuous' ? 'modifier' : 'forest';
   const [row] = await sequelize.query<{ id: string }>(

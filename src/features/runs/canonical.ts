@@ -3,7 +3,7 @@
  * run) and a result's digest (compared when a run is re-run to verify it).
  */
 import { createHash } from 'node:crypto';
-import type { Spec } from '@/engine/boundary/schemas';
+import type { AnySpec } from '@/engine/boundary/schemas';
 
 /**
  * JSON with object keys sorted at every level: equal values serialise equally whatever
@@ -21,7 +21,7 @@ export function canonicalJson(value: unknown): string {
   return JSON.stringify(value);
 }
 
-export function specHash(spec: Spec): string {
+export function specHash(spec: AnySpec): string {
   return createHash('sha256').update(canonicalJson(spec)).digest('hex');
 }
 

@@ -6,7 +6,8 @@
 import { readFileSync } from 'node:fs';
 import { experimental_AstroContainer as AstroContainer } from 'astro/container';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { ResultSchema, SpecSchema, type Result, type Spec } from '@/engine/boundary/schemas';
+import { ResultSchema, type Result, type Spec } from '@/engine/boundary/schemas';
+import { parseSingleSpec } from '../analyses/screenSpecs';
 import { runAnalysis } from '@/engine/index';
 import ResultTables from './ResultTables.astro';
 import { engineDataOfCsv } from './engineInput';
@@ -22,7 +23,7 @@ describe('results page of a dose with an ordered modifier', () => {
   let spec: Spec;
   beforeAll(async () => {
     container = await AstroContainer.create();
-    spec = SpecSchema.parse(fixtures['trend-dose-logistic'].spec);
+    spec = parseSingleSpec(fixtures['trend-dose-logistic'].spec);
     result = ResultSchema.parse(await runAnalysis(engineDataOfCsv(readFileSync(new URL('cohort.csv', root))), spec, { threads: 0 }));
   });
 
@@ -49,7 +50,7 @@ describe('server check of a dose and an ordered modifier against the dictionary'
     { name: 'frailty', type: 'categorical', description: '', ordered: { scores: { low: 1, mid: 2, high: 4 } } },
   ];
   const profiles = [profile('readmitted', ['0', '1']), profile('minutes', null), profile('treated', ['0', '1']), profile('frailty', ['low', 'mid', 'high'])];
-  const base = (): Spec => SpecSchema.parse({
+  const base = (): Spec => parseSingleSpec({
     outcome: { column: 'readmitted', type: 'binary' }, exposure: { column: 'minutes', type: 'continuous' },
     modifier: { column: 'frailty', type: 'categorical', reference: 'low', ordered: { scores: { low: 1, mid: 2, high: 4 } } },
     covariates: [], model: 'logistic', ci: { level: 0.95, method: 'delta' },

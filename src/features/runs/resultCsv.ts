@@ -14,6 +14,7 @@ import { displayLevels, measureInfo, type MeasureInfo } from './resultFormat';
 import { doseTrendCsvRows } from './doseTrendCsv';
 import { multiplicityNote, OMNIBUS_LABEL } from './resultWords';
 import { effectRangeInWords } from './continuousWords';
+import { screenRows } from './screenCsv';
 
 export const CSV_COLUMNS = [
   'section',
@@ -221,7 +222,8 @@ export function resultCsv(result: Result, spec: Spec): string {
   out += csvRecord(CSV_COLUMNS);
 
   const context: CsvContext = { result, measure: measureInfo(result), levels: displayLevels(result), exposure: result.exposure.column, modifier: result.modifier.column };
-  const rows = [
+  // A subgroup screen: its own records (every modifier), then what the analysis used.
+  const rows = result.screen ? [...screenRows(result), ...contextRows(context)] : [
     ...jointRows(context),
     ...withinStratumRows(context),
     ...eValueRows(result, context.levels),

@@ -10,7 +10,7 @@
 import { QueryTypes, fn, type Transaction } from 'sequelize';
 import { Analysis, ExtractVersion, Run } from '../../../db/models';
 import { ENGINE_VERSION } from '@/engine';
-import type { Result, Spec } from '@/engine/boundary/schemas';
+import type { AnySpec, Result, Spec } from '@/engine/boundary/schemas';
 import { CAUTION_VERSION, cautionText } from '@/lib/cautions';
 import { sequelize } from '@/lib/server/db';
 import { env } from '@/lib/server/env';
@@ -25,6 +25,7 @@ import type { Verification } from './runVerification';
 import { cachedResult, keepResult } from './finishedResults';
 import { parseStoredResult } from './storedResult';
 import { planStanding } from '@/features/planning/planning.server';
+import { modifierColumns } from '@/features/analyses/screenSpecs';
 
 export interface Actor {
   id: string;
@@ -55,11 +56,16 @@ export async function startRun(transaction: Transaction, actor: Actor, analysisI
   if (version.status !== 'ready') throw conflict('The pinned extract version is not confirmed.');
   // Planned when the modifier is on the initiative's register from before the data, or the
   // analysis itself was declared prespecified before the version was uploaded.
-  const standing = await planStanding(transaction, {
-    initiativeId: analysis.initiativeId, modifierColumn: analysis.spec.modifier.column, outcomeColumn: analysis.spec.outcome.column, dataArrivedAt: version.uploadedAt,
-  }, null);
+  // A subgroup screen is planned only when every one of its modifiers is.
+  let registered = true;
+  for (const modifierColumn of modifierColumns(analysis.spec)) {
+    const standing = await planStanding(transaction, {
+      initiativeId: analysis.initiativeId, modifierColumn, outcomeColumn: analysis.spec.outcome.column, dataArrivedAt: version.uploadedAt,
+    }, null);
+    if (standing.status === 'exploratory') registered = false;
+  }
   const declared = analysis.prespecifiedAt !== null && new Date(version.uploadedAt) <= new Date(analysis.prespecifiedAt);
-  const exploratory = standing.status === 'exploratory' && !declared;
+  const exploratory = !registered && !declared;
   return queueRun(transaction, actor, {
     analysisId, initiativeId: analysis.initiativeId, extractVersionId: analysis.extractVersionId, extractSha256: version.sha256,
     spec: analysis.spec, exploratory, seed: analysis.spec.ci.seed ?? (analysis.spec.ci.method === 'bootstrap' ? 1 : null), verifiesRunId: null,
@@ -91,7 +97,7 @@ export interface QueuedRun {
 }
 
 interface NewRun {
-  analysisId: string; initiativeId: string; extractVersionId: string; extractSha256: string; spec: Spec; exploratory: boolean;
+  analysisId: string; initiativeId: string; extractVersionId: string; extractSha256: string; spec: AnySpec; exploratory: boolean;
   seed: number | null; verifiesRunId: string | null;
 }
 

@@ -3,7 +3,8 @@
  * cohorts (src/features/extracts/demoCohorts.ts), read as an upload is (engineInput.ts).
  * Each result is computed once per test file. Not imported by product code.
  */
-import { ResultSchema, SpecSchema, type Result, type Spec } from '@/engine/boundary/schemas';
+import { ResultSchema, type Result, type Spec } from '@/engine/boundary/schemas';
+import { parseSingleSpec } from '../analyses/screenSpecs';
 import { runAnalysis } from '@/engine/index';
 import type { EngineData } from '@/engine/types';
 import { CALL_BACK_DEMO_SPEC, UP_AND_ABOUT_DEMO_SPEC } from '../analyses/demoSpecs';
@@ -24,8 +25,8 @@ function upAndAbout(): EngineData {
 }
 
 /** The demo analyses' specifications (src/features/analyses/demoSpecs.ts), checked by the spec schema. */
-export const CALL_BACK_SPEC: Spec = SpecSchema.parse(CALL_BACK_DEMO_SPEC);
-export const UP_AND_ABOUT_SPEC: Spec = SpecSchema.parse(UP_AND_ABOUT_DEMO_SPEC);
+export const CALL_BACK_SPEC: Spec = parseSingleSpec(CALL_BACK_DEMO_SPEC);
+export const UP_AND_ABOUT_SPEC: Spec = parseSingleSpec(UP_AND_ABOUT_DEMO_SPEC);
 
 /** Runs the engine and checks its result against the strict result schema. */
 export async function engineResult(cohort: 'call-back' | 'up-and-about', spec: Spec): Promise<Result> {
