@@ -1,6 +1,8 @@
 import { z } from 'zod';
 import { clusteringBlock, clusterSpec, ratesBlock, weightsBlock, weightsSpec } from './clusterRateWeightSchemas.js';
 import { screenBlockSchema, screenModifiers } from './screenSchemas.js';
+import { eValues, standardizedEffects } from './absoluteEffectSchemas.js';
+import { doseBlock, predictionsBlock, trendBlock } from './doseTrendSchemas.js';
 
 /**
  * The engine's specification and result, defined once: these zod schemas are what the API
@@ -285,89 +287,6 @@ const planningBlock = z.strictObject({
   levels: z.array(planningLevel),
 });
 
-// Standardized absolute effects (binary outcomes) and E-values: methods.md, "Rates, doses,
-// absolute effects".
-const standardizedRisk = z.strictObject({ estimate: num, lower: num, upper: num, se: num });
-const numberNeededEnd = z.strictObject({
-  value: num.describe('1/|limit of the risk difference|.'),
-  direction: z.enum(['treat', 'harm']).nullable().describe('treat: that limit has fewer events with the intervention; harm: more; null at 0.'),
-});
-const numberNeeded = z.strictObject({
-  estimate: num.describe('1/|RD|; null when RD is 0.'),
-  direction: z.enum(['treat', 'harm']).nullable().describe('treat: fewer events with the intervention (one fewer per NNT treated); harm: one more per NNT treated.'),
-  throughInfinity: z.boolean().describe('The RD interval includes 0, so the NNT interval runs from the lower end through infinity to the upper end (Altman, BMJ 1998).'),
-  lower: numberNeededEnd.describe('The end that comes from the lower limit of the risk difference.'),
-  upper: numberNeededEnd.describe('The end that comes from the upper limit of the risk difference.'),
-});
-const standardizedLevel = z.strictObject({
-  level: z.string(),
-  n: z.number(),
-  riskUnexposed: standardizedRisk.describe('Mean predicted risk over the level\'s rows with the intervention set to the reference arm.'),
-  riskExposed: standardizedRisk.describe('The same with the intervention set to the other arm.'),
-  riskDifference: effectInterval,
-  nnt: numberNeeded,
-  interactionContrast: effectInterval.nullable().describe('RD of this level minus RD of the reference level; null for the reference level.'),
-});
-const standardizedEffects = z.strictObject({
-  method: z.literal('standardized-delta'),
-  variance: z.string().describe('The coefficient covariance the delta-method intervals use (the fit\'s own: model, HC0, HC3, ...).'),
-  reference: z.string().describe('The reference modifier level of the interaction contrasts.'),
-  levels: z.array(standardizedLevel),
-});
-const eValueEntry = z.strictObject({
-  level: z.string(),
-  ratio: z.enum(['risk ratio', 'odds ratio', 'rate ratio']),
-  conversion: z.enum(['none', 'square-root', 'rare-outcome']).describe('Odds ratios: square root when the outcome is common (over 15 %), else read as a risk ratio.'),
-  prevalence: num.describe('Outcome proportion among the level\'s analysed rows, used to judge whether the outcome is common (odds ratios).'),
-  estimate: num.describe('E-value of the point estimate.'),
-  limit: num.describe('E-value of the interval limit nearer 1; 1 when the interval includes 1.'),
-});
-const eValues = z.strictObject({
-  commonAbove: z.number().describe('Outcome proportion above which an odds ratio is square-rooted.'),
-  prevalenceBasis: z.literal('stratum').describe('The proportion is that of each modifier level (both arms).'),
-  entries: z.array(eValueEntry),
-});
-
-const slopeByLevel = z.strictObject({ level: z.string(), estimate: num, se: num, lower: num, upper: num, p: num });
-
-const doseBlock = z.strictObject({
-  scale: z.enum(['log-odds', 'log-risk', 'identity']).describe('Scale of the slopes: the model\'s linear predictor per unit of the intervention.'),
-  slopes: z.array(slopeByLevel).describe('Slope of the intervention within each level: b_A + b_{A·m}, Var = V_AA + 2V_{A,Am} + V_{Am,Am}.'),
-  differences: z.array(slopeByLevel).describe('Each level\'s slope minus the reference level\'s slope: b_{A·m}.'),
-  interval: z.enum(['z', 't']).describe('Wald intervals from the normal (GLMs) or t (linear) distribution.'),
-});
-
-const trendBlock = z.strictObject({
-  scores: z.array(z.strictObject({ level: z.string(), score: z.number() })).describe('The scores used, by level.'),
-  term: z.string().describe('The one product term of the intervention with the level scores.'),
-  estimate: num.describe('Product coefficient on the linear-predictor scale: change in the intervention\'s effect per unit of score.'),
-  se: num,
-  lower: num,
-  upper: num,
-  ratio: interval.nullable().describe('Ratio models: the coefficient and limits exponentiated (ratio of ratios per unit of score).'),
-  wald: test.describe('Wald test of the product coefficient (z² on 1 df, or t² as F on 1 and the residual df for linear models).'),
-  likelihoodRatio: test.nullable().describe('GLMs: likelihood-ratio test of the trend model against the model without product terms.'),
-});
-
-const predictionPoint = z.strictObject({
-  level: z.string().nullable().describe('Categorical modifier: the level.'),
-  x: num.describe('Continuous modifier: the value.'),
-  linearPredictor: num,
-  se: num.describe('Standard error of the linear predictor.'),
-  estimate: num.describe('On the outcome scale (risk or mean).'),
-  lower: num,
-  upper: num,
-});
-
-const predictionsBlock = z.strictObject({
-  method: z.literal('typical-values').describe('Covariates held at their means (continuous) and most common levels (categorical).'),
-  covariates: z.array(
-    z.strictObject({ column: z.string(), held: z.enum(['mean', 'most-common']), value: num, level: z.string().nullable() }),
-  ),
-  lines: z.array(
-    z.strictObject({ label: z.string(), exposure: z.number().describe('Value of the intervention term on this line.'), points: z.array(predictionPoint) }),
-  ),
-});
 const screenBlock = screenBlockSchema({ stratumEffect, slopeEntry, omnibusTest, variableType, num });
 
 const engineWarning = z.strictObject({
@@ -492,16 +411,9 @@ export type BootstrapAccount = z.output<typeof bootstrapAccount>;
 export type PlanningLevel = z.output<typeof planningLevel>;
 export type PlanningBlock = z.output<typeof planningBlock>;
 export type { ClusteringBlock, RatesBlock, WeightsBlock } from './clusterRateWeightSchemas.js';
+export type { StandardizedRisk, NumberNeeded, StandardizedLevel, StandardizedEffects, EValueEntry, EValues } from './absoluteEffectSchemas.js';
+export type { DoseBlock, TrendBlock, PredictionsBlock } from './doseTrendSchemas.js';
 export type EngineWarning = z.output<typeof engineWarning>;
-export type StandardizedRisk = z.output<typeof standardizedRisk>;
-export type NumberNeeded = z.output<typeof numberNeeded>;
-export type StandardizedLevel = z.output<typeof standardizedLevel>;
-export type StandardizedEffects = z.output<typeof standardizedEffects>;
-export type EValueEntry = z.output<typeof eValueEntry>;
-export type EValues = z.output<typeof eValues>;
-export type DoseBlock = z.output<typeof doseBlock>;
-export type TrendBlock = z.output<typeof trendBlock>;
-export type PredictionsBlock = z.output<typeof predictionsBlock>;
 export type ScreenBlock = z.output<typeof screenBlock>;
 export type ScreenEntry = ScreenBlock['modifiers'][number];
 

@@ -1,5 +1,4 @@
 import {
-  ColumnNotFoundError,
   ColumnTypeMismatchError,
   ConstantColumnError,
   EmptyStratumError,
@@ -12,7 +11,7 @@ import {
 } from '../errors.js';
 import type { AnalysisSpec, EngineColumn, EngineData, EngineWarning } from '../types.js';
 import { markMissingRows, scanColumn } from './columnScan.js';
-import { refuseText, rowPlace, warnDropped, warnSuspectLevels, withoutMissingTokens } from './frameChecks.js';
+import { getColumn, refuseText, rowPlace, warnDropped, warnSuspectLevels } from './frameChecks.js';
 import { checkCountOutcome, codeFrameExtras, extraColumnNames, type FrameExtras } from './frameExtras.js';
 import { orderByScore } from './orderedLevels.js';
 
@@ -63,19 +62,6 @@ export interface AnalysisFrame {
   readonly warnings: EngineWarning[];
   /** Clusters and person-time (frameExtras.ts); absent in frames built by hand. */
   readonly extras?: FrameExtras;
-}
-
-function getColumn(data: EngineData, name: string): EngineColumn {
-  const column = Object.prototype.hasOwnProperty.call(data.columns, name) ? data.columns[name] : undefined;
-  if (column === undefined) throw new ColumnNotFoundError(name);
-  const length = column.kind === 'numeric' ? column.values.length : column.codes.length;
-  if (length !== data.rowCount) {
-    throw new InvalidDataError(`The column "${name}" has ${length} values but the data have ${data.rowCount} rows.`, { column: name });
-  }
-  if (column.missing !== undefined && column.missing.length !== data.rowCount) {
-    throw new InvalidDataError(`The missing-value mask of "${name}" has the wrong length.`, { column: name });
-  }
-  return column.kind === 'categorical' ? withoutMissingTokens(column) : column;
 }
 
 /** Shortest round-trip text of a number, used as a level name for numeric columns. */

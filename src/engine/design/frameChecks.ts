@@ -3,7 +3,7 @@
  * needed: token levels read as missing, suspect "not known" codes, and messages that name
  * the value, the column and where it first occurs.
  */
-import { ColumnTypeMismatchError } from '../errors.js';
+import { ColumnNotFoundError, ColumnTypeMismatchError, InvalidDataError } from '../errors.js';
 import type { CategoricalColumn, EngineColumn, EngineData, EngineWarning } from '../types.js';
 import { isMissingToken, suspectMissingLevels } from './missingValues.js';
 
@@ -77,4 +77,18 @@ export function warnDropped(rowCount: number, kept: number, missingByColumn: { c
       `${rowCount - kept} of ${rowCount} rows have a missing value in a column the analysis uses and were left out ` +
       `(rows missing per column: ${byColumn}; a row can be missing in more than one).`,
   });
+}
+
+/** A column of the data by name, checked for length, with missing-value token levels read as missing. */
+export function getColumn(data: EngineData, name: string): EngineColumn {
+  const column = Object.prototype.hasOwnProperty.call(data.columns, name) ? data.columns[name] : undefined;
+  if (column === undefined) throw new ColumnNotFoundError(name);
+  const length = column.kind === 'numeric' ? column.values.length : column.codes.length;
+  if (length !== data.rowCount) {
+    throw new InvalidDataError(`The column "${name}" has ${length} values but the data have ${data.rowCount} rows.`, { column: name });
+  }
+  if (column.missing !== undefined && column.missing.length !== data.rowCount) {
+    throw new InvalidDataError(`The missing-value mask of "${name}" has the wrong length.`, { column: name });
+  }
+  return column.kind === 'categorical' ? withoutMissingTokens(column) : column;
 }
