@@ -227,7 +227,9 @@ export function methodsParagraph(result: Result, spec: Spec, facts: BriefFacts, 
   const method = spec.ci.method === 'bootstrap' ? 'percentile bootstrap' : spec.ci.method === 'mover' ? 'MOVER' : 'delta-method';
   const declared = facts.prespecifiedAt
     ? `The analysis was declared prespecified on ${utc(facts.prespecifiedAt)}${facts.exploratory ? ', but the extract version was uploaded after that declaration, so this run counts as exploratory' : ''}.`
-    : 'The analysis was not declared in advance; it is exploratory.';
+    : facts.exploratory
+      ? 'The analysis was not declared in advance, and its modifier was not on the initiative\'s register of prespecified modifiers before the data; it is exploratory.'
+      : 'The modifier was on the initiative\'s register of prespecified modifiers before the data were uploaded, so this run counts as planned.';
   const strata = result.modifier.type === 'categorical'
     ? `${result.strata.length} strata of ${result.modifier.column} were examined`
     : `${result.modifier.column} was treated as continuous (one product term)`;
