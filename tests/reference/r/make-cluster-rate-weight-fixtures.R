@@ -26,8 +26,10 @@ out <- if (length(args) >= 1) args[1] else "tests/reference/cluster-rate-weight"
 dir.create(file.path(out, "data"), recursive = TRUE, showWarnings = FALSE)
 dir.create(file.path(out, "fixtures"), recursive = TRUE, showWarnings = FALSE)
 
-# The helper functions of make-fixtures.R (its top-level `name <- function(...)` lines only).
+# The JSON writer (json.R) and the helper functions of make-fixtures.R (its top-level
+# `name <- function(...)` lines only).
 here <- dirname(sub("^--file=", "", grep("^--file=", commandArgs(trailingOnly = FALSE), value = TRUE)[1]))
+source(file.path(here, "json.R"))
 for (e in parse(file.path(here, "make-fixtures.R"))) {
   if (is.call(e) && identical(e[[1]], as.name("<-")) && is.call(e[[3]]) && identical(e[[3]][[1]], as.name("function"))) eval(e)
 }

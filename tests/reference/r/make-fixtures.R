@@ -25,28 +25,9 @@ out <- if (length(args) >= 1) args[1] else "tests/reference"
 dir.create(file.path(out, "data"), recursive = TRUE, showWarnings = FALSE)
 dir.create(file.path(out, "fixtures"), recursive = TRUE, showWarnings = FALSE)
 
-# ---- a small JSON writer (base R has none) -------------------------------------------
-arr <- function(x) structure(as.list(x), class = "json_array")
-json <- function(x) {
-  if (is.null(x)) return("null")
-  if (inherits(x, "json_array")) return(paste0("[", paste(vapply(unclass(x), json, ""), collapse = ","), "]"))
-  if (is.list(x)) {
-    keys <- names(x)
-    if (is.null(keys)) return(paste0("[", paste(vapply(x, json, ""), collapse = ","), "]"))
-    body <- vapply(seq_along(x), function(i) paste0(json(keys[i]), ":", json(x[[i]])), "")
-    return(paste0("{", paste(body, collapse = ","), "}"))
-  }
-  if (length(x) != 1) return(json(arr(x)))
-  if (is.na(x)) return("null")
-  if (is.logical(x)) return(if (x) "true" else "false")
-  if (is.numeric(x)) {
-    if (!is.finite(x)) return("null")
-    return(sprintf("%.17g", x))
-  }
-  s <- gsub("\\\\", "\\\\\\\\", as.character(x))
-  s <- gsub("\"", "\\\\\"", s)
-  paste0("\"", s, "\"")
-}
+# arr() and json(): a small JSON writer (base R has none), shared by the fixture scripts.
+script_dir <- dirname(normalizePath(sub("^--file=", "", grep("^--file=", commandArgs(FALSE), value = TRUE))))
+source(file.path(script_dir, "json.R"))
 write_json <- function(x, name) writeLines(json(x), file.path(out, "fixtures", paste0(name, ".json")), useBytes = TRUE)
 
 export_csv <- function(frame, name) {
