@@ -1,3 +1,5 @@
+import { readFileSync } from 'node:fs';
+import path from 'node:path';
 import type { Migration } from '../migrate';
 
 /**
@@ -16,6 +18,8 @@ export const up: Migration = async ({ context }) => {
       ADD COLUMN mail_attempts integer NOT NULL DEFAULT 0,
       ADD COLUMN mail_claimed_at timestamptz;
     CREATE INDEX notifications_mail_pending_idx ON notifications (created_at) WHERE mail_state = 'pending';
+    -- Replaced by app_notification_mail_pending, which reads the choice as it marks.
+    DROP FUNCTION IF EXISTS app_notification_mail_choices(uuid[]);
   `);
   await context.applyPolicyFile('015_notification_mail.sql');
 };
@@ -29,4 +33,9 @@ export const down: Migration = async ({ context }) => {
     DROP INDEX IF EXISTS notifications_mail_pending_idx;
     ALTER TABLE notifications DROP COLUMN mail_state, DROP COLUMN mail_attempts, DROP COLUMN mail_claimed_at;
   `);
+  // The function this migration replaced, as policies/rls/011_notifications.sql made it.
+  const policy = readFileSync(path.join(import.meta.dirname, '../../policies/rls/011_notifications.sql'), 'utf8');
+  const start = policy.indexOf('CREATE OR REPLACE FUNCTION app_notification_mail_choices');
+  const end = policy.indexOf('TO {{app_role}};', start) + 'TO {{app_role}};'.length;
+  await context.sql(policy.slice(start, end));
 };

@@ -10,12 +10,12 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
 import { generateCallBackCohort } from '@/features/extracts/demoCohorts';
 import { executeRun } from '@/features/runs/executeRun';
-import { hashPassword } from '@/lib/server/passwords';
 import { sequelize, withIdentity } from '@/lib/server/db';
 import { startServer, type ServerHandle } from '../browser/harness';
 import { makeReadyExtract } from '../support/extractFactory';
-import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
+import { closeOwnerDb, makeInitiative, ownerDb } from '../support/factories';
 import { ApiClient } from '../support/http';
+import { signedInMembers } from '../support/members';
 
 const password = 'lantern-quay-bramble';
 type Role = 'analyst' | 'clinician' | 'auditor' | 'outsider';
@@ -47,19 +47,13 @@ const strength = (stratum: Stratum | undefined, ratio: boolean) => Math.abs(rati
 
 beforeAll(async () => {
   server = await startServer();
-  const hash = await hashPassword(password);
   initiativeId = (await makeInitiative('Credibility ward')).id;
   const other = (await makeInitiative('Other credibility ward')).id;
-  const roles: [Role, string, 'analyst' | 'clinician' | 'auditor'][] = [
+  const signedIn = await signedInMembers(password, [
     ['analyst', initiativeId, 'analyst'], ['clinician', initiativeId, 'clinician'], ['auditor', initiativeId, 'auditor'], ['outsider', other, 'clinician'],
-  ];
-  for (const [role, where, as] of roles) {
-    const user = await makeUser({ passwordHash: hash });
-    await addMember(where, user.id, as);
-    ids[role] = user.id;
-    clients[role] = new ApiClient();
-    expect((await clients[role].signIn(user.email, password)).status).toBe(204);
-  }
+  ] as const);
+  Object.assign(ids, signedIn.ids);
+  Object.assign(clients, signedIn.clients);
   // The register entry comes before the data: sex, predicted to make the call-back's effect stronger in men.
   expect((await clients.analyst.request('POST', `/api/initiatives/${initiativeId}/prespecified-modifiers`, {
     modifierColumn: 'sex', outcomeColumn: 'readmitted_30d', direction: 'stronger', where: 'M', rationale: 'Men are called back less often at home.',

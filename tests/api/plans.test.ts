@@ -10,11 +10,11 @@ import { QueryTypes } from 'sequelize';
 import { planFigures } from '@/engine/planning/interactionPlan';
 import { generateCallBackCohort } from '@/features/extracts/demoCohorts';
 import { executeRun } from '@/features/runs/executeRun';
-import { hashPassword } from '@/lib/server/passwords';
 import { startServer, type ServerHandle } from '../browser/harness';
 import { makeReadyExtract } from '../support/extractFactory';
-import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
+import { closeOwnerDb, makeInitiative, ownerDb } from '../support/factories';
 import { ApiClient } from '../support/http';
+import { signedInMembers } from '../support/members';
 
 const password = 'quill-harbour-meadow';
 type Role = 'analyst' | 'clinician' | 'auditor' | 'outsider';
@@ -41,19 +41,13 @@ const auditActions = async () =>
 
 beforeAll(async () => {
   server = await startServer();
-  const hash = await hashPassword(password);
   initiativeId = (await makeInitiative('Planning ward')).id;
   const other = (await makeInitiative('Other planning ward')).id;
-  const roles: [Role, string, 'analyst' | 'clinician' | 'auditor'][] = [
+  const signedIn = await signedInMembers(password, [
     ['analyst', initiativeId, 'analyst'], ['clinician', initiativeId, 'clinician'], ['auditor', initiativeId, 'auditor'], ['outsider', other, 'analyst'],
-  ];
-  for (const [role, where, as] of roles) {
-    const user = await makeUser({ passwordHash: hash });
-    await addMember(where, user.id, as);
-    ids[role] = user.id;
-    clients[role] = new ApiClient();
-    expect((await clients[role].signIn(user.email, password)).status).toBe(204);
-  }
+  ] as const);
+  Object.assign(ids, signedIn.ids);
+  Object.assign(clients, signedIn.clients);
 });
 
 afterAll(async () => {
