@@ -4,7 +4,7 @@
  * percentile with 20 and with 50 concurrent readers on loopback; prints p50, p95 and p99,
  * and first, one reader at a time, each page's size, the server's CPU time per view and the
  * database statements per view (and the same for the plot data the results page fetches).
- * CROSSGRAIN_BENCH_LOAD=0 skips the loads; CROSSGRAIN_BENCH_VS measures another build in turn
+ * CROSSGRAIN_BENCH_LOAD=0 skips the loads; CROSSGRAIN_BENCH_STATEMENTS=1 lists one view's statements; CROSSGRAIN_BENCH_VS measures another build in turn
  * (see below). Uses its own cluster (port 54369, .data/bench-results) and the
  * built server (built first when dist/ is missing), both removed or stopped at the end.
  */
@@ -154,6 +154,10 @@ try {
       await new Promise((resolve) => setTimeout(resolve, 300));
       const logged = readFileSync(logFile).subarray(logStart).toString('utf8');
       const statements = (logged.match(/LOG: {2}(statement|execute [^:]*):/g) ?? []).length;
+      // CROSSGRAIN_BENCH_STATEMENTS=1 lists them (the first 160 characters of each).
+      if (process.env.CROSSGRAIN_BENCH_STATEMENTS === '1') {
+        for (const line of logged.split('\n').filter((l) => /LOG: {2}(statement|execute [^:]*):/.test(l))) console.log(`    ${line.replace(/.*LOG: {2}/, '').slice(0, 160)}`);
+      }
       psql('ALTER SYSTEM RESET log_statement');
       psql('SELECT pg_reload_conf()');
       console.log(`[${target.label}] ${page.name}: ${statuses[t]}, ${(bytes[t] / 1024).toFixed(1)} KiB, server CPU ${(cpu[t] / (ROUNDS * VIEWS)).toFixed(1)} ms per view (mean of ${ROUNDS * VIEWS} one at a time), ${statements} database statements per view (BEGIN and COMMIT included)`);

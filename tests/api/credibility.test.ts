@@ -195,3 +195,46 @@ describe('where the rating shows', () => {
     expect(paragraph).not.toMatch(/\d/);
   });
 });
+
+describe('kept in memory between views, and never behind the records', () => {
+  // The server keeps assessments and standings under the initiative's evidence counter
+  // (lib/server/evidenceCache.ts); every change below is made where the server does not see
+  // it happen (this process, or another endpoint), and the next view must show it.
+  const panelOf = async (runId: string) => (await (await clients.analyst.request('GET', path(runId))).json());
+  const standingOf = async (runId: string) => (await (await clients.analyst.request('GET', `/runs/${runId}`)).text()).match(/data-testid="plan-standing" data-status="([a-z]+)"/)?.[1];
+
+  it('counts a new analysis of the outcome as soon as its run finishes', async () => {
+    const before = await panelOf(runs.age);
+    expect(await panelOf(runs.age)).toEqual(before);
+    const site = await runOf('Call-back by site', { ...base, ...readmission, modifier: { column: 'site', type: 'categorical', reference: 'Tern Valley General' } });
+    const after = await panelOf(runs.age);
+    expect(after.computed.modifiersExamined.count).toBe(before.computed.modifiersExamined.count + 1);
+    expect(after.computed.modifiersExamined.columns).toContain('site');
+    const board = await (await clients.auditor.request('GET', `/initiatives/${initiativeId}/board`)).text();
+    expect(board.match(/data-testid="credibility-badge"/g)).toHaveLength(5);
+    expect(site).toBeTruthy();
+  });
+
+  it('shows a withdrawn register entry on the next view of the page and of the panel', async () => {
+    expect(await standingOf(runs.sex)).toBe('planned');
+    expect((await panelOf(runs.sex)).computed.prespecified.source).toBe('register');
+    const register: { id: string; modifierColumn: string }[] = await (await clients.analyst.request('GET', `/api/initiatives/${initiativeId}/prespecified-modifiers`)).json();
+    const entry = register.find((e) => e.modifierColumn === 'sex')!;
+    const withdrawn = await clients.analyst.request('POST', `/api/initiatives/${initiativeId}/prespecified-modifiers/${entry.id}/withdraw`, { reason: 'Registered in error.' });
+    expect(withdrawn.status).toBe(200);
+    expect(await standingOf(runs.sex)).toBe('exploratory');
+    expect((await panelOf(runs.sex)).computed.prespecified.value).toBe(false);
+  });
+
+  it('shows a rating changed outside the server on the next view', async () => {
+    const before = await panelOf(runs.age);
+    await ownerDb().query(
+      `INSERT INTO credibility_ratings (run_id, initiative_id, rationale, prior_evidence, rated_by) VALUES (:runId, :initiativeId, 'none', 'contradicts', :by)
+       ON CONFLICT (run_id) DO UPDATE SET rationale = 'none', prior_evidence = 'contradicts'`,
+      { replacements: { runId: runs.age, initiativeId, by: ids.clinician } },
+    );
+    const after = await panelOf(runs.age);
+    expect(after.clinician).toMatchObject({ rationale: 'none', priorEvidence: 'contradicts' });
+    expect(before.clinician?.rationale ?? null).not.toBe('none');
+  });
+});

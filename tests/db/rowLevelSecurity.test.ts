@@ -144,4 +144,39 @@ describe('the one-round-trip membership read of every request', () => {
     }
     expect(() => membershipsQuery("x'; DROP TABLE users; --")).toThrow(/user id/);
   });
+
+  it('reads a session with its user and only that user’s memberships in one text, and leaves no identity behind', async () => {
+    const { default: pg } = await import('pg');
+    const { sessionQuery, hashToken, newToken } = await import('@/lib/server/session');
+    const user = await makeUser();
+    const mine = await makeInitiative();
+    const theirs = await makeInitiative();
+    await addMember(mine.id, user.id, 'analyst');
+    await addMember(theirs.id, (await makeUser()).id, 'analyst');
+    const sessionId = hashToken(newToken());
+    await ownerDb().query(
+      "INSERT INTO sessions (id, user_id, expires_at, created_at, last_seen_at) VALUES (:sessionId, :userId, now() + interval '1 hour', now(), now())",
+      { replacements: { sessionId, userId: user.id } },
+    );
+    const client = new pg.Client({
+      host: env.CROSSGRAIN_DB_HOST, port: env.CROSSGRAIN_DB_PORT, database: env.CROSSGRAIN_DB_NAME,
+      user: env.CROSSGRAIN_DB_APP_USER, password: env.CROSSGRAIN_DB_APP_PASSWORD,
+    });
+    await client.connect();
+    try {
+      const results = (await client.query(sessionQuery(sessionId))) as unknown as { rows: Record<string, unknown>[] }[];
+      expect(results).toHaveLength(2);
+      const [row] = results[1].rows;
+      expect(row).toMatchObject({ id: sessionId, user_id: user.id, status: 'active' });
+      expect((row.memberships as { initiativeId: string; role: string }[]).map((m) => [m.initiativeId, m.role])).toEqual([[mine.id, 'analyst']]);
+      const after = await client.query("SELECT coalesce(current_setting('app.user_id', true), '') AS id, (SELECT count(*) FROM memberships) AS visible");
+      expect(after.rows[0]).toEqual({ id: '', visible: '0' });
+      // An unknown session gives no row and sees no membership.
+      const unknown = (await client.query(sessionQuery(hashToken(newToken())))) as unknown as { rows: unknown[] }[];
+      expect(unknown[1].rows).toEqual([]);
+    } finally {
+      await client.end();
+    }
+    expect(() => sessionQuery("x'; DROP TABLE sessions; --")).toThrow(/session id/);
+  });
 });

@@ -13,6 +13,7 @@ import { recordAudit } from '@/features/audit/audit.server';
 import { runPlanStanding } from '@/features/planning/planning.server';
 import { getRun, type RunView } from '@/features/runs/runs.server';
 import { sequelize } from '@/lib/server/db';
+import { evidenceStamp, StampedCache } from '@/lib/server/evidenceCache';
 import { conflict } from '@/lib/server/errors';
 import type { CredibilityBody, CredibilityView } from './credibility.schema';
 import { credibilityItems, CREDIBILITY_RULE_TEXT } from './credibilityWords';
@@ -63,9 +64,27 @@ async function modifiersForOutcome(transaction: Transaction, initiativeId: strin
   return rows.map((row) => row.modifier).filter((name) => name !== null);
 }
 
-/** The computed items and the overall rating of a succeeded run (`canRate` is the caller's right). */
-export async function credibilityOf(transaction: Transaction, run: RunView, canRate: boolean): Promise<CredibilityView> {
+/**
+ * Assessments worked out for results pages and the board, under their initiative's evidence
+ * counter, which every input of an assessment moves (the run and its siblings, the
+ * analysis's declaration, the register and plans, the clinician's ratings; migration
+ * add-evidence-stamps). What the viewer may do (`canRate`) is added on each request.
+ */
+const assessments = new StampedCache<Omit<CredibilityView, 'canRate'>>();
+
+/**
+ * The computed items and the overall rating of a succeeded run (`canRate` is the caller's
+ * right). `stamp` is the initiative's evidence counter when the caller has read it already
+ * in this transaction.
+ */
+export async function credibilityOf(transaction: Transaction, run: RunView, canRate: boolean, stamp?: string): Promise<CredibilityView> {
   if (run.status !== 'succeeded' || run.verifiesRunId) throw conflict('Credibility is assessed on a finished run of an analysis, not on a run still under way, failed, or a verifying re-run.');
+  const counter = stamp ?? await evidenceStamp(transaction, run.initiativeId);
+  const assessment = await assessments.through(run.id, counter, () => workOutCredibility(transaction, run, counter));
+  return { ...assessment, canRate };
+}
+
+async function workOutCredibility(transaction: Transaction, run: RunView, stamp: string): Promise<Omit<CredibilityView, 'canRate'>> {
   const full = run.result ? run : await getRun(transaction, run.id, { withResult: true });
   const result = full?.result;
   if (!full || !result) throw conflict('This run has no result to assess.');
@@ -75,7 +94,7 @@ export async function credibilityOf(transaction: Transaction, run: RunView, canR
     `SELECT a.prespecified_at, v.uploaded_at, v.dictionary FROM analyses a JOIN extract_versions v ON v.id = :versionId WHERE a.id = :analysisId`,
     { replacements: { analysisId: full.analysisId, versionId: full.extractVersionId }, type: QueryTypes.SELECT, transaction },
   );
-  const standing = await runPlanStanding(transaction, full.id);
+  const standing = await runPlanStanding(transaction, full.id, stamp);
   const declared = facts?.prespecified_at && new Date(facts.uploaded_at) <= new Date(facts.prespecified_at) ? iso(facts.prespecified_at) : null;
   const prespecified: CredibilityView['computed']['prespecified'] = standing?.status === 'planned' && standing.entry
     ? { value: true, at: standing.entry.registeredAt, source: 'register' }
@@ -131,7 +150,7 @@ export async function credibilityOf(transaction: Transaction, run: RunView, canR
   return {
     runId: full.id, computed, clinician,
     items: credibilityItems(result, computed, clinician, observed?.text ?? null),
-    overall, rule: CREDIBILITY_RULE_TEXT, canRate,
+    overall, rule: CREDIBILITY_RULE_TEXT,
   };
 }
 
@@ -163,12 +182,20 @@ export async function rateCredibility(transaction: Transaction, actor: Actor, ru
 }
 
 /** The overall rating of several runs at once, for the review board's badges (runs that cannot be assessed are left out). */
-export async function credibilityBadges(transaction: Transaction, runIds: readonly string[]): Promise<Map<string, CredibilityView['overall']>> {
+export async function credibilityBadges(transaction: Transaction, initiativeId: string, runIds: readonly string[]): Promise<Map<string, CredibilityView['overall']>> {
   const out = new Map<string, CredibilityView['overall']>();
+  if (runIds.length === 0) return out;
+  // One counter for the board's initiative; a run is read only when its assessment is not kept under it.
+  const stamp = await evidenceStamp(transaction, initiativeId);
   for (const runId of runIds) {
+    const kept = assessments.get(runId, stamp);
+    if (kept) {
+      out.set(runId, kept.overall);
+      continue;
+    }
     const run = await getRun(transaction, runId, { withResult: true });
-    if (!run || run.status !== 'succeeded' || run.verifiesRunId || !run.result) continue;
-    out.set(run.id, (await credibilityOf(transaction, run, false)).overall);
+    if (!run || run.initiativeId !== initiativeId || run.status !== 'succeeded' || run.verifiesRunId || !run.result) continue;
+    out.set(run.id, (await credibilityOf(transaction, run, false, stamp)).overall);
   }
   return out;
 }

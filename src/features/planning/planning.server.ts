@@ -9,6 +9,7 @@ import { planFigures, PlanError, powerAtRows } from '@/engine/planning/interacti
 import { simulatePlanPower } from '@/engine/planning/planSimulation';
 import { recordAudit } from '@/features/audit/audit.server';
 import { sequelize } from '@/lib/server/db';
+import { StampedCache } from '@/lib/server/evidenceCache';
 import { badRequest, conflict, notFound } from '@/lib/server/errors';
 import type { PlanFiguresView, PlanInputs, PlanStandingView, RegisterBody, RegisterEntryView, SavedPlanView, SavePlanBody } from './planning.schema';
 
@@ -205,8 +206,20 @@ export async function initiativeColumns(transaction: Transaction, initiativeId: 
   return rows.map((row) => row.name);
 }
 
-/** A run's standing against the register and the plan in force, or null for a run without a result yet. */
-export async function runPlanStanding(transaction: Transaction, runId: string): Promise<PlanStandingView | null> {
+/** Standings worked out for results pages, under their initiative's evidence counter. */
+const standings = new StampedCache<PlanStandingView | null>();
+
+/**
+ * A run's standing against the register and the plan in force, or null for a run without a
+ * result yet. Given the counter of the run's initiative (evidenceStamp, read in the same
+ * transaction before), a standing worked out under the same counter is reused.
+ */
+export async function runPlanStanding(transaction: Transaction, runId: string, stamp?: string): Promise<PlanStandingView | null> {
+  if (stamp !== undefined) return standings.through(runId, stamp, () => workOutRunPlanStanding(transaction, runId));
+  return workOutRunPlanStanding(transaction, runId);
+}
+
+async function workOutRunPlanStanding(transaction: Transaction, runId: string): Promise<PlanStandingView | null> {
   const [run] = await sequelize.query<{ initiative_id: string; modifier: string | null; outcome: string | null; uploaded_at: Date; n: number | null }>(
     `SELECT r.initiative_id, r.spec #>> '{modifier,column}' AS modifier, r.spec #>> '{outcome,column}' AS outcome, v.uploaded_at, (r.result ->> 'n')::int AS n
        FROM runs r JOIN extract_versions v ON v.id = r.extract_version_id WHERE r.id = :runId`,

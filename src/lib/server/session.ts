@@ -223,29 +223,80 @@ export async function resolveSession(
   const token = context.cookies.get(SESSION_COOKIE)?.value;
   if (!token) return anonymous;
   const sessionId = hashToken(token);
-  const { session, user } = await lucia.validateSession(sessionId);
-  if (!session || !user) {
+  const row = await loadSession(sessionId);
+  if (!row) {
     await endSession(context.cookies, undefined);
     return anonymous;
   }
   const now = Date.now();
-  const idle = now - session.lastSeenAt.getTime() > idleMs();
-  const tooOld = now - session.createdAt.getTime() > absoluteMs();
-  if (idle || tooOld || user.status !== 'active') {
-    await endSession(context.cookies, session.id);
+  const lastSeenAt = new Date(row.last_seen_at);
+  const createdAt = new Date(row.created_at);
+  const expired = now >= new Date(row.expires_at).getTime();
+  const idle = now - lastSeenAt.getTime() > idleMs();
+  const tooOld = now - createdAt.getTime() > absoluteMs();
+  if (expired || idle || tooOld || row.status !== 'active') {
+    await endSession(context.cookies, row.id);
     return anonymous;
   }
-  if (now - session.lastSeenAt.getTime() > LAST_SEEN_WRITE_INTERVAL_MS) {
-    await pool.query('UPDATE sessions SET last_seen_at = now() WHERE id = $1', [session.id]);
+  if (now - lastSeenAt.getTime() > LAST_SEEN_WRITE_INTERVAL_MS) {
+    await pool.query('UPDATE sessions SET last_seen_at = now() WHERE id = $1', [row.id]);
   }
   return {
     user: {
-      id: user.id,
-      email: user.email,
-      displayName: user.displayName,
-      isAdmin: user.isAdmin,
-      memberships: await loadMemberships(user.id),
+      id: row.user_id,
+      email: row.email,
+      displayName: row.display_name,
+      isAdmin: row.is_admin,
+      memberships: MEMBERSHIP_ROWS.parse(row.memberships),
     },
-    session: { id: session.id, createdAt: session.createdAt, lastSeenAt: session.lastSeenAt, via: 'cookie' },
+    session: { id: row.id, createdAt, lastSeenAt, via: 'cookie' },
   };
+}
+
+interface SessionRow {
+  id: string;
+  user_id: string;
+  expires_at: Date;
+  created_at: Date;
+  last_seen_at: Date;
+  email: string;
+  display_name: string;
+  is_admin: boolean;
+  status: string;
+  memberships: unknown;
+}
+
+const SESSION_ID = /^[0-9a-f]{64}$/;
+
+/**
+ * A session with its user and the user's memberships, in one round trip: every signed-in
+ * request starts here, so it is one simple-protocol text of two statements, which
+ * PostgreSQL runs as one implicit transaction (as loadMemberships). The first sets the
+ * transaction-local identity to the session's user (empty when there is no such session),
+ * so that row-level security shows the second its memberships; the identity ends with the
+ * text. Sessions and users carry no row-level security (policies/rls/001_identity.sql).
+ * The id is the SHA-256 of the cookie's token, checked as 64 hex digits before it is
+ * written into the text.
+ *
+ * The session library's own validation would read the session and the user in two
+ * queries and the memberships in a third; its expiry rule (expires_at) is applied here,
+ * beside the idle and absolute limits it does not know.
+ */
+async function loadSession(sessionId: string): Promise<SessionRow | null> {
+  const results: unknown = await pool.query(sessionQuery(sessionId));
+  if (!Array.isArray(results) || results.length !== 2) throw new Error('loadSession expected one result per statement');
+  return (results[1].rows[0] as SessionRow | undefined) ?? null;
+}
+
+/** The two-statement text of loadSession (exported for its connection-hygiene test). */
+export function sessionQuery(sessionId: string): string {
+  if (!SESSION_ID.test(sessionId)) throw new Error('loadSession needs a session id');
+  return `SELECT set_config('app.user_id', coalesce((SELECT user_id::text FROM sessions WHERE id = '${sessionId}'), ''), true);
+     SELECT s.id, s.user_id, s.expires_at, s.created_at, s.last_seen_at, u.email, u.display_name, u.is_admin, u.status,
+            coalesce((SELECT json_agg(json_build_object('initiativeId', m.initiative_id, 'initiativeName', i.name,
+                                                        'initiativeSlug', i.slug, 'role', m.role) ORDER BY i.name)
+                        FROM memberships m JOIN initiatives i ON i.id = m.initiative_id
+                       WHERE m.user_id = s.user_id AND i.archived_at IS NULL), '[]'::json) AS memberships
+       FROM sessions s JOIN users u ON u.id = s.user_id
+      WHERE s.id = '${sessionId}'`;
 }

@@ -1,0 +1,127 @@
+/**
+ * The evidence counters (migration add-evidence-stamps): the triggers move an initiative's
+ * counter in the transaction of every change a run's credibility items and plan standing
+ * are worked out from, and only then; a number taken by a rolled-back change is never given
+ * again. Results pages keep those items in memory under the counter, so a change that did
+ * not move it would leave a page behind its records.
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { QueryTypes } from 'sequelize';
+import { generateCallBackCohort } from '@/features/extracts/demoCohorts';
+import { withIdentity } from '@/lib/server/db';
+import { evidenceStamp, StampedCache } from '@/lib/server/evidenceCache';
+import { makeReadyExtract } from '../support/extractFactory';
+import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
+
+let initiativeId: string;
+let otherId: string;
+let analystId: string;
+let versionId: string;
+let analysisId: string;
+let runId: string;
+
+const stampOf = async (id = initiativeId) =>
+  (await ownerDb().query<{ stamp: string }>('SELECT stamp FROM evidence_stamps WHERE initiative_id = :id', { replacements: { id }, type: QueryTypes.SELECT }))[0]?.stamp ?? '0';
+/** Whether `change` (owner SQL) moves the initiative's counter. */
+const moves = async (sql: string, replacements: Record<string, unknown> = {}) => {
+  const before = await stampOf();
+  await ownerDb().query(sql, { replacements: { initiativeId, analystId, versionId, analysisId, runId, ...replacements } });
+  return (await stampOf()) !== before;
+};
+
+beforeAll(async () => {
+  initiativeId = (await makeInitiative('Evidence ward')).id;
+  otherId = (await makeInitiative('Other evidence ward')).id;
+  analystId = (await makeUser()).id;
+  await addMember(initiativeId, analystId, 'analyst');
+  versionId = (await makeReadyExtract(analystId, initiativeId, generateCallBackCohort({ rows: 200 }).csv)).versionId;
+  const spec = { outcome: { column: 'readmitted_30d', type: 'binary' }, exposure: { column: 'call_back', reference: '0' }, modifier: { column: 'sex', type: 'categorical', reference: 'F' }, covariates: [], model: 'logistic', ci: { level: 0.95, method: 'delta' } };
+  [{ id: analysisId }] = await ownerDb().query<{ id: string }>(
+    `INSERT INTO analyses (id, initiative_id, extract_version_id, title, question, prespecified, spec, created_by, updated_by)
+     VALUES (gen_random_uuid(), :initiativeId, :versionId, 'Stamps', 'Does it differ?', false, :spec, :analystId, :analystId) RETURNING id`,
+    { replacements: { initiativeId, versionId, analystId, spec: JSON.stringify(spec) }, type: QueryTypes.SELECT },
+  );
+}, 120_000);
+
+afterAll(async () => {
+  await closeOwnerDb();
+});
+
+describe('the evidence counter of an initiative', () => {
+  it('moves when a run is added or its status changes, not on a heartbeat or a progress report', async () => {
+    const before = await stampOf();
+    [{ id: runId }] = await ownerDb().query<{ id: string }>(
+      `INSERT INTO runs (id, analysis_id, initiative_id, extract_version_id, status, spec, spec_hash, extract_sha256, started_by, exploratory, caution_text, caution_version)
+       SELECT gen_random_uuid(), a.id, a.initiative_id, a.extract_version_id, 'queued', a.spec, repeat('a', 64), v.sha256, :analystId, true, 'Exploratory.', 'v1'
+         FROM analyses a JOIN extract_versions v ON v.id = a.extract_version_id WHERE a.id = :analysisId RETURNING id`,
+      { replacements: { analysisId, analystId }, type: QueryTypes.SELECT },
+    );
+    expect(await stampOf()).not.toBe(before);
+    expect(await moves("UPDATE runs SET status = 'running', started_at = now(), heartbeat_at = now() WHERE id = :runId")).toBe(true);
+    expect(await moves('UPDATE runs SET heartbeat_at = now() WHERE id = :runId')).toBe(false);
+    expect(await moves(`UPDATE runs SET progress = '{"stage": "fit", "fraction": 0.5}' WHERE id = :runId`)).toBe(false);
+    expect(await moves("UPDATE runs SET status = 'failed', finished_at = now(), error = '{\"code\": \"x\", \"message\": \"x\"}' WHERE id = :runId")).toBe(true);
+  });
+
+  it('moves when an analysis is declared prespecified, when the register or the plans change, and when a rating changes', async () => {
+    expect(await moves('UPDATE analyses SET prespecified = true, prespecified_at = now() WHERE id = :analysisId')).toBe(true);
+    expect(await moves('UPDATE analyses SET title = :title WHERE id = :analysisId', { title: 'Stamps, renamed' })).toBe(false);
+    expect(await moves(
+      `INSERT INTO prespecified_modifiers (initiative_id, modifier_column, outcome_column, direction, where_text, rationale, registered_by)
+       VALUES (:initiativeId, 'sex', '', 'none', '', 'Seen before.', :analystId)`,
+    )).toBe(true);
+    expect(await moves("UPDATE prespecified_modifiers SET withdrawn_at = now(), withdrawn_by = :analystId, withdrawal_reason = 'x' WHERE initiative_id = :initiativeId")).toBe(true);
+    expect(await moves(`INSERT INTO interaction_plans (initiative_id, inputs, figures, saved_by) VALUES (:initiativeId, '{}', '{}', :analystId)`)).toBe(true);
+    expect(await moves(
+      `INSERT INTO credibility_ratings (run_id, initiative_id, rationale, prior_evidence, rated_by) VALUES (:runId, :initiativeId, 'weak', 'mixed', :analystId)`,
+    )).toBe(true);
+    expect(await moves("UPDATE credibility_ratings SET rationale = 'strong' WHERE run_id = :runId")).toBe(true);
+  });
+
+  it('moves only the changed initiative’s counter', async () => {
+    const other = await stampOf(otherId);
+    expect(await moves('UPDATE analyses SET prespecified = false, prespecified_at = NULL WHERE id = :analysisId')).toBe(true);
+    expect(await stampOf(otherId)).toBe(other);
+  });
+
+  it('never gives again a number taken by a change that rolled back', async () => {
+    const before = await stampOf();
+    const transaction = await ownerDb().transaction();
+    await ownerDb().query('UPDATE analyses SET prespecified = true, prespecified_at = now() WHERE id = :analysisId', { replacements: { analysisId }, transaction });
+    const [{ stamp: inside }] = await ownerDb().query<{ stamp: string }>('SELECT stamp FROM evidence_stamps WHERE initiative_id = :initiativeId', { replacements: { initiativeId }, type: QueryTypes.SELECT, transaction });
+    await transaction.rollback();
+    expect(await stampOf()).toBe(before);
+    expect(await moves('UPDATE analyses SET prespecified = true, prespecified_at = now() WHERE id = :analysisId')).toBe(true);
+    const after = await stampOf();
+    expect(after).not.toBe(inside);
+    expect(BigInt(after)).toBeGreaterThan(BigInt(inside));
+  });
+
+  it('is read by members only, and the app cannot write it', async () => {
+    expect(await withIdentity(analystId, (t) => evidenceStamp(t, initiativeId))).toBe(await stampOf());
+    const outsider = (await makeUser()).id;
+    expect(await withIdentity(outsider, (t) => evidenceStamp(t, initiativeId))).toBe('0');
+    await expect(withIdentity(analystId, (t) => t.sequelize!.query("UPDATE evidence_stamps SET stamp = 0 WHERE initiative_id = :initiativeId", { replacements: { initiativeId }, transaction: t })))
+      .rejects.toMatchObject({ original: { code: '42501' } });
+  });
+});
+
+describe('a value kept under a counter', () => {
+  it('is served only under the same counter, and the least recently used goes first', async () => {
+    const cache = new StampedCache<string>(2);
+    let worked = 0;
+    const work = (value: string) => async () => { worked += 1; return value; };
+    expect(await cache.through('a', '1', work('a1'))).toBe('a1');
+    expect(await cache.through('a', '1', work('other'))).toBe('a1');
+    expect(worked).toBe(1);
+    expect(await cache.through('a', '2', work('a2'))).toBe('a2');
+    expect(worked).toBe(2);
+    cache.set('b', '1', 'b1');
+    expect(cache.get('a', '2')).toBe('a2');
+    cache.set('c', '1', 'c1');
+    // b was the least recently used.
+    expect(cache.get('b', '1')).toBeUndefined();
+    expect(cache.get('a', '2')).toBe('a2');
+    expect(cache.get('c', '1')).toBe('c1');
+  });
+});
