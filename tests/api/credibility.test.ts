@@ -197,8 +197,8 @@ describe('where the rating shows', () => {
 });
 
 describe('kept in memory between views, and never behind the records', () => {
-  // The server keeps assessments and standings under the initiative's evidence counter
-  // (lib/server/evidenceCache.ts); every change below is made where the server does not see
+  // The server keeps assessments and standings under the initiative's counter
+  // (lib/server/initiativeStamp.ts); every change below is made where the server does not see
   // it happen (this process, or another endpoint), and the next view must show it.
   const panelOf = async (runId: string) => (await (await clients.analyst.request('GET', path(runId))).json());
   const standingOf = async (runId: string) => (await (await clients.analyst.request('GET', `/runs/${runId}`)).text()).match(/data-testid="plan-standing" data-status="([a-z]+)"/)?.[1];

@@ -13,7 +13,7 @@ import { recordAudit } from '@/features/audit/audit.server';
 import { runPlanStanding } from '@/features/planning/planning.server';
 import { getRun, type RunView } from '@/features/runs/runs.server';
 import { sequelize } from '@/lib/server/db';
-import { evidenceStamp, StampedCache } from '@/lib/server/evidenceCache';
+import { initiativeStamp, StampedCache } from '@/lib/server/initiativeStamp';
 import { conflict } from '@/lib/server/errors';
 import type { CredibilityBody, CredibilityView } from './credibility.schema';
 import { credibilityItems, CREDIBILITY_RULE_TEXT } from './credibilityWords';
@@ -65,21 +65,22 @@ async function modifiersForOutcome(transaction: Transaction, initiativeId: strin
 }
 
 /**
- * Assessments worked out for results pages and the board, under their initiative's evidence
+ * Assessments worked out for results pages and the board, under their initiative's
  * counter, which every input of an assessment moves (the run and its siblings, the
- * analysis's declaration, the register and plans, the clinician's ratings; migration
- * add-evidence-stamps). What the viewer may do (`canRate`) is added on each request.
+ * analysis's declaration, the register and plans, the clinician's ratings, people's names;
+ * migration add-initiative-stamps). What the viewer may do (`canRate`) is added on each
+ * request.
  */
 const assessments = new StampedCache<Omit<CredibilityView, 'canRate'>>();
 
 /**
  * The computed items and the overall rating of a succeeded run (`canRate` is the caller's
- * right). `stamp` is the initiative's evidence counter when the caller has read it already
+ * right). `stamp` is the initiative's counter when the caller has read it already
  * in this transaction.
  */
 export async function credibilityOf(transaction: Transaction, run: RunView, canRate: boolean, stamp?: string): Promise<CredibilityView> {
   if (run.status !== 'succeeded' || run.verifiesRunId) throw conflict('Credibility is assessed on a finished run of an analysis, not on a run still under way, failed, or a verifying re-run.');
-  const counter = stamp ?? await evidenceStamp(transaction, run.initiativeId);
+  const counter = stamp ?? await initiativeStamp(transaction, run.initiativeId);
   const assessment = await assessments.through(run.id, counter, () => workOutCredibility(transaction, run, counter));
   return { ...assessment, canRate };
 }
@@ -186,7 +187,7 @@ export async function credibilityBadges(transaction: Transaction, initiativeId: 
   const out = new Map<string, CredibilityView['overall']>();
   if (runIds.length === 0) return out;
   // One counter for the board's initiative; a run is read only when its assessment is not kept under it.
-  const stamp = await evidenceStamp(transaction, initiativeId);
+  const stamp = await initiativeStamp(transaction, initiativeId);
   for (const runId of runIds) {
     const kept = assessments.get(runId, stamp);
     if (kept) {

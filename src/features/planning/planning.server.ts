@@ -9,7 +9,7 @@ import { planFigures, PlanError, powerAtRows } from '@/engine/planning/interacti
 import { simulatePlanPower } from '@/engine/planning/planSimulation';
 import { recordAudit } from '@/features/audit/audit.server';
 import { sequelize } from '@/lib/server/db';
-import { StampedCache } from '@/lib/server/evidenceCache';
+import { StampedCache } from '@/lib/server/initiativeStamp';
 import { badRequest, conflict, notFound } from '@/lib/server/errors';
 import type { PlanFiguresView, PlanInputs, PlanStandingView, RegisterBody, RegisterEntryView, SavedPlanView, SavePlanBody } from './planning.schema';
 
@@ -206,12 +206,12 @@ export async function initiativeColumns(transaction: Transaction, initiativeId: 
   return rows.map((row) => row.name);
 }
 
-/** Standings worked out for results pages, under their initiative's evidence counter. */
+/** Standings worked out for results pages, under their initiative's counter. */
 const standings = new StampedCache<PlanStandingView | null>();
 
 /**
  * A run's standing against the register and the plan in force, or null for a run without a
- * result yet. Given the counter of the run's initiative (evidenceStamp, read in the same
+ * result yet. Given the counter of the run's initiative (initiativeStamp, read in the same
  * transaction before), a standing worked out under the same counter is reused.
  */
 export async function runPlanStanding(transaction: Transaction, runId: string, stamp?: string): Promise<PlanStandingView | null> {

@@ -1,10 +1,9 @@
 /**
  * Keeping what is worked out from an initiative's records in memory for as long as those
- * records stay the same. Each initiative has an evidence counter (table evidence_stamps,
- * moved by triggers in the transaction of every change that matters: runs, analyses'
- * prespecification, the register and plans, credibility ratings; migration
- * add-evidence-stamps). A value kept under one reading of the counter is served again only
- * while a later reading gives the same number.
+ * records stay the same. Each initiative has a counter (table initiative_stamps) that
+ * triggers move in the transaction of every change to a record its pages show (migration
+ * add-initiative-stamps). A value kept under one reading of the counter is served again
+ * only while a later reading gives the same number.
  *
  * Read the counter before the records the value is worked out from: a change committed in
  * between then leaves a value a little newer than its counter says, never older, and the
@@ -15,10 +14,10 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import { sequelize } from './db';
 
-/** The initiative's evidence counter as the caller's transaction sees it ('0' before any change). */
-export async function evidenceStamp(transaction: Transaction, initiativeId: string): Promise<string> {
+/** The initiative's counter as the caller's transaction sees it ('0' when the caller may not see it). */
+export async function initiativeStamp(transaction: Transaction, initiativeId: string): Promise<string> {
   // A single-column counter read: raw SQL.
-  const [row] = await sequelize.query<{ stamp: string }>('SELECT stamp FROM evidence_stamps WHERE initiative_id = :initiativeId', {
+  const [row] = await sequelize.query<{ stamp: string }>('SELECT stamp FROM initiative_stamps WHERE initiative_id = :initiativeId', {
     replacements: { initiativeId },
     type: QueryTypes.SELECT,
     transaction,

@@ -1,15 +1,16 @@
 /**
- * The evidence counters (migration add-evidence-stamps): the triggers move an initiative's
- * counter in the transaction of every change a run's credibility items and plan standing
- * are worked out from, and only then; a number taken by a rolled-back change is never given
- * again. Results pages keep those items in memory under the counter, so a change that did
- * not move it would leave a page behind its records.
+ * The initiatives' counters (migration add-initiative-stamps): the triggers move an
+ * initiative's counter in the transaction of every change to a record its pages show, and
+ * not on a run's heartbeat or progress report; a number taken by a rolled-back change is
+ * never given again. Credibility items, plan standings and whole finished-run and board
+ * pages are kept in memory under the counter, so a change that did not move it would leave
+ * a page behind its records.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
 import { generateCallBackCohort } from '@/features/extracts/demoCohorts';
-import { withIdentity } from '@/lib/server/db';
-import { evidenceStamp, StampedCache } from '@/lib/server/evidenceCache';
+import { sequelize, withIdentity } from '@/lib/server/db';
+import { initiativeStamp, StampedCache } from '@/lib/server/initiativeStamp';
 import { makeReadyExtract } from '../support/extractFactory';
 import { addMember, closeOwnerDb, makeInitiative, makeUser, ownerDb } from '../support/factories';
 
@@ -21,7 +22,7 @@ let analysisId: string;
 let runId: string;
 
 const stampOf = async (id = initiativeId) =>
-  (await ownerDb().query<{ stamp: string }>('SELECT stamp FROM evidence_stamps WHERE initiative_id = :id', { replacements: { id }, type: QueryTypes.SELECT }))[0]?.stamp ?? '0';
+  (await ownerDb().query<{ stamp: string }>('SELECT stamp FROM initiative_stamps WHERE initiative_id = :id', { replacements: { id }, type: QueryTypes.SELECT }))[0]?.stamp ?? '0';
 /** Whether `change` (owner SQL) moves the initiative's counter. */
 const moves = async (sql: string, replacements: Record<string, unknown> = {}) => {
   const before = await stampOf();
@@ -47,7 +48,7 @@ afterAll(async () => {
   await closeOwnerDb();
 });
 
-describe('the evidence counter of an initiative', () => {
+describe('the counter of an initiative', () => {
   it('moves when a run is added or its status changes, not on a heartbeat or a progress report', async () => {
     const before = await stampOf();
     [{ id: runId }] = await ownerDb().query<{ id: string }>(
@@ -63,9 +64,9 @@ describe('the evidence counter of an initiative', () => {
     expect(await moves("UPDATE runs SET status = 'failed', finished_at = now(), error = '{\"code\": \"x\", \"message\": \"x\"}' WHERE id = :runId")).toBe(true);
   });
 
-  it('moves when an analysis is declared prespecified, when the register or the plans change, and when a rating changes', async () => {
+  it('moves when an analysis changes, when the register or the plans change, and when a rating changes', async () => {
     expect(await moves('UPDATE analyses SET prespecified = true, prespecified_at = now() WHERE id = :analysisId')).toBe(true);
-    expect(await moves('UPDATE analyses SET title = :title WHERE id = :analysisId', { title: 'Stamps, renamed' })).toBe(false);
+    expect(await moves('UPDATE analyses SET title = :title WHERE id = :analysisId', { title: 'Stamps, renamed' })).toBe(true);
     expect(await moves(
       `INSERT INTO prespecified_modifiers (initiative_id, modifier_column, outcome_column, direction, where_text, rationale, registered_by)
        VALUES (:initiativeId, 'sex', '', 'none', '', 'Seen before.', :analystId)`,
@@ -78,6 +79,17 @@ describe('the evidence counter of an initiative', () => {
     expect(await moves("UPDATE credibility_ratings SET rationale = 'strong' WHERE run_id = :runId")).toBe(true);
   });
 
+  it('moves on a comment, a member added, a member renamed and the initiative renamed; a new initiative has its counter', async () => {
+    expect(await moves("INSERT INTO run_comments (run_id, initiative_id, author_id, body) VALUES (:runId, :initiativeId, :analystId, 'Looks odd.')")).toBe(true);
+    const newcomer = (await makeUser()).id;
+    expect(await moves("INSERT INTO memberships (initiative_id, user_id, role) VALUES (:initiativeId, :newcomer, 'auditor')", { newcomer })).toBe(true);
+    expect(await moves("UPDATE users SET display_name = 'Renamed Person' WHERE id = :newcomer", { newcomer })).toBe(true);
+    expect(await moves("UPDATE users SET display_name = 'Not A Member' WHERE id = :outsider", { outsider: (await makeUser()).id })).toBe(false);
+    expect(await moves("UPDATE initiatives SET description = 'Renamed ward' WHERE id = :initiativeId")).toBe(true);
+    const fresh = (await makeInitiative('Fresh ward')).id;
+    expect(await stampOf(fresh)).not.toBe('0');
+  });
+
   it('moves only the changed initiative’s counter', async () => {
     const other = await stampOf(otherId);
     expect(await moves('UPDATE analyses SET prespecified = false, prespecified_at = NULL WHERE id = :analysisId')).toBe(true);
@@ -88,7 +100,7 @@ describe('the evidence counter of an initiative', () => {
     const before = await stampOf();
     const transaction = await ownerDb().transaction();
     await ownerDb().query('UPDATE analyses SET prespecified = true, prespecified_at = now() WHERE id = :analysisId', { replacements: { analysisId }, transaction });
-    const [{ stamp: inside }] = await ownerDb().query<{ stamp: string }>('SELECT stamp FROM evidence_stamps WHERE initiative_id = :initiativeId', { replacements: { initiativeId }, type: QueryTypes.SELECT, transaction });
+    const [{ stamp: inside }] = await ownerDb().query<{ stamp: string }>('SELECT stamp FROM initiative_stamps WHERE initiative_id = :initiativeId', { replacements: { initiativeId }, type: QueryTypes.SELECT, transaction });
     await transaction.rollback();
     expect(await stampOf()).toBe(before);
     expect(await moves('UPDATE analyses SET prespecified = true, prespecified_at = now() WHERE id = :analysisId')).toBe(true);
@@ -98,10 +110,10 @@ describe('the evidence counter of an initiative', () => {
   });
 
   it('is read by members only, and the app cannot write it', async () => {
-    expect(await withIdentity(analystId, (t) => evidenceStamp(t, initiativeId))).toBe(await stampOf());
+    expect(await withIdentity(analystId, (t) => initiativeStamp(t, initiativeId))).toBe(await stampOf());
     const outsider = (await makeUser()).id;
-    expect(await withIdentity(outsider, (t) => evidenceStamp(t, initiativeId))).toBe('0');
-    await expect(withIdentity(analystId, (t) => t.sequelize!.query("UPDATE evidence_stamps SET stamp = 0 WHERE initiative_id = :initiativeId", { replacements: { initiativeId }, transaction: t })))
+    expect(await withIdentity(outsider, (t) => initiativeStamp(t, initiativeId))).toBe('0');
+    await expect(withIdentity(analystId, (t) => sequelize.query("UPDATE initiative_stamps SET stamp = 0 WHERE initiative_id = :initiativeId", { replacements: { initiativeId }, transaction: t })))
       .rejects.toMatchObject({ original: { code: '42501' } });
   });
 });
