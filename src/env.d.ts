@@ -12,5 +12,7 @@ declare namespace App {
     session: import('./lib/server/session').SessionInfo | null;
     /** Runs work in this request's transaction, as this request's user (row-level security). */
     db: import('./lib/server/db').Scoped;
+    /** Set by a page that may be kept whole (lib/server/pageCache.ts): the key its HTML is kept under when it answers 200. */
+    pageCacheKey?: string;
   }
 }

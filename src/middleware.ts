@@ -4,6 +4,7 @@ import { scopedTo } from './lib/server/db';
 import { clientAddress, errorResponse, outagePage } from './lib/server/http';
 import { AppError, isDatabaseUnavailable } from './lib/server/errors';
 import { logger } from './lib/server/logger';
+import { keepPage } from './lib/server/pageCache';
 import { addNonceToScripts, securityHeaders } from './lib/server/securityHeaders';
 import { resolveSession } from './lib/server/session';
 import { resolveApiToken } from './features/auth/apiTokens.server';
@@ -45,14 +46,19 @@ const session = defineMiddleware(async (context, next) => {
   return next();
 });
 
-/** Security headers on every response; the nonce is stamped onto HTML script tags. */
+/**
+ * Security headers on every response; the nonce is stamped onto HTML script tags. A page
+ * that may be kept whole (locals.pageCacheKey) is kept here, before its nonce.
+ */
 const headers = defineMiddleware(async (context, next) => {
   const response = await next();
   const nonce = context.locals.cspNonce;
   const extra = securityHeaders(nonce);
   const type = response.headers.get('content-type') ?? '';
   if (type.includes('text/html')) {
-    const html = addNonceToScripts(await response.text(), nonce);
+    const page = await response.text();
+    if (context.locals.pageCacheKey && response.status === 200) keepPage(context.locals.pageCacheKey, page);
+    const html = addNonceToScripts(page, nonce);
     const rewritten = new Response(html, { status: response.status, statusText: response.statusText, headers: response.headers });
     for (const [name, value] of Object.entries(extra)) rewritten.headers.set(name, value);
     return rewritten;

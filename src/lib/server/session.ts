@@ -137,6 +137,21 @@ export async function loadMemberships(userId: string): Promise<MembershipInfo[]>
   return MEMBERSHIP_ROWS.parse(results[1].rows);
 }
 
+/**
+ * One read under a user's identity in one round trip, with the same two-statement text as
+ * loadMemberships: for the checks that decide whether a kept page may be served
+ * (pageCache.ts), where a whole transaction would cost more than the page. `statement` must
+ * be a single SELECT whose values are checked by the caller before they are written into it
+ * (only uuids are).
+ */
+export async function readAsUser<T>(userId: string, statement: string): Promise<T[]> {
+  if (!UUID.test(userId)) throw new Error('readAsUser needs a user id');
+  if (statement.includes(';')) throw new Error('readAsUser reads one statement');
+  const results: unknown = await pool.query(`SELECT set_config('app.user_id', '${userId}', true); ${statement}`);
+  if (!Array.isArray(results) || results.length !== 2) throw new Error('readAsUser expected one result per statement');
+  return results[1].rows as T[];
+}
+
 const MEMBERSHIP_ROWS = z.array(
   z.object({ initiativeId: z.string(), initiativeName: z.string(), initiativeSlug: z.string(), role: z.enum(ROLES) }),
 );
