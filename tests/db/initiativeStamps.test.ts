@@ -118,6 +118,26 @@ describe('the counter of an initiative', () => {
   });
 });
 
+describe('the tables that move the counter', () => {
+  /** Tables with initiative_id that no kept page or kept value shows (upload progress, raw file chunks, the trail, mail). */
+  const NOT_SHOWN = ['audit_events', 'notifications', 'extract_intakes', 'extract_files', 'extract_columns', 'brief_deliveries', 'initiative_stamps'];
+
+  it('are every table with initiative_id but those no kept page shows', async () => {
+    const rows = await ownerDb().query<{ table: string; moves: boolean }>(
+      `SELECT c.relname AS table,
+              EXISTS (SELECT 1 FROM pg_trigger t WHERE t.tgrelid = c.oid AND t.tgname LIKE '%move_initiative_stamp%' AND NOT t.tgisinternal) AS moves
+         FROM pg_class c JOIN pg_namespace n ON n.oid = c.relnamespace
+        WHERE n.nspname = 'public' AND c.relkind = 'r'
+          AND EXISTS (SELECT 1 FROM pg_attribute a WHERE a.attrelid = c.oid AND a.attname = 'initiative_id' AND NOT a.attisdropped)
+        ORDER BY 1`,
+      { type: QueryTypes.SELECT },
+    );
+    const missing = rows.filter((row) => !row.moves && !NOT_SHOWN.includes(row.table)).map((row) => row.table);
+    expect(missing).toEqual([]);
+    expect(rows.filter((row) => row.moves).map((row) => row.table)).toContain('runs');
+  });
+});
+
 describe('a value kept under a counter', () => {
   it('is served only under the same counter, and the least recently used goes first', async () => {
     const cache = new StampedCache<string>(2);
