@@ -14,5 +14,7 @@ declare namespace App {
     db: import('./lib/server/db').Scoped;
     /** Set by a page that may be kept whole (lib/server/pageCache.ts): the key its HTML is kept under when it answers 200. */
     pageCacheKey?: string;
+    /** Set by a page that answers with a kept page (serveKeptPage): the middleware writes its bytes. */
+    keptPage?: import('./lib/server/pageCache').KeptPage;
   }
 }

@@ -4,7 +4,7 @@ import { scopedTo } from './lib/server/db';
 import { clientAddress, errorResponse, outagePage } from './lib/server/http';
 import { AppError, isDatabaseUnavailable } from './lib/server/errors';
 import { logger } from './lib/server/logger';
-import { keepPage } from './lib/server/pageCache';
+import { keepPage, keptPageBody } from './lib/server/pageCache';
 import { addNonceToScripts, securityHeaders } from './lib/server/securityHeaders';
 import { resolveSession } from './lib/server/session';
 import { resolveApiToken } from './features/auth/apiTokens.server';
@@ -55,6 +55,12 @@ const headers = defineMiddleware(async (context, next) => {
   const nonce = context.locals.cspNonce;
   const extra = securityHeaders(nonce);
   const type = response.headers.get('content-type') ?? '';
+  const kept = context.locals.keptPage;
+  if (kept && response.status === 200) {
+    const served = new Response(keptPageBody(kept, nonce), { status: 200, headers: response.headers });
+    for (const [name, value] of Object.entries(extra)) served.headers.set(name, value);
+    return served;
+  }
   if (type.includes('text/html')) {
     const page = await response.text();
     if (context.locals.pageCacheKey && response.status === 200) keepPage(context.locals.pageCacheKey, page);

@@ -7,15 +7,22 @@
  * on a miss; the middleware keeps its HTML (before the request's script nonce is added,
  * which every response gets anew) when it answered 200.
  *
- * Memory is bounded by the pages' total length; the least recently used go first.
+ * Memory is bounded by the pages' total size; the least recently used go first.
  */
 import { createHash } from 'node:crypto';
+import { joinWithNonce, splitAtScripts } from './securityHeaders';
 import type { SessionUser } from './session';
 
-/** At most this many characters of HTML are kept (about 2 bytes each). */
-const CAPACITY_CHARS = 32 * 1024 * 1024;
+/** At most this many bytes of HTML are kept. */
+const CAPACITY_BYTES = 48 * 1024 * 1024;
 
-const pages = new Map<string, string>();
+/** A kept page: its UTF-8 bytes, cut where each script tag takes the response's nonce. */
+export interface KeptPage {
+  parts: Buffer[];
+  bytes: number;
+}
+
+const pages = new Map<string, KeptPage>();
 let kept = 0;
 
 /** The viewer's part of a key: everything about them a page may show or decide by. */
@@ -24,30 +31,42 @@ export function viewerKey(user: SessionUser): string {
 }
 
 /** A kept page, or undefined. */
-export function keptPage(key: string): string | undefined {
-  const html = pages.get(key);
-  if (html === undefined) return undefined;
+export function keptPage(key: string): KeptPage | undefined {
+  const page = pages.get(key);
+  if (page === undefined) return undefined;
   pages.delete(key);
-  pages.set(key, html);
-  return html;
+  pages.set(key, page);
+  return page;
 }
 
-/** Keeps a page's HTML under `key`; a page longer than a quarter of the capacity is not kept. */
+/** Keeps a page's HTML under `key`; a page over a quarter of the capacity is not kept. */
 export function keepPage(key: string, html: string): void {
-  if (html.length > CAPACITY_CHARS / 4) return;
+  const parts = splitAtScripts(html);
+  const bytes = parts.reduce((total, part) => total + part.length, 0);
+  if (bytes > CAPACITY_BYTES / 4) return;
   const before = pages.get(key);
-  if (before !== undefined) kept -= before.length;
+  if (before !== undefined) kept -= before.bytes;
   pages.delete(key);
-  pages.set(key, html);
-  kept += html.length;
+  pages.set(key, { parts, bytes });
+  kept += bytes;
   for (const [oldest, page] of pages) {
-    if (kept <= CAPACITY_CHARS) break;
+    if (kept <= CAPACITY_BYTES) break;
     pages.delete(oldest);
-    kept -= page.length;
+    kept -= page.bytes;
   }
 }
 
-/** The answer for a kept page: the middleware adds the nonce and security headers as for any page. */
-export function keptPageResponse(html: string): Response {
-  return new Response(html, { status: 200, headers: { 'Content-Type': 'text/html' } });
+/**
+ * What a page returns to serve a kept page: an empty 200 that names the page in `locals`;
+ * the middleware writes the page's bytes with the response's nonce into it, and adds the
+ * security headers as for any page.
+ */
+export function serveKeptPage(locals: App.Locals, page: KeptPage): Response {
+  locals.keptPage = page;
+  return new Response(null, { status: 200, headers: { 'Content-Type': 'text/html' } });
+}
+
+/** The body of a kept page for one response. */
+export function keptPageBody(page: KeptPage, nonce: string): Uint8Array<ArrayBuffer> {
+  return joinWithNonce(page.parts, nonce);
 }

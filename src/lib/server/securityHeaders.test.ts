@@ -32,3 +32,19 @@ describe('nonces on inline scripts', () => {
     expect(policy).toContain("frame-ancestors 'none'");
   });
 });
+
+describe('a page cut for its nonce', () => {
+  it('gives the same bytes as stamping the nonce into the page', async () => {
+    const { joinWithNonce, splitAtScripts } = await import('./securityHeaders');
+    const nonce = 'ab'.repeat(16);
+    for (const page of [
+      '',
+      '<p>no scripts, ünïcödé</p>',
+      '<script>a()</script><p>é</p><script type="module" src="/x.js"></script><scripts-list></scripts-list><script\n>b()</script>',
+      '<div title="<script x">quoted</div><noscript>n</noscript><script>',
+    ]) {
+      expect(Buffer.from(joinWithNonce(splitAtScripts(page), nonce)).toString('utf8')).toBe(addNonceToScripts(page, nonce));
+    }
+    expect(() => joinWithNonce(splitAtScripts('<script>'), 'not-hex')).toThrow();
+  });
+});
