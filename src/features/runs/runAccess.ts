@@ -5,10 +5,12 @@
  */
 import type { Transaction } from 'sequelize';
 import { Run } from '../../../db/models';
-import { authorize } from '@/lib/server/authorize';
+import type { Result } from '@/engine/boundary/schemas';
+import { authorize, can } from '@/lib/server/authorize';
 import { notFound } from '@/lib/server/errors';
-import type { SessionUser } from '@/lib/server/session';
+import { readAsUser, type SessionUser } from '@/lib/server/session';
 import { resultDigest } from './canonical';
+import { cachedResult } from './finishedResults';
 import { getRun, type RunView } from './runs.server';
 
 export async function readableRun(transaction: Transaction, user: SessionUser, runId: string, options: { withResult?: boolean } = {}): Promise<RunView> {
@@ -16,6 +18,20 @@ export async function readableRun(transaction: Transaction, user: SessionUser, r
   if (!run) throw notFound('That run');
   authorize(user, 'read', 'Run', { initiativeId: run.initiativeId }, { hide: true });
   return run;
+}
+
+/**
+ * The result of a succeeded run the caller may read, in one round trip, when this process
+ * has parsed it before (finishedResults.ts): the run's row is read under the caller's
+ * identity and the same rule as readableRun applies. Undefined means "take the usual path"
+ * (readableRun in a transaction), which gives the 404s and reads the result.
+ */
+export async function quickReadableResult(user: SessionUser, runId: string): Promise<Result | undefined> {
+  const result = cachedResult(runId);
+  if (result === undefined) return undefined;
+  const [row] = await readAsUser<{ initiative_id: string; status: string }>(user.id, `SELECT initiative_id, status FROM runs WHERE id = '${runId}'`);
+  if (!row || row.status !== 'succeeded' || !can(user, 'read', 'Run', { initiativeId: row.initiative_id })) return undefined;
+  return result;
 }
 
 /**
