@@ -16,7 +16,8 @@ if (process.env.CROSSGRAIN_PUBLIC_URL) {
 
 export default defineConfig({
   output: 'server',
-  adapter: node({ mode: 'standalone' }),
+  // The server around the app is scripts/serve.mjs (processes per core, the built client files).
+  adapter: node({ mode: 'middleware' }),
   integrations: [react()],
   // Astro refuses cross-site form posts and state-changing requests whose Origin differs.
   security: { checkOrigin: true, allowedDomains },

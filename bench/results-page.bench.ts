@@ -11,7 +11,7 @@
 import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, readFileSync, statSync } from 'node:fs';
 import path from 'node:path';
-import { fileURLToPath } from 'node:url';
+import { fileURLToPath, pathToFileURL } from 'node:url';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 const dbPort = 54369;
@@ -62,23 +62,26 @@ try {
 
   // CROSSGRAIN_BENCH_CPU_PROF=DIR writes the server's CPU profile there (open it in Chrome's DevTools).
   // The profile is written at a normal exit, so SIGTERM is turned into one.
-  // CROSSGRAIN_BENCH_VS=PATH/dist/server/entry.mjs (another build, for instance of the previous
+  // CROSSGRAIN_BENCH_VS=PATH (the root of another built checkout, for instance of the previous
   // commit) starts that server too, on the same database, and measures the two in turn, A B A B,
-  // so that both meet the same load from the rest of the machine.
+  // so that both meet the same load from the rest of the machine. A checkout without
+  // scripts/serve.mjs is started as Astro's standalone server (dist/server/entry.mjs).
+  const serverOf = (checkout: string) =>
+    (existsSync(path.join(checkout, 'scripts/serve.mjs')) ? path.join(checkout, 'scripts/serve.mjs') : path.join(checkout, 'dist/server/entry.mjs'));
   const builds = [
-    { label: 'this build', entry: path.join(root, 'dist/server/entry.mjs'), port: appPort },
-    ...(process.env.CROSSGRAIN_BENCH_VS ? [{ label: 'other build', entry: path.resolve(process.env.CROSSGRAIN_BENCH_VS), port: appPort + 1 }] : []),
+    { label: 'this build', entry: serverOf(root), port: appPort },
+    ...(process.env.CROSSGRAIN_BENCH_VS ? [{ label: 'other build', entry: serverOf(path.resolve(process.env.CROSSGRAIN_BENCH_VS)), port: appPort + 1 }] : []),
   ];
   const targets = [];
   for (const build of builds) {
-    const args = process.env.CROSSGRAIN_BENCH_CPU_PROF
+    // As `npm start` serves: React's production build, and (scripts/serve.mjs) one process per
+    // core unless CROSSGRAIN_APP_PROCESSES says otherwise; one process when profiling.
+    const served = process.env.CROSSGRAIN_BENCH_CPU_PROF
       ? ['--cpu-prof', `--cpu-prof-dir=${process.env.CROSSGRAIN_BENCH_CPU_PROF}`, '--input-type=module', '-e',
-         `process.on('SIGTERM', () => process.exit(0)); await import(${JSON.stringify(build.entry)});`]
+         `process.on('SIGTERM', () => process.exit(0)); await import(${JSON.stringify(pathToFileURL(build.entry).href)});`]
       : [build.entry];
-    // As `npm start` serves: React's production build, and (through scripts/serve.mjs) one
-    // process per core unless CROSSGRAIN_APP_PROCESSES says otherwise.
-    const served = process.env.CROSSGRAIN_BENCH_CPU_PROF || build.label !== 'this build' ? args : [path.join(root, 'scripts/serve.mjs')];
-    const child = spawn(process.execPath, served, { cwd: root, env: { ...env, HOST: '127.0.0.1', PORT: String(build.port), NODE_ENV: 'production' }, stdio: 'ignore' });
+    const processes = process.env.CROSSGRAIN_BENCH_CPU_PROF ? { CROSSGRAIN_APP_PROCESSES: '1' } : {};
+    const child = spawn(process.execPath, served, { cwd: root, env: { ...env, ...processes, HOST: '127.0.0.1', PORT: String(build.port), NODE_ENV: 'production' }, stdio: 'ignore' });
     servers.push(child);
     const base = `http://127.0.0.1:${build.port}`;
     for (let i = 0; i < 100; i += 1) {

@@ -72,8 +72,8 @@ try {
   const [initiative] = await ownerDb().query<{ id: string }>("SELECT id FROM initiatives WHERE slug = 'call-back-72h'", { type: QueryTypes.SELECT });
   await closeOwnerDb();
 
-  server = spawn(process.execPath, [path.join(root, 'dist/server/entry.mjs')], {
-    cwd: root, env: { ...env, HOST: '127.0.0.1', PORT: String(appPort), LOG_LEVEL: 'warn' }, stdio: 'ignore',
+  server = spawn(process.execPath, [path.join(root, 'scripts/serve.mjs')], {
+    cwd: root, env: { ...env, HOST: '127.0.0.1', PORT: String(appPort), LOG_LEVEL: 'warn', CROSSGRAIN_APP_PROCESSES: '1' }, stdio: 'ignore',
   });
   const base = `http://127.0.0.1:${appPort}`;
   for (let i = 0; i < 100; i += 1) {

@@ -3,10 +3,17 @@
  * machine's available parallelism, at most 8), sharing one port through node:cluster, so
  * that page rendering uses every core. Each process is the same stateless app server
  * (sessions, runs and files live in PostgreSQL; each keeps its own cache of finished
- * results). A process that ends is started again after a second; SIGTERM or SIGINT stops
- * them all.
+ * results and kept pages). A process that ends is started again after a second; SIGTERM or
+ * SIGINT stops them all. HOST and PORT say where to listen (127.0.0.1:4321 by default).
+ *
+ * Each process answers the built client files (dist/client: scripts, styles, fonts, the
+ * icon) itself, from a list made at start, and hands every other request straight to the
+ * app (Astro's handler, built in middleware mode): a page's request never touches the
+ * file system first, as Astro's standalone server does for every request.
  */
 import cluster from 'node:cluster';
+import { readdirSync } from 'node:fs';
+import http from 'node:http';
 import { availableParallelism } from 'node:os';
 import path from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
@@ -35,5 +42,44 @@ if (cluster.isPrimary && processes > 1) {
   });
   for (let i = 0; i < processes; i += 1) cluster.fork();
 } else {
-  await import(entry);
+  await serveApp();
+}
+
+/** Every file under `dir`, as the URL path that names it ('/_astro/x.js'). */
+function clientFiles(dir, prefix = '') {
+  return readdirSync(dir, { withFileTypes: true }).flatMap((item) =>
+    item.isDirectory() ? clientFiles(path.join(dir, item.name), `${prefix}/${item.name}`) : [`${prefix}/${item.name}`]);
+}
+
+async function serveApp() {
+  const { default: send } = await import('send');
+  const { handler } = await import(entry);
+  const client = path.join(root, 'dist/client');
+  const files = new Set(clientFiles(client));
+  const server = http.createServer((req, res) => {
+    const urlPath = (req.url ?? '/').split(/[?#]/, 1)[0];
+    let name;
+    try {
+      name = decodeURI(urlPath);
+    } catch {
+      res.writeHead(400);
+      res.end('Bad request.');
+      return;
+    }
+    if ((req.method === 'GET' || req.method === 'HEAD') && files.has(name)) {
+      const stream = send(req, name, { root: client });
+      // Built assets carry a content hash in their names.
+      stream.on('headers', (response) => {
+        if (name.startsWith('/_astro/')) response.setHeader('Cache-Control', 'public, max-age=31536000, immutable');
+      });
+      stream.on('error', (error) => {
+        res.statusCode = error.status ?? 500;
+        res.end();
+      });
+      stream.pipe(res);
+      return;
+    }
+    handler(req, res);
+  });
+  server.listen(Number(process.env.PORT ?? 4321), process.env.HOST ?? '127.0.0.1');
 }

@@ -69,9 +69,9 @@ export async function startServer(): Promise<ServerHandle> {
   const mail = await startMailServer({ port: Number(process.env.CROSSGRAIN_SMTP_PORT ?? 2529), dir: mailDir });
   mkdirSync(artifacts, { recursive: true });
   const log = openSync(path.join(artifacts, 'test-server.log'), 'a');
-  const server = spawn(process.execPath, [path.join(root, 'dist/server/entry.mjs')], {
+  const server = spawn(process.execPath, [path.join(root, 'scripts/serve.mjs')], {
     cwd: root,
-    env: { ...process.env, HOST: url.hostname, PORT: url.port, LOG_LEVEL: 'warn', NODE_ENV: 'production' },
+    env: { ...process.env, HOST: url.hostname, PORT: url.port, LOG_LEVEL: 'warn', NODE_ENV: 'production', CROSSGRAIN_APP_PROCESSES: '1' },
     stdio: ['ignore', log, 'pipe'],
   });
   let serverErrors = '';

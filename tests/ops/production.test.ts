@@ -32,11 +32,11 @@ async function freePort(): Promise<number> {
 beforeAll(async () => {
   const port = await freePort();
   base = `http://127.0.0.1:${port}`;
-  server = spawn(process.execPath, [path.join(root, 'dist/server/entry.mjs')], {
+  server = spawn(process.execPath, [path.join(root, 'scripts/serve.mjs')], {
     cwd: root,
     env: {
       ...process.env,
-      CROSSGRAIN_ENV: 'production', HOST: '127.0.0.1', PORT: String(port), LOG_LEVEL: 'warn', CROSSGRAIN_PUBLIC_URL: base,
+      CROSSGRAIN_ENV: 'production', HOST: '127.0.0.1', PORT: String(port), LOG_LEVEL: 'warn', CROSSGRAIN_PUBLIC_URL: base, CROSSGRAIN_APP_PROCESSES: '1',
       // Production refuses to fall back to the local default passwords: name them.
       CROSSGRAIN_DB_APP_PASSWORD: process.env.CROSSGRAIN_DB_APP_PASSWORD ?? 'crossgrain-app-local',
       CROSSGRAIN_DB_OWNER_PASSWORD: process.env.CROSSGRAIN_DB_OWNER_PASSWORD ?? 'crossgrain-owner-local',

@@ -43,9 +43,9 @@ async function waitForSecond(): Promise<void> {
 
 beforeAll(async () => {
   first = await startServer();
-  second = spawn(process.execPath, [path.join(root, 'dist/server/entry.mjs')], {
+  second = spawn(process.execPath, [path.join(root, 'scripts/serve.mjs')], {
     cwd: root,
-    env: { ...process.env, HOST: '127.0.0.1', PORT: String(secondPort), LOG_LEVEL: 'warn', CROSSGRAIN_DATA_DIR: secondDataDir },
+    env: { ...process.env, HOST: '127.0.0.1', PORT: String(secondPort), LOG_LEVEL: 'warn', CROSSGRAIN_DATA_DIR: secondDataDir, CROSSGRAIN_APP_PROCESSES: '1' },
     stdio: 'ignore',
   });
   await waitForSecond();
