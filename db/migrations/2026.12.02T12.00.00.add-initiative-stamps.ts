@@ -4,8 +4,8 @@ import type { Migration } from '../migrate';
  * One counter per initiative that moves, to a new number from one sequence, whenever a
  * record the initiative's pages show changes: its analyses and runs (not a run's heartbeat
  * or progress reports), review steps and comments, briefs, extracts, the register of
- * prespecified modifiers and saved plans, credibility ratings, memberships, the initiative
- * itself, and the names and status of its members. Triggers move it in the transaction of
+ * prespecified modifiers and saved plans, credibility ratings, memberships, extracts once
+ * added, the initiative itself, and the names and status of its members. Triggers move it in the transaction of
  * the change, whatever code made it, so what is worked out from those records (credibility
  * items, plan standings, a finished run's results page, the review board) may be kept in
  * memory for as long as a later reading of the counter gives the same number
@@ -17,8 +17,15 @@ import type { Migration } from '../migrate';
 /** Tables whose rows carry initiative_id and whose every change moves the counter. */
 const TABLES = [
   'analyses', 'review_steps', 'run_comments', 'briefs', 'brief_versions', 'brief_settings', 'brief_recipients',
-  'extracts', 'extract_versions', 'prespecified_modifiers', 'interaction_plans', 'credibility_ratings', 'memberships',
+  'prespecified_modifiers', 'interaction_plans', 'credibility_ratings', 'memberships',
 ];
+/**
+ * Extracts and their versions move it when changed (confirmed, archived), not when added: a
+ * new extract or version shows on no kept page, and it is added in the long transaction
+ * that stores an upload, which would otherwise hold the counter's row (and every other
+ * change of the initiative) until the upload is stored.
+ */
+const CHANGED_ONLY = ['extracts', 'extract_versions'];
 /** The columns of a run that a page shows; heartbeat_at and progress change every few seconds while it runs and are left out. */
 const RUN_COLUMNS = 'status, result, error, worker, seed, engine_version, started_at, finished_at, cancel_requested, initiative_id';
 
@@ -83,6 +90,8 @@ export const up: Migration = async ({ context }) => {
       FOR EACH ROW EXECUTE FUNCTION app_move_initiative_stamp();
     ${TABLES.map((table) => `CREATE TRIGGER ${table}_move_initiative_stamp AFTER INSERT OR UPDATE OR DELETE ON ${table}
       FOR EACH ROW EXECUTE FUNCTION app_move_initiative_stamp();`).join('\n    ')}
+    ${CHANGED_ONLY.map((table) => `CREATE TRIGGER ${table}_move_initiative_stamp AFTER UPDATE OR DELETE ON ${table}
+      FOR EACH ROW EXECUTE FUNCTION app_move_initiative_stamp();`).join('\n    ')}
     CREATE TRIGGER initiatives_move_initiative_stamp AFTER INSERT OR UPDATE ON initiatives
       FOR EACH ROW EXECUTE FUNCTION app_move_own_initiative_stamp();
     CREATE TRIGGER users_move_initiative_stamps AFTER UPDATE OF display_name, email, status ON users
@@ -94,7 +103,7 @@ export const up: Migration = async ({ context }) => {
 export const down: Migration = async ({ context }) => {
   await context.sql(`
     DROP TRIGGER IF EXISTS runs_move_initiative_stamp ON runs;
-    ${TABLES.map((table) => `DROP TRIGGER IF EXISTS ${table}_move_initiative_stamp ON ${table};`).join('\n    ')}
+    ${[...TABLES, ...CHANGED_ONLY].map((table) => `DROP TRIGGER IF EXISTS ${table}_move_initiative_stamp ON ${table};`).join('\n    ')}
     DROP TRIGGER IF EXISTS initiatives_move_initiative_stamp ON initiatives;
     DROP TRIGGER IF EXISTS users_move_initiative_stamps ON users;
     DROP FUNCTION IF EXISTS app_move_member_initiative_stamps();

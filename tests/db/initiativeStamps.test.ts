@@ -90,6 +90,30 @@ describe('the counter of an initiative', () => {
     expect(await stampOf(fresh)).not.toBe('0');
   });
 
+  it('is not held by an upload being stored: a new extract does not move it, so other changes go on meanwhile', async () => {
+    const storing = await ownerDb().transaction();
+    try {
+      await ownerDb().query("INSERT INTO extracts (id, initiative_id, name, created_by) VALUES (gen_random_uuid(), :initiativeId, 'Arriving', :analystId)", {
+        replacements: { initiativeId, analystId }, transaction: storing,
+      });
+      const meanwhile = await ownerDb().transaction();
+      try {
+        // Would wait for the storing transaction if it held the counter's row.
+        await ownerDb().query("SET LOCAL lock_timeout = '2s'", { transaction: meanwhile });
+        await ownerDb().query("INSERT INTO run_comments (run_id, initiative_id, author_id, body) VALUES (:runId, :initiativeId, :analystId, 'Meanwhile.')", {
+          replacements: { runId, initiativeId, analystId }, transaction: meanwhile,
+        });
+        await meanwhile.commit();
+      } catch (error) {
+        await meanwhile.rollback();
+        throw error;
+      }
+    } finally {
+      await storing.rollback();
+    }
+    expect(await moves("UPDATE extracts SET archived_at = now(), archived_by = :analystId WHERE initiative_id = :initiativeId")).toBe(true);
+  });
+
   it('moves only the changed initiative’s counter', async () => {
     const other = await stampOf(otherId);
     expect(await moves('UPDATE analyses SET prespecified = false, prespecified_at = NULL WHERE id = :analysisId')).toBe(true);
