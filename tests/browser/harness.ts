@@ -4,7 +4,7 @@
  * Chromium driven by playwright-core. Each test file starts what it needs and closes it.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
-import { mkdirSync, openSync } from 'node:fs';
+import { mkdirSync, openSync, writeSync } from 'node:fs';
 import path from 'node:path';
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
 import { startMailServer, type MailServerHandle } from '@/lib/server/mailServer';
@@ -74,9 +74,12 @@ export async function startServer(): Promise<ServerHandle> {
     env: { ...process.env, HOST: url.hostname, PORT: url.port, LOG_LEVEL: 'warn', NODE_ENV: 'production', CROSSGRAIN_APP_PROCESSES: '1' },
     stdio: ['ignore', log, 'pipe'],
   });
+  // The server's error output goes to the log beside its other output (and into the error
+  // should it not start), so that a failure later in a test leaves its stack behind.
   let serverErrors = '';
   server.stderr?.on('data', (chunk: Buffer) => {
     serverErrors += chunk.toString('utf8');
+    writeSync(log, chunk);
   });
   try {
     await waitForHealth(20_000);
