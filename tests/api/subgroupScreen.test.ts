@@ -114,5 +114,13 @@ describe('subgroup screen', () => {
     expect(csv).toContain(RESULT_CAUTIONS[0].slice(0, 40));
     expect(csv.match(/^screen-interaction,/gm)).toHaveLength(3);
     expect(csv).toMatch(/^screen,,,modifiers examined,.*Three modifiers were examined/m);
+
+    // A screen has no credibility assessment of its own: the board shows it without a badge, and the endpoint says why.
+    const board = await analyst.request('GET', `/initiatives/${initiativeId}/board`);
+    expect(board.status).toBe(200);
+    expect(await board.text()).toContain('Screen of candidate modifiers');
+    const credibility = await analyst.request('GET', `/api/runs/${runId}/credibility`);
+    expect(credibility.status).toBe(409);
+    expect((await credibility.json()).error.message).toMatch(/subgroup screen/);
   });
 });

@@ -9,6 +9,7 @@
  */
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Result, Spec } from '@/engine/boundary/schemas';
+import { isScreenSpec } from '@/features/analyses/screenSpecs';
 import { recordAudit } from '@/features/audit/audit.server';
 import { runPlanStanding } from '@/features/planning/planning.server';
 import { getRun, type RunView } from '@/features/runs/runs.server';
@@ -80,6 +81,7 @@ const assessments = new StampedCache<Omit<CredibilityView, 'canRate'>>();
  */
 export async function credibilityOf(transaction: Transaction, run: RunView, canRate: boolean, stamp?: string): Promise<CredibilityView> {
   if (run.status !== 'succeeded' || run.verifiesRunId) throw conflict('Credibility is assessed on a finished run of an analysis, not on a run still under way, failed, or a verifying re-run.');
+  if (isScreenSpec(run.spec)) throw conflict('Credibility is assessed on a run of one modifier; a subgroup screen shows each modifier\'s standing instead, and a full analysis of one of them is assessed on its own results page.');
   const counter = stamp ?? await initiativeStamp(transaction, run.initiativeId);
   const assessment = await assessments.through(run.id, counter, () => workOutCredibility(transaction, run, counter));
   return { ...assessment, canRate };
@@ -182,7 +184,7 @@ export async function rateCredibility(transaction: Transaction, actor: Actor, ru
   });
 }
 
-/** The overall rating of several runs at once, for the review board's badges (runs that cannot be assessed are left out). */
+/** The overall rating of several runs at once, for the review board's badges (runs that cannot be assessed, such as subgroup screens, are left out). */
 export async function credibilityBadges(transaction: Transaction, initiativeId: string, runIds: readonly string[]): Promise<Map<string, CredibilityView['overall']>> {
   const out = new Map<string, CredibilityView['overall']>();
   if (runIds.length === 0) return out;
@@ -195,7 +197,7 @@ export async function credibilityBadges(transaction: Transaction, initiativeId: 
       continue;
     }
     const run = await getRun(transaction, runId, { withResult: true });
-    if (!run || run.initiativeId !== initiativeId || run.status !== 'succeeded' || run.verifiesRunId || !run.result) continue;
+    if (!run || run.initiativeId !== initiativeId || run.status !== 'succeeded' || run.verifiesRunId || !run.result || isScreenSpec(run.spec)) continue;
     out.set(run.id, (await credibilityOf(transaction, run, false, stamp)).overall);
   }
   return out;
