@@ -1,0 +1,121 @@
+/**
+ * The second part of a CSV file read on its own (by csvPartWorker.ts, on another thread):
+ * the records from a byte offset where a record begins to the end of the file, parsed by
+ * the upload reader's record parser with the delimiter and column names that the first
+ * part's header fixed, into the same kept columns as readEngineData builds.
+ *
+ * Line numbers here count from the part's first line (line 1); the caller shifts them.
+ * Any refusal or any byte the whole-file reader would refuse (a NUL byte, invalid UTF-8)
+ * makes the part "unusable": the caller then reads the whole file in one pass, so that the
+ * message the analyst sees is exactly the one-pass reader's.
+ */
+import { closeSync, openSync, readSync } from 'node:fs';
+import { isUtf8 } from 'node:buffer';
+import { CsvRecordParser, type CsvSink } from '../extracts/csvRecordParser';
+import { storedColumn, type StoredColumn } from '../extracts/engineData';
+import { KeptColumns } from './engineInput';
+
+/** The reader's default limits (csvReader.ts), which the part must apply alike. */
+const MAX_FIELD_BYTES = 1024 * 1024;
+const MAX_COLUMNS = 2000;
+
+/** What the main thread sends: the part's byte range and what the header fixed. */
+export interface CsvPartRequest {
+  path: string;
+  start: number;
+  end: number;
+  delimiter: number;
+  names: string[];
+  keep: string[];
+}
+
+/** A kept column of the part, or the name of a text column whose dictionary overflowed. */
+export type PartColumn = StoredColumn | { name: string; overflowed: true };
+
+/** The part's columns, its record count and its (row, line) marks, lines counted from 1 at the part's start. */
+export interface CsvPartResult {
+  ok: true;
+  recordCount: number;
+  columns: PartColumn[];
+  markRows: Int32Array;
+  markLines: Int32Array;
+}
+
+/** The part could not be read as the one-pass reader would; `reason` is for diagnosis only. */
+export interface CsvPartUnusable {
+  ok: false;
+  reason: string;
+}
+
+/** The record parser started after the header, with its delimiter and columns already known. */
+class CsvBodyParser extends CsvRecordParser {
+  constructor(sink: CsvSink, delimiter: number, names: string[]) {
+    super(sink, MAX_FIELD_BYTES, MAX_COLUMNS);
+    this.delimiter = delimiter;
+    this.columnCount = names.length;
+    this.headerFields = names.slice();
+  }
+
+  push(bytes: Uint8Array): void {
+    this.parse(bytes);
+  }
+
+  /** Flushes a last record without a line break; returns the records read. */
+  finish(): number {
+    this.flushEnd();
+    return this.recordCount;
+  }
+}
+
+function readRange(path: string, start: number, end: number): Buffer {
+  const bytes = Buffer.allocUnsafe(end - start);
+  const fd = openSync(path, 'r');
+  try {
+    let done = 0;
+    while (done < bytes.length) {
+      const read = readSync(fd, bytes, done, bytes.length - done, start + done);
+      if (read === 0) break;
+      done += read;
+    }
+    if (done !== bytes.length) throw new Error('the file became shorter while it was read');
+  } finally {
+    closeSync(fd);
+  }
+  return bytes;
+}
+
+/** Reads and parses the part; never throws (a failure is reported as unusable). */
+export function readCsvPart(request: CsvPartRequest): CsvPartResult | CsvPartUnusable {
+  try {
+    const bytes = readRange(request.path, request.start, request.end);
+    if (bytes.indexOf(0) >= 0) return { ok: false, reason: 'NUL byte' };
+    if (!isUtf8(bytes)) return { ok: false, reason: 'not UTF-8' };
+    const sink = new KeptColumns(new Set(request.keep), bytes.length);
+    sink.header(request.names);
+    const parser = new CsvBodyParser(sink, request.delimiter, request.names);
+    const chunk = 1 << 20;
+    for (let at = 0; at < bytes.length; at += chunk) parser.push(bytes.subarray(at, Math.min(bytes.length, at + chunk)));
+    const recordCount = parser.finish();
+    const columnSet = sink.columns!;
+    const columns: PartColumn[] = columnSet.finish().map((column) => storedColumn(column) ?? { name: column.name, overflowed: true });
+    const marks = columnSet.lineMarks();
+    return { ok: true, recordCount, columns, markRows: marks.rows, markLines: marks.lines };
+  } catch (error) {
+    return { ok: false, reason: (error as Error)?.message ?? String(error) };
+  }
+}
+
+/** The buffers a result can hand over to another thread without copying. */
+export function transferables(result: CsvPartResult): ArrayBuffer[] {
+  const buffers = new Set<ArrayBuffer>();
+  const add = (array: Float64Array | Int32Array) => {
+    if (array.buffer instanceof ArrayBuffer) buffers.add(array.buffer);
+  };
+  for (const column of result.columns) {
+    if ('overflowed' in column) continue;
+    add(column.storage === 'numeric' ? column.values : column.codes);
+  }
+  add(result.markRows);
+  add(result.markLines);
+  return [...buffers];
+}
