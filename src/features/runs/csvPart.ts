@@ -10,7 +10,7 @@
  * message the analyst sees is exactly the one-pass reader's.
  */
 import { closeSync, openSync, readSync } from 'node:fs';
-import { isUtf8 } from 'node:buffer';
+import { isAscii } from 'node:buffer';
 import { CsvRecordParser, type CsvSink } from '../extracts/csvRecordParser';
 import { storedColumn, type StoredColumn } from '../extracts/engineData';
 import { KeptColumns } from './engineInput';
@@ -67,34 +67,57 @@ class CsvBodyParser extends CsvRecordParser {
   }
 }
 
-function readRange(path: string, start: number, end: number): Buffer {
-  const bytes = Buffer.allocUnsafe(end - start);
+/**
+ * Hands the bytes [start, end) of the file to `each` in chunks of `chunkBytes` (the first
+ * of `firstChunkBytes`), read one after another into the same buffer, which is only valid
+ * during the call. Throws when the file is shorter than `end`.
+ */
+export function readChunks(path: string, start: number, end: number, each: (chunk: Uint8Array) => void, chunkBytes = 1 << 20, firstChunkBytes = chunkBytes): void {
+  const buffer = Buffer.allocUnsafe(Math.max(chunkBytes, firstChunkBytes));
   const fd = openSync(path, 'r');
   try {
-    let done = 0;
-    while (done < bytes.length) {
-      const read = readSync(fd, bytes, done, bytes.length - done, start + done);
-      if (read === 0) break;
-      done += read;
+    for (let at = start, want = firstChunkBytes; at < end; want = chunkBytes) {
+      const read = readSync(fd, buffer, 0, Math.min(want, end - at), at);
+      if (read === 0) throw new Error('the file became shorter while it was read');
+      each(buffer.subarray(0, read));
+      at += read;
     }
-    if (done !== bytes.length) throw new Error('the file became shorter while it was read');
   } finally {
     closeSync(fd);
   }
-  return bytes;
 }
 
 /** Reads and parses the part; never throws (a failure is reported as unusable). */
 export function readCsvPart(request: CsvPartRequest): CsvPartResult | CsvPartUnusable {
   try {
-    const bytes = readRange(request.path, request.start, request.end);
-    if (bytes.indexOf(0) >= 0) return { ok: false, reason: 'NUL byte' };
-    if (!isUtf8(bytes)) return { ok: false, reason: 'not UTF-8' };
-    const sink = new KeptColumns(new Set(request.keep), bytes.length);
+    const sink = new KeptColumns(new Set(request.keep), request.end - request.start);
     sink.header(request.names);
     const parser = new CsvBodyParser(sink, request.delimiter, request.names);
-    const chunk = 1 << 20;
-    for (let at = 0; at < bytes.length; at += chunk) parser.push(bytes.subarray(at, Math.min(bytes.length, at + chunk)));
+    // The checks of the whole-file reader on raw bytes (csvReader.ts): no NUL byte, UTF-8.
+    const utf8 = new TextDecoder('utf-8', { fatal: true });
+    let pending = false;
+    let refused: string | null = null;
+    readChunks(request.path, request.start, request.end, (chunk) => {
+      if (refused !== null) return;
+      if (chunk.indexOf(0) >= 0) refused = 'NUL byte';
+      else if (pending || !isAscii(chunk)) {
+        try {
+          utf8.decode(chunk, { stream: true });
+          pending = chunk[chunk.length - 1] >= 0x80;
+        } catch {
+          refused = 'not UTF-8';
+        }
+      }
+      if (refused === null) parser.push(chunk);
+    });
+    if (refused === null) {
+      try {
+        utf8.decode();
+      } catch {
+        refused = 'not UTF-8';
+      }
+    }
+    if (refused !== null) return { ok: false, reason: refused };
     const recordCount = parser.finish();
     const columnSet = sink.columns!;
     const columns: PartColumn[] = columnSet.finish().map((column) => storedColumn(column) ?? { name: column.name, overflowed: true });

@@ -5,7 +5,7 @@
  * values are the one-pass reader's own output on the same file, and a few are written out
  * by hand beside it.
  */
-import { mkdtempSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
@@ -126,6 +126,31 @@ describe('reading a CSV file on two threads', () => {
     const alone = await runAnalysis(data, spec, { threads: 1 });
     expect(onPool).toEqual(alone);
     expect(onPool.n).toBe(3000); // 3000 rows written above, none missing
+  });
+
+  it('gives the one-pass data when characters of several bytes cross the second part\'s 1 MiB chunks', async () => {
+    // About 3 MB of three-byte characters (€ is E2 82 AC in UTF-8); the second part is read in 1 MiB chunks from its first byte.
+    const body = rows(10_000, (row) => `${row % 2},${'€'.repeat(90 + (row % 7))},${row},s`);
+    const path = file('euro.csv', `outcome,group,dose,site\n${body}\n`);
+    const bytes = readFileSync(path);
+    const split = bytes.indexOf(10, Math.floor(bytes.length * 0.55)) + 1;
+    // At least one chunk boundary of the part falls inside a character (a continuation byte 10xxxxxx).
+    const inside = [1, 2].map((k) => split + k * (1 << 20)).filter((at) => at < bytes.length && (bytes[at] & 0xc0) === 0x80);
+    expect(inside.length).toBeGreaterThan(0);
+    await sameAsOnePass(path, roles);
+  });
+
+  it('refuses a NUL byte or invalid UTF-8 in the second part with the one-pass message and line', async () => {
+    for (const [name, bad] of [['nul.csv', '\u0000'], ['latin1.csv', '\u00ff']] as const) {
+      const body = rows(200, (row) => `${row % 2},${row === 150 ? `g${bad}` : 'g'},${row},s`);
+      // \u00ff is written as the single byte FF, which is not UTF-8 (a Latin-1 ÿ).
+      const path = file(name, '');
+      writeFileSync(path, Buffer.from(`outcome,group,dose,site\n${body}\n`, name === 'latin1.csv' ? 'latin1' : 'utf8'));
+      const one = await readEngineData(path, roles).then(() => 'read', (error: Error) => error.message);
+      expect(one).toMatch(/^Line 152: /); // the record of row 150 is on line 152 (header on line 1)
+      expect(await readInTwoParts(path, statSync(path).size, roles)).toBeNull();
+      await expect(readEngineDataOnTwoThreads(path, roles, 0)).rejects.toThrow(one);
+    }
   });
 
   it('joins a text part and a number part by the union of their levels', () => {

@@ -23,7 +23,7 @@ import { launchFor } from '@/engine/threads/workerLaunch';
 import { DEFAULT_MAX_LEVELS, lineOfRowByMarks } from '../extracts/columnAccumulator';
 import { CsvChunkReader, DEFAULT_MAX_BYTES, type CsvSink } from '../extracts/csvReader';
 import { storedColumn, toEngineData, type StoredColumn } from '../extracts/engineData';
-import type { CsvPartRequest, CsvPartResult, CsvPartUnusable, PartColumn } from './csvPart';
+import { readChunks, type CsvPartRequest, type CsvPartResult, type CsvPartUnusable, type PartColumn } from './csvPart';
 import { EngineInputError, KeptColumns, readEngineData } from './engineInput';
 
 /** Files from this size are read on two threads (below it a thread's start costs more than it saves). */
@@ -51,17 +51,14 @@ class FirstPartSink extends KeptColumns implements CsvSink {
   }
 }
 
-function readBytes(path: string, length: number): Buffer {
-  const bytes = Buffer.allocUnsafe(length);
+/** The offset just after the first line break at or after `from`, within 1 MiB; -1 when there is none there. */
+function lineStartAfter(path: string, from: number, size: number): number {
+  const window = Buffer.allocUnsafe(Math.min(1 << 20, size - from));
   const fd = openSync(path, 'r');
   try {
-    let done = 0;
-    while (done < length) {
-      const read = readSync(fd, bytes, done, length - done, done);
-      if (read === 0) break;
-      done += read;
-    }
-    return bytes.subarray(0, done);
+    const read = readSync(fd, window, 0, window.length, from);
+    const at = window.subarray(0, read).indexOf(LF);
+    return at < 0 ? -1 : from + at + 1;
   } finally {
     closeSync(fd);
   }
@@ -157,25 +154,23 @@ export async function readInTwoParts(path: string, size: number, roles: Record<s
   // The helper thread starts a little after this one and first boots, so it gets a little
   // less of the file: the two parts are then ready at about the same time.
   const middle = Math.floor(size * FIRST_PART_SHARE);
-  const head = readBytes(path, Math.min(size, middle + (1 << 20)));
-  const cut = head.indexOf(LF, middle);
-  if (cut < 0 || cut + 1 >= size) return null;
-  const split = cut + 1;
+  const split = lineStartAfter(path, middle, size);
+  if (split < 0 || split >= size) return null;
   const keep = Object.keys(roles);
   // Sized for the whole file, so that the second part's rows fit after the first's.
   const sink = new FirstPartSink(new Set(keep), size);
   // The command has no use for the content hash (uploads keep theirs).
   const reader = new FirstPartReader(sink, { hash: false });
-  let second: Promise<CsvPartResult | CsvPartUnusable> | null = null;
+  let second = null as Promise<CsvPartResult | CsvPartUnusable> | null;
   let summary;
   try {
     // A small first chunk fixes the header soon, so that the helper starts early.
-    for (let at = 0, chunk = 1 << 16; at < split; at += chunk, chunk = 1 << 20) {
-      reader.push(head.subarray(at, Math.min(split, at + chunk)));
+    readChunks(path, 0, split, (chunk) => {
+      reader.push(chunk);
       if (second === null && sink.names !== null) {
         second = startPartReader({ path, start: split, end: size, delimiter: reader.delimiterByte, names: sink.names, keep }, helpers);
       }
-    }
+    }, 1 << 20, 1 << 16);
     summary = reader.finish();
   } catch {
     return null;
