@@ -87,8 +87,12 @@ export class CsvChunkReader extends CsvRecordParser {
   private readonly leading = new Uint8Array(8);
   private leadingLength = 0;
 
-  /** Bytes held back until the header line is complete (its delimiter is not yet known). */
-  private headBuffer: Uint8Array | null = new Uint8Array(4096);
+  /**
+   * Bytes held back until the header line is complete (its delimiter is not yet known). A
+   * Buffer, like the scratch of the record parser (csvRecordParser.ts), since the first
+   * records are parsed from it.
+   */
+  private headBuffer: Uint8Array | null = Buffer.alloc(4096);
   private headLength = 0;
   private hadBom = false;
 
@@ -247,7 +251,7 @@ export class CsvChunkReader extends CsvRecordParser {
     const needed = this.headLength + chunk.length;
     let buffer = head;
     if (needed > head.length) {
-      buffer = new Uint8Array(Math.max(needed, head.length * 2));
+      buffer = Buffer.alloc(Math.max(needed, head.length * 2));
       buffer.set(head.subarray(0, this.headLength));
       this.headBuffer = buffer;
     }
