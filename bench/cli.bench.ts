@@ -5,7 +5,9 @@
  * numeric covariates), against base R reading the same file with read.csv(colClasses = …)
  * and fitting glm() + vcov() in the same run. Target: the whole command (npm, Node start,
  * reading, analysis, JSON out) ≤ 0.25 × R's read.csv + glm + vcov (R's own start not
- * counted), peak resident memory ≤ 400 MB (GNU time's maximum resident set size).
+ * counted), peak resident memory ≤ 400 MB (GNU time's maximum resident set size). On a
+ * file this large the command reads the file in two parts on two threads
+ * (src/features/runs/twoThreadEngineInput.ts); part 1 below times the reader on one.
  *
  * It also times the CSV reading alone in this process: the upload reader (csvReader.ts +
  * columnAccumulator.ts, all 12 columns to typed columns) against the command's former

@@ -1,9 +1,21 @@
-import { MessageChannel, Worker, type MessagePort } from 'node:worker_threads';
+import { MessageChannel, Worker, type MessagePort, type TransferListItem } from 'node:worker_threads';
 import type { DesignMatrix } from '../design/designMatrix.js';
 import { createPassBuffers, type ParallelPassRunner, type PassCommand } from '../fit/blockedPasses.js';
 import type { ParallelContext } from '../fit/iterativelyReweightedLeastSquares.js';
 import { COMMAND_ATTACH, COMMAND_EXIT, COMMAND_PASS, type PassAttachment } from './passProtocol.js';
-import { launchFor } from './workerLaunch.js';
+import { launchFor, type WorkerLaunch } from './workerLaunch.js';
+
+/**
+ * A first task for the pool's first helper: that thread is started from `launch` (an entry
+ * that does its own work with `workerData` and then calls runPassHelper from passHelper.ts
+ * with the same workerData), so that one thread start serves both. The pool is ready once
+ * the task is done.
+ */
+export interface FirstHelperTask {
+  readonly launch: WorkerLaunch;
+  readonly workerData: Record<string, unknown>;
+  readonly transferList: readonly TransferListItem[];
+}
 
 function shared<T extends Float64Array | Int32Array>(array: T): T {
   if (array.buffer instanceof SharedArrayBuffer) return array;
@@ -33,18 +45,20 @@ export class PassPool implements ParallelPassRunner {
     this.threads = workers.length + 1;
   }
 
-  /** Starts `helpers` helper threads (the caller is the extra thread). */
-  static async start(helpers: number): Promise<PassPool> {
+  /** Starts `helpers` helper threads (the caller is the extra thread), the first with `first`'s task when given. */
+  static async start(helpers: number, first: FirstHelperTask | null = null): Promise<PassPool> {
     const control = new Int32Array(new SharedArrayBuffer(4 * 4 * (helpers + 1)));
-    const launch = launchFor(new URL('./passWorker.js', import.meta.url), import.meta.url);
+    const poolLaunch = launchFor(new URL('./passWorker.js', import.meta.url), import.meta.url);
     const workers: Worker[] = [];
     const ports: MessagePort[] = [];
     const ready: Promise<void>[] = [];
     for (let helper = 1; helper <= helpers; helper++) {
       const channel = new MessageChannel();
+      const task = helper === 1 ? first : null;
+      const launch = task?.launch ?? poolLaunch;
       const worker = new Worker(launch.url, {
-        workerData: { ...launch.extraData, control, index: helper, threads: helpers + 1, port: channel.port2 },
-        transferList: [channel.port2],
+        workerData: { ...task?.workerData, ...launch.extraData, control, index: helper, threads: helpers + 1, port: channel.port2 },
+        transferList: [channel.port2, ...(task?.transferList ?? [])],
       });
       ready.push(
         new Promise<void>((resolve, reject) => {
@@ -129,13 +143,17 @@ export class PassPool implements ParallelPassRunner {
 let sharedPool: Promise<PassPool> | null = null;
 let sharedPoolHelpers = 0;
 
-/** The process-wide pool with `helpers` helpers, started on first use and then reused. */
-export function passPool(helpers: number): Promise<PassPool> {
-  if (sharedPool === null || sharedPoolHelpers !== helpers) {
+/**
+ * The process-wide pool with `helpers` helpers, started on first use and then reused. With
+ * `first`, a new pool is started whose first helper does that task first (see
+ * {@link FirstHelperTask}); it then replaces the process-wide pool.
+ */
+export function passPool(helpers: number, first: FirstHelperTask | null = null): Promise<PassPool> {
+  if (sharedPool === null || sharedPoolHelpers !== helpers || first !== null) {
     const previous = sharedPool;
     sharedPoolHelpers = helpers;
-    sharedPool = PassPool.start(helpers);
-    if (previous !== null) void previous.then((pool) => pool.close());
+    sharedPool = PassPool.start(helpers, first);
+    if (previous !== null) void previous.then((pool) => pool.close(), () => undefined);
   }
   return sharedPool;
 }

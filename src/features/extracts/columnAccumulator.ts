@@ -32,6 +32,22 @@ export { parseNumber } from './numberParsing';
 export const DEFAULT_MAX_LEVELS = 50_000;
 
 /**
+ * The line of data row `row` from the first `marks` (row, line) pairs of a column set (see
+ * {@link ColumnSet.lineOfRow}).
+ */
+export function lineOfRowByMarks(markRows: Int32Array, markLines: Int32Array, marks: number, row: number): number {
+  let low = 0;
+  let high = marks - 1;
+  if (high < 0 || markRows[0] > row) return row + 2;
+  while (low < high) {
+    const mid = (low + high + 1) >> 1;
+    if (markRows[mid] <= row) low = mid;
+    else high = mid - 1;
+  }
+  return markLines[low] + (row - markRows[low]);
+}
+
+/**
  * The reader's sink: routes every field to its column's builder, skipping dropped
  * columns (their fields are never copied or kept). Implements `CsvSink` from csvReader.ts.
  */
@@ -128,15 +144,15 @@ export class ColumnSet {
    * the reader reported lines; else the line it would have in a file without blank lines.
    */
   lineOfRow(row: number): number {
-    let low = 0;
-    let high = this.marks - 1;
-    if (high < 0 || this.markRows[0] > row) return row + 2;
-    while (low < high) {
-      const mid = (low + high + 1) >> 1;
-      if (this.markRows[mid] <= row) low = mid;
-      else high = mid - 1;
-    }
-    return this.markLines[low] + (row - this.markRows[low]);
+    return lineOfRowByMarks(this.markRows, this.markLines, this.marks, row);
+  }
+
+  /**
+   * The (row, line) marks behind {@link lineOfRow}, copied: enough to map rows to lines
+   * where this set is not at hand (a part of a file read on another thread).
+   */
+  lineMarks(): { rows: Int32Array; lines: Int32Array } {
+    return { rows: this.markRows.slice(0, this.marks), lines: this.markLines.slice(0, this.marks) };
   }
 
   /** The finished kept columns, in file order. */

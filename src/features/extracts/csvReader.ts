@@ -40,11 +40,13 @@ export interface CsvReaderOptions {
   maxFieldBytes?: number;
   /** Most columns accepted. Default 2,000. */
   maxColumns?: number;
+  /** Compute the content hash (default true); false skips it, and `sha256` is then empty. */
+  hash?: boolean;
 }
 
 /** What the reader learnt about the file once it has been read to the end. */
 export interface CsvReadSummary {
-  /** Hex SHA-256 of the raw uploaded bytes (BOM included): the extract's content hash. */
+  /** Hex SHA-256 of the raw uploaded bytes (BOM included): the extract's content hash; empty when not asked for. */
   sha256: string;
   /** Bytes received. */
   byteCount: number;
@@ -75,7 +77,7 @@ export const DEFAULT_MAX_BYTES = 500 * 1024 * 1024;
 export class CsvChunkReader extends CsvRecordParser {
   private readonly maxBytes: number;
   private readonly maxHeaderBytes: number;
-  private readonly hash: Hash = createHash('sha256');
+  private readonly hash: Hash | null;
   private readonly utf8 = new TextDecoder('utf-8', { fatal: true });
 
   private byteCount = 0;
@@ -85,8 +87,12 @@ export class CsvChunkReader extends CsvRecordParser {
   private readonly leading = new Uint8Array(8);
   private leadingLength = 0;
 
-  /** Bytes held back until the header line is complete (its delimiter is not yet known). */
-  private headBuffer: Uint8Array | null = new Uint8Array(4096);
+  /**
+   * Bytes held back until the header line is complete (its delimiter is not yet known). A
+   * Buffer, like the scratch of the record parser (csvRecordParser.ts), since the first
+   * records are parsed from it.
+   */
+  private headBuffer: Uint8Array | null = Buffer.alloc(4096);
   private headLength = 0;
   private hadBom = false;
 
@@ -100,6 +106,7 @@ export class CsvChunkReader extends CsvRecordParser {
     super(sink, options.maxFieldBytes ?? 1024 * 1024, options.maxColumns ?? 2000);
     this.maxBytes = options.maxBytes ?? DEFAULT_MAX_BYTES;
     this.maxHeaderBytes = options.maxHeaderBytes ?? 1024 * 1024;
+    this.hash = options.hash === false ? null : createHash('sha256');
   }
 
   /** Bytes received so far. */
@@ -126,7 +133,7 @@ export class CsvChunkReader extends CsvRecordParser {
         `The file is larger than the limit of ${formatBytes(this.maxBytes)}; reading stopped at ${formatBytes(this.byteCount)}.`,
       );
     }
-    this.hash.update(chunk);
+    this.hash?.update(chunk);
     this.keepLeading(chunk);
     this.checkText(chunk);
     if (this.headBuffer !== null) {
@@ -180,7 +187,7 @@ export class CsvChunkReader extends CsvRecordParser {
       );
     }
     return {
-      sha256: this.hash.digest('hex'),
+      sha256: this.hash === null ? '' : this.hash.digest('hex'),
       byteCount: this.byteCount,
       recordCount: this.recordCount,
       columnNames: this.headerFields.slice(),
@@ -244,7 +251,7 @@ export class CsvChunkReader extends CsvRecordParser {
     const needed = this.headLength + chunk.length;
     let buffer = head;
     if (needed > head.length) {
-      buffer = new Uint8Array(Math.max(needed, head.length * 2));
+      buffer = Buffer.alloc(Math.max(needed, head.length * 2));
       buffer.set(head.subarray(0, this.headLength));
       this.headBuffer = buffer;
     }

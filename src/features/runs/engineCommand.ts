@@ -7,11 +7,13 @@
  * `invalid-specification`, `invalid-data`, an engine refusal's code (`column-not-found`, ...)
  * or `internal-error`.
  *
- * The file is read exactly as an upload is (engineInput.ts). `npm run engine` runs this
+ * The file is read exactly as an upload is (engineInput.ts; a large file on two threads when
+ * a core is free, twoThreadEngineInput.ts, with the same result). `npm run engine` runs this
  * module bundled ahead of time (scripts/engineCommand.mjs rebuilds the bundle when it is
  * missing or older than its sources), so nothing is compiled at start.
  */
 import { readFile, stat } from 'node:fs/promises';
+import { availableParallelism, loadavg } from 'node:os';
 import { resolve } from 'node:path';
 import { EngineError, runAnalysis } from '@/engine';
 import { defaultThreadCount } from '@/engine/bootstrap/percentileBootstrap';
@@ -21,6 +23,7 @@ import { ExtractRefusalError } from '../extracts/extractRefusal';
 import { columnRoles } from './columnRoles';
 import { EngineInputError, readEngineData } from './engineInput';
 import { INTERNAL_ERROR, productCode } from './runFailure';
+import { readEngineDataOnTwoThreads } from './twoThreadEngineInput';
 
 /** Files from this size probably hold enough rows for the engine to fit on several threads. */
 const LARGE_FILE_BYTES = 4_000_000;
@@ -72,14 +75,22 @@ async function main(args: string[]): Promise<void> {
     const issue = parsed.error.issues[0];
     throw new CommandFailure(INVALID_SPEC, `The specification is not valid at "${issue.path.join('.') || '(root)'}": ${issue.message}`, 1);
   }
-  // The engine starts its helper threads for a large fit on first use; start them now, so
-  // that they boot while the file is read (the same process-wide pool is then reused).
+  // The engine starts its helper threads for a large fit on first use; on a large file they
+  // are started now, so that they boot while the file is read (the same process-wide pool is
+  // then reused). With a core to spare (the last minute's load average below the number of
+  // cores) the first of them also reads the file's second part meanwhile (same values and
+  // messages as one pass; twoThreadEngineInput.ts). On a machine whose cores are all busy
+  // that only adds work (the helper compiles the reader again for itself; the README's
+  // engine command figures), so the file is read in one pass there.
   const helpers = (threads ?? defaultThreadCount()) - 1;
   const size = await stat(dataPath).then((info) => info.size, () => 0);
-  if (helpers > 0 && size >= LARGE_FILE_BYTES) passPool(helpers).catch(() => undefined);
+  const large = helpers > 0 && size >= LARGE_FILE_BYTES;
+  const twoParts = large && loadavg()[0] < availableParallelism();
+  if (large && !twoParts) passPool(helpers).catch(() => undefined);
   let data;
   try {
-    data = await readEngineData(dataPath, columnRoles(parsed.data));
+    const roles = columnRoles(parsed.data);
+    data = twoParts ? await readEngineDataOnTwoThreads(dataPath, roles, LARGE_FILE_BYTES, helpers) : await readEngineData(dataPath, roles);
   } catch (error) {
     if (error instanceof ExtractRefusalError || error instanceof EngineInputError) {
       const column: Record<string, string> = error instanceof EngineInputError && error.column !== undefined ? { column: error.column } : {};

@@ -25,7 +25,7 @@ export class EngineInputError extends Error {
 }
 
 /** Hands the header to a column set that drops every column outside `keep`. */
-class KeptColumns implements CsvSink {
+export class KeptColumns implements CsvSink {
   columns: ColumnSet | null = null;
 
   constructor(
@@ -57,7 +57,8 @@ class KeptColumns implements CsvSink {
 export async function readEngineData(path: string, roles: Record<string, 'categorical' | 'continuous'>): Promise<EngineData> {
   const { size } = await stat(path);
   const sink = new KeptColumns(new Set(Object.keys(roles)), size);
-  const summary = await readCsv(createReadStream(path, { highWaterMark: 1 << 20 }), sink);
+  // The engine has no use for the content hash (uploads keep theirs).
+  const summary = await readCsv(createReadStream(path, { highWaterMark: 1 << 20 }), sink, { hash: false });
   const stored: StoredColumn[] = [];
   for (const column of sink.columns!.finish()) {
     const kept = storedColumn(column);
