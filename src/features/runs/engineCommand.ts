@@ -13,7 +13,6 @@
  * missing or older than its sources), so nothing is compiled at start.
  */
 import { readFile, stat } from 'node:fs/promises';
-import { availableParallelism, loadavg } from 'node:os';
 import { resolve } from 'node:path';
 import { EngineError, runAnalysis } from '@/engine';
 import { defaultThreadCount } from '@/engine/bootstrap/percentileBootstrap';
@@ -77,15 +76,15 @@ async function main(args: string[]): Promise<void> {
   }
   // The engine starts its helper threads for a large fit on first use; on a large file they
   // are started now, so that they boot while the file is read (the same process-wide pool is
-  // then reused). With a core to spare (the last minute's load average below the number of
-  // cores) the first of them also reads the file's second part meanwhile (same values and
-  // messages as one pass; twoThreadEngineInput.ts). On a machine whose cores are all busy
-  // that only adds work (the helper compiles the reader again for itself; the README's
-  // engine command figures), so the file is read in one pass there.
+  // then reused), and the first of them also reads the file's second part meanwhile (same
+  // values and messages as one pass; twoThreadEngineInput.ts). That shortens the command on
+  // a machine with a core to spare and costs 0.2-0.35 s more CPU in all (the helper compiles
+  // the reader again for itself), about even in time on a machine whose cores are all busy
+  // (the README's engine command figures).
   const helpers = (threads ?? defaultThreadCount()) - 1;
   const size = await stat(dataPath).then((info) => info.size, () => 0);
   const large = helpers > 0 && size >= LARGE_FILE_BYTES;
-  const twoParts = large && loadavg()[0] < availableParallelism();
+  const twoParts = large;
   if (large && !twoParts) passPool(helpers).catch(() => undefined);
   let data;
   try {
