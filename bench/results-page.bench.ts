@@ -74,8 +74,8 @@ try {
   ];
   const targets = [];
   for (const build of builds) {
-    // As `npm start` serves: React's production build, and (scripts/serve.mjs) one process per
-    // core unless CROSSGRAIN_APP_PROCESSES says otherwise; one process when profiling.
+    // As `npm start` serves: React's production build, and scripts/serve.mjs with its default
+    // number of processes unless CROSSGRAIN_APP_PROCESSES says otherwise; one when profiling.
     const served = process.env.CROSSGRAIN_BENCH_CPU_PROF
       ? ['--cpu-prof', `--cpu-prof-dir=${process.env.CROSSGRAIN_BENCH_CPU_PROF}`, '--input-type=module', '-e',
          `process.on('SIGTERM', () => process.exit(0)); await import(${JSON.stringify(pathToFileURL(build.entry).href)});`]
