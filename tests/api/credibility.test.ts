@@ -9,13 +9,13 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
 import { generateCallBackCohort } from '@/features/extracts/demoCohorts';
-import { executeRun } from '@/features/runs/executeRun';
 import { sequelize, withIdentity } from '@/lib/server/db';
 import { startServer, type ServerHandle } from '../browser/harness';
 import { makeReadyExtract } from '../support/extractFactory';
 import { closeOwnerDb, makeInitiative, ownerDb } from '../support/factories';
 import { ApiClient } from '../support/http';
 import { signedInMembers } from '../support/members';
+import { finishedRunOverHttp } from '../support/runs';
 
 const password = 'lantern-quay-bramble';
 type Role = 'analyst' | 'clinician' | 'auditor' | 'outsider';
@@ -30,11 +30,7 @@ interface Stratum { level: string; effect: { estimate: number } }
 interface StoredResult { alpha: number; strata: Stratum[]; interaction: { omnibus: { p: number } } }
 
 async function runOf(title: string, spec: Record<string, unknown>): Promise<string> {
-  const created = await clients.analyst.request('POST', '/api/analyses', { initiativeId, extractVersionId: versionId, title, question: 'Does the effect differ?', prespecified: false, spec });
-  expect(created.status).toBe(201);
-  const runId: string = (await (await clients.analyst.request('POST', `/api/analyses/${(await created.json()).id}/runs`, {})).json()).runId;
-  expect(await executeRun(runId, ids.analyst, { threads: 0 })).toBe('succeeded');
-  return runId;
+  return (await finishedRunOverHttp(clients.analyst, ids.analyst, { initiativeId, extractVersionId: versionId, title, question: 'Does the effect differ?', spec })).runId;
 }
 const base = { exposure: { column: 'call_back', reference: '0' }, covariates: [], ci: { level: 0.95, method: 'delta' } };
 const readmission = { outcome: { column: 'readmitted_30d', type: 'binary' }, model: 'logistic' };

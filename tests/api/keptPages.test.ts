@@ -7,12 +7,12 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { generateCallBackCohort } from '@/features/extracts/demoCohorts';
-import { executeRun } from '@/features/runs/executeRun';
 import { startServer, type ServerHandle } from '../browser/harness';
 import { makeReadyExtract } from '../support/extractFactory';
 import { closeOwnerDb, makeInitiative, ownerDb } from '../support/factories';
 import type { ApiClient } from '../support/http';
 import { signedInMembers } from '../support/members';
+import { finishedRunOverHttp } from '../support/runs';
 
 const password = 'copper-heron-lattice';
 let server: ServerHandle;
@@ -41,10 +41,9 @@ beforeAll(async () => {
     outcome: { column: 'readmitted_30d', type: 'binary' }, exposure: { column: 'call_back', reference: '0' },
     modifier: { column: 'sex', type: 'categorical', reference: 'F' }, covariates: [], model: 'logistic', ci: { level: 0.95, method: 'delta' },
   };
-  const created = await clients.analyst.request('POST', '/api/analyses', { initiativeId, extractVersionId: versionId, title: 'Call-back by sex', question: 'Does the call-back help men more?', prespecified: false, spec });
-  analysisId = (await created.json()).id;
-  runId = (await (await clients.analyst.request('POST', `/api/analyses/${analysisId}/runs`, {})).json()).runId;
-  expect(await executeRun(runId, ids.analyst, { threads: 0 })).toBe('succeeded');
+  ({ analysisId, runId } = await finishedRunOverHttp(clients.analyst, ids.analyst, {
+    initiativeId, extractVersionId: versionId, title: 'Call-back by sex', question: 'Does the call-back help men more?', spec,
+  }));
 }, 120_000);
 
 afterAll(async () => {

@@ -179,4 +179,20 @@ describe('the one-round-trip membership read of every request', () => {
     }
     expect(() => sessionQuery("x'; DROP TABLE sessions; --")).toThrow(/session id/);
   });
+
+  it('reads one statement under the user’s identity, with its uuids checked', async () => {
+    const { readAsUser } = await import('@/lib/server/session');
+    const user = await makeUser();
+    const mine = await makeInitiative();
+    const theirs = await makeInitiative();
+    await addMember(mine.id, user.id, 'auditor');
+    const read = (id: string) => readAsUser<{ id: string; named: string }>(user.id, 'SELECT i.id, i.id::text AS named FROM initiatives i WHERE i.id = :id', { id });
+    expect(await read(mine.id)).toEqual([{ id: mine.id, named: mine.id }]);
+    // Row-level security applies: another initiative's row is not there.
+    expect(await read(theirs.id)).toEqual([]);
+    // A value that is not a uuid is never written into the text; it gives no rows.
+    expect(await read("x' OR true --")).toEqual([]);
+    await expect(readAsUser(user.id, 'SELECT 1 WHERE :missing IS NULL', {})).rejects.toThrow(/no value for :missing/);
+    await expect(readAsUser(user.id, 'SELECT 1; SELECT 2', {})).rejects.toThrow(/one statement/);
+  });
 });

@@ -74,6 +74,11 @@ async function modifiersForOutcome(transaction: Transaction, initiativeId: strin
  */
 const assessments = new StampedCache<Omit<CredibilityView, 'canRate'>>();
 
+/** Whether a run has a credibility assessment: a finished run of one modifier, not a subgroup screen or a verifying re-run. */
+export function isAssessable(run: RunView): boolean {
+  return run.status === 'succeeded' && !run.verifiesRunId && !isScreenSpec(run.spec);
+}
+
 /**
  * The computed items and the overall rating of a succeeded run (`canRate` is the caller's
  * right). `stamp` is the initiative's counter when the caller has read it already
@@ -197,7 +202,7 @@ export async function credibilityBadges(transaction: Transaction, initiativeId: 
       continue;
     }
     const run = await getRun(transaction, runId, { withResult: true });
-    if (!run || run.initiativeId !== initiativeId || run.status !== 'succeeded' || run.verifiesRunId || !run.result || isScreenSpec(run.spec)) continue;
+    if (!run || run.initiativeId !== initiativeId || !run.result || !isAssessable(run)) continue;
     out.set(run.id, (await credibilityOf(transaction, run, false, stamp)).overall);
   }
   return out;

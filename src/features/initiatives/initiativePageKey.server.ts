@@ -5,17 +5,15 @@
  * identity, so an initiative the viewer may not see, or an archived one, gives no key and
  * the page answers as it always does.
  */
+import { keptPageKey } from '@/lib/server/pageCache';
 import { readAsUser, type SessionUser } from '@/lib/server/session';
-import { viewerKey } from '@/lib/server/pageCache';
-
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/;
 
 export async function initiativePageKey(user: SessionUser, page: string, initiativeId: string, search: string): Promise<string | null> {
-  if (!UUID.test(initiativeId)) return null;
   const [row] = await readAsUser<{ stamp: string }>(
     user.id,
     `SELECT s.stamp::text AS stamp FROM initiative_stamps s JOIN initiatives i ON i.id = s.initiative_id
-      WHERE s.initiative_id = '${initiativeId}' AND i.archived_at IS NULL`,
+      WHERE s.initiative_id = :initiativeId AND i.archived_at IS NULL`,
+    { initiativeId },
   );
-  return row ? `${page} ${initiativeId} ${row.stamp} ${viewerKey(user)} ${search}` : null;
+  return row ? keptPageKey(page, initiativeId, row.stamp, user, search) : null;
 }

@@ -7,8 +7,8 @@
  * `invalid-specification`, `invalid-data`, an engine refusal's code (`column-not-found`, ...)
  * or `internal-error`.
  *
- * The file is read exactly as an upload is (engineInput.ts; a large file on two threads when
- * a core is free, twoThreadEngineInput.ts, with the same result). `npm run engine` runs this
+ * The file is read exactly as an upload is (engineInput.ts; a large file on two threads,
+ * twoThreadEngineInput.ts, with the same result). `npm run engine` runs this
  * module bundled ahead of time (scripts/engineCommand.mjs rebuilds the bundle when it is
  * missing or older than its sources), so nothing is compiled at start.
  */
@@ -17,15 +17,12 @@ import { resolve } from 'node:path';
 import { EngineError, runAnalysis } from '@/engine';
 import { defaultThreadCount } from '@/engine/bootstrap/percentileBootstrap';
 import { SpecSchema } from '@/engine/boundary/schemas';
-import { passPool } from '@/engine/threads/passPool';
 import { ExtractRefusalError } from '../extracts/extractRefusal';
 import { columnRoles } from './columnRoles';
 import { EngineInputError, readEngineData } from './engineInput';
 import { INTERNAL_ERROR, productCode } from './runFailure';
-import { readEngineDataOnTwoThreads } from './twoThreadEngineInput';
+import { readEngineDataOnTwoThreads, TWO_THREAD_MIN_BYTES } from './twoThreadEngineInput';
 
-/** Files from this size probably hold enough rows for the engine to fit on several threads. */
-const LARGE_FILE_BYTES = 4_000_000;
 
 const USAGE = 'usage';
 const INVALID_SPEC = productCode('INVALID_SPEC');
@@ -83,13 +80,11 @@ async function main(args: string[]): Promise<void> {
   // (the README's engine command figures).
   const helpers = (threads ?? defaultThreadCount()) - 1;
   const size = await stat(dataPath).then((info) => info.size, () => 0);
-  const large = helpers > 0 && size >= LARGE_FILE_BYTES;
-  const twoParts = large;
-  if (large && !twoParts) passPool(helpers).catch(() => undefined);
+  const twoParts = helpers > 0 && size >= TWO_THREAD_MIN_BYTES;
   let data;
   try {
     const roles = columnRoles(parsed.data);
-    data = twoParts ? await readEngineDataOnTwoThreads(dataPath, roles, LARGE_FILE_BYTES, helpers) : await readEngineData(dataPath, roles);
+    data = twoParts ? await readEngineDataOnTwoThreads(dataPath, roles, TWO_THREAD_MIN_BYTES, helpers) : await readEngineData(dataPath, roles);
   } catch (error) {
     if (error instanceof ExtractRefusalError || error instanceof EngineInputError) {
       const column: Record<string, string> = error instanceof EngineInputError && error.column !== undefined ? { column: error.column } : {};

@@ -29,7 +29,7 @@ export async function readableRun(transaction: Transaction, user: SessionUser, r
 export async function quickReadableResult(user: SessionUser, runId: string): Promise<Result | undefined> {
   const result = cachedResult(runId);
   if (result === undefined) return undefined;
-  const [row] = await readAsUser<{ initiative_id: string; status: string }>(user.id, `SELECT initiative_id, status FROM runs WHERE id = '${runId}'`);
+  const [row] = await readAsUser<{ initiative_id: string; status: string }>(user.id, 'SELECT initiative_id, status FROM runs WHERE id = :runId', { runId });
   if (!row || row.status !== 'succeeded' || !can(user, 'read', 'Run', { initiativeId: row.initiative_id })) return undefined;
   return result;
 }

@@ -7,18 +7,17 @@
  * run and the counter are read in one round trip under the viewer's identity, so a run the
  * viewer may not see gives no key, and the page then answers as it always does.
  */
+import { keptPageKey } from '@/lib/server/pageCache';
 import { readAsUser, type SessionUser } from '@/lib/server/session';
-import { viewerKey } from '@/lib/server/pageCache';
 
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/;
 const ENDED = new Set(['succeeded', 'failed', 'cancelled']);
 
 export async function endedRunPageKey(user: SessionUser, runId: string, search: string): Promise<string | null> {
-  if (!UUID.test(runId)) return null;
   const [row] = await readAsUser<{ status: string; stamp: string }>(
     user.id,
-    `SELECT r.status, s.stamp::text AS stamp FROM runs r JOIN initiative_stamps s ON s.initiative_id = r.initiative_id WHERE r.id = '${runId}'`,
+    'SELECT r.status, s.stamp::text AS stamp FROM runs r JOIN initiative_stamps s ON s.initiative_id = r.initiative_id WHERE r.id = :runId',
+    { runId },
   );
   if (!row || !ENDED.has(row.status)) return null;
-  return `run ${runId} ${row.stamp} ${viewerKey(user)} ${search}`;
+  return keptPageKey('run', runId, row.stamp, user, search);
 }

@@ -26,7 +26,10 @@ import { storedColumn, toEngineData, type StoredColumn } from '../extracts/engin
 import { readChunks, type CsvPartRequest, type CsvPartResult, type CsvPartUnusable, type PartColumn } from './csvPart';
 import { EngineInputError, KeptColumns, readEngineData } from './engineInput';
 
-/** Files from this size are read on two threads (below it a thread's start costs more than it saves). */
+/**
+ * Files from this size are read on two threads (below it a thread's start costs more than it
+ * saves); they also hold enough rows for the engine to fit on several threads.
+ */
 export const TWO_THREAD_MIN_BYTES = 4_000_000;
 
 const LF = 10;

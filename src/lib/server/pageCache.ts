@@ -25,13 +25,30 @@ export interface KeptPage {
 const pages = new Map<string, KeptPage>();
 let kept = 0;
 
-/** The viewer's part of a key: everything about them a page may show or decide by. */
-export function viewerKey(user: SessionUser): string {
-  return createHash('sha256').update(JSON.stringify([user.id, user.email, user.displayName, user.isAdmin, user.memberships])).digest('base64url');
+/**
+ * The key of a kept page: the page, the record it shows, the initiative's counter read
+ * before it, the viewer (everything about them a page may show or decide by) and the query.
+ */
+export function keptPageKey(page: string, id: string, stamp: string, user: SessionUser, search: string): string {
+  const viewer = createHash('sha256').update(JSON.stringify([user.id, user.email, user.displayName, user.isAdmin, user.memberships])).digest('base64url');
+  return `${page} ${id} ${stamp} ${viewer} ${search}`;
+}
+
+/**
+ * The first step of a page that may be kept, given its key (null: not to be kept): the kept
+ * page's answer when there is one; otherwise null, with the page marked to be kept once it
+ * has rendered (the middleware keeps a 200's HTML).
+ */
+export function answerFromKept(locals: App.Locals, key: string | null): Response | null {
+  if (key === null) return null;
+  const page = keptPage(key);
+  if (page) return serveKeptPage(locals, page);
+  locals.pageCacheKey = key;
+  return null;
 }
 
 /** A kept page, or undefined. */
-export function keptPage(key: string): KeptPage | undefined {
+function keptPage(key: string): KeptPage | undefined {
   const page = pages.get(key);
   if (page === undefined) return undefined;
   pages.delete(key);
@@ -61,7 +78,7 @@ export function keepPage(key: string, html: string): void {
  * the middleware writes the page's bytes with the response's nonce into it, and adds the
  * security headers as for any page.
  */
-export function serveKeptPage(locals: App.Locals, page: KeptPage): Response {
+function serveKeptPage(locals: App.Locals, page: KeptPage): Response {
   locals.keptPage = page;
   return new Response(null, { status: 200, headers: { 'Content-Type': 'text/html' } });
 }

@@ -140,14 +140,19 @@ export async function loadMemberships(userId: string): Promise<MembershipInfo[]>
 /**
  * One read under a user's identity in one round trip, with the same two-statement text as
  * loadMemberships: for the checks that decide whether a kept page may be served
- * (pageCache.ts), where a whole transaction would cost more than the page. `statement` must
- * be a single SELECT whose values are checked by the caller before they are written into it
- * (only uuids are).
+ * (pageCache.ts), where a whole transaction would cost more than the page. `statement` is
+ * one SELECT whose values are uuids named `:name` (a `::` cast is left alone); each is checked as a uuid before it is
+ * written into the text, and a value that is not one gives no rows.
  */
-export async function readAsUser<T>(userId: string, statement: string): Promise<T[]> {
+export async function readAsUser<T>(userId: string, statement: string, ids: Record<string, string>): Promise<T[]> {
   if (!UUID.test(userId)) throw new Error('readAsUser needs a user id');
   if (statement.includes(';')) throw new Error('readAsUser reads one statement');
-  const results: unknown = await pool.query(`SELECT set_config('app.user_id', '${userId}', true); ${statement}`);
+  if (!Object.values(ids).every((id) => UUID.test(id))) return [];
+  const text = statement.replace(/(?<!:):(\w+)/g, (_, name: string) => {
+    if (!(name in ids)) throw new Error(`readAsUser has no value for :${name}`);
+    return `'${ids[name]}'`;
+  });
+  const results: unknown = await pool.query(`SELECT set_config('app.user_id', '${userId}', true); ${text}`);
   if (!Array.isArray(results) || results.length !== 2) throw new Error('readAsUser expected one result per statement');
   return results[1].rows as T[];
 }
