@@ -140,6 +140,18 @@ describe('the counter of an initiative', () => {
     await expect(withIdentity(analystId, (t) => sequelize.query("UPDATE initiative_stamps SET stamp = 0 WHERE initiative_id = :initiativeId", { replacements: { initiativeId }, transaction: t })))
       .rejects.toMatchObject({ original: { code: '42501' } });
   });
+
+  it('comes with a run, in the one read a kept results page makes, for members only', async () => {
+    const { readRunStamp } = await import('@/lib/server/requestReads');
+    const [run] = await ownerDb().query<{ status: string }>('SELECT status FROM runs WHERE id = :runId', { replacements: { runId }, type: QueryTypes.SELECT });
+    expect(await readRunStamp(analystId, runId)).toEqual({ initiativeId, status: run.status, stamp: await stampOf() });
+    expect(await readRunStamp((await makeUser()).id, runId)).toBeNull();
+    expect(await readRunStamp(analystId, "x' OR true --")).toBeNull();
+    const before = await stampOf();
+    expect(await moves('UPDATE runs SET cancel_requested = true WHERE id = :runId')).toBe(true);
+    expect(await readRunStamp(analystId, runId)).toEqual({ initiativeId, status: run.status, stamp: await stampOf() });
+    expect(await stampOf()).not.toBe(before);
+  });
 });
 
 describe('the tables that move the counter', () => {

@@ -115,39 +115,54 @@ describe('initiatives under row-level security', () => {
   });
 });
 
-describe('the one-round-trip membership read of every request', () => {
-  it('reads only the user’s memberships, and leaves no identity on the connection, even when it fails', async () => {
+describe('the reads of every request (policies/rls/019_request_reads.sql)', () => {
+  const connect = async () => {
     const { default: pg } = await import('pg');
-    const { loadMemberships, membershipsQuery } = await import('@/lib/server/session');
-    const user = await makeUser();
-    const mine = await makeInitiative();
-    await makeInitiative();
-    await addMember(mine.id, user.id, 'clinician');
-    expect((await loadMemberships(user.id)).map((m) => [m.initiativeId, m.role])).toEqual([[mine.id, 'clinician']]);
-
-    // One connection, used three times in a row as the pool would reuse it.
     const client = new pg.Client({
       host: env.CROSSGRAIN_DB_HOST, port: env.CROSSGRAIN_DB_PORT, database: env.CROSSGRAIN_DB_NAME,
       user: env.CROSSGRAIN_DB_APP_USER, password: env.CROSSGRAIN_DB_APP_PASSWORD,
     });
     await client.connect();
+    return client;
+  };
+  const identityAndVisible = "SELECT coalesce(current_setting('app.user_id', true), '') AS id, (SELECT count(*) FROM memberships) AS visible";
+
+  it('reads only the user’s memberships, none once they are deactivated, and puts the identity back as it was', async () => {
+    const { loadMemberships } = await import('@/lib/server/session');
+    const user = await makeUser();
+    const other = await makeUser();
+    const mine = await makeInitiative();
+    const theirs = await makeInitiative();
+    await addMember(mine.id, user.id, 'clinician');
+    await addMember(theirs.id, other.id, 'analyst');
+    expect((await loadMemberships(user.id)).map((m) => [m.initiativeId, m.role])).toEqual([[mine.id, 'clinician']]);
+
+    const client = await connect();
     try {
-      await client.query(membershipsQuery(user.id));
-      const after = await client.query("SELECT coalesce(current_setting('app.user_id', true), '') AS id, (SELECT count(*) FROM memberships) AS visible");
-      expect(after.rows[0]).toEqual({ id: '', visible: '0' });
-      // A failing second statement rolls the first back and leaves the connection usable.
-      await expect(client.query(membershipsQuery(user.id).replace("ORDER BY i.name", "ORDER BY i.name, 1/0"))).rejects.toMatchObject({ code: '22012' });
-      const clean = await client.query("SELECT coalesce(current_setting('app.user_id', true), '') AS id");
-      expect(clean.rows[0].id).toBe('');
+      // Alone, it leaves no identity on the pooled connection.
+      await client.query('SELECT * FROM app_read_memberships($1)', [user.id]);
+      expect((await client.query(identityAndVisible)).rows[0]).toEqual({ id: '', visible: '0' });
+      // Inside a transaction of another identity, that identity holds again after the read.
+      await client.query('BEGIN');
+      await client.query("SELECT set_config('app.user_id', $1, true)", [other.id]);
+      const read = await client.query('SELECT initiative_id FROM app_read_memberships($1)', [user.id]);
+      expect(read.rows).toEqual([{ initiative_id: mine.id }]);
+      expect((await client.query(identityAndVisible)).rows[0]).toEqual({ id: other.id, visible: '1' });
+      await client.query('COMMIT');
+      // A value that is not a uuid fails before anything is read, and the connection stays clean.
+      await expect(client.query('SELECT * FROM app_read_memberships($1)', ["x' OR true --"])).rejects.toMatchObject({ code: '22P02' });
+      expect((await client.query(identityAndVisible)).rows[0]).toEqual({ id: '', visible: '0' });
     } finally {
       await client.end();
     }
-    expect(() => membershipsQuery("x'; DROP TABLE users; --")).toThrow(/user id/);
+    await ownerDb().query("UPDATE users SET status = 'deactivated' WHERE id = :id", { replacements: { id: user.id } });
+    expect(await loadMemberships(user.id)).toEqual([]);
+    await expect(loadMemberships("x'; DROP TABLE users; --")).rejects.toThrow(/user id/);
   });
 
-  it('reads a session with its user and only that user’s memberships in one text, and leaves no identity behind', async () => {
-    const { default: pg } = await import('pg');
-    const { sessionQuery, hashToken, newToken } = await import('@/lib/server/session');
+  it('reads a session with its user and only that user’s memberships, and leaves no identity behind', async () => {
+    const { hashToken, newToken } = await import('@/lib/server/session');
+    const { readSession } = await import('@/lib/server/requestReads');
     const user = await makeUser();
     const mine = await makeInitiative();
     const theirs = await makeInitiative();
@@ -158,41 +173,48 @@ describe('the one-round-trip membership read of every request', () => {
       "INSERT INTO sessions (id, user_id, expires_at, created_at, last_seen_at) VALUES (:sessionId, :userId, now() + interval '1 hour', now(), now())",
       { replacements: { sessionId, userId: user.id } },
     );
-    const client = new pg.Client({
-      host: env.CROSSGRAIN_DB_HOST, port: env.CROSSGRAIN_DB_PORT, database: env.CROSSGRAIN_DB_NAME,
-      user: env.CROSSGRAIN_DB_APP_USER, password: env.CROSSGRAIN_DB_APP_PASSWORD,
-    });
-    await client.connect();
+    const row = await readSession(sessionId);
+    expect(row).toMatchObject({ id: sessionId, user_id: user.id, status: 'active', email: user.email });
+    expect((row!.memberships as { initiativeId: string; role: string }[]).map((m) => [m.initiativeId, m.role])).toEqual([[mine.id, 'analyst']]);
+    // An unknown session, and a value that is not a session id, give no row.
+    expect(await readSession(hashToken(newToken()))).toBeNull();
+    expect(await readSession("x' OR true --")).toBeNull();
+
+    const client = await connect();
     try {
-      const results = (await client.query(sessionQuery(sessionId))) as unknown as { rows: Record<string, unknown>[] }[];
-      expect(results).toHaveLength(2);
-      const [row] = results[1].rows;
-      expect(row).toMatchObject({ id: sessionId, user_id: user.id, status: 'active' });
-      expect((row.memberships as { initiativeId: string; role: string }[]).map((m) => [m.initiativeId, m.role])).toEqual([[mine.id, 'analyst']]);
-      const after = await client.query("SELECT coalesce(current_setting('app.user_id', true), '') AS id, (SELECT count(*) FROM memberships) AS visible");
-      expect(after.rows[0]).toEqual({ id: '', visible: '0' });
-      // An unknown session gives no row and sees no membership.
-      const unknown = (await client.query(sessionQuery(hashToken(newToken())))) as unknown as { rows: unknown[] }[];
-      expect(unknown[1].rows).toEqual([]);
+      const direct = await client.query('SELECT id, memberships FROM app_read_session($1)', [sessionId]);
+      expect(direct.rows).toHaveLength(1);
+      expect((await client.query(identityAndVisible)).rows[0]).toEqual({ id: '', visible: '0' });
     } finally {
       await client.end();
     }
-    expect(() => sessionQuery("x'; DROP TABLE sessions; --")).toThrow(/session id/);
+    // A deactivated user's session still reads (so that it can be ended), with no memberships.
+    await ownerDb().query("UPDATE users SET status = 'deactivated' WHERE id = :id", { replacements: { id: user.id } });
+    expect(await readSession(sessionId)).toMatchObject({ status: 'deactivated', memberships: [] });
   });
 
-  it('reads one statement under the user’s identity, with its uuids checked', async () => {
-    const { readAsUser } = await import('@/lib/server/session');
-    const user = await makeUser();
-    const mine = await makeInitiative();
-    const theirs = await makeInitiative();
-    await addMember(mine.id, user.id, 'auditor');
-    const read = (id: string) => readAsUser<{ id: string; named: string }>(user.id, 'SELECT i.id, i.id::text AS named FROM initiatives i WHERE i.id = :id', { id });
-    expect(await read(mine.id)).toEqual([{ id: mine.id, named: mine.id }]);
-    // Row-level security applies: another initiative's row is not there.
-    expect(await read(theirs.id)).toEqual([]);
-    // A value that is not a uuid is never written into the text; it gives no rows.
-    expect(await read("x' OR true --")).toEqual([]);
-    await expect(readAsUser(user.id, 'SELECT 1 WHERE :missing IS NULL', {})).rejects.toThrow(/no value for :missing/);
-    await expect(readAsUser(user.id, 'SELECT 1; SELECT 2', {})).rejects.toThrow(/one statement/);
+  it('reads an initiative’s counter only for its members, for each caller in turn on one connection', async () => {
+    const { readInitiativeStamp } = await import('@/lib/server/requestReads');
+    const member = await makeUser();
+    const outsider = await makeUser();
+    const initiative = await makeInitiative();
+    await addMember(initiative.id, member.id, 'auditor');
+    const [{ stamp }] = await ownerDb().query<{ stamp: string }>('SELECT stamp::text AS stamp FROM initiative_stamps WHERE initiative_id = :id', { replacements: { id: initiative.id }, type: QueryTypes.SELECT });
+    expect(await readInitiativeStamp(member.id, initiative.id)).toBe(stamp);
+    expect(await readInitiativeStamp(outsider.id, initiative.id)).toBeNull();
+    expect(await readInitiativeStamp(member.id, 'not-a-uuid')).toBeNull();
+
+    // PostgreSQL keeps a generic plan after five calls on a connection; the identity must still count on every call.
+    const client = await connect();
+    try {
+      for (let i = 0; i < 8; i += 1) {
+        const seen = await client.query('SELECT app_read_initiative_stamp($1, $2)::text AS member, app_read_initiative_stamp($3, $2)::text AS outsider', [member.id, initiative.id, outsider.id]);
+        expect(seen.rows[0]).toEqual({ member: stamp, outsider: null });
+      }
+    } finally {
+      await client.end();
+    }
+    await ownerDb().query('UPDATE initiatives SET archived_at = now() WHERE id = :id', { replacements: { id: initiative.id } });
+    expect(await readInitiativeStamp(member.id, initiative.id)).toBeNull();
   });
 });

@@ -6,14 +6,10 @@
  * the page answers as it always does.
  */
 import { keptPageKey } from '@/lib/server/pageCache';
-import { readAsUser, type SessionUser } from '@/lib/server/session';
+import { readInitiativeStamp } from '@/lib/server/requestReads';
+import type { SessionUser } from '@/lib/server/session';
 
 export async function initiativePageKey(user: SessionUser, page: string, initiativeId: string, search: string): Promise<string | null> {
-  const [row] = await readAsUser<{ stamp: string }>(
-    user.id,
-    `SELECT s.stamp::text AS stamp FROM initiative_stamps s JOIN initiatives i ON i.id = s.initiative_id
-      WHERE s.initiative_id = :initiativeId AND i.archived_at IS NULL`,
-    { initiativeId },
-  );
-  return row ? keptPageKey(page, initiativeId, row.stamp, user, search) : null;
+  const stamp = await readInitiativeStamp(user.id, initiativeId);
+  return stamp === null ? null : keptPageKey(page, initiativeId, stamp, user, search);
 }

@@ -8,7 +8,8 @@ import { Run } from '../../../db/models';
 import type { Result } from '@/engine/boundary/schemas';
 import { authorize, can } from '@/lib/server/authorize';
 import { notFound } from '@/lib/server/errors';
-import { readAsUser, type SessionUser } from '@/lib/server/session';
+import { readRunStamp } from '@/lib/server/requestReads';
+import type { SessionUser } from '@/lib/server/session';
 import { resultDigest } from './canonical';
 import { cachedResult } from './finishedResults';
 import { getRun, type RunView } from './runs.server';
@@ -29,8 +30,8 @@ export async function readableRun(transaction: Transaction, user: SessionUser, r
 export async function quickReadableResult(user: SessionUser, runId: string): Promise<Result | undefined> {
   const result = cachedResult(runId);
   if (result === undefined) return undefined;
-  const [row] = await readAsUser<{ initiative_id: string; status: string }>(user.id, 'SELECT initiative_id, status FROM runs WHERE id = :runId', { runId });
-  if (!row || row.status !== 'succeeded' || !can(user, 'read', 'Run', { initiativeId: row.initiative_id })) return undefined;
+  const row = await readRunStamp(user.id, runId);
+  if (!row || row.status !== 'succeeded' || !can(user, 'read', 'Run', { initiativeId: row.initiativeId })) return undefined;
   return result;
 }
 

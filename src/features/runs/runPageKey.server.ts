@@ -8,16 +8,13 @@
  * viewer may not see gives no key, and the page then answers as it always does.
  */
 import { keptPageKey } from '@/lib/server/pageCache';
-import { readAsUser, type SessionUser } from '@/lib/server/session';
+import { readRunStamp } from '@/lib/server/requestReads';
+import type { SessionUser } from '@/lib/server/session';
 
 const ENDED = new Set(['succeeded', 'failed', 'cancelled']);
 
 export async function endedRunPageKey(user: SessionUser, runId: string, search: string): Promise<string | null> {
-  const [row] = await readAsUser<{ status: string; stamp: string }>(
-    user.id,
-    'SELECT r.status, s.stamp::text AS stamp FROM runs r JOIN initiative_stamps s ON s.initiative_id = r.initiative_id WHERE r.id = :runId',
-    { runId },
-  );
-  if (!row || !ENDED.has(row.status)) return null;
+  const row = await readRunStamp(user.id, runId);
+  if (!row || row.stamp === null || !ENDED.has(row.status)) return null;
   return keptPageKey('run', runId, row.stamp, user, search);
 }

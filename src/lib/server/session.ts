@@ -13,11 +13,10 @@ import { createHash, randomBytes } from 'node:crypto';
 import type { AstroCookies } from 'astro';
 import { Lucia, TimeSpan } from 'lucia';
 import { NodePostgresAdapter } from '@lucia-auth/adapter-postgresql';
-import pg from 'pg';
 import { z } from 'zod';
 import { ROLES, type Role } from '../../../db/models';
 import { env, isProduction } from './env';
-import { logger } from './logger';
+import { readMemberships, readSession, requestPool } from './requestReads';
 
 export interface MembershipInfo {
   initiativeId: string;
@@ -52,22 +51,6 @@ const absoluteMs = () => env.CROSSGRAIN_SESSION_ABSOLUTE_HOURS * 3_600_000;
 /** Writing last_seen_at on every request would cost a write per page; once a minute is enough. */
 const LAST_SEEN_WRITE_INTERVAL_MS = 60_000;
 
-/**
- * The session library's own pool, beside the app's Sequelize pool (src/lib/server/db.ts):
- * lucia's PostgreSQL adapter takes a pg Pool, and Sequelize's pool hands out bare clients.
- * It is small, and it also runs the two-statement membership read (loadMemberships), which
- * needs pg's simple query protocol.
- */
-const pool = new pg.Pool({
-  host: env.CROSSGRAIN_DB_HOST,
-  port: env.CROSSGRAIN_DB_PORT,
-  database: env.CROSSGRAIN_DB_NAME,
-  user: env.CROSSGRAIN_DB_APP_USER,
-  password: env.CROSSGRAIN_DB_APP_PASSWORD,
-  max: 5,
-});
-// An idle client whose connection drops emits here; without a listener the process would exit.
-pool.on('error', (error) => logger.error({ err: error }, 'session pool: idle connection lost'));
 
 interface SessionRowAttributes {
   created_at: Date;
@@ -83,7 +66,7 @@ interface UserRowAttributes {
   status: string;
 }
 
-const lucia = new Lucia(new NodePostgresAdapter(pool, { user: 'users', session: 'sessions' }), {
+const lucia = new Lucia(new NodePostgresAdapter(requestPool, { user: 'users', session: 'sessions' }), {
   sessionExpiresIn: new TimeSpan(env.CROSSGRAIN_SESSION_ABSOLUTE_HOURS * 60, 'm'),
   sessionCookie: {
     name: SESSION_COOKIE,
@@ -120,56 +103,14 @@ export function newToken(bytes = 20): string {
   return randomBytes(bytes).toString('base64url');
 }
 
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/;
-
-/**
- * The memberships (with initiative names) of one user, read under their own identity.
- * Every request needs them, so they take one round trip: a simple-protocol query with two
- * statements, which PostgreSQL runs as one implicit transaction. The transaction-local
- * identity set by the first statement therefore holds for the second and ends with it
- * (an error rolls both back and leaves the pooled connection clean). The id is a uuid
- * read from the session row, checked again here before it is written into the text.
- */
+/** The memberships (with initiative names) of one user, read under their own identity. */
 export async function loadMemberships(userId: string): Promise<MembershipInfo[]> {
-  // pg answers a multi-statement text with one result per statement, which its types do not say.
-  const results: unknown = await pool.query(membershipsQuery(userId));
-  if (!Array.isArray(results) || results.length !== 2) throw new Error('loadMemberships expected one result per statement');
-  return MEMBERSHIP_ROWS.parse(results[1].rows);
-}
-
-/**
- * One read under a user's identity in one round trip, with the same two-statement text as
- * loadMemberships: for the checks that decide whether a kept page may be served
- * (pageCache.ts), where a whole transaction would cost more than the page. `statement` is
- * one SELECT whose values are uuids named `:name` (a `::` cast is left alone); each is checked as a uuid before it is
- * written into the text, and a value that is not one gives no rows.
- */
-export async function readAsUser<T>(userId: string, statement: string, ids: Record<string, string>): Promise<T[]> {
-  if (!UUID.test(userId)) throw new Error('readAsUser needs a user id');
-  if (statement.includes(';')) throw new Error('readAsUser reads one statement');
-  if (!Object.values(ids).every((id) => UUID.test(id))) return [];
-  const text = statement.replace(/(?<!:):(\w+)/g, (_, name: string) => {
-    if (!(name in ids)) throw new Error(`readAsUser has no value for :${name}`);
-    return `'${ids[name]}'`;
-  });
-  const results: unknown = await pool.query(`SELECT set_config('app.user_id', '${userId}', true); ${text}`);
-  if (!Array.isArray(results) || results.length !== 2) throw new Error('readAsUser expected one result per statement');
-  return results[1].rows as T[];
+  return MEMBERSHIP_ROWS.parse(await readMemberships(userId));
 }
 
 const MEMBERSHIP_ROWS = z.array(
   z.object({ initiativeId: z.string(), initiativeName: z.string(), initiativeSlug: z.string(), role: z.enum(ROLES) }),
 );
-
-/** The two-statement text of loadMemberships (exported for its connection-hygiene test). */
-export function membershipsQuery(userId: string): string {
-  if (!UUID.test(userId)) throw new Error('loadMemberships needs a user id');
-  return `SELECT set_config('app.user_id', '${userId}', true);
-     SELECT m.initiative_id AS "initiativeId", i.name AS "initiativeName", i.slug AS "initiativeSlug", m.role
-       FROM memberships m JOIN initiatives i ON i.id = m.initiative_id
-      WHERE m.user_id = '${userId}' AND i.archived_at IS NULL
-      ORDER BY i.name`;
-}
 
 /**
  * Starts a new session for a user and sets its cookie. Called after a successful
@@ -224,6 +165,11 @@ export type BearerVerifier = (
  * header checked by `verifyBearer` (the middleware passes the personal API tokens'
  * verifier; without one a bearer token is anonymous). Expired, idle or deactivated
  * sessions are ended and give null.
+ *
+ * A cookie's session, its user and the user's memberships come in one round trip
+ * (readSession). The session library's own validation would read them in three; its
+ * expiry rule (expires_at) is applied here, beside the idle and absolute limits it does
+ * not know.
  */
 export async function resolveSession(
   context: ResolveContext,
@@ -243,7 +189,7 @@ export async function resolveSession(
   const token = context.cookies.get(SESSION_COOKIE)?.value;
   if (!token) return anonymous;
   const sessionId = hashToken(token);
-  const row = await loadSession(sessionId);
+  const row = await readSession(sessionId);
   if (!row) {
     await endSession(context.cookies, undefined);
     return anonymous;
@@ -259,7 +205,7 @@ export async function resolveSession(
     return anonymous;
   }
   if (now - lastSeenAt.getTime() > LAST_SEEN_WRITE_INTERVAL_MS) {
-    await pool.query('UPDATE sessions SET last_seen_at = now() WHERE id = $1', [row.id]);
+    await requestPool.query('UPDATE sessions SET last_seen_at = now() WHERE id = $1', [row.id]);
   }
   return {
     user: {
@@ -271,52 +217,4 @@ export async function resolveSession(
     },
     session: { id: row.id, createdAt, lastSeenAt, via: 'cookie' },
   };
-}
-
-interface SessionRow {
-  id: string;
-  user_id: string;
-  expires_at: Date;
-  created_at: Date;
-  last_seen_at: Date;
-  email: string;
-  display_name: string;
-  is_admin: boolean;
-  status: string;
-  memberships: unknown;
-}
-
-const SESSION_ID = /^[0-9a-f]{64}$/;
-
-/**
- * A session with its user and the user's memberships, in one round trip: every signed-in
- * request starts here, so it is one simple-protocol text of two statements, which
- * PostgreSQL runs as one implicit transaction (as loadMemberships). The first sets the
- * transaction-local identity to the session's user (empty when there is no such session),
- * so that row-level security shows the second its memberships; the identity ends with the
- * text. Sessions and users carry no row-level security (policies/rls/001_identity.sql).
- * The id is the SHA-256 of the cookie's token, checked as 64 hex digits before it is
- * written into the text.
- *
- * The session library's own validation would read the session and the user in two
- * queries and the memberships in a third; its expiry rule (expires_at) is applied here,
- * beside the idle and absolute limits it does not know.
- */
-async function loadSession(sessionId: string): Promise<SessionRow | null> {
-  const results: unknown = await pool.query(sessionQuery(sessionId));
-  if (!Array.isArray(results) || results.length !== 2) throw new Error('loadSession expected one result per statement');
-  return (results[1].rows[0] as SessionRow | undefined) ?? null;
-}
-
-/** The two-statement text of loadSession (exported for its connection-hygiene test). */
-export function sessionQuery(sessionId: string): string {
-  if (!SESSION_ID.test(sessionId)) throw new Error('loadSession needs a session id');
-  return `SELECT set_config('app.user_id', coalesce((SELECT user_id::text FROM sessions WHERE id = '${sessionId}'), ''), true);
-     SELECT s.id, s.user_id, s.expires_at, s.created_at, s.last_seen_at, u.email, u.display_name, u.is_admin, u.status,
-            coalesce((SELECT json_agg(json_build_object('initiativeId', m.initiative_id, 'initiativeName', i.name,
-                                                        'initiativeSlug', i.slug, 'role', m.role) ORDER BY i.name)
-                        FROM memberships m JOIN initiatives i ON i.id = m.initiative_id
-                       WHERE m.user_id = s.user_id AND i.archived_at IS NULL), '[]'::json) AS memberships
-       FROM sessions s JOIN users u ON u.id = s.user_id
-      WHERE s.id = '${sessionId}'`;
 }
