@@ -12,6 +12,8 @@ declare namespace App {
     session: import('./lib/server/session').SessionInfo | null;
     /** Runs work in this request's transaction, as this request's user (row-level security). */
     db: import('./lib/server/db').Scoped;
+    /** A kept page's counter, read with the session (lib/server/requestReads.ts PageRead), or null. */
+    pageRead?: import('./lib/server/requestReads').PageRead | null;
     /** Set by a page that may be kept whole (lib/server/pageCache.ts): the key its HTML is kept under when it answers 200. */
     pageCacheKey?: string;
     /** Set by a page that answers with a kept page (serveKeptPage): the middleware writes its bytes. */

@@ -5,6 +5,7 @@ import { clientAddress, errorResponse, outagePage } from './lib/server/http';
 import { AppError, isDatabaseUnavailable } from './lib/server/errors';
 import { logger } from './lib/server/logger';
 import { keepPage, keptPageBody } from './lib/server/pageCache';
+import { readAlongTarget } from './lib/server/requestReads';
 import { addNonceToScripts, securityHeaders } from './lib/server/securityHeaders';
 import { resolveSession } from './lib/server/session';
 import { resolveApiToken } from './features/auth/apiTokens.server';
@@ -32,16 +33,20 @@ const requestContext = defineMiddleware(async (context, next) => {
   return response;
 });
 
-/** Always sets locals.user, locals.session (null when signed out) and locals.db. */
+/**
+ * Always sets locals.user, locals.session (null when signed out) and locals.db. For a page
+ * that may be kept, the session's read brings the page's counter along (locals.pageRead).
+ */
 const session = defineMiddleware(async (context, next) => {
   const resolved = await resolveSession({
     cookies: context.cookies,
     request: context.request,
     url: context.url,
     clientAddress: clientAddress(context),
-  }, { verifyBearer: resolveApiToken });
+  }, { verifyBearer: resolveApiToken, pageTarget: context.request.method === 'GET' ? readAlongTarget(context.url.pathname) : null });
   context.locals.user = resolved.user;
   context.locals.session = resolved.session;
+  context.locals.pageRead = resolved.page ?? null;
   context.locals.db = scopedTo(resolved.user?.id ?? null);
   return next();
 });

@@ -5,10 +5,12 @@
 -- function keeps the plan of each of its statements for the life of the connection, and the
 -- app calls them as prepared statements, so a read costs a few tenths of that.
 --
--- The read functions are SECURITY INVOKER: they run as the app role, under row-level
--- security, with the identity (app.user_id) set to the viewer for the read and put back as it
--- was before they return, so they leave nothing behind even inside a longer transaction.
--- They grant nothing the app role could not do with set_config and a query of its own.
+-- The reads of initiative data (a run, an initiative's counter) are SECURITY INVOKER: they
+-- run as the app role, under row-level security, with the identity (app.user_id) set to the
+-- viewer for the read and put back as it was before they return, so they leave nothing
+-- behind even inside a longer transaction. They grant nothing the app role could not do
+-- with set_config and a query of its own. The reads of identity (a session, a user's own
+-- memberships) are explained where they are defined.
 
 -- The two helpers every policy calls, now in PL/pgSQL for the same reason: a SQL function
 -- that is SECURITY DEFINER is never inlined, and its body was planned again in every query
@@ -31,54 +33,47 @@ CREATE OR REPLACE FUNCTION app_current_user_is_admin() RETURNS boolean
   END
   $$;
 
--- A session (the SHA-256 of the cookie's token) with its user and the user's memberships
--- in initiatives that are not archived. Sessions and users carry no row-level security
--- (001_identity.sql); the memberships are read under the session's user, so a deactivated
--- user has none. No row when there is no such session.
-CREATE OR REPLACE FUNCTION app_read_session(session_id text)
-  RETURNS TABLE (id text, user_id uuid, expires_at timestamptz, created_at timestamptz, last_seen_at timestamptz,
-                 email text, display_name text, is_admin boolean, status text, memberships json)
-  LANGUAGE plpgsql SECURITY INVOKER SET search_path = public
+-- A user's memberships in initiatives that are not archived, by name: what row-level
+-- security shows the user of their own memberships, and none for a deactivated user.
+-- SECURITY DEFINER with that rule written out, like app_member_initiative_ids, which the
+-- policies call for the same list: run under the policies, the same read cost twice as much
+-- database CPU (each policy calls the helpers again), and it is on every request's path
+-- (a session's, a personal API token's). It gives the app role nothing new: the role reads
+-- users and sessions freely and may take any identity.
+CREATE OR REPLACE FUNCTION app_read_memberships(viewer uuid)
+  RETURNS TABLE (initiative_id uuid, initiative_name text, initiative_slug text, role text)
+  LANGUAGE plpgsql STABLE SECURITY DEFINER SET search_path = public
   AS $$
   #variable_conflict use_column
-  DECLARE
-    before text := current_setting('app.user_id', true);
-    owner uuid;
   BEGIN
-    SELECT s.user_id INTO owner FROM sessions s WHERE s.id = session_id;
-    IF owner IS NULL THEN
-      RETURN;
-    END IF;
-    PERFORM set_config('app.user_id', owner::text, true);
     RETURN QUERY
-      SELECT s.id, s.user_id, s.expires_at, s.created_at, s.last_seen_at, u.email, u.display_name, u.is_admin, u.status,
-             coalesce((SELECT json_agg(json_build_object('initiativeId', m.initiative_id, 'initiativeName', i.name,
-                                                         'initiativeSlug', i.slug, 'role', m.role) ORDER BY i.name)
-                         FROM memberships m JOIN initiatives i ON i.id = m.initiative_id
-                        WHERE m.user_id = s.user_id AND i.archived_at IS NULL), '[]'::json)
-        FROM sessions s JOIN users u ON u.id = s.user_id
-       WHERE s.id = session_id;
-    PERFORM set_config('app.user_id', coalesce(before, ''), true);
+      SELECT m.initiative_id, i.name, i.slug, m.role
+        FROM memberships m
+        JOIN users u ON u.id = m.user_id
+        JOIN initiatives i ON i.id = m.initiative_id
+       WHERE m.user_id = viewer AND u.status = 'active' AND i.archived_at IS NULL
+       ORDER BY i.name;
   END
   $$;
 
--- A user's memberships in initiatives that are not archived, read as that user (a personal
--- API token's user on each request); none for a deactivated user.
-CREATE OR REPLACE FUNCTION app_read_memberships(viewer uuid)
-  RETURNS TABLE (initiative_id uuid, initiative_name text, initiative_slug text, role text)
-  LANGUAGE plpgsql SECURITY INVOKER SET search_path = public
+-- A session (the SHA-256 of the cookie's token) with its user and the user's memberships
+-- (app_read_memberships, as JSON). Sessions and users carry no row-level security
+-- (001_identity.sql). No row when there is no such session.
+CREATE OR REPLACE FUNCTION app_read_session(session_id text)
+  RETURNS TABLE (id text, user_id uuid, expires_at timestamptz, created_at timestamptz, last_seen_at timestamptz,
+                 email text, display_name text, is_admin boolean, status text, memberships json)
+  LANGUAGE plpgsql STABLE SECURITY DEFINER SET search_path = public
   AS $$
   #variable_conflict use_column
-  DECLARE
-    before text := current_setting('app.user_id', true);
   BEGIN
-    PERFORM set_config('app.user_id', viewer::text, true);
     RETURN QUERY
-      SELECT m.initiative_id, i.name, i.slug, m.role
-        FROM memberships m JOIN initiatives i ON i.id = m.initiative_id
-       WHERE m.user_id = viewer AND i.archived_at IS NULL
-       ORDER BY i.name;
-    PERFORM set_config('app.user_id', coalesce(before, ''), true);
+      SELECT s.id, s.user_id, s.expires_at, s.created_at, s.last_seen_at, u.email, u.display_name, u.is_admin, u.status,
+             coalesce((SELECT json_agg(json_build_object('initiativeId', m.initiative_id, 'initiativeName', m.initiative_name,
+                                                         'initiativeSlug', m.initiative_slug, 'role', m.role)
+                                   ORDER BY m.initiative_name)
+                         FROM app_read_memberships(s.user_id) m), '[]'::json)
+        FROM sessions s JOIN users u ON u.id = s.user_id
+       WHERE s.id = session_id;
   END
   $$;
 

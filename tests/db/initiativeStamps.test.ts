@@ -151,6 +151,25 @@ describe('the counter of an initiative', () => {
     expect(await moves('UPDATE runs SET cancel_requested = true WHERE id = :runId')).toBe(true);
     expect(await readRunStamp(analystId, runId)).toEqual({ initiativeId, status: run.status, stamp: await stampOf() });
     expect(await stampOf()).not.toBe(before);
+
+    // The same, read along with the viewer's session in one round trip (the results page's and the plot data's requests).
+    const { hashToken, newToken } = await import('@/lib/server/session');
+    const { readSession, readAlongTarget } = await import('@/lib/server/requestReads');
+    const sessionId = hashToken(newToken());
+    await ownerDb().query(
+      "INSERT INTO sessions (id, user_id, expires_at, created_at, last_seen_at) VALUES (:sessionId, :analystId, now() + interval '1 hour', now(), now())",
+      { replacements: { sessionId, analystId } },
+    );
+    expect(readAlongTarget(`/runs/${runId.toUpperCase()}`)).toEqual({ kind: 'run', id: runId });
+    expect(readAlongTarget(`/api/runs/${runId}/plot-data`)).toEqual({ kind: 'run', id: runId });
+    expect(readAlongTarget(`/api/runs/${runId}`)).toBeNull();
+    expect(readAlongTarget(`/runs/${runId}/compare`)).toBeNull();
+    const found = await readSession(sessionId, readAlongTarget(`/runs/${runId}`));
+    expect(found?.page).toEqual({ kind: 'run', id: runId, userId: analystId, run: { initiativeId, status: run.status, stamp: await stampOf() } });
+    expect(found?.row.user_id).toBe(analystId);
+    expect(await readRunStamp(analystId, runId, found!.page)).toEqual({ initiativeId, status: run.status, stamp: await stampOf() });
+    const elsewhere = (await readSession(sessionId, { kind: 'run', id: '00000000-0000-4000-8000-000000000000' }))?.page;
+    expect(elsewhere).toEqual({ kind: 'run', id: '00000000-0000-4000-8000-000000000000', userId: analystId, run: null });
   });
 });
 

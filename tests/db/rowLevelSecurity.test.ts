@@ -133,8 +133,11 @@ describe('the reads of every request (policies/rls/019_request_reads.sql)', () =
     const other = await makeUser();
     const mine = await makeInitiative();
     const theirs = await makeInitiative();
+    const archived = await makeInitiative();
     await addMember(mine.id, user.id, 'clinician');
     await addMember(theirs.id, other.id, 'analyst');
+    await addMember(archived.id, user.id, 'analyst');
+    await ownerDb().query('UPDATE initiatives SET archived_at = now() WHERE id = :id', { replacements: { id: archived.id } });
     expect((await loadMemberships(user.id)).map((m) => [m.initiativeId, m.role])).toEqual([[mine.id, 'clinician']]);
 
     const client = await connect();
@@ -155,6 +158,10 @@ describe('the reads of every request (policies/rls/019_request_reads.sql)', () =
     } finally {
       await client.end();
     }
+    // An administrator's own memberships only, though the policies show them every initiative.
+    const admin = await makeUser({ isAdmin: true });
+    await addMember(theirs.id, admin.id, 'auditor');
+    expect((await loadMemberships(admin.id)).map((m) => [m.initiativeId, m.role])).toEqual([[theirs.id, 'auditor']]);
     await ownerDb().query("UPDATE users SET status = 'deactivated' WHERE id = :id", { replacements: { id: user.id } });
     expect(await loadMemberships(user.id)).toEqual([]);
     await expect(loadMemberships("x'; DROP TABLE users; --")).rejects.toThrow(/user id/);
@@ -173,7 +180,7 @@ describe('the reads of every request (policies/rls/019_request_reads.sql)', () =
       "INSERT INTO sessions (id, user_id, expires_at, created_at, last_seen_at) VALUES (:sessionId, :userId, now() + interval '1 hour', now(), now())",
       { replacements: { sessionId, userId: user.id } },
     );
-    const row = await readSession(sessionId);
+    const row = (await readSession(sessionId))?.row;
     expect(row).toMatchObject({ id: sessionId, user_id: user.id, status: 'active', email: user.email });
     expect((row!.memberships as { initiativeId: string; role: string }[]).map((m) => [m.initiativeId, m.role])).toEqual([[mine.id, 'analyst']]);
     // An unknown session, and a value that is not a session id, give no row.
@@ -190,7 +197,7 @@ describe('the reads of every request (policies/rls/019_request_reads.sql)', () =
     }
     // A deactivated user's session still reads (so that it can be ended), with no memberships.
     await ownerDb().query("UPDATE users SET status = 'deactivated' WHERE id = :id", { replacements: { id: user.id } });
-    expect(await readSession(sessionId)).toMatchObject({ status: 'deactivated', memberships: [] });
+    expect((await readSession(sessionId))?.row).toMatchObject({ status: 'deactivated', memberships: [] });
   });
 
   it('reads an initiative’s counter only for its members, for each caller in turn on one connection', async () => {
@@ -214,7 +221,27 @@ describe('the reads of every request (policies/rls/019_request_reads.sql)', () =
     } finally {
       await client.end();
     }
+
+    // Read along with a session, for the session's user: the same answer, and it stands in for the read only for that initiative and user.
+    const { hashToken, newToken } = await import('@/lib/server/session');
+    const { readSession } = await import('@/lib/server/requestReads');
+    const sessionOf = async (userId: string) => {
+      const sessionId = hashToken(newToken());
+      await ownerDb().query(
+        "INSERT INTO sessions (id, user_id, expires_at, created_at, last_seen_at) VALUES (:sessionId, :userId, now() + interval '1 hour', now(), now())",
+        { replacements: { sessionId, userId } },
+      );
+      return sessionId;
+    };
+    const target = { kind: 'initiative', id: initiative.id } as const;
+    const along = (await readSession(await sessionOf(member.id), target))?.page ?? null;
+    expect(along).toEqual({ kind: 'initiative', id: initiative.id, userId: member.id, stamp });
+    expect((await readSession(await sessionOf(outsider.id), target))?.page).toEqual({ kind: 'initiative', id: initiative.id, userId: outsider.id, stamp: null });
+    expect(await readInitiativeStamp(member.id, initiative.id, along)).toBe(stamp);
     await ownerDb().query('UPDATE initiatives SET archived_at = now() WHERE id = :id', { replacements: { id: initiative.id } });
+    // What came along answers for its own initiative and user only; anything else is read again.
+    expect(await readInitiativeStamp(outsider.id, initiative.id, along)).toBeNull();
     expect(await readInitiativeStamp(member.id, initiative.id)).toBeNull();
+    expect((await readSession(await sessionOf(member.id), target))?.page).toMatchObject({ stamp: null });
   });
 });

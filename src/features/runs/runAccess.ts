@@ -8,7 +8,7 @@ import { Run } from '../../../db/models';
 import type { Result } from '@/engine/boundary/schemas';
 import { authorize, can } from '@/lib/server/authorize';
 import { notFound } from '@/lib/server/errors';
-import { readRunStamp } from '@/lib/server/requestReads';
+import { readRunStamp, type PageRead } from '@/lib/server/requestReads';
 import type { SessionUser } from '@/lib/server/session';
 import { resultDigest } from './canonical';
 import { cachedResult } from './finishedResults';
@@ -22,15 +22,16 @@ export async function readableRun(transaction: Transaction, user: SessionUser, r
 }
 
 /**
- * The result of a succeeded run the caller may read, in one round trip, when this process
- * has parsed it before (finishedResults.ts): the run's row is read under the caller's
- * identity and the same rule as readableRun applies. Undefined means "take the usual path"
+ * The result of a succeeded run the caller may read, in one round trip (none when the
+ * session's read brought the run along, `along`), when this process has parsed it before
+ * (finishedResults.ts): the run's row is read under the caller's identity and the same
+ * rule as readableRun applies. Undefined means "take the usual path"
  * (readableRun in a transaction), which gives the 404s and reads the result.
  */
-export async function quickReadableResult(user: SessionUser, runId: string): Promise<Result | undefined> {
+export async function quickReadableResult(user: SessionUser, runId: string, along: PageRead | null = null): Promise<Result | undefined> {
   const result = cachedResult(runId);
   if (result === undefined) return undefined;
-  const row = await readRunStamp(user.id, runId);
+  const row = await readRunStamp(user.id, runId, along);
   if (!row || row.status !== 'succeeded' || !can(user, 'read', 'Run', { initiativeId: row.initiativeId })) return undefined;
   return result;
 }

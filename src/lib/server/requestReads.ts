@@ -2,10 +2,12 @@
  * The reads on every request's path, and the pool they use.
  *
  * Each is one PL/pgSQL function of policies/rls/019_request_reads.sql called as a prepared
- * statement: one round trip, a plan PostgreSQL keeps per connection, and row-level security
- * under the viewer's identity, which the function sets for its read and puts back. Sent as
- * text, the same reads were planned anew on every request, at about 1 ms of database CPU
- * each (`npm run bench -- results`).
+ * statement: one round trip and a plan PostgreSQL keeps per connection. Initiative data (a
+ * run, a counter) is read under row-level security as the viewer, whose identity the
+ * function sets for its read and puts back; a session and the user's own memberships are
+ * read by the rule the policies apply to them, written out (see the SQL file). Sent as text,
+ * the same reads were planned anew on every request, at about 1 ms of database CPU each
+ * (`npm run bench -- results`).
  *
  * The pool also serves the session library (session.ts): its PostgreSQL adapter takes a pg
  * Pool, where Sequelize's pool (db.ts) hands out bare clients.
@@ -47,11 +49,73 @@ export interface SessionRow {
   memberships: unknown;
 }
 
-/** A session by its id (the SHA-256 of the cookie's token, 64 hex digits), or null. */
-export async function readSession(sessionId: string): Promise<SessionRow | null> {
+/**
+ * The counter a page that may be kept needs (pageCache.ts), named by the page's path: a
+ * run's (its results page, and its plot data) or an initiative's (its review board). A
+ * signed-in request for such a page reads it in the same round trip as its session
+ * (readSession), under the session's user.
+ */
+export type PageTarget = { kind: 'run'; id: string } | { kind: 'initiative'; id: string };
+
+/** A counter read along with the session: for a run, what readRunStamp gives; for an initiative, what readInitiativeStamp gives. */
+export type PageRead =
+  | { kind: 'run'; id: string; userId: string; run: RunStamp | null }
+  | { kind: 'initiative'; id: string; userId: string; stamp: string | null };
+
+/** A run's initiative and status, and the initiative's counter, as its viewer may see them. */
+export interface RunStamp {
+  initiativeId: string;
+  status: string;
+  /** Null only if the counter's row is missing. */
+  stamp: string | null;
+}
+
+const RUN_PATHS = /^\/(?:runs\/([0-9a-fA-F-]{36})|api\/runs\/([0-9a-fA-F-]{36})\/plot-data)\/?$/;
+const BOARD_PATH = /^\/initiatives\/([0-9a-fA-F-]{36})\/board\/?$/;
+
+/**
+ * What the session's read brings along for a request to `pathname`, or null: the run of a
+ * results page and of its plot data, the initiative of a review board. Whatever does not
+ * come along is read where it is needed, in a round trip of its own.
+ */
+export function readAlongTarget(pathname: string): PageTarget | null {
+  const run = RUN_PATHS.exec(pathname);
+  if (run) return { kind: 'run', id: (run[1] ?? run[2]).toLowerCase() };
+  const board = BOARD_PATH.exec(pathname);
+  if (board) return { kind: 'initiative', id: board[1].toLowerCase() };
+  return null;
+}
+
+type SessionWithPage = SessionRow & { page_initiative_id?: string | null; page_status?: string | null; page_stamp?: string | null };
+
+/**
+ * A session by its id (the SHA-256 of the cookie's token, 64 hex digits), or null; with a
+ * page's counter read in the same round trip when `target` names one (see PageTarget).
+ */
+export async function readSession(sessionId: string, target: PageTarget | null = null): Promise<{ row: SessionRow; page: PageRead | null } | null> {
   if (!SESSION_ID.test(sessionId)) return null;
-  const [row] = await call<SessionRow>('read_session', 'SELECT * FROM app_read_session($1)', [sessionId]);
-  return row ?? null;
+  if (target && !UUID.test(target.id)) target = null;
+  const [found] = target === null
+    ? await call<SessionWithPage>('read_session', 'SELECT * FROM app_read_session($1)', [sessionId])
+    : target.kind === 'run'
+      ? await call<SessionWithPage>(
+        'read_session_and_run',
+        `SELECT s.*, r.initiative_id AS page_initiative_id, r.status AS page_status, r.stamp::text AS page_stamp
+           FROM app_read_session($1) s LEFT JOIN LATERAL app_read_run_stamp(s.user_id, $2) r ON true`,
+        [sessionId, target.id],
+      )
+      : await call<SessionWithPage>(
+        'read_session_and_initiative',
+        'SELECT s.*, app_read_initiative_stamp(s.user_id, $2)::text AS page_stamp FROM app_read_session($1) s',
+        [sessionId, target.id],
+      );
+  if (found === undefined) return null;
+  const { page_initiative_id: initiativeId, page_status: status, page_stamp: stamp, ...row } = found;
+  if (target === null) return { row, page: null };
+  const page: PageRead = target.kind === 'run'
+    ? { kind: 'run', id: target.id, userId: row.user_id, run: initiativeId && status ? { initiativeId, status, stamp: stamp ?? null } : null }
+    : { kind: 'initiative', id: target.id, userId: row.user_id, stamp: stamp ?? null };
+  return { row, page };
 }
 
 /** A user's memberships in initiatives that are not archived, read as that user; none for a deactivated user. */
@@ -64,13 +128,15 @@ export async function readMemberships(userId: string): Promise<{ initiativeId: s
 
 /**
  * A run as a viewer may see it: its initiative, its status and the initiative's counter
- * (initiativeStamp.ts; null only if the counter's row is missing). Null when there is no
- * such run or the viewer may not see it, and for an id that is not a uuid.
+ * (initiativeStamp.ts). Null when there is no such run or the viewer may not see it, and for
+ * an id that is not a uuid. `along` is what the session's read brought for this request:
+ * when it is this run's, for this viewer, it is the answer and no read is made.
  */
-export async function readRunStamp(userId: string, runId: string): Promise<{ initiativeId: string; status: string; stamp: string | null } | null> {
+export async function readRunStamp(userId: string, runId: string, along: PageRead | null = null): Promise<RunStamp | null> {
+  if (along?.kind === 'run' && along.id === runId && along.userId === userId) return along.run;
   if (!UUID.test(userId)) throw new Error('readRunStamp needs a user id');
   if (!UUID.test(runId)) return null;
-  const [row] = await call<{ initiativeId: string; status: string; stamp: string | null }>(
+  const [row] = await call<RunStamp>(
     'read_run_stamp',
     'SELECT initiative_id AS "initiativeId", status, stamp::text AS stamp FROM app_read_run_stamp($1, $2)',
     [userId, runId],
@@ -80,9 +146,11 @@ export async function readRunStamp(userId: string, runId: string): Promise<{ ini
 
 /**
  * The counter of an initiative that is not archived, as a viewer may see it; null when
- * the viewer may not see it, it is archived, or the id is not a uuid.
+ * the viewer may not see it, it is archived, or the id is not a uuid. `along` as for
+ * readRunStamp.
  */
-export async function readInitiativeStamp(userId: string, initiativeId: string): Promise<string | null> {
+export async function readInitiativeStamp(userId: string, initiativeId: string, along: PageRead | null = null): Promise<string | null> {
+  if (along?.kind === 'initiative' && along.id === initiativeId && along.userId === userId) return along.stamp;
   if (!UUID.test(userId)) throw new Error('readInitiativeStamp needs a user id');
   if (!UUID.test(initiativeId)) return null;
   const [row] = await call<{ stamp: string | null }>('read_initiative_stamp', 'SELECT app_read_initiative_stamp($1, $2)::text AS stamp', [userId, initiativeId]);

@@ -16,7 +16,7 @@ import { NodePostgresAdapter } from '@lucia-auth/adapter-postgresql';
 import { z } from 'zod';
 import { ROLES, type Role } from '../../../db/models';
 import { env, isProduction } from './env';
-import { readMemberships, readSession, requestPool } from './requestReads';
+import { readMemberships, readSession, requestPool, type PageRead, type PageTarget } from './requestReads';
 
 export interface MembershipInfo {
   initiativeId: string;
@@ -169,12 +169,13 @@ export type BearerVerifier = (
  * A cookie's session, its user and the user's memberships come in one round trip
  * (readSession). The session library's own validation would read them in three; its
  * expiry rule (expires_at) is applied here, beside the idle and absolute limits it does
- * not know.
+ * not know. `pageTarget` names the counter of a page that may be kept; it comes back read in
+ * the same round trip as `page` (only for a valid cookie session).
  */
 export async function resolveSession(
   context: ResolveContext,
-  options: { verifyBearer?: BearerVerifier } = {},
-): Promise<{ user: SessionUser | null; session: SessionInfo | null }> {
+  options: { verifyBearer?: BearerVerifier; pageTarget?: PageTarget | null } = {},
+): Promise<{ user: SessionUser | null; session: SessionInfo | null; page?: PageRead | null }> {
   const anonymous = { user: null, session: null };
   const authorization = context.request.headers.get('authorization');
   if (authorization?.startsWith('Bearer ')) {
@@ -189,11 +190,12 @@ export async function resolveSession(
   const token = context.cookies.get(SESSION_COOKIE)?.value;
   if (!token) return anonymous;
   const sessionId = hashToken(token);
-  const row = await readSession(sessionId);
-  if (!row) {
+  const found = await readSession(sessionId, options.pageTarget ?? null);
+  if (!found) {
     await endSession(context.cookies, undefined);
     return anonymous;
   }
+  const { row, page } = found;
   const now = Date.now();
   const lastSeenAt = new Date(row.last_seen_at);
   const createdAt = new Date(row.created_at);
@@ -216,5 +218,6 @@ export async function resolveSession(
       memberships: MEMBERSHIP_ROWS.parse(row.memberships),
     },
     session: { id: row.id, createdAt, lastSeenAt, via: 'cookie' },
+    page,
   };
 }

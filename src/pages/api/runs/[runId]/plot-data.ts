@@ -10,12 +10,12 @@ import { endpoint, requireUser, uuidParam } from '@/lib/server/http';
  * answer carries an entity tag and the browser keeps it; `no-cache` makes it ask again on
  * every view (a 304 without a body when unchanged), so the access check runs every time
  * and a shared browser never shows one person's plots to the next. When this process has
- * the result already, the check is one round trip (quickReadableResult).
+ * the result already, the check is the run read along with the session (quickReadableResult).
  */
 export const GET = endpoint(async ({ locals, params, request }) => {
   const user = requireUser(locals);
   const runId = uuidParam(params.runId, 'That run');
-  let result = await quickReadableResult(user, runId);
+  let result = await quickReadableResult(user, runId, locals.pageRead);
   if (!result) {
     const run = await locals.db((t) => readableRun(t, user, runId, { withResult: true }));
     if (run.status !== 'succeeded' || !run.result) throw notFound('The plot data of that run');
