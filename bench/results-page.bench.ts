@@ -4,6 +4,8 @@
  * percentile with 20 and with 50 concurrent readers on loopback; prints p50, p95 and p99,
  * and first, one reader at a time, each page's size, the server's CPU time per view and the
  * database statements per view (and the same for the plot data the results page fetches).
+ * Each load is measured after a warm-up at the same load, by readers in a process of their
+ * own (bench/support/readers.mjs).
  * CROSSGRAIN_BENCH_LOAD=0 skips the loads; CROSSGRAIN_BENCH_STATEMENTS=1 lists one view's statements; CROSSGRAIN_BENCH_VS measures another build in turn
  * (see below). Uses its own cluster (port 54369, .data/bench-results) and the
  * built server (built first when dist/ is missing), both removed or stopped at the end.
@@ -24,7 +26,14 @@ Object.assign(process.env, {
 const READER_COUNTS = [20, 50];
 /** CROSSGRAIN_BENCH_LOAD=0 prints only the one-reader figures (size, CPU, statements) and skips the loads. */
 const withLoad = process.env.CROSSGRAIN_BENCH_LOAD !== '0';
-const REQUESTS = 600;
+/**
+ * Requests measured per load, after WARM_UP_REQUESTS at the same load that are not counted:
+ * a server that has just started compiles its request path under load at first (about
+ * twice the CPU per request for the first thousand or so), which a server in service has
+ * long done.
+ */
+const REQUESTS = 2000;
+const WARM_UP_REQUESTS = 1000;
 
 const { startCluster, destroyCluster, runClusterTool, clusterSettings } = await import('../db/scripts/postgres.mjs');
 const cluster = { port: dbPort, dataRoot };
@@ -167,40 +176,21 @@ try {
     }
   }
 
-  /**
-   * `requests` loads of `url` by `readers` concurrent readers: latencies in ms, sorted, and
-   * the load generator's own CPU time per request (it shares the 2 cores with the server).
-   */
-  async function measure(url: string, cookie: string, mark: string, readers: number, requests: number) {
-    const latencies: number[] = [];
-    let next = 0;
-    let failures = 0;
-    const started = performance.now();
-    const clientCpu0 = process.cpuUsage();
-    await Promise.all(Array.from({ length: readers }, async () => {
-      while (next < requests) {
-        next += 1;
-        const t0 = performance.now();
-        const response = await fetch(url, { headers: { Cookie: cookie } });
-        const html = await response.text();
-        latencies.push(performance.now() - t0);
-        if (response.status !== 200 || !html.includes(mark)) failures += 1;
-      }
-    }));
-    const seconds = (performance.now() - started) / 1000;
-    const clientCpu = process.cpuUsage(clientCpu0);
-    latencies.sort((a, b) => a - b);
-    return { latencies, failures, perSecond: requests / seconds, generatorMs: (clientCpu.user + clientCpu.system) / 1000 / requests };
-  }
+  /** One load (bench/support/readers.mjs, in its own process): warm-up, then the measured requests. */
+  const measure = (url: string, cookie: string, mark: string, readers: number) => {
+    const result = spawnSync(process.execPath, [path.join(root, 'bench/support/readers.mjs'), JSON.stringify({ url, cookie, mark, readers, requests: REQUESTS, warmUp: WARM_UP_REQUESTS })], { encoding: 'utf8', maxBuffer: 64 * 1024 * 1024 });
+    if (result.status !== 0) throw new Error(`the readers failed: ${result.stderr}`);
+    return JSON.parse(result.stdout) as { latencies: number[]; failures: number; perSecond: number; generatorMs: number; busy: number; steal: number };
+  };
 
   for (const [index, page] of (withLoad ? targets[0].pages : []).entries()) {
     for (const readers of READER_COUNTS) {
       for (const target of targets) {
         const loadAverage = readFileSync('/proc/loadavg', 'utf8').split(' ')[0];
-        const { latencies, failures, perSecond, generatorMs } = await measure(target.pages[index].url, target.cookie, page.mark, readers, REQUESTS);
+        const { latencies, failures, perSecond, generatorMs, busy, steal } = measure(target.pages[index].url, target.cookie, page.mark, readers);
         const at = (q: number) => latencies[Math.min(latencies.length - 1, Math.floor(q * latencies.length))];
         const p95 = at(0.95);
-        console.log(`[${target.label}] ${page.name}: ${REQUESTS} requests, ${readers} concurrent readers, ${perSecond.toFixed(0)} requests/s, ${failures} failures (load average ${loadAverage} before; load generator ${generatorMs.toFixed(2)} ms of CPU per request)`);
+        console.log(`[${target.label}] ${page.name}: ${REQUESTS} requests after ${WARM_UP_REQUESTS} not counted, ${readers} concurrent readers, ${perSecond.toFixed(0)} requests/s, ${failures} failures (load average ${loadAverage} before; cores busy ${(busy * 100).toFixed(0)} %, steal ${(steal * 100).toFixed(1)} %; load generator ${generatorMs.toFixed(2)} ms of CPU per request)`);
         console.log(`  p50 ${at(0.5).toFixed(1)} ms   p95 ${p95.toFixed(1)} ms   p99 ${at(0.99).toFixed(1)} ms   max ${latencies[latencies.length - 1].toFixed(1)} ms   target p95 <= 200 ms: ${p95 <= 200 ? 'met' : 'NOT MET'}`);
       }
     }
