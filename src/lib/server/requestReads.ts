@@ -118,7 +118,7 @@ export async function readSession(sessionId: string, target: PageTarget | null =
   return { row, page };
 }
 
-/** A user's memberships in initiatives that are not archived, read as that user; none for a deactivated user. */
+/** A user's own memberships in initiatives that are not archived, by name; none for a deactivated user. */
 export async function readMemberships(userId: string): Promise<{ initiativeId: string; initiativeName: string; initiativeSlug: string; role: string }[]> {
   if (!UUID.test(userId)) throw new Error('readMemberships needs a user id');
   return call('read_memberships', `SELECT initiative_id AS "initiativeId", initiative_name AS "initiativeName",
