@@ -63,7 +63,8 @@ export async function seedDemoAnalyses(): Promise<number> {
       const { id } = await createAnalysis(t, actor, {
         initiativeId: initiative.id, extractVersionId: initiative.version_id, title: demo.title, question: demo.question, prespecified: true, spec: demo.spec,
       });
-      // Executed below, in this process; the job queue is not involved.
+      // Executed below, in this process. The run's job stays queued; a worker that takes it
+      // later finds the run no longer queued and leaves it as it is.
       return (await startRun(t, actor, id)).runId;
     });
     if (!queued) continue;

@@ -197,7 +197,7 @@ describe('runs', () => {
     expect((await clients.clinician.request('POST', `/api/runs/${queued}/cancel`, {})).status).toBe(403);
     const cancelled = await clients.analyst.request('POST', `/api/runs/${queued}/cancel`, {});
     expect(await cancelled.json()).toEqual({ status: 'cancelled' });
-    expect(await executeRun(queued, analystId, { threads: 0 })).toBe('cancelled');
+    expect(await executeRun(queued, analystId, { threads: 0 })).toBe('not-queued');
     expect((await (await clients.analyst.request('GET', `/api/runs/${queued}?fields=status`)).json()).status).toBe('cancelled');
   });
 

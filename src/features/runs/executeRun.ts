@@ -47,8 +47,12 @@ async function storeVerification(transaction: Transaction, rerunId: string, orig
 const HEARTBEAT_MS = 2_000;
 const PROGRESS_WRITE_MS = 400;
 
-/** Executes one run; returns how it ended ('cancelled' also when it was no longer queued). */
-export async function executeRun(runId: string, startedBy: string, options: { workerName?: string; threads?: number } = {}): Promise<RunStatus> {
+/**
+ * Executes one run; returns how it ended, or 'not-queued' when there was nothing to do: the
+ * run was no longer queued (cancelled before it started, executed already, taken by another
+ * worker) or its starter may no longer run it.
+ */
+export async function executeRun(runId: string, startedBy: string, options: { workerName?: string; threads?: number } = {}): Promise<RunStatus | 'not-queued'> {
   const worker = options.workerName ?? `${hostname()}:${process.pid}`;
   const claimed = await withIdentity(startedBy, async (t) => {
     // Read under the starter's identity: row-level security confirms they may still run it.
@@ -72,7 +76,7 @@ export async function executeRun(runId: string, startedBy: string, options: { wo
     );
     return run;
   });
-  if (!claimed) return 'cancelled';
+  if (!claimed) return 'not-queued';
 
   const controller = new AbortController();
   let lastProgress = { stage: 'loading', fraction: 0 };

@@ -26,7 +26,8 @@ export async function startWorker(): Promise<{ stop: () => Promise<void> }> {
   await boss.work<RunJob>(RUN_QUEUE, { batchSize: 1, pollingIntervalSeconds: 1 }, async ([job]) => {
     logger.info({ runId: job.data.runId, worker: name }, 'run taken');
     const status = await executeRun(job.data.runId, job.data.startedBy, { workerName: name });
-    logger.info({ runId: job.data.runId, status }, 'run ended');
+    if (status === 'not-queued') logger.info({ runId: job.data.runId }, 'run no longer queued (cancelled, or executed already); nothing to do');
+    else logger.info({ runId: job.data.runId, status }, 'run ended');
   });
   const sweep = setInterval(() => {
     sweepStaleRuns().then((ids) => {
