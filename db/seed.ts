@@ -5,6 +5,7 @@ import { env } from '@/lib/server/env';
 import { hashPassword } from '@/lib/server/passwords';
 import { createSequelize } from './connection';
 import { sequelize as appSequelize } from '@/lib/server/db';
+import { mailSettled } from '@/features/notifications/notificationMail.server';
 import { seedDemoAnalyses } from './seeds/demoAnalyses';
 import { seedDemoExtracts } from './seeds/demoExtracts';
 import { DEMO_INITIATIVES, DEMO_ORGANISATION, DEMO_PASSWORD, DEMO_USERS, demoEmail } from './seeds/demo';
@@ -74,5 +75,9 @@ if (process.argv[1] && fileURLToPath(import.meta.url) === path.resolve(process.a
       console.error(error instanceof Error ? error.message : error);
       process.exitCode = 1;
     })
-    .finally(() => Promise.all([sequelize.close(), appSequelize.close()]));
+    // Mails sent after the demo's commits (review notifications) are marked sent before the connections close.
+    .finally(async () => {
+      await mailSettled();
+      await Promise.all([sequelize.close(), appSequelize.close()]);
+    });
 }

@@ -13,7 +13,8 @@ import { createTransport } from 'nodemailer';
 import { QueryTypes } from 'sequelize';
 import { listMessages, readMessage } from '@/features/admin/outbox';
 import { generateCallBackCohort } from '@/features/extracts/demoCohorts';
-import { sendDigests, sendOverdueNotificationMail } from '@/features/notifications/notificationMail.server';
+import { mailSettled, sendDigests, sendOverdueNotificationMail } from '@/features/notifications/notificationMail.server';
+import { notifyReviewStep } from '@/features/notifications/notifications.server';
 import { executeRun } from '@/features/runs/executeRun';
 import { sequelize, withIdentity } from '@/lib/server/db';
 import { hashPassword } from '@/lib/server/passwords';
@@ -218,6 +219,18 @@ describe('e-mail', () => {
     const before = (await mailTo(people.analyst.email, /./, 99)).length;
     await sendOverdueNotificationMail({ olderThanSeconds: 0 });
     expect(await mailTo(people.analyst.email, /./, before + 1)).toHaveLength(before);
+  });
+
+  it('lets a process wait until the mail it sends after a commit is sent and marked (the demo seed does before it closes)', async () => {
+    const note = `Marked before closing ${Date.now()}`;
+    await withIdentity(people.clinicianA.id, (t) =>
+      notifyReviewStep(t, people.clinicianA.id, { id: runId, initiativeId, startedBy: people.analyst.id }, 'sent-back', note));
+    await mailSettled();
+    const [row] = await ownerDb().query<{ mail_state: string; mail_attempts: number }>(
+      'SELECT mail_state, mail_attempts FROM notifications WHERE recipient_id = :id AND excerpt = :note',
+      { replacements: { id: people.analyst.id, note }, type: QueryTypes.SELECT },
+    );
+    expect(row).toEqual({ mail_state: 'sent', mail_attempts: 1 });
   });
 
   it('sends, from the sweep, a mail whose sender stopped after the commit, and only once', async () => {

@@ -75,6 +75,9 @@ async function sendClaimed(messages: readonly Message[], transport?: MailTranspo
   return sent;
 }
 
+/** Mails being sent after a commit in this process. */
+const mailsInFlight = new Set<Promise<unknown>>();
+
 /**
  * Marks pending, in the event's transaction, each written notification whose recipient
  * chose immediate mail, and sends those mails after the commit. The mark is what makes the
@@ -98,8 +101,20 @@ export async function mailAfterCommit(transaction: Transaction, written: readonl
     return to ? [messageOf(row, to, actorName)] : [];
   });
   transaction.afterCommit(() => {
-    sendClaimed(messages, transport).catch((error: unknown) => logger.warn({ err: error }, 'notification e-mail not sent; it stays pending'));
+    const sending: Promise<unknown> = sendClaimed(messages, transport)
+      .catch((error: unknown) => logger.warn({ err: error }, 'notification e-mail not sent; it stays pending'))
+      .finally(() => mailsInFlight.delete(sending));
+    mailsInFlight.add(sending);
   });
+}
+
+/**
+ * Settles once every mail this process began to send after a commit has been sent and
+ * marked, or left pending: a script awaits it before it closes its database connections,
+ * or a mail already sent would stay claimed but unmarked, and the sweep would send it again.
+ */
+export async function mailSettled(): Promise<void> {
+  while (mailsInFlight.size > 0) await Promise.allSettled([...mailsInFlight]);
 }
 
 /**

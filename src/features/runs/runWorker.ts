@@ -11,7 +11,7 @@ import { createQueue, startWhenReachable } from '@/lib/server/queue';
 import { executeRun } from './executeRun';
 import { RUN_QUEUE, type RunJob } from './runQueue';
 import { sweepStaleRuns } from './runs.server';
-import { sendDigests, sendOverdueNotificationMail } from '../notifications/notificationMail.server';
+import { mailSettled, sendDigests, sendOverdueNotificationMail } from '../notifications/notificationMail.server';
 
 const SWEEP_MS = 15_000;
 /** How often the worker looks for daily notification digests that are due (each person's gap is a day). */
@@ -51,6 +51,7 @@ export async function startWorker(): Promise<{ stop: () => Promise<void> }> {
       clearInterval(digests);
       clearInterval(overdueMail);
       await boss.stop({ graceful: true, timeout: 5_000 });
+      await mailSettled();
       await sequelize.close();
     },
   };
