@@ -122,5 +122,20 @@ describe('subgroup screen', () => {
     const credibility = await analyst.request('GET', `/api/runs/${runId}/credibility`);
     expect(credibility.status).toBe(409);
     expect((await credibility.json()).error.message).toMatch(/subgroup screen/);
+
+    // Nor is it compared side by side: a second run of the screen gives two runs, and the comparison says why it cannot.
+    const again = (await (await analyst.request('POST', `/api/analyses/${analysisId}/runs`, {})).json()) as { runId: string };
+    expect(await executeRun(again.runId, analystId, { threads: 0 })).toBe('succeeded');
+    const compared = await analyst.request('GET', `/api/runs/compare?runs=${runId},${again.runId}`);
+    expect(compared.status).toBe(400);
+    expect((await compared.json()).error).toMatchObject({ code: 'screen-not-comparable', message: expect.stringMatching(/subgroup screen, which is not compared side by side/) });
+    const comparePage = await analyst.request('GET', `/runs/compare?runs=${runId},${again.runId}`);
+    expect(comparePage.status).toBe(400);
+    expect(await comparePage.text()).toContain('is a subgroup screen, which is not compared side by side');
+    // The analysis page offers no box to tick for them, and no compare button.
+    const analysisPage = await (await analyst.request('GET', `/analyses/${analysisId}`)).text();
+    expect(analysisPage).not.toContain('name="run"');
+    expect(analysisPage).not.toContain('Compare the chosen runs');
+    expect(analysisPage).toContain('The runs of a subgroup screen are not compared side by side');
   });
 });

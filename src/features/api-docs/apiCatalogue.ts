@@ -92,7 +92,7 @@ export const OPERATIONS: Operation[] = [
   { method: 'PATCH', path: '/api/analyses/{id}', tag: 'Analyses and runs', summary: 'Change an analysis; past runs keep their snapshot', auth: 'session', body: AnalysisBody, status: 204 },
   { method: 'GET', path: '/api/runs/compare', tag: 'Analyses and runs', summary: 'Compare two to four runs', auth: 'session', status: 200,
     query: z.object({ runs: z.string().describe('Two to four run ids, comma-separated (400 beyond four).') }),
-    description: 'The differing specification fields in words, warnings when runs use different references, and every figure the runs estimated with each run’s change from the first.' },
+    description: 'The differing specification fields in words, warnings when runs use different references, and every figure the runs estimated with each run’s change from the first. A subgroup screen is refused with 400 (`screen-not-comparable`): compare the runs of the full analysis of a modifier instead.' },
   { method: 'GET', path: '/api/analyses/{id}/runs', tag: 'Analyses and runs', summary: "The analysis's runs, newest first", auth: 'session', status: 200 },
   { method: 'POST', path: '/api/analyses/{id}/runs', tag: 'Analyses and runs', summary: 'Queue a run of the analysis', auth: 'session', response: RunAccepted, status: 202,
     description: 'With an Idempotency-Key header, a repeat of the same request (same person, analysis, key and body) within 24 hours answers with the run the first one queued instead of queuing another. The same key with a different body is refused with 422 (`idempotency-key-reused`).',
