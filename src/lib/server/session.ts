@@ -51,7 +51,6 @@ const absoluteMs = () => env.CROSSGRAIN_SESSION_ABSOLUTE_HOURS * 3_600_000;
 /** Writing last_seen_at on every request would cost a write per page; once a minute is enough. */
 const LAST_SEEN_WRITE_INTERVAL_MS = 60_000;
 
-
 interface SessionRowAttributes {
   created_at: Date;
   last_seen_at: Date;
@@ -103,7 +102,7 @@ export function newToken(bytes = 20): string {
   return randomBytes(bytes).toString('base64url');
 }
 
-/** The memberships (with initiative names) of one user, read under their own identity. */
+/** The memberships (with initiative names) of one user in initiatives that are not archived; none once deactivated. */
 export async function loadMemberships(userId: string): Promise<MembershipInfo[]> {
   return MEMBERSHIP_ROWS.parse(await readMemberships(userId));
 }
