@@ -88,6 +88,20 @@ export function readAlongTarget(pathname: string): PageTarget | null {
 
 type SessionWithPage = SessionRow & { page_initiative_id?: string | null; page_status?: string | null; page_stamp?: string | null };
 
+/** The session's read as a prepared statement: alone, or with a run's or an initiative's counter. */
+const SESSION_READS = {
+  alone: { name: 'read_session', text: 'SELECT * FROM app_read_session($1)' },
+  run: {
+    name: 'read_session_and_run',
+    text: `SELECT s.*, r.initiative_id AS page_initiative_id, r.status AS page_status, r.stamp::text AS page_stamp
+             FROM app_read_session($1) s LEFT JOIN LATERAL app_read_run_stamp(s.user_id, $2) r ON true`,
+  },
+  initiative: {
+    name: 'read_session_and_initiative',
+    text: 'SELECT s.*, app_read_initiative_stamp(s.user_id, $2)::text AS page_stamp FROM app_read_session($1) s',
+  },
+} as const;
+
 /**
  * A session by its id (the SHA-256 of the cookie's token, 64 hex digits), or null; with a
  * page's counter read in the same round trip when `target` names one (see PageTarget).
@@ -95,20 +109,8 @@ type SessionWithPage = SessionRow & { page_initiative_id?: string | null; page_s
 export async function readSession(sessionId: string, target: PageTarget | null = null): Promise<{ row: SessionRow; page: PageRead | null } | null> {
   if (!SESSION_ID.test(sessionId)) return null;
   if (target && !UUID.test(target.id)) target = null;
-  const [found] = target === null
-    ? await call<SessionWithPage>('read_session', 'SELECT * FROM app_read_session($1)', [sessionId])
-    : target.kind === 'run'
-      ? await call<SessionWithPage>(
-        'read_session_and_run',
-        `SELECT s.*, r.initiative_id AS page_initiative_id, r.status AS page_status, r.stamp::text AS page_stamp
-           FROM app_read_session($1) s LEFT JOIN LATERAL app_read_run_stamp(s.user_id, $2) r ON true`,
-        [sessionId, target.id],
-      )
-      : await call<SessionWithPage>(
-        'read_session_and_initiative',
-        'SELECT s.*, app_read_initiative_stamp(s.user_id, $2)::text AS page_stamp FROM app_read_session($1) s',
-        [sessionId, target.id],
-      );
+  const read = SESSION_READS[target?.kind ?? 'alone'];
+  const [found] = await call<SessionWithPage>(read.name, read.text, target ? [sessionId, target.id] : [sessionId]);
   if (found === undefined) return null;
   const { page_initiative_id: initiativeId, page_status: status, page_stamp: stamp, ...row } = found;
   if (target === null) return { row, page: null };
